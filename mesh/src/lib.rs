@@ -1,0 +1,15 @@
+//! # olli-mesh
+//!
+//! The mesh side of olli: the mesh model with its named node, element and side
+//! sets; generators for the part families of rubber engineering (blocks,
+//! bushing sections, mount discs, O-ring cords); importers; geometric
+//! selections; quality checks; and `.vtu` export.
+//!
+//! This crate never depends on the solver: everything here is geometry and
+//! topology.
+
+pub mod element;
+pub mod model;
+
+pub use element::ElementKind;
+pub use model::{Mesh, Side};

@@ -1,0 +1,33 @@
+//! `olli`: the command-line face of the solver. Each subcommand lives in its
+//! own module; this file only dispatches. Exit codes: 0 success, 1 a run that
+//! stopped without converging, 2 bad input.
+
+mod material_cmd;
+
+use std::process::ExitCode;
+
+use clap::{Parser, Subcommand};
+
+#[derive(Parser)]
+#[command(
+    name = "olli",
+    version,
+    about = "Large-strain finite-element analysis of rubber seals, mounts and bushings"
+)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand)]
+enum Command {
+    /// Homogeneous responses of a hyperelastic material (uniaxial, biaxial, planar, shear, volumetric).
+    Material(material_cmd::Args),
+}
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    match cli.command {
+        Command::Material(args) => material_cmd::run(args),
+    }
+}

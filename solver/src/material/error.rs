@@ -1,0 +1,41 @@
+//! Errors raised by constitutive models: bad parameters at construction, and
+//! states a model cannot evaluate (inverted volume, chains at their locking
+//! stretch) during a solve, where they trigger an increment cutback.
+
+use thiserror::Error;
+
+#[derive(Debug, Clone, PartialEq, Error)]
+pub enum MaterialError {
+    /// A constant is out of its physical range.
+    #[error("material parameter `{name}` = {value}: {reason}")]
+    InvalidParameter {
+        name: &'static str,
+        value: f64,
+        reason: &'static str,
+    },
+    /// A required constant was not given.
+    #[error("material model `{model}` needs parameter `{name}`")]
+    MissingParameter {
+        model: &'static str,
+        name: &'static str,
+    },
+    /// A constant was given that the model does not use.
+    #[error("material model `{model}` does not take parameter `{name}` (it takes: {allowed})")]
+    UnexpectedParameter {
+        model: &'static str,
+        name: String,
+        allowed: String,
+    },
+    /// The model name is not one olli knows.
+    #[error("unknown material model `{0}` (known: neo-hookean, mooney-rivlin, yeoh, eight-chain)")]
+    UnknownModel(String),
+    /// The volume ratio J = det F is not positive: the material is inverted.
+    #[error("volume ratio J = {j:.3e} is not positive (inverted material)")]
+    NonPositiveVolume { j: f64 },
+    /// Eight-chain: the chain stretch reached the locking stretch.
+    #[error("chain stretch {chain_stretch:.6} reached the locking stretch {locking_stretch:.6}")]
+    ChainLocking {
+        chain_stretch: f64,
+        locking_stretch: f64,
+    },
+}
