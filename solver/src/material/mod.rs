@@ -18,6 +18,7 @@
 //! [`registry`]).
 
 pub mod error;
+pub mod fd_check;
 pub mod neo_hookean;
 pub mod registry;
 pub mod invariants;
