@@ -1,0 +1,81 @@
+//! `history.csv`: one row per converged increment.
+//!
+//! Columns: `stage`, `increment`, `load_factor`, then one column per named
+//! force quantity (`reaction_<set>_<component>`, and later rigid-surface
+//! totals), then `newton_iterations`. The header row holds the column names
+//! alone so scripts can address them; units are listed in `summary.json` and
+//! described in the README.
+
+use std::fmt::Write;
+
+/// A growing table of increments, rewritten atomically after each one.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct History {
+    /// Names of the value columns between `load_factor` and `newton_iterations`.
+    pub columns: Vec<String>,
+    rows: Vec<Row>,
+}
+
+#[derive(Debug, Clone, PartialEq)]
+struct Row {
+    stage: String,
+    increment: usize,
+    load_factor: f64,
+    values: Vec<f64>,
+    iterations: usize,
+}
+
+impl History {
+    pub fn new(columns: Vec<String>) -> Self {
+        History {
+            columns,
+            rows: Vec::new(),
+        }
+    }
+
+    /// Appends a row; `values` follow `columns`.
+    pub fn push(&mut self, stage: &str, increment: usize, load_factor: f64, values: Vec<f64>, iterations: usize) {
+        debug_assert_eq!(values.len(), self.columns.len());
+        self.rows.push(Row {
+            stage: stage.to_string(),
+            increment,
+            load_factor,
+            values,
+            iterations,
+        });
+    }
+
+    pub fn len(&self) -> usize {
+        self.rows.len()
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.rows.is_empty()
+    }
+
+    /// The CSV text.
+    pub fn to_csv(&self) -> String {
+        let mut s = String::from("stage,increment,load_factor");
+        for c in &self.columns {
+            s.push(',');
+            s.push_str(c);
+        }
+        s.push_str(",newton_iterations\n");
+        for r in &self.rows {
+            let _ = write!(s, "{},{},{:.10e}", csv_text(&r.stage), r.increment, r.load_factor);
+            for v in &r.values {
+                let _ = write!(s, ",{v:.10e}");
+            }
+            let _ = writeln!(s, ",{}", r.iterations);
+        }
+        s
+    }
+}
+
+fn csv_text(s: &str) -> String {
+    if s.contains([',', '"', '\n']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.to_string()
+    }
+}
