@@ -4,6 +4,7 @@
 //! the constitutive library ([`material`]) and, built on it, the elements,
 //! assembly, sparse direct solve and Newton–Raphson driver.
 
+pub mod contact;
 pub mod job;
 pub mod material;
 pub mod output;

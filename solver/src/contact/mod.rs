@@ -1,0 +1,6 @@
+//! Contact between rubber and rigid (metal) surfaces.
+
+pub mod law;
+pub mod surface;
+
+pub use surface::{Piece2, Placement, Projection, RigidSurface, Shape};
