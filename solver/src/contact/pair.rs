@@ -1,0 +1,239 @@
+//! One contact pair: the nodes of a rubber side set against one rigid
+//! surface. Holds each node's tributary area and history, evaluates the node
+//! law for the whole set, and reports what a seal designer reads: the total
+//! force on the surface, the contact width and the peak contact pressure.
+
+use nalgebra::{Matrix3, Vector3};
+use olli_mesh::{Mesh, Side};
+
+use super::law::{evaluate, ContactParameters, NodeResponse, NodeState, Status};
+use super::surface::RigidSurface;
+
+/// How a side's length or area becomes a load-carrying area.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum AreaMeasure {
+    /// 3-D faces: their area.
+    Solid,
+    /// Plane strain: edge length × thickness.
+    PlaneStrain { thickness: f64 },
+    /// Axisymmetric: edge length × 2π r (the full ring).
+    Axisymmetric,
+}
+
+/// Contact of a set of rubber nodes with one rigid surface.
+#[derive(Debug, Clone)]
+pub struct ContactPair {
+    /// The nodes that may touch (sorted).
+    pub nodes: Vec<usize>,
+    /// The sides they belong to, as local node index pairs/polygons into `nodes`.
+    sides: Vec<Vec<usize>>,
+    /// Tributary area of each node in the reference configuration.
+    pub areas: Vec<f64>,
+    pub params: ContactParameters,
+    pub states: Vec<NodeState>,
+    measure: AreaMeasure,
+}
+
+/// Evaluation of a whole pair at one iterate.
+#[derive(Debug, Clone, Default)]
+pub struct PairResponse {
+    /// Per node of the pair (same order as `ContactPair::nodes`).
+    pub nodes: Vec<NodeResponse>,
+    /// Signed gap per node.
+    pub gaps: Vec<f64>,
+    /// Total force the rubber exerts on the surface (= −Σ node forces).
+    pub surface_force: Vector3<f64>,
+    /// Peak contact pressure.
+    pub peak_pressure: f64,
+    /// Contact width (2-D: length of the touching band along the surface;
+    /// 3-D: the largest distance between two touching nodes).
+    pub contact_width: f64,
+    /// Largest penetration (−gap) of a touching node, ≥ 0.
+    pub max_penetration: f64,
+}
+
+fn corner_count(n: usize, dimension: usize) -> usize {
+    match (dimension, n) {
+        (2, _) => 2,
+        (_, 3) | (_, 6) => 3,
+        _ => 4,
+    }
+}
+
+impl ContactPair {
+    /// Builds the pair from the side set `sides` of `mesh`. Only corner nodes
+    /// of each side take part (olli's contact elements are linear).
+    pub fn new(mesh: &Mesh, sides: &[Side], measure: AreaMeasure, params: ContactParameters) -> Self {
+        let mut polys: Vec<Vec<usize>> = sides
+            .iter()
+            .map(|&s| {
+                let all = mesh.side_nodes(s);
+                let k = corner_count(all.len(), mesh.dimension);
+                all[..k].to_vec()
+            })
+            .collect();
+        let mut nodes: Vec<usize> = polys.iter().flatten().copied().collect();
+        nodes.sort_unstable();
+        nodes.dedup();
+        for p in &mut polys {
+            for n in p.iter_mut() {
+                *n = nodes.binary_search(n).expect("node of the side set");
+            }
+        }
+        let mut areas = vec![0.0; nodes.len()];
+        for p in &polys {
+            let x: Vec<Vector3<f64>> = p.iter().map(|&i| Vector3::from(mesh.nodes[nodes[i]])).collect();
+            for (k, a) in tributary(&x, measure).into_iter().enumerate() {
+                areas[p[k]] += a;
+            }
+        }
+        let states = vec![NodeState::default(); nodes.len()];
+        ContactPair { nodes, sides: polys, areas, params, states, measure }
+    }
+
+    /// Evaluates every node at the current positions `x` (indexed by mesh node).
+    pub fn evaluate(&self, surface: &RigidSurface, x: &[Vector3<f64>], anchor_to_global: impl Fn(Vector3<f64>) -> Vector3<f64>) -> PairResponse {
+        let mut out = PairResponse { peak_pressure: 0.0, ..Default::default() };
+        let mut touching = Vec::new();
+        for (k, &node) in self.nodes.iter().enumerate() {
+            let xi = x[node];
+            let r = match surface.project(&xi) {
+                Some(proj) => {
+                    out.gaps.push(proj.gap);
+                    let anchor = self.states[k].anchor.map(&anchor_to_global);
+                    evaluate(&proj, &xi, self.areas[k], &self.params, &self.states[k], anchor)
+                }
+                None => {
+                    out.gaps.push(f64::INFINITY);
+                    open_response()
+                }
+            };
+            if r.status != Status::Open {
+                out.surface_force -= r.force;
+                out.peak_pressure = out.peak_pressure.max(r.pressure);
+                out.max_penetration = out.max_penetration.max(-out.gaps[k]);
+                touching.push(xi);
+            }
+            out.nodes.push(r);
+        }
+        out.contact_width = match self.measure {
+            AreaMeasure::Solid => largest_distance(&touching),
+            _ => self.band_length(&out, x),
+        };
+        out
+    }
+
+    /// 2-D contact width: along each edge, the part where the linearly
+    /// interpolated trial pressure (λ − ε g) is positive.
+    fn band_length(&self, r: &PairResponse, x: &[Vector3<f64>]) -> f64 {
+        let trial = |k: usize| self.states[k].multiplier - self.params.normal_penalty * r.gaps[k];
+        self.sides
+            .iter()
+            .map(|e| {
+                let (a, b) = (e[0], e[1]);
+                let len = (x[self.nodes[a]] - x[self.nodes[b]]).norm();
+                let (pa, pb) = (trial(a), trial(b));
+                let fraction = match (pa > 0.0, pb > 0.0) {
+                    (true, true) => 1.0,
+                    (false, false) => 0.0,
+                    (true, false) => pa / (pa - pb),
+                    (false, true) => pb / (pb - pa),
+                };
+                if fraction.is_finite() { fraction * len } else { 0.0 }
+            })
+            .sum()
+    }
+
+    /// Augmented-Lagrangian update after a converged solve: λ ← max(0, λ − ε g).
+    /// Returns the largest penetration before the update.
+    pub fn augment(&mut self, response: &PairResponse) -> f64 {
+        let mut worst: f64 = 0.0;
+        for (k, s) in self.states.iter_mut().enumerate() {
+            let g = response.gaps[k];
+            if !g.is_finite() {
+                continue;
+            }
+            if response.nodes[k].status != Status::Open {
+                worst = worst.max(-g);
+            }
+            s.multiplier = (s.multiplier - self.params.normal_penalty * g).max(0.0);
+        }
+        worst
+    }
+
+    /// Stores the converged state: stick anchors (in the surface frame, via
+    /// `to_local`) for touching nodes, none for open ones.
+    pub fn commit(&mut self, response: &PairResponse, x: &[Vector3<f64>], to_local: impl Fn(Vector3<f64>) -> Vector3<f64>) {
+        for (k, s) in self.states.iter_mut().enumerate() {
+            let r = &response.nodes[k];
+            s.anchor = match r.status {
+                Status::Open => None,
+                // The anchor sits so that the elastic slip reproduces the current shear.
+                _ if self.params.tangential_penalty > 0.0 => {
+                    let xi = x[self.nodes[k]];
+                    let elastic = -r.shear / self.params.tangential_penalty;
+                    Some(to_local(xi - elastic))
+                }
+                _ => None,
+            };
+            if r.status == Status::Open {
+                s.multiplier = 0.0;
+            }
+        }
+    }
+
+    /// The tangent blocks −∂f/∂x per node (node index into the mesh, 3×3 block).
+    pub fn stiffness_blocks<'a>(&'a self, r: &'a PairResponse) -> impl Iterator<Item = (usize, &'a Matrix3<f64>)> + 'a {
+        self.nodes
+            .iter()
+            .zip(&r.nodes)
+            .filter(|(_, n)| n.status != Status::Open)
+            .map(|(&node, n)| (node, &n.stiffness))
+    }
+}
+
+fn open_response() -> NodeResponse {
+    NodeResponse {
+        status: Status::Open,
+        pressure: 0.0,
+        shear: Vector3::zeros(),
+        force: Vector3::zeros(),
+        stiffness: Matrix3::zeros(),
+        slip: Vector3::zeros(),
+    }
+}
+
+fn largest_distance(points: &[Vector3<f64>]) -> f64 {
+    let mut d: f64 = 0.0;
+    for (i, a) in points.iter().enumerate() {
+        for b in &points[i + 1..] {
+            d = d.max((a - b).norm());
+        }
+    }
+    d
+}
+
+/// Tributary areas of the corners of one side (reference geometry).
+fn tributary(x: &[Vector3<f64>], measure: AreaMeasure) -> Vec<f64> {
+    match measure {
+        AreaMeasure::PlaneStrain { thickness } => {
+            let half = 0.5 * (x[1] - x[0]).norm() * thickness;
+            vec![half, half]
+        }
+        AreaMeasure::Axisymmetric => {
+            // ∫ 2π r N_i ds over the edge, with r linear: exact for the ring area.
+            let len = (x[1] - x[0]).norm();
+            let (r0, r1) = (x[0].x, x[1].x);
+            let tau = std::f64::consts::TAU;
+            vec![tau * len * (2.0 * r0 + r1) / 6.0, tau * len * (r0 + 2.0 * r1) / 6.0]
+        }
+        AreaMeasure::Solid => {
+            let area = if x.len() == 3 {
+                0.5 * (x[1] - x[0]).cross(&(x[2] - x[0])).norm()
+            } else {
+                0.5 * (x[2] - x[0]).cross(&(x[3] - x[1])).norm()
+            };
+            vec![area / x.len() as f64; x.len()]
+        }
+    }
+}
