@@ -17,13 +17,19 @@
 //! [`Material`], so adding a model touches one file (plus one line in
 //! [`registry`]).
 
+pub mod eight_chain;
 pub mod error;
 pub mod fd_check;
+pub mod homogeneous;
+pub mod invariants;
+pub mod langevin;
+pub mod mooney_rivlin;
 pub mod neo_hookean;
 pub mod registry;
-pub mod invariants;
+pub mod stability;
 pub mod tensor;
 pub mod volumetric;
+pub mod yeoh;
 
 pub use error::MaterialError;
 pub use invariants::{isochoric_response, InvariantDerivatives, Kinematics};
