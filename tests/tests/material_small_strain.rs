@@ -42,7 +42,10 @@ fn measured_young_and_poisson(m: &Material) -> (f64, f64) {
     (e, nu)
 }
 
-fn cases() -> Vec<(&'static str, Vec<(&'static str, f64)>, f64)> {
+/// (model, constants, expected small-strain shear modulus μ)
+type Case = (&'static str, Vec<(&'static str, f64)>, f64);
+
+fn cases() -> Vec<Case> {
     vec![
         ("neo-hookean", vec![("shear_modulus", 0.9)], 0.9),
         ("neo-hookean", vec![("c10", 0.45)], 0.9),

@@ -103,7 +103,7 @@ impl IsochoricEnergy for EightChain {
             chain_stretch: lam,
             locking_stretch: sqrt_n,
         };
-        if !(lam < sqrt_n) {
+        if lam.is_nan() || lam >= sqrt_n {
             return Err(locked);
         }
         let y = lam / sqrt_n;

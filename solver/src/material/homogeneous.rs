@@ -209,7 +209,7 @@ pub fn point(
         if residual <= settings.tolerance {
             break;
         }
-        if iterations == settings.max_iterations || !(slope > 0.0) {
+        if iterations == settings.max_iterations || slope.is_nan() || slope <= 0.0 {
             return Err(HomogeneousError::NotConverged {
                 mode: name,
                 stretch,

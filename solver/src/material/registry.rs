@@ -129,3 +129,25 @@ pub fn material(name: &str, constants: Constants, form: VolumetricForm) -> Resul
     };
     Ok(Material::new(iso, VolumetricLaw::new(form, kappa)?))
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // Bookkeeping: the name list, the key table and the builder agree.
+    #[test]
+    fn every_model_name_has_keys_and_a_builder() {
+        assert_eq!(MODEL_NAMES.len(), MODELS.len());
+        for (name, keys) in MODELS {
+            assert!(MODEL_NAMES.contains(name));
+            assert!(keys.iter().all(|k| ALL_CONSTANTS.contains(k)));
+            // Unit values are admissible for every model's constants.
+            let mut c: Vec<(&str, f64)> = keys.iter().map(|k| (*k, 2.0)).collect();
+            if *name == "neo-hookean" {
+                c.retain(|(k, _)| *k != "c10");
+            }
+            let built = isochoric_model(name, &c).unwrap();
+            assert_eq!(built.name(), *name);
+        }
+    }
+}
