@@ -62,16 +62,6 @@ impl Mode {
         Mode::ALL.into_iter().find(|m| m.name() == name)
     }
 
-    /// Lateral stretch `t` of the incompressible material: the Newton start.
-    fn incompressible_lateral(self, stretch: f64) -> f64 {
-        match self {
-            Mode::Uniaxial => 1.0 / stretch.sqrt(),
-            Mode::Equibiaxial => 1.0 / (stretch * stretch),
-            Mode::Planar => 1.0 / stretch,
-            Mode::SimpleShear | Mode::Volumetric => 1.0,
-        }
-    }
-
     fn has_lateral_unknown(self) -> bool {
         matches!(self, Mode::Uniaxial | Mode::Equibiaxial | Mode::Planar)
     }
@@ -151,8 +141,90 @@ pub enum HomogeneousError {
     BadStretch { mode: &'static str, stretch: f64 },
 }
 
+/// Lateral stretch `t` of the incompressible material in `mode`: a start
+/// for the lateral solve, and the trend used to carry a solution to a
+/// neighbouring stretch.
+pub fn incompressible_lateral(mode: Mode, stretch: f64) -> f64 {
+    match mode {
+        Mode::Uniaxial => 1.0 / stretch.sqrt(),
+        Mode::Equibiaxial => 1.0 / (stretch * stretch),
+        Mode::Planar => 1.0 / stretch,
+        Mode::SimpleShear | Mode::Volumetric => 1.0,
+    }
+}
+
 fn diag_c(l: [f64; 3]) -> Matrix3<f64> {
     Matrix3::from_diagonal(&nalgebra::Vector3::new(l[0] * l[0], l[1] * l[1], l[2] * l[2]))
+}
+
+/// Lateral stress (S22 in uniaxial, where S33 = S22 by symmetry; S33
+/// otherwise), its derivative with respect to u = ln t, and S11.
+fn lateral_residual(material: &Material, mode: Mode, stretch: f64, t: f64) -> Result<(f64, f64, f64), MaterialError> {
+    let r = material.response(&diag_c(mode.diagonal(stretch, t)))?;
+    let (res, slope) = match mode {
+        Mode::Uniaxial => (r.stress[(1, 1)], (r.tangent[(1, 1)] + r.tangent[(1, 2)]) * t * t),
+        _ => (r.stress[(2, 2)], r.tangent[(2, 2)] * t * t),
+    };
+    Ok((res, slope, r.stress[(0, 0)]))
+}
+
+/// Zero of the lateral stress in u = ln t: Newton steps (at most a factor
+/// e^0.5 each), kept inside a bracket once one is known and replaced by
+/// bisection when they leave it or the slope is not positive; a state the
+/// material rejects (e.g. chain locking at a trial point) halves the step.
+fn solve_lateral(material: &Material, mode: Mode, stretch: f64, t0: f64, settings: &Settings) -> Result<f64, HomogeneousError> {
+    let name = mode.name();
+    let scale = material.shear_modulus();
+    let (mut lo, mut hi) = (f64::NEG_INFINITY, f64::INFINITY);
+    let mut u = t0.ln();
+    let mut last_good: Option<(f64, f64)> = None; // (u, step that led on from it)
+    let mut residual = f64::INFINITY;
+    for iterations in 0..=settings.max_iterations {
+        let (res, slope, s11) = match lateral_residual(material, mode, stretch, u.exp()) {
+            Ok(v) => v,
+            Err(source) => match last_good {
+                // Back off towards the last admissible point.
+                Some((good, step)) if step.abs() > 1e-12 => {
+                    last_good = Some((good, 0.5 * step));
+                    u = good + 0.5 * step;
+                    continue;
+                }
+                _ => return Err(HomogeneousError::Material { mode: name, stretch, source }),
+            },
+        };
+        residual = res.abs() / (scale + s11.abs());
+        if residual <= settings.tolerance || hi - lo <= 1e-15 * u.abs().max(1.0) {
+            return Ok(u.exp());
+        }
+        if iterations == settings.max_iterations {
+            break;
+        }
+        if res < 0.0 {
+            lo = lo.max(u);
+        } else {
+            hi = hi.min(u);
+        }
+        let newton = if slope > 0.0 { Some((-res / slope).clamp(-0.5, 0.5)) } else { None };
+        let bracketed = lo.is_finite() && hi.is_finite();
+        let step = match newton {
+            Some(du) if !bracketed || (u + du > lo && u + du < hi) => du,
+            _ if bracketed => 0.5 * (lo + hi) - u,
+            // No usable slope and no bracket: the lateral stress rises with
+            // the lateral stretch in any stable state, so step against it.
+            _ => -0.5 * res.signum(),
+        };
+        last_good = Some((u, step));
+        u += step;
+        if step.abs() <= 1e-15 * u.abs().max(1.0) {
+            return Ok(u.exp());
+        }
+    }
+    Err(HomogeneousError::NotConverged {
+        mode: name,
+        stretch,
+        residual,
+        iterations: settings.max_iterations,
+    })
 }
 
 /// The response of `material` in `mode` at `stretch`. `guess` is a start for
@@ -191,38 +263,14 @@ pub fn point(
             deformation_gradient: f,
         });
     }
-    let mut t = guess
+    let t0 = guess
         .filter(|g| g.is_finite() && *g > 0.0)
-        .unwrap_or_else(|| mode.incompressible_lateral(stretch));
-    let scale = material.shear_modulus();
-    let mut converged = !mode.has_lateral_unknown();
-    let mut iterations = 0;
-    while !converged {
-        let l = mode.diagonal(stretch, t);
-        let r = material.response(&diag_c(l)).map_err(wrap)?;
-        // Unknown stress: S22 (uniaxial, where S33 = S22 by symmetry) or S33.
-        let (res, slope) = match mode {
-            Mode::Uniaxial => (r.stress[(1, 1)], (r.tangent[(1, 1)] + r.tangent[(1, 2)]) * t * t),
-            _ => (r.stress[(2, 2)], r.tangent[(2, 2)] * t * t),
-        };
-        let residual = res.abs() / (scale + r.stress[(0, 0)].abs());
-        if residual <= settings.tolerance {
-            break;
-        }
-        if iterations == settings.max_iterations || slope.is_nan() || slope <= 0.0 {
-            return Err(HomogeneousError::NotConverged {
-                mode: name,
-                stretch,
-                residual,
-                iterations,
-            });
-        }
-        // Newton on u = ln t (dS/du = dS/dt · t), limited to a factor e^0.5.
-        let du = (-res / slope).clamp(-0.5, 0.5);
-        t *= du.exp();
-        iterations += 1;
-        converged = du.abs() <= 1e-15;
-    }
+        .unwrap_or_else(|| incompressible_lateral(mode, stretch));
+    let t = if mode.has_lateral_unknown() {
+        solve_lateral(material, mode, stretch, t0, settings)?
+    } else {
+        1.0
+    };
     let l = mode.diagonal(stretch, t);
     let r = material.response(&diag_c(l)).map_err(wrap)?;
     let j = l[0] * l[1] * l[2];
@@ -239,26 +287,42 @@ pub fn point(
     })
 }
 
-/// The response at each of `stretches` in order, each solve starting from
-/// the previous lateral stretch (scaled by the incompressible trend). Stops
-/// at the first point that fails and returns the points before it with the
-/// error (e.g. an eight-chain material reaching its locking stretch).
+/// The response at each of `stretches`, returned in the given order. The
+/// points are solved outward from λ = 1 (ascending above 1, descending below),
+/// each starting from its neighbour's lateral stretch, so a strongly
+/// compressed or stretched state is reached by continuation. Each side stops
+/// at its first failure (e.g. an eight-chain material reaching its locking
+/// stretch): the points computed before it are returned with the error.
 pub fn sweep(
     material: &Material,
     mode: Mode,
     stretches: &[f64],
     settings: &Settings,
-) -> (Vec<Point>, Option<HomogeneousError>) {
-    let mut points: Vec<Point> = Vec::with_capacity(stretches.len());
-    for &s in stretches {
-        // Direction 3 carries the unknown lateral stretch in every mode that has one.
-        let guess = points
-            .last()
-            .map(|p| p.principal_stretches[2] * mode.incompressible_lateral(s) / mode.incompressible_lateral(p.stretch));
-        match point(material, mode, s, guess, settings) {
-            Ok(p) => points.push(p),
-            Err(e) => return (points, Some(e)),
+) -> (Vec<Point>, Vec<HomogeneousError>) {
+    let mut order: Vec<usize> = (0..stretches.len()).collect();
+    order.sort_by(|&a, &b| stretches[a].total_cmp(&stretches[b]));
+    let split = order.partition_point(|&i| stretches[i] < 1.0);
+    let (below, above) = order.split_at(split);
+    let mut solved: Vec<Option<Point>> = vec![None; stretches.len()];
+    let mut errors = Vec::new();
+    for side in [Box::new(above.iter()) as Box<dyn Iterator<Item = &usize>>, Box::new(below.iter().rev())] {
+        // Start from the reference state λ = 1, t = 1.
+        let mut previous = (1.0, 1.0);
+        for &i in side {
+            let s = stretches[i];
+            let guess = previous.1 * incompressible_lateral(mode, s) / incompressible_lateral(mode, previous.0);
+            match point(material, mode, s, Some(guess), settings) {
+                Ok(p) => {
+                    // Direction 3 carries the unknown lateral stretch in every mode that has one.
+                    previous = (s, p.principal_stretches[2]);
+                    solved[i] = Some(p);
+                }
+                Err(e) => {
+                    errors.push(e);
+                    break;
+                }
+            }
         }
     }
-    (points, None)
+    (solved.into_iter().flatten().collect(), errors)
 }

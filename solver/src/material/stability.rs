@@ -66,13 +66,23 @@ impl ModeStability {
     }
 }
 
-fn margin_at(material: &Material, mode: Mode, stretch: f64, settings: &Settings) -> Result<f64, HomogeneousError> {
-    let p = homogeneous::point(material, mode, stretch, None, settings)?;
-    drucker_margin(material, p.principal_stretches).map_err(|source| HomogeneousError::Material {
+/// Margin at `stretch` and the lateral stretch found there, starting the
+/// lateral solve from `from = (stretch, lateral)` of a nearby solved point.
+fn margin_at(
+    material: &Material,
+    mode: Mode,
+    stretch: f64,
+    from: (f64, f64),
+    settings: &Settings,
+) -> Result<(f64, f64), HomogeneousError> {
+    let guess = from.1 * homogeneous::incompressible_lateral(mode, stretch) / homogeneous::incompressible_lateral(mode, from.0);
+    let p = homogeneous::point(material, mode, stretch, Some(guess), settings)?;
+    let m = drucker_margin(material, p.principal_stretches).map_err(|source| HomogeneousError::Material {
         mode: mode.name(),
         stretch,
         source,
-    })
+    })?;
+    Ok((m, p.principal_stretches[2]))
 }
 
 /// Walks from λ = 1 through `stretches` (one side of 1, ordered outward) and
@@ -84,25 +94,26 @@ fn walk(
     stretches: &[f64],
     settings: &Settings,
 ) -> (Option<f64>, f64, Option<HomogeneousError>) {
-    let mut stable = 1.0;
+    // Last stable (stretch, lateral stretch), starting at the reference state.
+    let mut stable = (1.0, 1.0);
     for &s in stretches {
-        match margin_at(material, mode, s, settings) {
-            Ok(m) if m > 0.0 => stable = s,
+        match margin_at(material, mode, s, stable, settings) {
+            Ok((m, t)) if m > 0.0 => stable = (s, t),
             Ok(_) => {
                 let (mut a, mut b) = (stable, s);
-                while (b - a).abs() > 1e-10 * b.abs() {
-                    let mid = 0.5 * (a + b);
-                    match margin_at(material, mode, mid, settings) {
-                        Ok(m) if m > 0.0 => a = mid,
+                while (b - a.0).abs() > 1e-10 * b.abs() {
+                    let mid = 0.5 * (a.0 + b);
+                    match margin_at(material, mode, mid, a, settings) {
+                        Ok((m, t)) if m > 0.0 => a = (mid, t),
                         _ => b = mid,
                     }
                 }
                 return (Some(b), s, None);
             }
-            Err(e) => return (None, stable, Some(e)),
+            Err(e) => return (None, stable.0, Some(e)),
         }
     }
-    (None, stable, None)
+    (None, stable.0, None)
 }
 
 /// Drucker stability of `material` in `mode` over the given stretches.

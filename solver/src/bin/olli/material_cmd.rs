@@ -112,12 +112,12 @@ pub fn run(args: Args) -> ExitCode {
     let settings = Settings::default();
     let mut results = Vec::new();
     for mode in modes {
-        let (points, stop) = sweep(&material, mode, &stretches, &settings);
+        let (points, stops) = sweep(&material, mode, &stretches, &settings);
         let stability = check_mode(&material, mode, &stretches, &settings);
         results.push(output::ModeResult {
             mode,
             points,
-            stop,
+            stops,
             stability,
         });
     }

@@ -15,8 +15,8 @@ use super::spec::MaterialSpec;
 pub struct ModeResult {
     pub mode: Mode,
     pub points: Vec<Point>,
-    /// Why the sweep stopped before the end of the range, if it did.
-    pub stop: Option<HomogeneousError>,
+    /// Why the sweep stopped before an end of the range, if it did.
+    pub stops: Vec<HomogeneousError>,
     pub stability: ModeStability,
 }
 
@@ -89,7 +89,7 @@ pub fn print_report(spec: &MaterialSpec, material: &Material, results: &[ModeRes
                 if is_stable(material, p) { "stable" } else { "UNSTABLE" }
             );
         }
-        if let Some(e) = &r.stop {
+        for e in &r.stops {
             println!("  response stops: {e}");
         }
         println!("  Drucker stability: {}", stability_verdict(&r.stability));
