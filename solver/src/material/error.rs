@@ -13,6 +13,25 @@ pub enum MaterialError {
         value: f64,
         reason: &'static str,
     },
+    /// Constants that are each admissible but not together (e.g. a
+    /// Mooney–Rivlin pair whose shear modulus 2 (c10 + c01) is not positive).
+    #[error("material model `{model}`: {expression} = {value}: {reason}")]
+    InvalidCombination {
+        model: &'static str,
+        expression: &'static str,
+        value: f64,
+        reason: &'static str,
+    },
+    /// The same constant, or two constants that exclude each other, given twice.
+    #[error("material model `{model}`: give `{name}` or `{other}`, not both")]
+    ConflictingParameters {
+        model: &'static str,
+        name: &'static str,
+        other: &'static str,
+    },
+    /// The same constant given twice.
+    #[error("material model `{model}`: parameter `{name}` is given more than once")]
+    DuplicateParameter { model: &'static str, name: &'static str },
     /// A required constant was not given.
     #[error("material model `{model}` needs parameter `{name}`")]
     MissingParameter {

@@ -10,20 +10,34 @@
 //! W(C) = W_iso(Ī1, Ī2) + U(J),   Ī1 = J^(-2/3) I1,  Ī2 = J^(-4/3) I2,  J = sqrt(det C)
 //! ```
 //!
+//! Models: [`neo_hookean`], [`mooney_rivlin`] (the Ī2-dependent one),
+//! [`yeoh`] and [`eight_chain`] (Arruda–Boyce, with the inverse Langevin
+//! function of [`langevin`]); volumetric laws in [`volumetric`]. The
+//! [`registry`] builds a [`Material`] from a model name and named constants.
+//! [`homogeneous`] computes uniaxial, equibiaxial, planar, simple-shear and
+//! volumetric responses through the general 3-D routine, and [`stability`]
+//! checks Drucker stability along them.
+//!
 //! A model implements one trait, [`IsochoricEnergy`]: the energy and its first
 //! and second derivatives with respect to the isochoric invariants. Everything
 //! else — the second Piola–Kirchhoff stress, the consistent material tangent,
 //! and the separate pieces a mixed u–p element needs — is derived here once, in
-//! [`Material`], so adding a model touches one file (plus one line in
+//! [`Material`], so adding a model touches one file (plus a row and a match arm in
 //! [`registry`]).
 
+pub mod eight_chain;
 pub mod error;
 pub mod fd_check;
+pub mod homogeneous;
+pub mod invariants;
+pub mod langevin;
+pub mod mooney_rivlin;
 pub mod neo_hookean;
 pub mod registry;
-pub mod invariants;
+pub mod stability;
 pub mod tensor;
 pub mod volumetric;
+pub mod yeoh;
 
 pub use error::MaterialError;
 pub use invariants::{isochoric_response, InvariantDerivatives, Kinematics};

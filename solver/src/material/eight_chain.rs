@@ -1,0 +1,127 @@
+//! Eight-chain model (Arruda & Boyce 1993, "A three-dimensional constitutive
+//! model for the large stretch behavior of rubber elastic materials",
+//! J. Mech. Phys. Solids 41:389–412).
+//!
+//! With chain stretch `λ_ch = √(Ī1/3)`, locking stretch `λ_L = √N` and
+//! `β = L⁻¹(λ_ch/√N)` (inverse Langevin function, see [`super::langevin`]):
+//!
+//! ```text
+//! W_iso = μ_r N [ (λ_ch/√N) β + ln(β / sinh β) ] − W0
+//! ∂W/∂Ī1 = μ_r √N β / (6 λ_ch)
+//! ∂²W/∂Ī1² = μ_r √N / (36 λ_ch) · (β'/λ_ch − β/λ_ch²),  β' = dβ/dλ_ch = 1 / (√N L'(β))
+//! ```
+//!
+//! `W0` makes `W_iso = 0` at `Ī1 = 3`. The network modulus is
+//! `μ_r = 3μ / (√N L⁻¹(1/√N))`, so that `μ` is *exactly* the small-strain
+//! shear modulus (`2 ∂W/∂Ī1 = μ` at `Ī1 = 3`), not its truncated-series
+//! estimate. At `λ_ch ≥ λ_L` the energy is undefined and the model returns
+//! [`MaterialError::ChainLocking`].
+
+use super::error::MaterialError;
+use super::langevin::{inverse_langevin, langevin_derivative};
+use super::{InvariantDerivatives, IsochoricEnergy};
+
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct EightChain {
+    /// Small-strain shear modulus μ (stress units), > 0.
+    pub shear_modulus: f64,
+    /// Locking stretch λ_L = √N (dimensionless), > 1.
+    pub locking_stretch: f64,
+    /// Network modulus μ_r = 3μ / (√N L⁻¹(1/√N)).
+    network_modulus: f64,
+    /// Energy offset W0 so that W_iso(Ī1 = 3) = 0.
+    offset: f64,
+}
+
+/// `ln(β / sinh β)` without cancellation at small β or overflow at large β.
+fn log_beta_over_sinh(beta: f64) -> f64 {
+    if beta < 0.5 {
+        // sinh β / β − 1 = Σ_{k≥1} β^(2k) / (2k+1)!; eight terms reach 1e-20 at β = 0.5.
+        let b2 = beta * beta;
+        let mut term = 1.0;
+        let mut sum = 0.0;
+        for k in 1..=8 {
+            term *= b2 / ((2 * k) as f64 * (2 * k + 1) as f64);
+            sum += term;
+        }
+        -sum.ln_1p()
+    } else {
+        // ln sinh β = β − ln 2 + ln(1 − e^(−2β))
+        beta.ln() - beta + std::f64::consts::LN_2 - (-(-2.0 * beta).exp()).ln_1p()
+    }
+}
+
+impl EightChain {
+    /// Checks μ > 0 and λ_L > 1 (both finite).
+    pub fn new(shear_modulus: f64, locking_stretch: f64) -> Result<Self, MaterialError> {
+        if !(shear_modulus.is_finite() && shear_modulus > 0.0) {
+            return Err(MaterialError::InvalidParameter {
+                name: "shear_modulus",
+                value: shear_modulus,
+                reason: "must be positive and finite",
+            });
+        }
+        if !(locking_stretch.is_finite() && locking_stretch > 1.0) {
+            return Err(MaterialError::InvalidParameter {
+                name: "locking_stretch",
+                value: locking_stretch,
+                reason: "must be greater than 1 and finite",
+            });
+        }
+        let y0 = 1.0 / locking_stretch;
+        let beta0 = inverse_langevin(y0).ok_or(MaterialError::InvalidParameter {
+            name: "locking_stretch",
+            value: locking_stretch,
+            reason: "must be greater than 1 and finite",
+        })?;
+        let network_modulus = 3.0 * shear_modulus / (locking_stretch * beta0);
+        let n = locking_stretch * locking_stretch;
+        let offset = network_modulus * n * (y0 * beta0 + log_beta_over_sinh(beta0));
+        Ok(EightChain {
+            shear_modulus,
+            locking_stretch,
+            network_modulus,
+            offset,
+        })
+    }
+
+    /// Network modulus μ_r (stress units).
+    pub fn network_modulus(&self) -> f64 {
+        self.network_modulus
+    }
+}
+
+impl IsochoricEnergy for EightChain {
+    fn name(&self) -> &'static str {
+        "eight-chain"
+    }
+
+    fn derivatives(&self, i1b: f64, _i2b: f64) -> Result<InvariantDerivatives, MaterialError> {
+        let lam = (i1b.max(0.0) / 3.0).sqrt();
+        let sqrt_n = self.locking_stretch;
+        let locked = MaterialError::ChainLocking {
+            chain_stretch: lam,
+            locking_stretch: sqrt_n,
+        };
+        if lam.is_nan() || lam >= sqrt_n {
+            return Err(locked);
+        }
+        let y = lam / sqrt_n;
+        let beta = inverse_langevin(y).ok_or(locked)?;
+        let mu_r = self.network_modulus;
+        let w = mu_r * sqrt_n * sqrt_n * (y * beta + log_beta_over_sinh(beta)) - self.offset;
+        let dbeta = 1.0 / (sqrt_n * langevin_derivative(beta));
+        let w1 = mu_r * sqrt_n * beta / (6.0 * lam);
+        let w11 = mu_r * sqrt_n / (36.0 * lam) * (dbeta / lam - beta / (lam * lam));
+        Ok(InvariantDerivatives {
+            w,
+            w1,
+            w11,
+            ..Default::default()
+        })
+    }
+
+    fn shear_modulus(&self) -> f64 {
+        self.shear_modulus
+    }
+}
