@@ -8,8 +8,14 @@
 //! This crate never depends on the solver: everything here is geometry and
 //! topology.
 
+pub mod cleanup;
 pub mod element;
+pub mod error;
+pub mod generate;
 pub mod model;
+pub mod quality;
+pub mod shape;
 
 pub use element::ElementKind;
+pub use error::{Location, MeshError};
 pub use model::{Mesh, Side};
