@@ -11,6 +11,8 @@
 pub mod cleanup;
 pub mod element;
 pub mod error;
+pub mod export;
+pub mod import;
 pub mod generate;
 pub mod model;
 pub mod quality;
@@ -19,3 +21,5 @@ pub mod shape;
 pub use element::ElementKind;
 pub use error::{Location, MeshError};
 pub use model::{Mesh, Side};
+pub use export::write_vtu;
+pub use import::{import, read_mesh, Imported};
