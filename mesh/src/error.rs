@@ -48,6 +48,9 @@ pub enum MeshError {
     UnknownFormat { path: PathBuf },
     #[error("{path}: cannot write: {message}")]
     Write { path: PathBuf, message: String },
+    /// A generator spec that does not parse (the message names line and key).
+    #[error("mesh spec: {message}")]
+    Spec { message: String },
     /// A generator or operation was given an impossible value.
     #[error("invalid `{key}`: {message}")]
     InvalidParameter { key: String, message: String },

@@ -16,10 +16,15 @@ pub mod import;
 pub mod generate;
 pub mod model;
 pub mod quality;
+pub mod select;
 pub mod shape;
+pub mod spec;
+pub mod summary;
 
 pub use element::ElementKind;
 pub use error::{Location, MeshError};
 pub use model::{Mesh, Side};
 pub use export::write_vtu;
 pub use import::{import, read_mesh, Imported};
+pub use spec::{generate, GeneratorSpec};
+pub use summary::{summary, MeshSummary};

@@ -77,8 +77,8 @@ pub fn element_quality(mesh: &Mesh, e: usize) -> ElementQuality {
     }
     let jacobian_ratio = if hi > 0.0 { lo / hi } else { -1.0 };
     let (mut shortest, mut longest) = (f64::INFINITY, 0.0f64);
-    for side in kind.sides() {
-        let c = if kind.dimension() == 2 { 2 } else if matches!(side.len(), 3 | 6) { 3 } else { 4 };
+    for (k, side) in kind.sides().iter().enumerate() {
+        let c = kind.side_corner_count(k);
         for i in 0..c {
             let (a, b) = (x[side[i]], x[side[(i + 1) % c]]);
             let l = ((a[0] - b[0]).powi(2) + (a[1] - b[1]).powi(2) + (a[2] - b[2]).powi(2)).sqrt();

@@ -174,11 +174,9 @@ pub(crate) fn read(path: &Path, bytes: &[u8]) -> Result<Imported, MeshError> {
     // Sides of all elements by sorted corner nodes, for matching boundary elements.
     let mut side_of: HashMap<Vec<usize>, Side> = HashMap::new();
     for e in 0..mesh.kinds.len() {
-        for (k, local) in mesh.kinds[e].sides().iter().enumerate() {
-            let corners = corner_count_of_side(mesh.kinds[e], local.len());
-            let mut key: Vec<usize> = local[..corners].iter().map(|&i| mesh.element_nodes(e)[i]).collect();
-            key.sort_unstable();
-            side_of.entry(key).or_insert(Side { element: e, local: k as u8 });
+        for k in 0..mesh.kinds[e].sides().len() {
+            let side = Side { element: e, local: k as u8 };
+            side_of.entry(mesh.side_key(side)).or_insert(side);
         }
     }
     let mut side_sets: BTreeMap<String, Vec<Side>> = BTreeMap::new();
@@ -223,17 +221,6 @@ pub(crate) fn read(path: &Path, bytes: &[u8]) -> Result<Imported, MeshError> {
         notes.push(format!("{unmatched} boundary elements in physical groups match no element side and were left out"));
     }
     Ok(Imported { mesh, notes })
-}
-
-/// Corner count of a side with `len` nodes of an element of `kind`.
-fn corner_count_of_side(kind: ElementKind, len: usize) -> usize {
-    if kind.dimension() == 2 {
-        2
-    } else if matches!(len, 3 | 6) {
-        3
-    } else {
-        4
-    }
 }
 
 /// True when the `$MeshFormat` line says ASCII (file type 0).
