@@ -49,7 +49,8 @@ pub fn merge_duplicate_nodes(mesh: &mut Mesh, tol: f64) -> usize {
                 *n = rep[*n];
             }
         }
-        remove_unreferenced_nodes_except(mesh, &rep);
+        let keep: Vec<bool> = rep.iter().enumerate().map(|(i, &r)| r == i).collect();
+        drop_nodes(mesh, &keep);
     }
     removed
 }
@@ -66,22 +67,21 @@ pub fn unreferenced_nodes(mesh: &Mesh) -> Vec<usize> {
 /// Drops nodes no element uses (and removes them from node sets); returns how many.
 pub fn remove_unreferenced_nodes(mesh: &mut Mesh) -> usize {
     let before = mesh.nodes.len();
-    let identity: Vec<usize> = (0..before).collect();
-    remove_unreferenced_nodes_except(mesh, &identity);
-    before - mesh.nodes.len()
-}
-
-/// Keeps nodes used by an element, plus node-set members that are their own
-/// representative (a node set may name a free node, e.g. a reference point).
-fn remove_unreferenced_nodes_except(mesh: &mut Mesh, rep: &[usize]) {
-    let mut keep = vec![false; mesh.nodes.len()];
+    let mut keep = vec![false; before];
     for &c in &mesh.connectivity {
         keep[c] = true;
     }
+    drop_nodes(mesh, &keep);
+    before - mesh.nodes.len()
+}
+
+/// Removes the nodes with `keep[i] == false` (no element may still use them)
+/// and renumbers connectivity and node sets.
+fn drop_nodes(mesh: &mut Mesh, keep: &[bool]) {
     let mut new_index = vec![usize::MAX; mesh.nodes.len()];
     let mut nodes = Vec::with_capacity(mesh.nodes.len());
     for (i, x) in mesh.nodes.iter().enumerate() {
-        if keep[i] && rep[i] == i {
+        if keep[i] {
             new_index[i] = nodes.len();
             nodes.push(*x);
         }

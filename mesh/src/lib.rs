@@ -9,6 +9,7 @@
 //! topology.
 
 pub mod cleanup;
+pub mod command;
 pub mod element;
 pub mod error;
 pub mod export;
