@@ -45,6 +45,9 @@ fn all_meshes() -> Vec<(String, Mesh)> {
                 continue; // no quadratic wedge
             }
             let g = Some(Grading { toward: Face::Bottom, ratio: 3.0 });
+            if !tri {
+                out.push((format!("tet block {tag}"), block(&BlockParams { divisions: [2, 1, 2], order, tetrahedra: true, grading: g, ..Default::default() }).unwrap()));
+            }
             out.push((format!("block {tag}"), block(&BlockParams { divisions: [2, 3, 3], order, triangles: tri, grading: g, ..Default::default() }).unwrap()));
             out.push((format!("hollow cylinder {tag}"), hollow_cylinder(&AnnulusParams { circumferential_divisions: 8, angle: 270.0, axial_divisions: 2, order, triangles: tri, ..Default::default() }).unwrap()));
             out.push((format!("solid cylinder {tag}"), solid_cylinder(&CircleParams { divisions: 8, axial_divisions: 2, order, triangles: tri, ..Default::default() }).unwrap()));
@@ -175,7 +178,7 @@ fn side_normals_point_outward() {
         }
     }
     for k in [ElementKind::Quad4, ElementKind::Quad8, ElementKind::Quad9, ElementKind::Tri3, ElementKind::Tri6,
-              ElementKind::Hex8, ElementKind::Hex20, ElementKind::Hex27, ElementKind::Wedge6] {
+              ElementKind::Hex8, ElementKind::Hex20, ElementKind::Hex27, ElementKind::Wedge6, ElementKind::Tet4, ElementKind::Tet10] {
         assert!(kinds.contains(&k), "{k} not covered");
     }
 }
@@ -235,4 +238,27 @@ fn bad_generator_input_is_an_error() {
     let tri6 = rectangle(&RectangleParams { order: Order::Quadratic, triangles: true, ..Default::default() }).unwrap();
     assert!(extrude(&tri6, 1.0, 2).is_err());
     assert!(rectangle(&RectangleParams { grading: Some(Grading { toward: Face::Top, ratio: f64::NAN }), ..Default::default() }).is_err());
+}
+
+/// Six tetrahedra per hex along a common diagonal give a conforming mesh:
+/// its boundary is exactly twice as many triangles as the hex block has
+/// boundary quads (2 (nx ny + ny nz + nz nx)), the volume is exact, and every
+/// named face is split into two triangles per quad.
+#[test]
+fn tetrahedral_block_is_conforming() {
+    for order in ORDERS {
+        let p = BlockParams { size: [1.0, 2.0, 3.0], divisions: [2, 3, 4], order, tetrahedra: true, ..Default::default() };
+        let m = block(&p).unwrap();
+        let want = if order == Order::Linear { ElementKind::Tet4 } else { ElementKind::Tet10 };
+        assert!(m.kinds.iter().all(|&k| k == want));
+        assert_eq!(m.element_count(), 6 * 24);
+        assert_eq!(olli_mesh::select::boundary_sides(&m).len(), 2 * 2 * (6 + 12 + 8));
+        assert!((measure(&m) - 6.0).abs() < 1e-12);
+        assert_eq!(m.side_sets["top"].len(), 2 * 6);
+        for &s in &m.side_sets["top"] {
+            assert_eq!(m.side_normal(s), [0.0, 0.0, 1.0]);
+        }
+        // Every node of a tet10 is used: no stray hex27 nodes.
+        assert_eq!(olli_mesh::cleanup::unreferenced_nodes(&m).len(), 0);
+    }
 }

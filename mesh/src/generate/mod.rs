@@ -14,6 +14,7 @@ mod block;
 mod cord;
 mod extrude;
 mod rectangle;
+mod tets;
 
 pub use annulus::{annulus, hollow_cylinder, AnnulusParams};
 pub use block::{block, BlockParams};
