@@ -95,6 +95,17 @@ impl ElementKind {
         }
     }
 
+    /// Number of corner nodes of local side `side` (2 for an edge, 3 or 4 for a face).
+    pub fn side_corner_count(self, side: usize) -> usize {
+        if self.dimension() == 2 {
+            2
+        } else if matches!(self.sides()[side].len(), 3 | 6) {
+            3
+        } else {
+            4
+        }
+    }
+
     /// Local node indices of each side: edges in 2-D, faces in 3-D.
     /// Corner nodes of a side are listed first, counter-clockwise seen from
     /// outside (3-D) or in the element's counter-clockwise sense (2-D), then

@@ -94,6 +94,16 @@ impl Mesh {
         local.iter().map(|&i| nodes[i]).collect()
     }
 
+    /// Sorted corner nodes of a side: equal for the two elements sharing it.
+    pub fn side_key(&self, side: Side) -> Vec<usize> {
+        let kind = self.kinds[side.element];
+        let local = kind.sides()[side.local as usize];
+        let nodes = self.element_nodes(side.element);
+        let mut key: Vec<usize> = local[..kind.side_corner_count(side.local as usize)].iter().map(|&i| nodes[i]).collect();
+        key.sort_unstable();
+        key
+    }
+
     /// Outward unit normal of a side in the undeformed configuration, at its
     /// corner-node centroid (2-D: in the x–y plane; 3-D: from the corner polygon).
     pub fn side_normal(&self, side: Side) -> [f64; 3] {
@@ -106,7 +116,7 @@ impl Mesh {
             // Counter-clockwise elements: the outward normal is the edge direction turned clockwise.
             [b[1] - a[1], -(b[0] - a[0]), 0.0]
         } else {
-            let corners = if local.len() == 3 || local.len() == 6 { 3 } else { 4 };
+            let corners = kind.side_corner_count(side.local as usize);
             // Newell's method: robust for warped quadrilateral faces.
             let mut n = [0.0; 3];
             for i in 0..corners {

@@ -1,0 +1,74 @@
+//! Typed errors of the mesh crate. File errors carry the path and where in
+//! the file the problem was found, so a user can open the file at that spot.
+
+use std::fmt;
+use std::path::PathBuf;
+
+/// Where in a file a problem was found.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Location {
+    /// 1-based line of a text file.
+    Line(usize),
+    /// Byte offset from the start of the file.
+    Offset(usize),
+    /// 0-based cell (element) index in the file.
+    Cell(usize),
+    /// The reader could not say where.
+    Unknown,
+}
+
+impl fmt::Display for Location {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Location::Line(l) => write!(f, "line {l}"),
+            Location::Offset(o) => write!(f, "byte offset {o}"),
+            Location::Cell(c) => write!(f, "cell {c}"),
+            Location::Unknown => f.write_str("unknown position"),
+        }
+    }
+}
+
+/// Everything that can go wrong when building, reading or writing a mesh.
+#[derive(Debug, thiserror::Error)]
+pub enum MeshError {
+    #[error("{path}: cannot read: {source}")]
+    Io {
+        path: PathBuf,
+        #[source]
+        source: std::io::Error,
+    },
+    /// A malformed or unsupported file.
+    #[error("{path}: {location}: {message}")]
+    Parse {
+        path: PathBuf,
+        location: Location,
+        message: String,
+    },
+    #[error("{path}: unknown mesh file type (expected .vtu, .vtk or .msh)")]
+    UnknownFormat { path: PathBuf },
+    #[error("{path}: cannot write: {message}")]
+    Write { path: PathBuf, message: String },
+    /// A generator spec that does not parse (the message names line and key).
+    #[error("mesh spec: {message}")]
+    Spec { message: String },
+    /// A generator or operation was given an impossible value.
+    #[error("invalid `{key}`: {message}")]
+    InvalidParameter { key: String, message: String },
+}
+
+impl MeshError {
+    pub(crate) fn parse(path: &std::path::Path, location: Location, message: impl Into<String>) -> Self {
+        MeshError::Parse {
+            path: path.to_path_buf(),
+            location,
+            message: message.into(),
+        }
+    }
+
+    pub(crate) fn param(key: &str, message: impl Into<String>) -> Self {
+        MeshError::InvalidParameter {
+            key: key.to_string(),
+            message: message.into(),
+        }
+    }
+}

@@ -1,0 +1,99 @@
+//! Reading meshes from files: VTK (`.vtu`, `.vtk`) and Gmsh MSH 4.1 (`.msh`),
+//! chosen by extension. Every reader returns a typed error naming the file
+//! and the line, offset or cell at fault; none panics on bad input (a panic
+//! inside a dependency is caught and reported as an error).
+//!
+//! After reading, clockwise 2-D elements are turned counter-clockwise and a
+//! note says how many.
+
+mod gmsh;
+mod vtk;
+
+use std::path::Path;
+
+use crate::cleanup::reorient_clockwise_2d;
+use crate::error::{Location, MeshError};
+use crate::model::Mesh;
+
+/// A mesh read from a file, with notes about repairs made on the way.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Imported {
+    pub mesh: Mesh,
+    /// Human-readable remarks (reoriented elements, skipped cells, ...).
+    pub notes: Vec<String>,
+}
+
+/// Reads a mesh file, choosing the format by extension (`.vtu`, `.vtk`, `.msh`).
+pub fn read_mesh(path: &Path) -> Result<Mesh, MeshError> {
+    import(path).map(|i| i.mesh)
+}
+
+/// Like [`read_mesh`], also returning notes about repairs.
+pub fn import(path: &Path) -> Result<Imported, MeshError> {
+    format_of(path)?;
+    let bytes = std::fs::read(path).map_err(|source| MeshError::Io { path: path.to_path_buf(), source })?;
+    import_bytes(path, &bytes)
+}
+
+/// Reads a mesh from bytes; `path` gives the format (by extension) and the name used in errors.
+pub fn import_bytes(path: &Path, bytes: &[u8]) -> Result<Imported, MeshError> {
+    let mut imported = match format_of(path)? {
+        Format::Vtu => vtk::read(path, bytes, true)?,
+        Format::LegacyVtk => vtk::read(path, bytes, false)?,
+        Format::Gmsh => gmsh::read(path, bytes)?,
+    };
+    finish(path, &mut imported)?;
+    Ok(imported)
+}
+
+enum Format {
+    Vtu,
+    LegacyVtk,
+    Gmsh,
+}
+
+fn format_of(path: &Path) -> Result<Format, MeshError> {
+    let ext = path.extension().and_then(|e| e.to_str()).map(|e| e.to_ascii_lowercase());
+    match ext.as_deref() {
+        Some("vtu") => Ok(Format::Vtu),
+        Some("vtk") => Ok(Format::LegacyVtk),
+        Some("msh") => Ok(Format::Gmsh),
+        _ => Err(MeshError::UnknownFormat { path: path.to_path_buf() }),
+    }
+}
+
+/// Checks a 2-D mesh lies in the x–y plane and reorients clockwise elements.
+fn finish(path: &Path, imported: &mut Imported) -> Result<(), MeshError> {
+    let mesh = &mut imported.mesh;
+    if mesh.kinds.is_empty() {
+        return Err(MeshError::parse(path, Location::Unknown, "no elements"));
+    }
+    if mesh.dimension == 2 {
+        let (lo, hi) = mesh.bounding_box();
+        let size = (hi[0] - lo[0]).max(hi[1] - lo[1]);
+        if let Some(n) = mesh.nodes.iter().position(|x| x[2].abs() > 1e-9 * size.max(1e-300)) {
+            return Err(MeshError::parse(path, Location::Unknown,
+                format!("2-D elements must lie in the x–y plane (z = 0); node {n} has z = {}", mesh.nodes[n][2])));
+        }
+        let flipped = reorient_clockwise_2d(mesh);
+        if !flipped.is_empty() {
+            imported.notes.push(format!("{} clockwise 2-D elements were reoriented counter-clockwise", flipped.len()));
+        }
+    }
+    for sides in imported.mesh.side_sets.values_mut() {
+        sides.sort_unstable();
+        sides.dedup();
+    }
+    Ok(())
+}
+
+/// Runs a dependency's parser, turning a panic into an error.
+pub(crate) fn guard<T>(path: &Path, f: impl FnOnce() -> T) -> Result<T, MeshError> {
+    std::panic::catch_unwind(std::panic::AssertUnwindSafe(f))
+        .map_err(|_| MeshError::parse(path, Location::Unknown, "the file's structure made the reader fail"))
+}
+
+/// 1-based line number of byte `offset`.
+pub(crate) fn line_of(bytes: &[u8], offset: usize) -> usize {
+    1 + bytes[..offset.min(bytes.len())].iter().filter(|&&b| b == b'\n').count()
+}

@@ -1,0 +1,264 @@
+//! Generated meshes: exact geometry in the limit, positive elements, outward
+//! side normals and correctly named sets.
+
+use std::f64::consts::PI;
+
+use olli_mesh::generate::*;
+use olli_mesh::quality::{element_quality, measure};
+use olli_mesh::{ElementKind, Mesh, Side};
+
+const ORDERS: [Order; 3] = [Order::Linear, Order::Quadratic, Order::QuadraticFull];
+
+fn cord_mesh(divisions: usize, order: Order, triangles: bool) -> Mesh {
+    cord(&CircleParams { center: [20.0, 1.75], diameter: Some(3.5), divisions, order, triangles, ..Default::default() })
+        .unwrap()
+}
+
+fn ring(circ: usize, order: Order) -> Mesh {
+    annulus(&AnnulusParams { inner_radius: 1.0, outer_radius: 2.0, radial_divisions: 2, circumferential_divisions: circ, order, ..Default::default() }).unwrap()
+}
+
+fn tube(circ: usize, order: Order) -> Mesh {
+    hollow_cylinder(&AnnulusParams {
+        inner_radius: 1.0, outer_radius: 2.0, height: 3.0, radial_divisions: 1, axial_divisions: 1,
+        circumferential_divisions: circ, order, ..Default::default()
+    }).unwrap()
+}
+
+fn swept_tube(circ: usize, order: Order) -> Mesh {
+    let section = rectangle(&RectangleParams { origin: [1.0, 0.0], size: [1.0, 3.0], divisions: [1, 1], order, ..Default::default() }).unwrap();
+    sweep(&section, 360.0, circ).unwrap()
+}
+
+/// Every generator in every variant, for the checks that apply to all of them.
+fn all_meshes() -> Vec<(String, Mesh)> {
+    let mut out = Vec::new();
+    for order in ORDERS {
+        for tri in [false, true] {
+            let tag = format!("{order:?}{}", if tri { "/tri" } else { "" });
+            let graded = Some(Grading { toward: Face::Top, ratio: 5.0 });
+            out.push((format!("rectangle {tag}"), rectangle(&RectangleParams { divisions: [3, 4], order, triangles: tri, grading: graded, ..Default::default() }).unwrap()));
+            out.push((format!("annulus {tag}"), annulus(&AnnulusParams { angle: 90.0, circumferential_divisions: 5, order, triangles: tri, ..Default::default() }).unwrap()));
+            out.push((format!("cord {tag}"), cord_mesh(16, order, tri)));
+            out.push((format!("disc {tag}"), disc(&CircleParams { divisions: 8, order, triangles: tri, ..Default::default() }).unwrap()));
+            if tri && order != Order::Linear {
+                continue; // no quadratic wedge
+            }
+            let g = Some(Grading { toward: Face::Bottom, ratio: 3.0 });
+            if !tri {
+                out.push((format!("tet block {tag}"), block(&BlockParams { divisions: [2, 1, 2], order, tetrahedra: true, grading: g, ..Default::default() }).unwrap()));
+            }
+            out.push((format!("block {tag}"), block(&BlockParams { divisions: [2, 3, 3], order, triangles: tri, grading: g, ..Default::default() }).unwrap()));
+            out.push((format!("hollow cylinder {tag}"), hollow_cylinder(&AnnulusParams { circumferential_divisions: 8, angle: 270.0, axial_divisions: 2, order, triangles: tri, ..Default::default() }).unwrap()));
+            out.push((format!("solid cylinder {tag}"), solid_cylinder(&CircleParams { divisions: 8, axial_divisions: 2, order, triangles: tri, ..Default::default() }).unwrap()));
+            let sec = rectangle(&RectangleParams { origin: [1.0, 0.0], divisions: [2, 2], order, triangles: tri, ..Default::default() }).unwrap();
+            out.push((format!("sweep 120 {tag}"), sweep(&sec, 120.0, 3).unwrap()));
+            out.push((format!("extrude {tag}"), extrude(&sec, 2.0, 2).unwrap()));
+        }
+    }
+    out
+}
+
+fn convergence_rate(errors: &[f64]) -> f64 {
+    (errors[errors.len() - 2] / errors[errors.len() - 1]).log2()
+}
+
+/// Area of the O-grid cord section tends to πr² (exact circle area). With
+/// straight-sided linear elements the error of an inscribed polygon falls as
+/// h² (rate 2); quadratic isoparametric edges through three points of the
+/// circle give h⁴ (general interpolation theory, e.g. Strang & Fix 1973,
+/// "An Analysis of the Finite Element Method", ch. 4, from memory). Rates
+/// are checked with 10 % slack because the meshes are still coarse.
+#[test]
+fn cord_area_converges_to_pi_r_squared() {
+    let exact = PI * 1.75 * 1.75;
+    for order in ORDERS {
+        let errs: Vec<f64> = [8, 16, 32, 64].iter().map(|&n| (measure(&cord_mesh(n, order, false)) - exact).abs() / exact).collect();
+        let rate = convergence_rate(&errs);
+        let want = if order == Order::Linear { 2.0 } else { 4.0 };
+        assert!(rate > 0.9 * want, "{order:?}: errors {errs:?}, rate {rate}");
+        if order != Order::Linear {
+            assert!(errs[3] < 1e-6, "{order:?}: {errs:?}");
+        }
+    }
+}
+
+/// Annulus area π(ro² − ri²), hollow-cylinder volume π(ro² − ri²)h both from
+/// the annulus and from a swept rectangle: same rates as above.
+#[test]
+fn annulus_and_hollow_cylinder_converge_to_exact_measure() {
+    let area = PI * (4.0 - 1.0);
+    let volume = area * 3.0;
+    for order in ORDERS {
+        let want = if order == Order::Linear { 2.0 } else { 4.0 };
+        for (name, exact, make) in [
+            ("annulus", area, ring as fn(usize, Order) -> Mesh),
+            ("hollow cylinder", volume, tube),
+            ("swept rectangle", volume, swept_tube),
+        ] {
+            let errs: Vec<f64> = [8, 16, 32].iter().map(|&n| (measure(&make(n, order)) - exact).abs() / exact).collect();
+            let rate = convergence_rate(&errs);
+            assert!(rate > 0.9 * want, "{name} {order:?}: errors {errs:?}, rate {rate}");
+            let lin: f64 = (measure(&make(32, Order::Linear)) - exact).abs();
+            if order != Order::Linear {
+                assert!(errs[2] * exact < 0.01 * lin, "{name}: quadratic not faster");
+            }
+        }
+    }
+}
+
+/// Straight-sided generators reproduce their measure exactly (isoparametric
+/// elements represent affine maps exactly).
+#[test]
+fn block_and_rectangle_measures_are_exact() {
+    for order in ORDERS {
+        let r = rectangle(&RectangleParams { size: [2.0, 3.0], divisions: [3, 5], order, grading: Some(Grading { toward: Face::Left, ratio: 4.0 }), ..Default::default() }).unwrap();
+        assert!((measure(&r) - 6.0).abs() < 1e-12);
+        let b = block(&BlockParams { size: [2.0, 3.0, 0.5], divisions: [2, 3, 4], order, grading: Some(Grading { toward: Face::Top, ratio: 4.0 }), ..Default::default() }).unwrap();
+        assert!((measure(&b) - 3.0).abs() < 1e-12);
+    }
+}
+
+/// Every generated element has a positive Jacobian at every corner and Gauss point.
+#[test]
+fn generated_elements_have_positive_jacobians() {
+    for (name, mesh) in all_meshes() {
+        assert!(mesh.element_count() > 0, "{name}");
+        for e in 0..mesh.element_count() {
+            let q = element_quality(&mesh, e);
+            assert!(q.min_det > 0.0, "{name}: element {e} ({}) det {}", mesh.kinds[e], q.min_det);
+        }
+    }
+}
+
+/// The O-grid's worst Jacobian ratio stays bounded under refinement: it
+/// must not drift toward zero as divisions grow from 8 to 128.
+#[test]
+fn cord_jacobian_ratio_stays_bounded_under_refinement() {
+    let mut worst = Vec::new();
+    for n in [8, 16, 32, 64, 128] {
+        let m = cord_mesh(n, Order::Linear, false);
+        let w = (0..m.element_count()).map(|e| element_quality(&m, e).jacobian_ratio).fold(1.0, f64::min);
+        worst.push(w);
+    }
+    assert!(worst.iter().all(|&w| w > 0.35), "{worst:?}");
+    assert!(worst[4] > 0.9 * worst[1], "ratio keeps falling: {worst:?}");
+}
+
+fn centroid(mesh: &Mesh, nodes: &[usize]) -> [f64; 3] {
+    let mut c = [0.0; 3];
+    for &n in nodes {
+        for k in 0..3 {
+            c[k] += mesh.nodes[n][k] / nodes.len() as f64;
+        }
+    }
+    c
+}
+
+/// Each side of every element (all kinds, including the wedge) has a normal
+/// pointing away from the element: for a convex element the vector from the
+/// element centroid to the side centroid has a positive component along it.
+#[test]
+fn side_normals_point_outward() {
+    let mut kinds = std::collections::BTreeSet::new();
+    for (name, mesh) in all_meshes() {
+        for e in 0..mesh.element_count() {
+            kinds.insert(mesh.kinds[e]);
+            let kind = mesh.kinds[e];
+            let ce = centroid(&mesh, &mesh.element_nodes(e)[..kind.corner_count()]);
+            for local in 0..kind.sides().len() {
+                let s = Side { element: e, local: local as u8 };
+                let sn = mesh.side_nodes(s);
+                let corners = if kind.dimension() == 2 { 2 } else if matches!(sn.len(), 3 | 6) { 3 } else { 4 };
+                let cs = centroid(&mesh, &sn[..corners]);
+                let n = mesh.side_normal(s);
+                let dot: f64 = (0..3).map(|k| n[k] * (cs[k] - ce[k])).sum();
+                assert!(dot > 0.0, "{name}: {kind} side {local} normal {n:?} points inward");
+            }
+        }
+    }
+    for k in [ElementKind::Quad4, ElementKind::Quad8, ElementKind::Quad9, ElementKind::Tri3, ElementKind::Tri6,
+              ElementKind::Hex8, ElementKind::Hex20, ElementKind::Hex27, ElementKind::Wedge6, ElementKind::Tet4, ElementKind::Tet10] {
+        assert!(kinds.contains(&k), "{k} not covered");
+    }
+}
+
+/// Side sets cover exactly the named boundary, with outward normals along the
+/// expected direction, and the node set of the same name has the right count.
+#[test]
+fn natural_sets_sit_on_their_boundaries() {
+    let r = rectangle(&RectangleParams { size: [2.0, 1.0], divisions: [4, 3], order: Order::Quadratic, ..Default::default() }).unwrap();
+    for (name, count, normal) in [("bottom", 4, [0.0, -1.0]), ("right", 3, [1.0, 0.0]), ("top", 4, [0.0, 1.0]), ("left", 3, [-1.0, 0.0])] {
+        let sides = &r.side_sets[name];
+        assert_eq!(sides.len(), count, "{name}");
+        assert_eq!(r.node_sets[name].len(), 2 * count + 1, "{name}");
+        for &s in sides {
+            let n = r.side_normal(s);
+            assert!((n[0] - normal[0]).abs() < 1e-12 && (n[1] - normal[1]).abs() < 1e-12, "{name}: {n:?}");
+        }
+    }
+    let c = cord_mesh(16, Order::Linear, false);
+    assert_eq!(c.side_sets["surface"].len(), 16);
+    for q in ["outer", "top", "inner", "bottom"] {
+        assert_eq!(c.side_sets[q].len(), 4, "{q}");
+    }
+    for &n in &c.node_sets["surface"] {
+        let x = c.nodes[n];
+        assert!((((x[0] - 20.0).powi(2) + (x[1] - 1.75).powi(2)).sqrt() - 1.75).abs() < 1e-12);
+    }
+    // `outer` quarter faces +r: every node has r ≥ centre + radius·cos 45°.
+    for &n in &c.node_sets["outer"] {
+        assert!(c.nodes[n][0] >= 20.0 + 1.75 * (PI / 4.0).cos() - 1e-12);
+    }
+    let b = block(&BlockParams { divisions: [2, 3, 4], ..Default::default() }).unwrap();
+    for (name, count, axis, value) in [("left", 12, 0, 0.0), ("right", 12, 0, 1.0), ("front", 8, 1, 0.0), ("back", 8, 1, 1.0), ("bottom", 6, 2, 0.0), ("top", 6, 2, 1.0)] {
+        assert_eq!(b.side_sets[name].len(), count, "{name}");
+        for &s in &b.side_sets[name] {
+            assert!(b.side_nodes(s).iter().all(|&n| (b.nodes[n][axis] - value).abs() < 1e-12), "{name}");
+            assert!((b.side_normal(s)[axis] - if value == 0.0 { -1.0 } else { 1.0 }).abs() < 1e-12);
+        }
+    }
+    let t = hollow_cylinder(&AnnulusParams { circumferential_divisions: 12, axial_divisions: 3, ..Default::default() }).unwrap();
+    assert_eq!(t.side_sets["inner"].len(), 12 * 3);
+    assert_eq!(t.side_sets["top"].len(), 12 * 2);
+    assert!(!t.side_sets.contains_key("start"));
+    assert_eq!(t.element_sets["all"].len(), t.element_count());
+    // Closed ring: nodes = radial lines × circumferential positions × layers.
+    assert_eq!(t.node_count(), 3 * 12 * 4);
+}
+
+/// Bad generator input is a typed error, not a panic.
+#[test]
+fn bad_generator_input_is_an_error() {
+    assert!(cord(&CircleParams { divisions: 10, ..Default::default() }).is_err());
+    assert!(rectangle(&RectangleParams { size: [0.0, 1.0], ..Default::default() }).is_err());
+    assert!(annulus(&AnnulusParams { inner_radius: 2.0, outer_radius: 1.0, ..Default::default() }).is_err());
+    let on_axis = rectangle(&RectangleParams::default()).unwrap();
+    assert!(sweep(&on_axis, 90.0, 4).is_err());
+    let tri6 = rectangle(&RectangleParams { order: Order::Quadratic, triangles: true, ..Default::default() }).unwrap();
+    assert!(extrude(&tri6, 1.0, 2).is_err());
+    assert!(rectangle(&RectangleParams { grading: Some(Grading { toward: Face::Top, ratio: f64::NAN }), ..Default::default() }).is_err());
+}
+
+/// Six tetrahedra per hex along a common diagonal give a conforming mesh:
+/// its boundary is exactly twice as many triangles as the hex block has
+/// boundary quads (2 (nx ny + ny nz + nz nx)), the volume is exact, and every
+/// named face is split into two triangles per quad.
+#[test]
+fn tetrahedral_block_is_conforming() {
+    for order in ORDERS {
+        let p = BlockParams { size: [1.0, 2.0, 3.0], divisions: [2, 3, 4], order, tetrahedra: true, ..Default::default() };
+        let m = block(&p).unwrap();
+        let want = if order == Order::Linear { ElementKind::Tet4 } else { ElementKind::Tet10 };
+        assert!(m.kinds.iter().all(|&k| k == want));
+        assert_eq!(m.element_count(), 6 * 24);
+        assert_eq!(olli_mesh::select::boundary_sides(&m).len(), 2 * 2 * (6 + 12 + 8));
+        assert!((measure(&m) - 6.0).abs() < 1e-12);
+        assert_eq!(m.side_sets["top"].len(), 2 * 6);
+        for &s in &m.side_sets["top"] {
+            assert_eq!(m.side_normal(s), [0.0, 0.0, 1.0]);
+        }
+        // Every node of a tet10 is used: no stray hex27 nodes.
+        assert_eq!(olli_mesh::cleanup::unreferenced_nodes(&m).len(), 0);
+    }
+}
