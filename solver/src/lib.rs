@@ -11,3 +11,15 @@ pub mod element;
 pub mod material;
 pub mod quadrature;
 pub mod shape;
+pub mod assembly;
+pub mod error;
+pub mod linear;
+pub mod load;
+pub mod model;
+pub mod driver;
+pub mod results;
+
+pub use driver::{solve, Event, Observer, Quiet};
+pub use error::SolveError;
+pub use model::{Analysis, Force, Formulation, IncrementControls, Model, Motion, OutputSettings, Pressure, Region, Stage, Support};
+pub use results::{IncrementResult, NodalFields, PointFields, Solution, SolveStats, Termination};
