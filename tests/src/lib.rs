@@ -178,3 +178,35 @@ pub fn block(l: [f64; 3], n: [usize; 3], distort: f64) -> Mesh {
 pub fn rel(a: f64, b: f64) -> f64 {
     (a - b).abs() / b.abs()
 }
+
+/// Prescribes `u(X)` on every listed node by giving each its own node set
+/// `pin<node>` and a motion; returns the motions.
+pub fn pin_nodes(mesh: &mut Mesh, nodes: &[usize], u: impl Fn([f64; 3]) -> [f64; 3]) -> Vec<olli_solver::Motion> {
+    let dim = mesh.dimension;
+    nodes
+        .iter()
+        .map(|&n| {
+            let name = format!("pin{n}");
+            mesh.node_sets.insert(name.clone(), vec![n]);
+            let d = u(mesh.nodes[n]);
+            let mut disp = [None; 3];
+            for i in 0..dim {
+                disp[i] = Some(d[i]);
+            }
+            olli_solver::Motion { set: name, displacement: disp }
+        })
+        .collect()
+}
+
+/// Nodes on the boundary of a structured mesh: the union of the named sets.
+pub fn union_of_sets(mesh: &Mesh, names: &[&str]) -> Vec<usize> {
+    let mut v: Vec<usize> = names.iter().flat_map(|n| mesh.node_sets[*n].iter().copied()).collect();
+    v.sort_unstable();
+    v.dedup();
+    v
+}
+
+/// A single-stage model with the given controls.
+pub fn one_stage(stage: olli_solver::Stage) -> Vec<olli_solver::Stage> {
+    vec![stage]
+}
