@@ -1,7 +1,218 @@
-//! Shared helpers for the verification tests: independent implementations
-//! of textbook formulas, kept separate from the solver's own code so that a
-//! test compares two different computations.
+//! Shared helpers of the verification tests: small structured meshes
+//! (rectangle and annulus sections of quad4, blocks of hex8) with named node
+//! and side sets, optional fixed-seed distortion of interior nodes, and
+//! material shorthands. The mesh crate's generators will replace these.
 
+use std::sync::Arc;
+
+use olli_mesh::{ElementKind, Mesh, Side};
+use olli_solver::material::{registry, Material, VolumetricForm};
+
+/// Neo-Hookean with quadratic volumetric energy U = κ/2 (J−1)².
+pub fn neo_hookean(mu: f64, kappa: f64) -> Arc<Material> {
+    Arc::new(registry::material("neo-hookean", &[("shear_modulus", mu), ("bulk_modulus", kappa)], VolumetricForm::Quadratic).unwrap())
+}
+
+/// Fixed-seed generator in [−1, 1) (64-bit LCG, Knuth's constants).
+pub struct Lcg(u64);
+
+impl Lcg {
+    pub fn new(seed: u64) -> Self {
+        Lcg(seed)
+    }
+    pub fn next(&mut self) -> f64 {
+        self.0 = self.0.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+        ((self.0 >> 11) as f64 / (1u64 << 53) as f64) * 2.0 - 1.0
+    }
+}
+
+/// A quad4 grid of the map `(s, t) ∈ [0,1]² → place(s, t)`, `ns × nt`
+/// elements, counter-clockwise if `place` preserves orientation. Interior
+/// nodes are moved by `distort` times the local spacing in (s, t) (fixed seed).
+/// Node sets and side sets: `s0`, `s1`, `t0`, `t1` (edges s = 0, s = 1, t = 0, t = 1).
+pub fn quad_grid(ns: usize, nt: usize, distort: f64, place: impl Fn(f64, f64) -> [f64; 2]) -> Mesh {
+    let mut mesh = Mesh::new(2);
+    let mut rng = Lcg::new(7);
+    for j in 0..=nt {
+        for i in 0..=ns {
+            let (mut s, mut t) = (i as f64 / ns as f64, j as f64 / nt as f64);
+            if i > 0 && i < ns && j > 0 && j < nt {
+                s += distort * rng.next() / ns as f64;
+                t += distort * rng.next() / nt as f64;
+            }
+            let p = place(s, t);
+            mesh.add_node([p[0], p[1], 0.0]);
+        }
+    }
+    let id = |i: usize, j: usize| j * (ns + 1) + i;
+    let mut sides: [Vec<Side>; 4] = Default::default();
+    for j in 0..nt {
+        for i in 0..ns {
+            let e = mesh.add_element(ElementKind::Quad4, &[id(i, j), id(i + 1, j), id(i + 1, j + 1), id(i, j + 1)]);
+            if j == 0 {
+                sides[2].push(Side { element: e, local: 0 });
+            }
+            if i == ns - 1 {
+                sides[1].push(Side { element: e, local: 1 });
+            }
+            if j == nt - 1 {
+                sides[3].push(Side { element: e, local: 2 });
+            }
+            if i == 0 {
+                sides[0].push(Side { element: e, local: 3 });
+            }
+        }
+    }
+    let names = ["s0", "s1", "t0", "t1"];
+    for (k, name) in names.iter().enumerate() {
+        let nodes: Vec<usize> = match k {
+            0 => (0..=nt).map(|j| id(0, j)).collect(),
+            1 => (0..=nt).map(|j| id(ns, j)).collect(),
+            2 => (0..=ns).map(|i| id(i, 0)).collect(),
+            _ => (0..=ns).map(|i| id(i, nt)).collect(),
+        };
+        mesh.node_sets.insert(name.to_string(), nodes);
+        mesh.side_sets.insert(name.to_string(), std::mem::take(&mut sides[k]));
+    }
+    mesh
+}
+
+/// Rectangle [x0, x1] × [y0, y1] of quad4 (sets `s0`=left, `s1`=right, `t0`=bottom, `t1`=top).
+pub fn rectangle(x0: f64, x1: f64, y0: f64, y1: f64, nx: usize, ny: usize, distort: f64) -> Mesh {
+    quad_grid(nx, ny, distort, |s, t| [x0 + s * (x1 - x0), y0 + t * (y1 - y0)])
+}
+
+/// Quarter-annulus section a ≤ r ≤ b, 0 ≤ φ ≤ π/2 in the x–y plane (plane
+/// strain): `s0` inner, `s1` outer, `t0` on the x axis, `t1` on the y axis.
+pub fn quarter_annulus(a: f64, b: f64, nr: usize, nt: usize) -> Mesh {
+    quad_grid(nr, nt, 0.0, |s, t| {
+        let r = a + s * (b - a);
+        let phi = t * std::f64::consts::FRAC_PI_2;
+        [r * phi.cos(), r * phi.sin()]
+    })
+}
+
+/// A hex8 block [0,lx]×[0,ly]×[0,lz] of nx×ny×nz elements, interior nodes
+/// distorted as in [`quad_grid`]. Node and side sets `x0`, `x1`, `y0`, `y1`, `z0`, `z1`.
+pub fn block(l: [f64; 3], n: [usize; 3], distort: f64) -> Mesh {
+    let mut mesh = Mesh::new(3);
+    let mut rng = Lcg::new(11);
+    for k in 0..=n[2] {
+        for j in 0..=n[1] {
+            for i in 0..=n[0] {
+                let idx = [i, j, k];
+                let mut p = [0.0; 3];
+                let interior = (0..3).all(|d| idx[d] > 0 && idx[d] < n[d]);
+                for d in 0..3 {
+                    let mut s = idx[d] as f64 / n[d] as f64;
+                    if interior {
+                        s += distort * rng.next() / n[d] as f64;
+                    }
+                    p[d] = s * l[d];
+                }
+                mesh.add_node(p);
+            }
+        }
+    }
+    let id = |i: usize, j: usize, k: usize| (k * (n[1] + 1) + j) * (n[0] + 1) + i;
+    let mut sides: [Vec<Side>; 6] = Default::default();
+    for k in 0..n[2] {
+        for j in 0..n[1] {
+            for i in 0..n[0] {
+                let e = mesh.add_element(
+                    ElementKind::Hex8,
+                    &[
+                        id(i, j, k),
+                        id(i + 1, j, k),
+                        id(i + 1, j + 1, k),
+                        id(i, j + 1, k),
+                        id(i, j, k + 1),
+                        id(i + 1, j, k + 1),
+                        id(i + 1, j + 1, k + 1),
+                        id(i, j + 1, k + 1),
+                    ],
+                );
+                // Local faces of the mesh model: 0 bottom (z−), 1 top (z+), 2 y−, 3 x+, 4 y+, 5 x−.
+                if i == 0 {
+                    sides[0].push(Side { element: e, local: 5 });
+                }
+                if i == n[0] - 1 {
+                    sides[1].push(Side { element: e, local: 3 });
+                }
+                if j == 0 {
+                    sides[2].push(Side { element: e, local: 2 });
+                }
+                if j == n[1] - 1 {
+                    sides[3].push(Side { element: e, local: 4 });
+                }
+                if k == 0 {
+                    sides[4].push(Side { element: e, local: 0 });
+                }
+                if k == n[2] - 1 {
+                    sides[5].push(Side { element: e, local: 1 });
+                }
+            }
+        }
+    }
+    let names = ["x0", "x1", "y0", "y1", "z0", "z1"];
+    for (s, name) in names.iter().enumerate() {
+        let (d, at) = (s / 2, if s % 2 == 0 { 0 } else { n[s / 2] });
+        let mut nodes = Vec::new();
+        for k in 0..=n[2] {
+            for j in 0..=n[1] {
+                for i in 0..=n[0] {
+                    if [i, j, k][d] == at {
+                        nodes.push(id(i, j, k));
+                    }
+                }
+            }
+        }
+        nodes.sort_unstable();
+        mesh.node_sets.insert(name.to_string(), nodes);
+        mesh.side_sets.insert(name.to_string(), std::mem::take(&mut sides[s]));
+    }
+    mesh
+}
+
+/// Relative difference |a − b| / |b|.
+pub fn rel(a: f64, b: f64) -> f64 {
+    (a - b).abs() / b.abs()
+}
+
+/// Prescribes `u(X)` on every listed node by giving each its own node set
+/// `pin<node>` and a motion; returns the motions.
+pub fn pin_nodes(mesh: &mut Mesh, nodes: &[usize], u: impl Fn([f64; 3]) -> [f64; 3]) -> Vec<olli_solver::Motion> {
+    let dim = mesh.dimension;
+    nodes
+        .iter()
+        .map(|&n| {
+            let name = format!("pin{n}");
+            mesh.node_sets.insert(name.clone(), vec![n]);
+            let d = u(mesh.nodes[n]);
+            let mut disp = [None; 3];
+            for i in 0..dim {
+                disp[i] = Some(d[i]);
+            }
+            olli_solver::Motion { set: name, displacement: disp }
+        })
+        .collect()
+}
+
+/// Nodes on the boundary of a structured mesh: the union of the named sets.
+pub fn union_of_sets(mesh: &Mesh, names: &[&str]) -> Vec<usize> {
+    let mut v: Vec<usize> = names.iter().flat_map(|n| mesh.node_sets[*n].iter().copied()).collect();
+    v.sort_unstable();
+    v.dedup();
+    v
+}
+
+/// A single-stage model with the given controls.
+pub fn one_stage(stage: olli_solver::Stage) -> Vec<olli_solver::Stage> {
+    vec![stage]
+}
+
+/// Independent implementations of textbook material formulas, kept apart from
+/// the solver's own code so that a test compares two different computations.
 pub mod material {
     use olli_solver::material::{registry, Material, VolumetricForm};
 

@@ -1,0 +1,103 @@
+//! The element table resolved from a model: shape and region of every
+//! element, with checks that each element has a supported kind and exactly
+//! one region.
+
+use olli_mesh::{ElementKind, Mesh};
+
+use crate::element::{Analysis, ElementContext, Shape};
+use crate::error::SolveError;
+use crate::model::Model;
+
+pub fn analysis_name(a: Analysis) -> &'static str {
+    match a {
+        Analysis::Solid3d => "3-D solid",
+        Analysis::Axisymmetric => "axisymmetric",
+        Analysis::PlaneStrain { .. } => "plane strain",
+    }
+}
+
+/// Elements of a model, ready for assembly.
+#[derive(Debug)]
+pub struct Discretization<'m> {
+    pub model: &'m Model,
+    pub shapes: Vec<Shape>,
+    pub region_of: Vec<usize>,
+    pub dim: usize,
+}
+
+impl<'m> Discretization<'m> {
+    pub fn new(model: &'m Model) -> Result<Self, SolveError> {
+        let mesh: &Mesh = &model.mesh;
+        let (dim, want) = match model.analysis {
+            Analysis::Solid3d => (3, ElementKind::Hex8),
+            Analysis::Axisymmetric => (2, ElementKind::Quad4),
+            Analysis::PlaneStrain { thickness } => {
+                if !(thickness > 0.0 && thickness.is_finite()) {
+                    return Err(SolveError::BadThickness(thickness));
+                }
+                (2, ElementKind::Quad4)
+            }
+        };
+        if mesh.dimension != dim {
+            return Err(SolveError::DimensionMismatch { mesh: mesh.dimension, analysis: analysis_name(model.analysis) });
+        }
+        let n = mesh.element_count();
+        let mut shapes = Vec::with_capacity(n);
+        for (e, &k) in mesh.kinds.iter().enumerate() {
+            if k != want {
+                return Err(SolveError::UnsupportedElement {
+                    element: e,
+                    kind: k.name().to_string(),
+                    analysis: analysis_name(model.analysis),
+                });
+            }
+            shapes.push(if dim == 3 { Shape::Hex8 } else { Shape::Quad4 });
+        }
+        let mut region_of = vec![usize::MAX; n];
+        for (r, region) in model.regions.iter().enumerate() {
+            for &e in &region.elements {
+                if e >= n {
+                    return Err(SolveError::ElementOutOfRange { region: region.name.clone(), element: e, count: n });
+                }
+                if region_of[e] != usize::MAX {
+                    return Err(SolveError::OverlappingRegions {
+                        element: e,
+                        first: model.regions[region_of[e]].name.clone(),
+                        second: region.name.clone(),
+                    });
+                }
+                region_of[e] = r;
+            }
+        }
+        if let Some(e) = region_of.iter().position(|&r| r == usize::MAX) {
+            return Err(SolveError::MissingRegion { element: e });
+        }
+        Ok(Discretization { model, shapes, region_of, dim })
+    }
+
+    pub fn mesh(&self) -> &'m Mesh {
+        &self.model.mesh
+    }
+
+    pub fn context(&self, e: usize) -> ElementContext<'m> {
+        let region = &self.model.regions[self.region_of[e]];
+        ElementContext {
+            shape: self.shapes[e],
+            analysis: self.model.analysis,
+            formulation: region.formulation,
+            material: &region.material,
+        }
+    }
+
+    /// Reference positions and displacements of element `e`'s nodes into fixed arrays.
+    pub fn gather(&self, e: usize, u: &[f64], x: &mut [[f64; 3]; 8], ue: &mut [[f64; 3]; 8]) {
+        let mesh = self.mesh();
+        for (a, &n) in mesh.element_nodes(e).iter().enumerate() {
+            x[a] = mesh.nodes[n];
+            ue[a] = [0.0; 3];
+            for i in 0..self.dim {
+                ue[a][i] = u[n * self.dim + i];
+            }
+        }
+    }
+}

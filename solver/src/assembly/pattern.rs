@@ -1,0 +1,116 @@
+//! The sparse pattern of the free-dof tangent (lower triangle, CSC) and the
+//! element-to-storage scatter map, both built once per mesh and constraint
+//! set, so Newton iterations write straight into the value array without
+//! triplets, sorting or allocation.
+
+use faer::sparse::SymbolicSparseColMat;
+
+use super::discretization::Discretization;
+use super::dofs::{DofMap, NONE};
+use crate::element::MAX_DOFS;
+use crate::error::SolveError;
+
+/// Marks an element matrix entry that is not stored (upper triangle or a prescribed dof).
+pub const SKIP: u32 = u32::MAX;
+
+#[derive(Debug, Clone)]
+pub struct Pattern {
+    /// Number of equations.
+    pub n: usize,
+    pub col_ptr: Vec<usize>,
+    pub row_idx: Vec<usize>,
+    /// For each element, `dofs²` storage slots (column-major over local dofs).
+    pub scatter: Vec<u32>,
+    /// Start of each element's block in `scatter`.
+    pub scatter_offset: Vec<usize>,
+}
+
+impl Pattern {
+    pub fn build(disc: &Discretization, dofs: &DofMap) -> Result<Self, SolveError> {
+        let mesh = disc.mesh();
+        let dim = dofs.dim;
+        // Node adjacency, each list sorted: with node-major equation numbers
+        // the rows of every column then come out sorted.
+        let mut adj: Vec<Vec<usize>> = vec![Vec::new(); mesh.node_count()];
+        for e in 0..mesh.element_count() {
+            let nodes = mesh.element_nodes(e);
+            for &a in nodes {
+                adj[a].extend_from_slice(nodes);
+            }
+        }
+        for list in &mut adj {
+            list.sort_unstable();
+            list.dedup();
+        }
+        let n = dofs.n_free;
+        let mut col_ptr = Vec::with_capacity(n + 1);
+        col_ptr.push(0);
+        let mut row_idx = Vec::new();
+        for (node, list) in adj.iter().enumerate() {
+            for i in 0..dim {
+                let c = dofs.eq[node * dim + i];
+                if c == NONE {
+                    continue;
+                }
+                for &m in list {
+                    for j in 0..dim {
+                        let r = dofs.eq[m * dim + j];
+                        if r != NONE && r >= c {
+                            row_idx.push(r);
+                        }
+                    }
+                }
+                col_ptr.push(row_idx.len());
+            }
+        }
+        if row_idx.len() >= SKIP as usize {
+            return Err(SolveError::PatternTooLarge(row_idx.len()));
+        }
+        drop(adj);
+        let mut scatter_offset = Vec::with_capacity(mesh.element_count() + 1);
+        scatter_offset.push(0);
+        let mut scatter = Vec::new();
+        let mut gdof = [0usize; MAX_DOFS];
+        for e in 0..mesh.element_count() {
+            let nodes = mesh.element_nodes(e);
+            let nd = nodes.len() * dim;
+            for (a, &node) in nodes.iter().enumerate() {
+                for i in 0..dim {
+                    gdof[a * dim + i] = dofs.eq[node * dim + i];
+                }
+            }
+            for c in 0..nd {
+                for r in 0..nd {
+                    let (gr, gc) = (gdof[r], gdof[c]);
+                    let slot = if gr != NONE && gc != NONE && gr >= gc {
+                        find(&col_ptr, &row_idx, gr, gc).map(|s| s as u32).unwrap_or(SKIP)
+                    } else {
+                        SKIP
+                    };
+                    scatter.push(slot);
+                }
+            }
+            scatter_offset.push(scatter.len());
+        }
+        Ok(Pattern { n, col_ptr, row_idx, scatter, scatter_offset })
+    }
+
+    /// Storage slot of entry (row, col) with row ≥ col, if in the pattern.
+    pub fn slot(&self, row: usize, col: usize) -> Option<usize> {
+        find(&self.col_ptr, &self.row_idx, row, col)
+    }
+
+    pub fn nnz(&self) -> usize {
+        self.row_idx.len()
+    }
+
+    /// The faer symbolic structure of the pattern.
+    pub fn symbolic(&self) -> SymbolicSparseColMat<usize> {
+        SymbolicSparseColMat::new_checked(self.n, self.n, self.col_ptr.clone(), None, self.row_idx.clone())
+    }
+}
+
+fn find(col_ptr: &[usize], row_idx: &[usize], row: usize, col: usize) -> Option<usize> {
+    let (a, b) = (col_ptr[col], col_ptr[col + 1]);
+    row_idx[a..b].binary_search(&row).ok().map(|k| a + k)
+}

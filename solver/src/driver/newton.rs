@@ -1,0 +1,376 @@
+//! Newton–Raphson for one load increment, on the free dofs.
+//!
+//! The first iteration starts from the last converged state (optionally
+//! extrapolated from the previous increment) and carries the change of the
+//! prescribed displacements through the tangent (`K_ff du = −r − K_fp Δu_p`),
+//! so a large prescribed step does not invert the elements next to a moving
+//! face. Every correction is followed by a backtracking line search on
+//! `G(s) = du·r(u + s du)`: if the step overshoots (`G` changes sign and
+//! `|G(s)| > ½|G(0)|`), `s` is cut by linear interpolation of `G`.
+//!
+//! Convergence needs the out-of-balance force relative to the force scale
+//! (norm of external plus reaction forces) below `force_tolerance`, and
+//! either the correction's energy `|du·r|` relative to the first one below
+//! `energy_tolerance` or its norm relative to the increment's displacement
+//! below `displacement_tolerance`.
+
+use std::time::Instant;
+
+use super::observer::{Event, Observer};
+use super::stages::StageProgram;
+use crate::assembly::assembler::Outputs;
+use crate::assembly::dofs::NONE;
+use crate::assembly::{Assembler, Discretization, DofMap, Pattern};
+use crate::error::SolveError;
+use crate::linear::{FactorKind, LinearSolver};
+use crate::load::pressure::{pressure_side_into, MAX_SIDE_DOFS};
+use crate::model::IncrementControls;
+use crate::results::SolveStats;
+
+/// Result of one increment attempt.
+#[derive(Debug)]
+pub enum IncrementOutcome {
+    Converged { iterations: usize, residuals: Vec<f64>, energy: f64 },
+    Failed(SolveError),
+}
+
+/// Buffers and references for the increments of one stage.
+pub struct NewtonContext<'a> {
+    disc: &'a Discretization<'a>,
+    dofs: &'a DofMap,
+    pattern: &'a Pattern,
+    linear: &'a mut LinearSolver,
+    prog: &'a StageProgram,
+    start: &'a [f64],
+    controls: &'a IncrementControls,
+    stage_name: &'a str,
+    assembler: Assembler,
+    f_int: Vec<f64>,
+    f_ext: Vec<f64>,
+    /// Internal minus external force at every dof after the last evaluation
+    /// (at prescribed dofs: the reactions).
+    pub residual: Vec<f64>,
+    k: Vec<f64>,
+    rhs: Vec<f64>,
+    du: Vec<f64>,
+    dup: Vec<f64>,
+    base: Vec<f64>,
+    /// Displacement of the last converged increment (all dofs).
+    pub last_converged: Vec<f64>,
+}
+
+impl<'a> NewtonContext<'a> {
+    #[allow(clippy::too_many_arguments)]
+    pub fn new(
+        disc: &'a Discretization<'a>,
+        dofs: &'a DofMap,
+        pattern: &'a Pattern,
+        linear: &'a mut LinearSolver,
+        prog: &'a StageProgram,
+        start: &'a [f64],
+        controls: &'a IncrementControls,
+        stage_name: &'a str,
+    ) -> Self {
+        let ndof = start.len();
+        NewtonContext {
+            disc,
+            dofs,
+            pattern,
+            linear,
+            prog,
+            start,
+            controls,
+            stage_name,
+            assembler: Assembler::new(),
+            f_int: vec![0.0; ndof],
+            f_ext: vec![0.0; ndof],
+            residual: vec![0.0; ndof],
+            k: vec![0.0; pattern.nnz()],
+            rhs: vec![0.0; dofs.n_free],
+            du: vec![0.0; dofs.n_free],
+            dup: vec![0.0; ndof],
+            base: vec![0.0; ndof],
+            last_converged: start.to_vec(),
+        }
+    }
+
+    fn prescribed_at(&self, t: f64, d: usize) -> f64 {
+        self.start[d] + t * (self.prog.target[d] - self.start[d])
+    }
+
+    /// Residual (and tangent, and the right-hand side `−r_f − K_fp Δu_p`) at `u`.
+    fn evaluate(&mut self, u: &[f64], t: f64, want_k: bool, predict: bool, stats: &mut SolveStats) -> Result<f64, SolveError> {
+        let clock = Instant::now();
+        for (d, f) in self.f_ext.iter_mut().enumerate() {
+            *f = self.prog.dead_start[d] + t * (self.prog.dead_end[d] - self.prog.dead_start[d]);
+        }
+        self.rhs.fill(0.0);
+        let energy = self.assembler.assemble(
+            self.disc,
+            self.dofs,
+            self.pattern,
+            u,
+            Outputs {
+                internal: &mut self.f_int,
+                tangent: if want_k { Some(&mut self.k) } else { None },
+                predictor: if predict { Some((&self.dup, &mut self.rhs)) } else { None },
+            },
+        );
+        let energy = match energy {
+            Ok(e) => e,
+            Err(e) => {
+                stats.assembly_time += clock.elapsed().as_secs_f64();
+                return Err(e);
+            }
+        };
+        self.add_pressures(u, t, want_k, predict);
+        let mut finite = true;
+        for d in 0..self.residual.len() {
+            let r = self.f_int[d] - self.f_ext[d];
+            finite &= r.is_finite();
+            self.residual[d] = r;
+            let q = self.dofs.eq[d];
+            if q != NONE {
+                self.rhs[q] -= r;
+            }
+        }
+        stats.assembly_time += clock.elapsed().as_secs_f64();
+        stats.assemblies += 1;
+        if !finite {
+            return Err(SolveError::Linear("residual is not finite".into()));
+        }
+        Ok(energy)
+    }
+
+    fn add_pressures(&mut self, u: &[f64], t: f64, want_k: bool, predict: bool) {
+        let mesh = self.disc.mesh();
+        let dim = self.dofs.dim;
+        let analysis = self.disc.model.analysis;
+        let mut fs = [0.0; MAX_SIDE_DOFS];
+        let mut ks = [0.0; MAX_SIDE_DOFS * MAX_SIDE_DOFS];
+        for prog in &self.prog.pressures {
+            let p = prog.start + t * (prog.end - prog.start);
+            if p == 0.0 {
+                continue;
+            }
+            for &side in &prog.sides {
+                let nodes = mesh.side_nodes(side);
+                let nn = if dim == 3 { 4 } else { 2 };
+                let (mut x, mut us) = ([[0.0; 3]; 4], [[0.0; 3]; 4]);
+                for a in 0..nn {
+                    x[a] = mesh.nodes[nodes[a]];
+                    for i in 0..dim {
+                        us[a][i] = u[nodes[a] * dim + i];
+                    }
+                }
+                let nd = nn * dim;
+                pressure_side_into(analysis, &x[..nn], &us[..nn], p, &mut fs, if want_k || predict { Some(&mut ks) } else { None });
+                let g = |r: usize| nodes[r / dim] * dim + r % dim;
+                for r in 0..nd {
+                    self.f_ext[g(r)] += fs[r];
+                }
+                if !(want_k || predict) {
+                    continue;
+                }
+                // The tangent is K_int − ∂f_ext/∂u; its symmetric part is kept
+                // so the Cholesky path applies (exact for closed or held surfaces).
+                for c in 0..nd {
+                    for r in 0..nd {
+                        let sym = 0.5 * (ks[c * nd + r] + ks[r * nd + c]);
+                        let (qr, qc) = (self.dofs.eq[g(r)], self.dofs.eq[g(c)]);
+                        if want_k && qr != NONE && qc != NONE && qr >= qc {
+                            if let Some(s) = self.pattern.slot(qr, qc) {
+                                self.k[s] -= sym;
+                            }
+                        }
+                        if predict && qr != NONE {
+                            self.rhs[qr] += sym * self.dup[g(c)];
+                        }
+                    }
+                }
+            }
+        }
+    }
+
+    fn force_scale(&self) -> f64 {
+        let (mut ext, mut reac, mut int) = (0.0, 0.0, 0.0);
+        for d in 0..self.residual.len() {
+            ext += self.f_ext[d] * self.f_ext[d];
+            int += self.f_int[d] * self.f_int[d];
+            if self.dofs.eq[d] == NONE {
+                reac += self.residual[d] * self.residual[d];
+            }
+        }
+        let s = ext.sqrt().max(reac.sqrt());
+        if s > 0.0 {
+            s
+        } else if int > 0.0 {
+            int.sqrt()
+        } else {
+            1.0
+        }
+    }
+
+    fn free_residual_norm(&self) -> f64 {
+        self.residual
+            .iter()
+            .zip(&self.dofs.eq)
+            .filter(|(_, q)| **q != NONE)
+            .map(|(r, _)| r * r)
+            .sum::<f64>()
+            .sqrt()
+    }
+
+    /// Solves one increment ending at stage fraction `t`, updating `u`.
+    #[allow(clippy::too_many_arguments)]
+    pub fn increment(
+        &mut self,
+        u: &mut [f64],
+        t: f64,
+        extrapolation: Option<(&[f64], f64)>,
+        stage: usize,
+        increment: usize,
+        observer: &mut dyn Observer,
+        stats: &mut SolveStats,
+    ) -> IncrementOutcome {
+        match self.try_increment(u, t, extrapolation, stage, increment, observer, stats) {
+            Ok(o) => o,
+            Err(e) => IncrementOutcome::Failed(e),
+        }
+    }
+
+    #[allow(clippy::too_many_arguments)]
+    fn try_increment(
+        &mut self,
+        u: &mut [f64],
+        t: f64,
+        extrapolation: Option<(&[f64], f64)>,
+        stage: usize,
+        increment: usize,
+        observer: &mut dyn Observer,
+        stats: &mut SolveStats,
+    ) -> Result<IncrementOutcome, SolveError> {
+        let c = self.controls.clone();
+        let ndof = u.len();
+        // Predictor: extrapolated start, then the remaining prescribed change through the tangent.
+        let mut extrapolated = false;
+        u.copy_from_slice(&self.last_converged);
+        if let Some((prev, ratio)) = extrapolation {
+            for d in 0..ndof {
+                u[d] += ratio * (self.last_converged[d] - prev[d]);
+            }
+            extrapolated = true;
+        }
+        loop {
+            for d in 0..ndof {
+                self.dup[d] = if self.dofs.eq[d] == NONE { self.prescribed_at(t, d) - u[d] } else { 0.0 };
+            }
+            match self.evaluate(u, t, true, true, stats) {
+                Ok(_) => break,
+                Err(e) if extrapolated => {
+                    let _ = e;
+                    u.copy_from_slice(&self.last_converged);
+                    extrapolated = false;
+                }
+                Err(e) => return Err(e),
+            }
+        }
+        for d in 0..ndof {
+            u[d] += self.dup[d];
+        }
+        let mut residuals = Vec::new();
+        let mut first_energy: Option<f64> = None;
+        let mut iterations = 0;
+        loop {
+            if iterations >= c.max_iterations {
+                let res = self.free_residual_norm();
+                return Err(SolveError::NotConverged {
+                    stage: self.stage_name.to_string(),
+                    increment,
+                    residual: res,
+                    relative: res / self.force_scale(),
+                });
+            }
+            let kind = self.linear.factor(&self.k)?;
+            if kind != FactorKind::Cholesky {
+                observer.event(&Event::LinearFallback { stage, increment, iteration: iterations + 1, factor: kind });
+            }
+            self.du.copy_from_slice(&self.rhs);
+            self.linear.solve(&mut self.du)?;
+            iterations += 1;
+            stats.newton_iterations += 1;
+            // G(0) = du·r = −du·rhs (negative for a descent direction).
+            let g0: f64 = -self.du.iter().zip(&self.rhs).map(|(a, b)| a * b).sum::<f64>();
+            let energy_norm = g0.abs();
+            self.base.copy_from_slice(u);
+            let mut s = 1.0;
+            let mut tries = 0;
+            let energy = loop {
+                self.apply(u, s);
+                match self.evaluate(u, t, true, false, stats) {
+                    Ok(w) => {
+                        if !c.line_search || tries >= 4 {
+                            break w;
+                        }
+                        let gs: f64 = self.dofs_dot_du();
+                        if gs > 0.5 * g0.abs() && g0 < 0.0 {
+                            let next = (s * g0 / (g0 - gs)).clamp(0.1 * s, 0.9 * s);
+                            s = next;
+                            tries += 1;
+                            continue;
+                        }
+                        break w;
+                    }
+                    Err(e @ (SolveError::InvertedElement { .. } | SolveError::Element { .. } | SolveError::Linear(_))) => {
+                        if tries >= 6 {
+                            return Err(e);
+                        }
+                        s *= 0.5;
+                        tries += 1;
+                    }
+                    Err(e) => return Err(e),
+                }
+            };
+            let res = self.free_residual_norm();
+            let scale = self.force_scale();
+            let rel = res / scale;
+            residuals.push(rel);
+            observer.event(&Event::Iteration { iteration: iterations, residual: res, relative: rel, line_search: s, factor: kind });
+            if !rel.is_finite() {
+                return Err(SolveError::Linear("residual is not finite".into()));
+            }
+            let e0 = *first_energy.get_or_insert(energy_norm);
+            let energy_ok = e0 == 0.0 || energy_norm * s <= c.energy_tolerance * e0;
+            let (mut step2, mut inc2) = (0.0, 0.0);
+            for d in 0..ndof {
+                let q = self.dofs.eq[d];
+                if q != NONE {
+                    step2 += (s * self.du[q]).powi(2);
+                }
+                inc2 += (u[d] - self.last_converged[d]).powi(2);
+            }
+            let disp_ok = step2.sqrt() <= c.displacement_tolerance * inc2.sqrt().max(f64::MIN_POSITIVE);
+            if rel <= c.force_tolerance && (energy_ok || disp_ok) {
+                return Ok(IncrementOutcome::Converged { iterations, residuals, energy });
+            }
+        }
+    }
+
+    /// `u = base + s·du` on the free dofs.
+    fn apply(&self, u: &mut [f64], s: f64) {
+        for d in 0..u.len() {
+            let q = self.dofs.eq[d];
+            u[d] = if q != NONE { self.base[d] + s * self.du[q] } else { self.base[d] };
+        }
+    }
+
+    /// du·r over the free dofs with the current residual.
+    fn dofs_dot_du(&self) -> f64 {
+        self.residual
+            .iter()
+            .zip(&self.dofs.eq)
+            .filter(|(_, q)| **q != NONE)
+            .map(|(r, q)| r * self.du[*q])
+            .sum()
+    }
+}

@@ -1,0 +1,123 @@
+//! Finite-difference checks of every element variant: the tangent against
+//! central differences of the internal force, and the force against central
+//! differences of the energy (the element is hyperelastic, so both must hold).
+
+use super::*;
+use crate::material::{registry, Material, VolumetricForm};
+
+fn material() -> Material {
+    // Near-incompressible (κ/μ = 100) so the volumetric terms dominate, as in rubber.
+    registry::material("neo-hookean", &[("shear_modulus", 0.7), ("bulk_modulus", 70.0)], VolumetricForm::Logarithmic)
+        .unwrap()
+}
+
+/// A distorted element: reference nodes perturbed by a fixed pattern, and a
+/// large displacement field (stretches up to ~1.3, shear ~0.2).
+fn distorted(shape: Shape) -> (Vec<[f64; 3]>, Vec<[f64; 3]>) {
+    let base: Vec<[f64; 3]> = match shape {
+        Shape::Hex8 => crate::shape::hex8::NODES
+            .iter()
+            .map(|p| [1.0 + 0.5 * p[0], 2.0 + 0.6 * p[1], 0.4 * p[2]])
+            .collect(),
+        Shape::Quad4 => crate::shape::quad4::NODES
+            .iter()
+            .map(|p| [1.5 + 0.5 * p[0], 0.7 * p[1], 0.0])
+            .collect(),
+    };
+    let dim = shape.dimension();
+    let x: Vec<[f64; 3]> = base
+        .iter()
+        .enumerate()
+        .map(|(a, p)| {
+            let s = ((a * 7 + 3) % 5) as f64 * 0.03 - 0.06;
+            let mut q = *p;
+            q[0] += s;
+            q[1] -= 0.5 * s;
+            if dim == 3 {
+                q[2] += 0.7 * s;
+            }
+            q
+        })
+        .collect();
+    let u: Vec<[f64; 3]> = x
+        .iter()
+        .enumerate()
+        .map(|(a, p)| {
+            let w = ((a * 5 + 1) % 7) as f64 * 0.01;
+            let mut d = [0.25 * p[0] + 0.2 * p[1] + w, -0.1 * p[1] + 0.05 * p[0] - w, 0.0];
+            if dim == 3 {
+                d[2] = 0.15 * p[2] - 0.1 * p[0] + w;
+            }
+            d
+        })
+        .collect();
+    (x, u)
+}
+
+fn check(shape: Shape, analysis: Analysis, formulation: Formulation) {
+    let mat = material();
+    let ctx = ElementContext { shape, analysis, formulation, material: &mat };
+    let (x, u) = distorted(shape);
+    let nd = shape.dofs();
+    let dim = shape.dimension();
+    let mut f = vec![0.0; nd];
+    let mut k = vec![0.0; nd * nd];
+    element_into(&ctx, &x, &u, &mut f, Some(&mut k)).unwrap();
+    let h = 1e-6;
+    let kmax = k.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+    let fmax = f.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+    let (mut fp, mut fm) = (vec![0.0; nd], vec![0.0; nd]);
+    for c in 0..nd {
+        let (mut up, mut um) = (u.clone(), u.clone());
+        up[c / dim][c % dim] += h;
+        um[c / dim][c % dim] -= h;
+        let ep = element_into(&ctx, &x, &up, &mut fp, None).unwrap();
+        let em = element_into(&ctx, &x, &um, &mut fm, None).unwrap();
+        // Central differences are O(h²) ≈ 1e-12 relative; rounding in f is
+        // ~1e-16·|f|/h ≈ 1e-10 relative, so 1e-6 leaves a wide margin yet
+        // catches any missing tangent term (those are O(1) relative).
+        let fd_force = (ep - em) / (2.0 * h);
+        assert!((fd_force - f[c]).abs() <= 1e-6 * fmax, "{shape:?} {analysis:?} {formulation:?} force {c}: {} vs {fd_force}", f[c]);
+        for r in 0..nd {
+            let fd = (fp[r] - fm[r]) / (2.0 * h);
+            let an = k[c * nd + r];
+            assert!((fd - an).abs() <= 1e-6 * kmax, "{shape:?} {analysis:?} {formulation:?} K[{r},{c}] = {an} vs FD {fd}");
+        }
+    }
+    // Symmetry of the condensed tangent.
+    for r in 0..nd {
+        for c in 0..nd {
+            assert!((k[c * nd + r] - k[r * nd + c]).abs() <= 1e-10 * kmax);
+        }
+    }
+}
+
+#[test]
+fn hex8_tangents_match_finite_differences() {
+    check(Shape::Hex8, Analysis::Solid3d, Formulation::Mixed);
+    check(Shape::Hex8, Analysis::Solid3d, Formulation::Displacement);
+}
+
+#[test]
+fn quad4_axisymmetric_tangents_match_finite_differences() {
+    check(Shape::Quad4, Analysis::Axisymmetric, Formulation::Mixed);
+    check(Shape::Quad4, Analysis::Axisymmetric, Formulation::Displacement);
+}
+
+#[test]
+fn quad4_plane_strain_tangents_match_finite_differences() {
+    check(Shape::Quad4, Analysis::PlaneStrain { thickness: 2.5 }, Formulation::Mixed);
+    check(Shape::Quad4, Analysis::PlaneStrain { thickness: 2.5 }, Formulation::Displacement);
+}
+
+#[test]
+fn inverted_point_is_reported() {
+    let mat = material();
+    let ctx = ElementContext { shape: Shape::Quad4, analysis: Analysis::PlaneStrain { thickness: 1.0 }, formulation: Formulation::Mixed, material: &mat };
+    let (x, _) = distorted(Shape::Quad4);
+    // Fold node 2 through node 0: the element turns inside out.
+    let mut u = vec![[0.0; 3]; 4];
+    u[2] = [x[0][0] - x[2][0] - 0.5, x[0][1] - x[2][1] - 0.5, 0.0];
+    let mut f = vec![0.0; 8];
+    assert!(matches!(element_into(&ctx, &x, &u, &mut f, None), Err(ElementError::Inverted { .. })));
+}

@@ -1,0 +1,314 @@
+//! The integration loop shared by every element: `F = I + B u`, stress and
+//! tangent from the material, and the mean-dilatation condensation.
+
+use nalgebra::{Matrix3, SMatrix, SVector};
+
+use super::geometry::{point_geometry, PointGeometry};
+use super::{Analysis, ElementContext, ElementError, Formulation, Shape};
+use crate::material::{MaterialError, Tangent};
+
+/// Largest number of element degrees of freedom (hex8: 8 × 3).
+pub const MAX_DOFS: usize = 24;
+/// Largest number of integration points per element.
+pub const MAX_POINTS: usize = 8;
+
+type M9 = SMatrix<f64, 9, 9>;
+type V9 = SVector<f64, 9>;
+
+/// Voigt index of tensor component (I, J).
+const VI: [[usize; 3]; 3] = [[0, 3, 5], [3, 1, 4], [5, 4, 2]];
+
+fn to9(m: &Matrix3<f64>) -> V9 {
+    V9::from_fn(|k, _| m[(k / 3, k % 3)])
+}
+
+/// `A_iJkL = δ_ik S_JL + F_iI F_kK D_IJKL`: the first elasticity tensor as a
+/// 9×9 matrix with row index 3i+J and column index 3k+L.
+fn first_elasticity(f: &Matrix3<f64>, s: &Matrix3<f64>, d: &Tangent) -> M9 {
+    // t[i][J][K][L] = F_iI D_IJKL
+    let mut t = [[[[0.0; 3]; 3]; 3]; 3];
+    for i in 0..3 {
+        for jj in 0..3 {
+            for kk in 0..3 {
+                for ll in 0..3 {
+                    let c = VI[kk][ll];
+                    t[i][jj][kk][ll] = (0..3).map(|ii| f[(i, ii)] * d[(VI[ii][jj], c)]).sum();
+                }
+            }
+        }
+    }
+    let mut a = M9::zeros();
+    for i in 0..3 {
+        for jj in 0..3 {
+            for k in 0..3 {
+                for ll in 0..3 {
+                    let mut v: f64 = (0..3).map(|kk| f[(k, kk)] * t[i][jj][kk][ll]).sum();
+                    if i == k {
+                        v += s[(jj, ll)];
+                    }
+                    a[(3 * i + jj, 3 * k + ll)] = v;
+                }
+            }
+        }
+    }
+    a
+}
+
+/// `∂(J F⁻ᵀ)/∂F` as a 9×9 matrix: `J (F⁻¹_Ii F⁻¹_Kk − F⁻¹_Ik F⁻¹_Ki)`.
+fn cofactor_derivative(j: f64, fi: &Matrix3<f64>) -> M9 {
+    M9::from_fn(|r, c| {
+        let (i, ii) = (r / 3, r % 3);
+        let (k, kk) = (c / 3, c % 3);
+        j * (fi[(ii, i)] * fi[(kk, k)] - fi[(ii, k)] * fi[(kk, i)])
+    })
+}
+
+fn b_matrix<const ND: usize>(geo: &PointGeometry, axisymmetric: bool) -> SMatrix<f64, 9, ND> {
+    let dim = if ND == 24 { 3 } else { 2 };
+    let mut b = SMatrix::<f64, 9, ND>::zeros();
+    for a in 0..ND / dim {
+        for i in 0..dim {
+            for jj in 0..3 {
+                b[(3 * i + jj, a * dim + i)] = geo.g[a][jj];
+            }
+        }
+        if axisymmetric {
+            b[(8, a * dim)] += geo.n[a] / geo.radius;
+        }
+    }
+    b
+}
+
+fn map_material(e: MaterialError, point: usize, j: f64) -> ElementError {
+    match e {
+        MaterialError::NonPositiveVolume { .. } => ElementError::Inverted { point, j },
+        other => ElementError::Material(other),
+    }
+}
+
+/// Deformation state of one Gauss point.
+#[derive(Debug, Clone, Copy, Default)]
+struct Kin {
+    geo: PointGeometry,
+    f: Matrix3<f64>,
+    j: f64,
+}
+
+/// Pass 1: geometry, F and J at every point; the element's reference volume V
+/// and deformed volume v = ∫ J dV.
+fn kinematics<const ND: usize>(
+    ctx: &ElementContext,
+    x: &[[f64; 3]],
+    u: &SVector<f64, ND>,
+    out: &mut [Kin; MAX_POINTS],
+) -> Result<(f64, f64), ElementError> {
+    let axi = ctx.analysis == Analysis::Axisymmetric;
+    let (mut vol, mut vol_def) = (0.0, 0.0);
+    for q in 0..ctx.shape.points() {
+        let geo = point_geometry(ctx.shape, ctx.analysis, x, q)?;
+        let f9 = b_matrix::<ND>(&geo, axi) * u;
+        let f = Matrix3::from_fn(|i, jj| f9[3 * i + jj] + if i == jj { 1.0 } else { 0.0 });
+        let j = f.determinant();
+        if !(j > 0.0 && j.is_finite()) {
+            return Err(ElementError::Inverted { point: q, j });
+        }
+        vol += geo.dv;
+        vol_def += j * geo.dv;
+        out[q] = Kin { geo, f, j };
+    }
+    Ok((vol, vol_def))
+}
+
+fn integrate<const ND: usize>(
+    ctx: &ElementContext,
+    x: &[[f64; 3]],
+    u: &SVector<f64, ND>,
+    force: &mut SVector<f64, ND>,
+    mut stiffness: Option<&mut SMatrix<f64, ND, ND>>,
+) -> Result<f64, ElementError> {
+    let axi = ctx.analysis == Analysis::Axisymmetric;
+    let mut kin = [Kin::default(); MAX_POINTS];
+    let (vol, vol_def) = kinematics::<ND>(ctx, x, u, &mut kin)?;
+    force.fill(0.0);
+    if let Some(k) = stiffness.as_deref_mut() {
+        k.fill(0.0);
+    }
+    let mat = ctx.material;
+    let mut energy = 0.0;
+    let mixed = ctx.formulation == Formulation::Mixed;
+    let (p, dp, theta) = if mixed {
+        let theta = vol_def / vol;
+        let m = |e| map_material(e, 0, theta);
+        energy += vol * mat.volumetric.energy(theta).map_err(m)?;
+        (
+            mat.volumetric.pressure(theta).map_err(m)?,
+            mat.volumetric.pressure_derivative(theta).map_err(m)?,
+            theta,
+        )
+    } else {
+        (0.0, 0.0, 1.0)
+    };
+    let _ = theta;
+    let mut g = SVector::<f64, ND>::zeros();
+    for (q, k) in kin.iter().take(ctx.shape.points()).enumerate() {
+        let c = k.f.transpose() * k.f;
+        let resp = if mixed {
+            mat.isochoric_response(&c)
+        } else {
+            mat.response(&c)
+        }
+        .map_err(|e| map_material(e, q, k.j))?;
+        energy += resp.energy * k.geo.dv;
+        let b = b_matrix::<ND>(&k.geo, axi);
+        let mut p9 = to9(&(k.f * resp.stress));
+        let fi = k.f.try_inverse().ok_or(ElementError::Inverted { point: q, j: k.j })?;
+        if mixed {
+            let jfit = to9(&(fi.transpose() * k.j));
+            p9 += jfit * p;
+            g += b.transpose() * jfit * k.geo.dv;
+        }
+        *force += b.transpose() * p9 * k.geo.dv;
+        if let Some(kk) = stiffness.as_deref_mut() {
+            let mut a = first_elasticity(&k.f, &resp.stress, &resp.tangent);
+            if mixed {
+                a += cofactor_derivative(k.j, &fi) * p;
+            }
+            let ab = a * b * k.geo.dv;
+            kk.gemm_tr(1.0, &b, &ab, 1.0);
+        }
+    }
+    if mixed {
+        if let Some(kk) = stiffness {
+            kk.ger(dp / vol, &g, &g, 1.0);
+        }
+    }
+    Ok(energy)
+}
+
+/// Internal force (and, if asked, the tangent, column-major ND×ND) of one
+/// element into caller buffers of length `shape.dofs()` and its square.
+/// `x` are the reference node positions and `u` the node displacements, both
+/// with three entries per node (the third ignored in 2-D). Returns the
+/// element's strain energy.
+pub fn element_into(
+    ctx: &ElementContext,
+    x: &[[f64; 3]],
+    u: &[[f64; 3]],
+    force: &mut [f64],
+    stiffness: Option<&mut [f64]>,
+) -> Result<f64, ElementError> {
+    match ctx.shape {
+        Shape::Hex8 => run::<24>(ctx, x, u, 3, force, stiffness),
+        Shape::Quad4 => run::<8>(ctx, x, u, 2, force, stiffness),
+    }
+}
+
+fn run<const ND: usize>(
+    ctx: &ElementContext,
+    x: &[[f64; 3]],
+    u: &[[f64; 3]],
+    dim: usize,
+    force: &mut [f64],
+    stiffness: Option<&mut [f64]>,
+) -> Result<f64, ElementError> {
+    let uv = SVector::<f64, ND>::from_fn(|r, _| u[r / dim][r % dim]);
+    let mut f = SVector::<f64, ND>::zeros();
+    match stiffness {
+        Some(kbuf) => {
+            let mut k = SMatrix::<f64, ND, ND>::zeros();
+            let e = integrate::<ND>(ctx, x, &uv, &mut f, Some(&mut k))?;
+            kbuf[..ND * ND].copy_from_slice(k.as_slice());
+            force[..ND].copy_from_slice(f.as_slice());
+            Ok(e)
+        }
+        None => {
+            let e = integrate::<ND>(ctx, x, &uv, &mut f, None)?;
+            force[..ND].copy_from_slice(f.as_slice());
+            Ok(e)
+        }
+    }
+}
+
+/// Stress and strain measures at one integration point.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct PointState {
+    /// Reference position of the point.
+    pub position: [f64; 3],
+    /// Cauchy stress (true stress).
+    pub cauchy: Matrix3<f64>,
+    /// Hydrostatic pressure −tr(σ)/3, positive in compression.
+    pub pressure: f64,
+    /// Volume ratio det F at the point.
+    pub j: f64,
+    /// Principal stretches, descending.
+    pub stretches: [f64; 3],
+    /// Strain energy density per unit reference volume (mixed: W_iso(C) + U(θ)).
+    pub energy_density: f64,
+    /// Reference volume weight of the point.
+    pub volume: f64,
+}
+
+/// Per-point results of one element into `out` (length ≥ `shape.points()`).
+pub fn point_states(
+    ctx: &ElementContext,
+    x: &[[f64; 3]],
+    u: &[[f64; 3]],
+    out: &mut [PointState],
+) -> Result<(), ElementError> {
+    match ctx.shape {
+        Shape::Hex8 => states::<24>(ctx, x, u, 3, out),
+        Shape::Quad4 => states::<8>(ctx, x, u, 2, out),
+    }
+}
+
+fn states<const ND: usize>(
+    ctx: &ElementContext,
+    x: &[[f64; 3]],
+    u: &[[f64; 3]],
+    dim: usize,
+    out: &mut [PointState],
+) -> Result<(), ElementError> {
+    let uv = SVector::<f64, ND>::from_fn(|r, _| u[r / dim][r % dim]);
+    let mut kin = [Kin::default(); MAX_POINTS];
+    let (vol, vol_def) = kinematics::<ND>(ctx, x, &uv, &mut kin)?;
+    let mat = ctx.material;
+    let mixed = ctx.formulation == Formulation::Mixed;
+    let theta = vol_def / vol;
+    let (p, u_vol) = if mixed {
+        let m = |e| map_material(e, 0, theta);
+        (mat.volumetric.pressure(theta).map_err(m)?, mat.volumetric.energy(theta).map_err(m)?)
+    } else {
+        (0.0, 0.0)
+    };
+    for (q, k) in kin.iter().take(ctx.shape.points()).enumerate() {
+        let c = k.f.transpose() * k.f;
+        let resp = if mixed {
+            mat.isochoric_response(&c)
+        } else {
+            mat.response(&c)
+        }
+        .map_err(|e| map_material(e, q, k.j))?;
+        let mut sigma = k.f * resp.stress * k.f.transpose() / k.j;
+        if mixed {
+            sigma += Matrix3::identity() * p;
+        }
+        let mut ev: Vec<f64> = c.symmetric_eigenvalues().iter().map(|l| l.max(0.0).sqrt()).collect();
+        ev.sort_by(|a, b| b.total_cmp(a));
+        let mut position = [0.0; 3];
+        for a in 0..ctx.shape.nodes() {
+            for i in 0..3 {
+                position[i] += k.geo.n[a] * x[a][i];
+            }
+        }
+        out[q] = PointState {
+            position,
+            cauchy: sigma,
+            pressure: -sigma.trace() / 3.0,
+            j: k.j,
+            stretches: [ev[0], ev[1], ev[2]],
+            energy_density: resp.energy + u_vol,
+            volume: k.geo.dv,
+        };
+    }
+    Ok(())
+}

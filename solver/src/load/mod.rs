@@ -1,0 +1,6 @@
+//! External loads: follower pressure on element sides (with its load
+//! stiffness) and dead loads (total force on a set, body force) assembled into
+//! a nodal force vector.
+
+pub mod dead;
+pub mod pressure;

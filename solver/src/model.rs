@@ -1,0 +1,181 @@
+//! The problem description handed to [`crate::driver::solve`]: a mesh, the
+//! analysis kind, material regions and a sequence of load stages. Built in
+//! memory (tests, benchmarks) or by the job-file layer; no files here.
+//!
+//! Load semantics: every support, motion, pressure and force is keyed by its
+//! set name. A value given in a stage is reached at the end of that stage,
+//! ramped linearly from its value at the stage start; values of earlier
+//! stages are held unless a later stage names the same set again. Supports
+//! and motions stay active for the rest of the run.
+
+use std::sync::Arc;
+
+use olli_mesh::Mesh;
+
+pub use crate::element::{Analysis, Formulation};
+use crate::linear::LinearSettings;
+use crate::material::Material;
+
+/// One material region.
+#[derive(Debug, Clone)]
+pub struct Region {
+    pub name: String,
+    /// Element indices of the region (each element in exactly one region).
+    pub elements: Vec<usize>,
+    pub material: Arc<Material>,
+    pub formulation: Formulation,
+}
+
+/// Fixed (zero) displacement components on the nodes of a set.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Support {
+    /// Node set (or side/element set, whose nodes are used).
+    pub set: String,
+    /// Which components (x, y, z; r, z in axisymmetric) are held at zero.
+    pub components: [bool; 3],
+}
+
+/// Prescribed displacement components on the nodes of a set, e.g. a bonded
+/// face moving with a rigid plate.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Motion {
+    pub set: String,
+    /// Displacement (length units) reached at the end of the stage; `None`
+    /// leaves the component free.
+    pub displacement: [Option<f64>; 3],
+}
+
+/// Follower pressure on a side set, positive pushing on the surface.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Pressure {
+    pub set: String,
+    /// Pressure (stress units) reached at the end of the stage.
+    pub value: f64,
+}
+
+/// A total force on a set (dead load). On a side set it is spread as a
+/// uniform traction over the undeformed sides; on a node set it is split
+/// equally among the nodes. Axisymmetric: the force over the full 2π.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Force {
+    pub set: String,
+    pub total: [f64; 3],
+}
+
+/// Settings of the adaptive load stepping and of the Newton iterations of one stage.
+#[derive(Debug, Clone, PartialEq)]
+pub struct IncrementControls {
+    /// First increment as a fraction of the stage. Default 0.1.
+    pub first: f64,
+    /// Smallest increment before the run stops (fraction of the stage). Default 1e-5.
+    pub min: f64,
+    /// Largest increment (fraction of the stage). Default 1.0.
+    pub max: f64,
+    /// Growth factor of the increment after a fast convergence. Default 1.5.
+    pub growth: f64,
+    /// An increment that converged in at most this many iterations lets the
+    /// next one grow. Default 4.
+    pub fast_iterations: usize,
+    /// Increment multiplier after a failed increment (divergence, NaN,
+    /// inverted element, too many iterations). Default 0.25.
+    pub cutback: f64,
+    /// Newton iterations allowed per increment. Default 15.
+    pub max_iterations: usize,
+    /// Out-of-balance force relative to the force scale of the problem
+    /// (external plus reaction forces). Default 1e-6.
+    pub force_tolerance: f64,
+    /// Energy norm |du·r| of the last correction relative to that of the first.
+    /// Default 1e-12. Either this or the displacement criterion must hold.
+    pub energy_tolerance: f64,
+    /// Norm of the last correction relative to the increment's displacement. Default 1e-6.
+    pub displacement_tolerance: f64,
+    /// Backtracking line search on the residual along the Newton direction. Default true.
+    pub line_search: bool,
+    /// Start each increment from a linear extrapolation of the previous
+    /// increment's displacement change (in addition to the tangent
+    /// predictor for prescribed motions). Default true.
+    pub extrapolate: bool,
+}
+
+impl Default for IncrementControls {
+    fn default() -> Self {
+        IncrementControls {
+            first: 0.1,
+            min: 1e-5,
+            max: 1.0,
+            growth: 1.5,
+            fast_iterations: 4,
+            cutback: 0.25,
+            max_iterations: 15,
+            force_tolerance: 1e-6,
+            energy_tolerance: 1e-12,
+            displacement_tolerance: 1e-6,
+            line_search: true,
+            extrapolate: true,
+        }
+    }
+}
+
+/// One load stage; stages run one after another, each from the last
+/// converged state of the previous one.
+#[derive(Debug, Clone, Default)]
+pub struct Stage {
+    pub name: String,
+    pub controls: IncrementControls,
+    pub supports: Vec<Support>,
+    pub motions: Vec<Motion>,
+    pub pressures: Vec<Pressure>,
+    pub forces: Vec<Force>,
+    /// Body force per unit reference volume reached at the end of the stage
+    /// (`None` holds the previous value).
+    pub body_force: Option<[f64; 3]>,
+}
+
+/// Which fields each converged increment keeps.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct OutputSettings {
+    /// Keep stresses and strains at every integration point. Default true.
+    pub point_fields: bool,
+    /// Keep nodal averages of the point fields. Default true.
+    pub nodal_fields: bool,
+}
+
+impl Default for OutputSettings {
+    fn default() -> Self {
+        OutputSettings {
+            point_fields: true,
+            nodal_fields: true,
+        }
+    }
+}
+
+/// A complete problem.
+#[derive(Debug, Clone)]
+pub struct Model {
+    pub mesh: Mesh,
+    pub analysis: Analysis,
+    pub regions: Vec<Region>,
+    pub stages: Vec<Stage>,
+    pub linear: LinearSettings,
+    pub output: OutputSettings,
+}
+
+impl Model {
+    /// A model with one region holding every element, and no stages yet.
+    pub fn single_region(mesh: Mesh, analysis: Analysis, material: Arc<Material>, formulation: Formulation) -> Self {
+        let elements = (0..mesh.element_count()).collect();
+        Model {
+            mesh,
+            analysis,
+            regions: vec![Region {
+                name: "all".into(),
+                elements,
+                material,
+                formulation,
+            }],
+            stages: Vec::new(),
+            linear: LinearSettings::default(),
+            output: OutputSettings::default(),
+        }
+    }
+}
