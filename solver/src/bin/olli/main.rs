@@ -3,6 +3,7 @@
 //! stopped without converging, 2 bad input.
 
 mod material_cmd;
+mod mesh_cmd;
 
 use std::process::ExitCode;
 
@@ -23,11 +24,14 @@ struct Cli {
 enum Command {
     /// Homogeneous responses of a hyperelastic material (uniaxial, biaxial, planar, shear, volumetric).
     Material(material_cmd::Args),
+    /// Generate, inspect and convert meshes (info, convert, generate).
+    Mesh(mesh_cmd::Args),
 }
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.command {
         Command::Material(args) => material_cmd::run(args),
+        Command::Mesh(args) => mesh_cmd::run(args),
     }
 }
