@@ -33,6 +33,10 @@ pub enum SolveError {
     NotConverged { stage: String, increment: usize, residual: f64, relative: f64 },
     #[error("stage `{stage}`: increment {step:.3e} fell below the minimum {min:.3e} at load factor {load_factor:.4} ({reason})")]
     IncrementTooSmall { stage: String, load_factor: f64, step: f64, min: f64, reason: String },
+    #[error("rigid body `{body}`: {reason}")]
+    BadContact { body: String, reason: String },
+    #[error("contact: penetration {penetration:.3e} still above the tolerance {tolerance:.3e} after {augmentations} augmentations")]
+    ContactNotResolved { penetration: f64, tolerance: f64, augmentations: usize },
     #[error("linear solve failed: {0}")]
     Linear(String),
     #[error("sparse pattern too large: {0} stored entries exceed the 32-bit scatter map")]

@@ -12,6 +12,7 @@ use std::sync::Arc;
 
 use olli_mesh::Mesh;
 
+pub use crate::contact::Shape as RigidShape;
 pub use crate::element::{Analysis, Formulation};
 use crate::linear::LinearSettings;
 use crate::material::Material;
@@ -60,6 +61,57 @@ pub struct Pressure {
 pub struct Force {
     pub set: String,
     pub total: [f64; 3],
+}
+
+/// A rigid (metal) surface the rubber may touch: a groove, a cover plate, a
+/// shaft or a bore. Its motion is given per stage by [`RigidMotion`].
+#[derive(Debug, Clone, PartialEq)]
+pub struct RigidBody {
+    pub name: String,
+    pub shape: RigidShape,
+    /// Side set of the rubber that may touch it.
+    pub sides: String,
+    /// Coulomb friction coefficient (0: frictionless). Default 0.
+    pub friction: f64,
+    /// Normal penalty ε_n (stress / length). `None` (default): 50 μ / h, from
+    /// the largest shear modulus μ next to the side set and its mean side size h.
+    pub normal_penalty: Option<f64>,
+    /// Allowed penetration as a fraction of the mean side size h; the
+    /// augmented Lagrangian iterates until every touching node is within it.
+    /// Default 0.01.
+    pub penetration_tolerance: f64,
+    /// Centre of rotations (length units). Default origin.
+    pub rotation_center: [f64; 3],
+    /// Axis of rotations (3-D; in 2-D rotations are about z). Default z.
+    pub rotation_axis: [f64; 3],
+}
+
+impl RigidBody {
+    /// A frictionless body with default contact settings.
+    pub fn new(name: impl Into<String>, shape: RigidShape, sides: impl Into<String>) -> Self {
+        RigidBody {
+            name: name.into(),
+            shape,
+            sides: sides.into(),
+            friction: 0.0,
+            normal_penalty: None,
+            penetration_tolerance: 0.01,
+            rotation_center: [0.0; 3],
+            rotation_axis: [0.0, 0.0, 1.0],
+        }
+    }
+}
+
+/// Position of a rigid body reached at the end of a stage (ramped from its
+/// position at the stage start; held by later stages that do not name it).
+#[derive(Debug, Clone, PartialEq)]
+pub struct RigidMotion {
+    /// Name of the [`RigidBody`].
+    pub body: String,
+    /// Total translation from the body's original position (length units).
+    pub translation: [f64; 3],
+    /// Total rotation about the body's axis through its centre (radians).
+    pub rotation: f64,
 }
 
 /// Settings of the adaptive load stepping and of the Newton iterations of one stage.
@@ -129,6 +181,8 @@ pub struct Stage {
     /// Body force per unit reference volume reached at the end of the stage
     /// (`None` holds the previous value).
     pub body_force: Option<[f64; 3]>,
+    /// Rigid-body positions reached at the end of the stage.
+    pub rigid_motions: Vec<RigidMotion>,
 }
 
 /// Which fields each converged increment keeps.
@@ -156,6 +210,8 @@ pub struct Model {
     pub analysis: Analysis,
     pub regions: Vec<Region>,
     pub stages: Vec<Stage>,
+    /// Rigid surfaces in contact with the rubber.
+    pub rigid: Vec<RigidBody>,
     pub linear: LinearSettings,
     pub output: OutputSettings,
 }
@@ -174,6 +230,7 @@ impl Model {
                 formulation,
             }],
             stages: Vec::new(),
+            rigid: Vec::new(),
             linear: LinearSettings::default(),
             output: OutputSettings::default(),
         }

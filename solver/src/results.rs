@@ -4,6 +4,7 @@
 use std::collections::BTreeMap;
 use std::f64::consts::PI;
 
+pub use crate::contact::active::{ContactFields, ContactSummary};
 use crate::element::PointState;
 use crate::error::SolveError;
 use crate::linear::LinearStats;
@@ -73,6 +74,10 @@ pub struct IncrementResult {
     pub axisymmetric: bool,
     pub points: Option<PointFields>,
     pub nodal: Option<NodalFields>,
+    /// Per rigid body: total force, contact width, peak pressure.
+    pub contact: Vec<ContactSummary>,
+    /// Contact pressure, gap, slip and status at nodes (when the model has rigid bodies).
+    pub contact_fields: Option<ContactFields>,
 }
 
 impl IncrementResult {

@@ -1,5 +1,6 @@
 //! Contact between rubber and rigid (metal) surfaces.
 
+pub mod active;
 pub mod law;
 pub mod pair;
 pub mod surface;

@@ -91,16 +91,17 @@ impl ContactPair {
         ContactPair { nodes, sides: polys, areas, params, states, measure }
     }
 
-    /// Evaluates every node at the current positions `x` (indexed by mesh node).
-    pub fn evaluate(&self, surface: &RigidSurface, x: &[Vector3<f64>], anchor_to_global: impl Fn(Vector3<f64>) -> Vector3<f64>) -> PairResponse {
+    /// Evaluates every node at the current positions (`position(node)` gives
+    /// the current coordinates of a mesh node).
+    pub fn evaluate(&self, surface: &RigidSurface, position: impl Fn(usize) -> Vector3<f64>) -> PairResponse {
         let mut out = PairResponse { peak_pressure: 0.0, ..Default::default() };
         let mut touching = Vec::new();
         for (k, &node) in self.nodes.iter().enumerate() {
-            let xi = x[node];
+            let xi = position(node);
             let r = match surface.project(&xi) {
                 Some(proj) => {
                     out.gaps.push(proj.gap);
-                    let anchor = self.states[k].anchor.map(&anchor_to_global);
+                    let anchor = self.states[k].anchor.map(|a| surface.placement.apply(&a));
                     evaluate(&proj, &xi, self.areas[k], &self.params, &self.states[k], anchor)
                 }
                 None => {
@@ -118,20 +119,20 @@ impl ContactPair {
         }
         out.contact_width = match self.measure {
             AreaMeasure::Solid => largest_distance(&touching),
-            _ => self.band_length(&out, x),
+            _ => self.band_length(&out, &position),
         };
         out
     }
 
     /// 2-D contact width: along each edge, the part where the linearly
     /// interpolated trial pressure (λ − ε g) is positive.
-    fn band_length(&self, r: &PairResponse, x: &[Vector3<f64>]) -> f64 {
+    fn band_length(&self, r: &PairResponse, position: &impl Fn(usize) -> Vector3<f64>) -> f64 {
         let trial = |k: usize| self.states[k].multiplier - self.params.normal_penalty * r.gaps[k];
         self.sides
             .iter()
             .map(|e| {
                 let (a, b) = (e[0], e[1]);
-                let len = (x[self.nodes[a]] - x[self.nodes[b]]).norm();
+                let len = (position(self.nodes[a]) - position(self.nodes[b])).norm();
                 let (pa, pb) = (trial(a), trial(b));
                 let fraction = match (pa > 0.0, pb > 0.0) {
                     (true, true) => 1.0,
@@ -163,16 +164,16 @@ impl ContactPair {
 
     /// Stores the converged state: stick anchors (in the surface frame, via
     /// `to_local`) for touching nodes, none for open ones.
-    pub fn commit(&mut self, response: &PairResponse, x: &[Vector3<f64>], to_local: impl Fn(Vector3<f64>) -> Vector3<f64>) {
+    pub fn commit(&mut self, surface: &RigidSurface, response: &PairResponse, position: impl Fn(usize) -> Vector3<f64>) {
         for (k, s) in self.states.iter_mut().enumerate() {
             let r = &response.nodes[k];
             s.anchor = match r.status {
                 Status::Open => None,
                 // The anchor sits so that the elastic slip reproduces the current shear.
                 _ if self.params.tangential_penalty > 0.0 => {
-                    let xi = x[self.nodes[k]];
+                    let xi = position(self.nodes[k]);
                     let elastic = -r.shear / self.params.tangential_penalty;
-                    Some(to_local(xi - elastic))
+                    Some(surface.placement.to_local(&(xi - elastic)))
                 }
                 _ => None,
             };

@@ -101,8 +101,13 @@ impl Placement {
         }
     }
 
+    /// A point of the surface's own frame, moved: `R (x − c) + c + t`.
+    pub fn apply(&self, x: &Vector3<f64>) -> Vector3<f64> {
+        self.rotation * (x - self.center) + self.center + self.translation
+    }
+
     /// A point given in the moved frame, expressed in the surface's own frame.
-    fn to_local(&self, x: &Vector3<f64>) -> Vector3<f64> {
+    pub fn to_local(&self, x: &Vector3<f64>) -> Vector3<f64> {
         self.rotation.inverse() * (x - self.center - self.translation) + self.center
     }
 

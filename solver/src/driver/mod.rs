@@ -20,6 +20,7 @@ use std::time::Instant;
 use rayon::prelude::*;
 
 use crate::assembly::{Discretization, DofMap, Pattern};
+use crate::contact::active::ActiveContacts;
 use crate::element::{point_states, PointState};
 use crate::error::SolveError;
 use crate::linear::{LinearSolver, LinearStats};
@@ -36,6 +37,7 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
         return Err(SolveError::NoStages);
     }
     let (programs, report_sets) = stages::resolve(&disc)?;
+    let mut contacts = ActiveContacts::new(&disc)?;
     let dim = disc.dim;
     let ndof = model.mesh.node_count() * dim;
     let mut stats = SolveStats::default();
@@ -57,7 +59,8 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
         let (_, dofs, pattern, linear) = system.as_mut().expect("built above");
         observer.event(&Event::StageStart { stage: si, name: &stage.name, equations: dofs.n_free });
         let start: Vec<f64> = u.clone();
-        let mut ctx = NewtonContext::new(&disc, dofs, pattern, linear, prog, &start, &stage.controls, &stage.name);
+        contacts.begin_stage(&stage.rigid_motions);
+        let mut ctx = NewtonContext::new(&disc, dofs, pattern, linear, prog, &start, &stage.controls, &stage.name, &mut contacts);
         let c = &stage.controls;
         let (mut t, mut dt) = (0.0f64, c.first.clamp(c.min, c.max).min(1.0));
         let mut history: Option<(Vec<f64>, f64)> = None;
@@ -74,6 +77,7 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
                     let prev_u = ctx.last_converged.clone();
                     history = Some((prev_u, step));
                     ctx.last_converged.copy_from_slice(&u);
+                    ctx.contacts.commit(&model.mesh.nodes, &u);
                     let result = increment_result(
                         &disc, &ctx, &u, si, &stage.name, count, t, step, iterations, residuals, energy, &report_sets,
                     );
@@ -92,6 +96,7 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
                 IncrementOutcome::Failed(err) => {
                     stats.cutbacks += 1;
                     u.copy_from_slice(&ctx.last_converged);
+                    ctx.contacts.restore();
                     let next = step * c.cutback;
                     if next < c.min {
                         let stop = SolveError::IncrementTooSmall {
@@ -136,6 +141,7 @@ fn add_linear_stats(total: &mut LinearStats, s: &LinearStats) {
     total.numeric_count += s.numeric_count;
     total.lu_fallbacks += s.lu_fallbacks;
     total.ldlt_fallbacks += s.ldlt_fallbacks;
+    total.lu_nonsymmetric += s.lu_nonsymmetric;
 }
 
 #[allow(clippy::too_many_arguments)]
@@ -214,6 +220,8 @@ fn increment_result(
         residual_history,
         strain_energy,
         axisymmetric: model.analysis == crate::element::Analysis::Axisymmetric,
+        contact: ctx.contacts.summaries(),
+        contact_fields: if ctx.contacts.is_empty() { None } else { Some(ctx.contacts.fields(mesh.node_count())) },
         points: if model.output.point_fields { points } else { None },
         nodal,
     })

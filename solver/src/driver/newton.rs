@@ -21,6 +21,7 @@ use super::stages::StageProgram;
 use crate::assembly::assembler::Outputs;
 use crate::assembly::dofs::NONE;
 use crate::assembly::{Assembler, Discretization, DofMap, Pattern};
+use crate::contact::active::{ActiveContacts, MAX_AUGMENTATIONS};
 use crate::error::SolveError;
 use crate::linear::{FactorKind, LinearSolver};
 use crate::load::pressure::{pressure_side_into, MAX_SIDE_DOFS};
@@ -57,6 +58,8 @@ pub struct NewtonContext<'a> {
     base: Vec<f64>,
     /// Displacement of the last converged increment (all dofs).
     pub last_converged: Vec<f64>,
+    /// Rigid-surface contact (may hold no bodies).
+    pub contacts: &'a mut ActiveContacts,
 }
 
 impl<'a> NewtonContext<'a> {
@@ -70,6 +73,7 @@ impl<'a> NewtonContext<'a> {
         start: &'a [f64],
         controls: &'a IncrementControls,
         stage_name: &'a str,
+        contacts: &'a mut ActiveContacts,
     ) -> Self {
         let ndof = start.len();
         NewtonContext {
@@ -91,6 +95,7 @@ impl<'a> NewtonContext<'a> {
             dup: vec![0.0; ndof],
             base: vec![0.0; ndof],
             last_converged: start.to_vec(),
+            contacts,
         }
     }
 
@@ -124,6 +129,18 @@ impl<'a> NewtonContext<'a> {
             }
         };
         self.add_pressures(u, t, want_k, predict);
+        if !self.contacts.is_empty() {
+            self.contacts.evaluate(
+                &self.disc.mesh().nodes,
+                u,
+                t,
+                self.dofs,
+                self.pattern,
+                &mut self.f_ext,
+                if want_k { Some(&mut self.k) } else { None },
+                if predict { Some((&self.dup, &mut self.rhs)) } else { None },
+            );
+        }
         let mut finite = true;
         for d in 0..self.residual.len() {
             let r = self.f_int[d] - self.f_ext[d];
@@ -281,8 +298,10 @@ impl<'a> NewtonContext<'a> {
         let mut residuals = Vec::new();
         let mut first_energy: Option<f64> = None;
         let mut iterations = 0;
+        let mut budget = c.max_iterations;
+        let mut augmentations = 0;
         loop {
-            if iterations >= c.max_iterations {
+            if iterations >= budget {
                 let res = self.free_residual_norm();
                 return Err(SolveError::NotConverged {
                     stage: self.stage_name.to_string(),
@@ -291,8 +310,8 @@ impl<'a> NewtonContext<'a> {
                     relative: res / self.force_scale(),
                 });
             }
-            let kind = self.linear.factor(&self.k)?;
-            if kind != FactorKind::Cholesky {
+            let kind = self.linear.factor_nonsymmetric(&self.k, &self.contacts.skew)?;
+            if !matches!(kind, FactorKind::Cholesky | FactorKind::LuNonsymmetric) {
                 observer.event(&Event::LinearFallback { stage, increment, iteration: iterations + 1, factor: kind });
             }
             self.du.copy_from_slice(&self.rhs);
@@ -351,7 +370,21 @@ impl<'a> NewtonContext<'a> {
             }
             let disp_ok = step2.sqrt() <= c.displacement_tolerance * inc2.sqrt().max(f64::MIN_POSITIVE);
             if rel <= c.force_tolerance && (energy_ok || disp_ok) {
-                return Ok(IncrementOutcome::Converged { iterations, residuals, energy });
+                if !self.contacts.needs_augmentation() {
+                    return Ok(IncrementOutcome::Converged { iterations, residuals, energy });
+                }
+                // Augmented Lagrangian: move the multipliers toward the contact
+                // pressure and re-balance at the same load.
+                if augmentations >= MAX_AUGMENTATIONS {
+                    let (penetration, tolerance) = self.contacts.worst_penetration();
+                    return Err(SolveError::ContactNotResolved { penetration, tolerance, augmentations });
+                }
+                self.contacts.augment();
+                augmentations += 1;
+                budget = iterations + c.max_iterations;
+                first_energy = None;
+                self.dup.fill(0.0);
+                self.evaluate(u, t, true, false, stats)?;
             }
         }
     }

@@ -52,6 +52,8 @@ pub enum FactorKind {
     Ldlt,
     /// The tangent was not positive definite; LU was used instead.
     LuFallback,
+    /// The tangent is non-symmetric (friction); LU was used.
+    LuNonsymmetric,
 }
 
 /// Counters and timings (seconds) of the linear solver.
@@ -70,6 +72,8 @@ pub struct LinearStats {
     pub numeric_count: usize,
     pub lu_fallbacks: usize,
     pub ldlt_fallbacks: usize,
+    /// LU factorizations of non-symmetric (frictional) tangents.
+    pub lu_nonsymmetric: usize,
 }
 
 struct LuFallback {
@@ -77,6 +81,9 @@ struct LuFallback {
     argsort: faer::sparse::Argsort<usize>,
     /// For each pair handed to faer, the slot of the lower-triangle value.
     source: Vec<usize>,
+    /// For each lower-triangle slot, the index of its own (row ≥ col) pair;
+    /// an off-diagonal slot's mirrored pair follows it.
+    first: Vec<usize>,
     values: Vec<f64>,
     symbolic_lu: SymbolicLu<usize>,
     factor: Option<Lu<usize, f64>>,
@@ -182,7 +189,7 @@ impl LinearSolver {
                     self.stats.ldlt_fallbacks += 1;
                     FactorKind::Ldlt
                 } else {
-                    self.factor_lu(values)?;
+                    self.factor_lu(values, &[])?;
                     self.stats.lu_fallbacks += 1;
                     FactorKind::LuFallback
                 }
@@ -194,15 +201,34 @@ impl LinearSolver {
         Ok(kind)
     }
 
-    fn factor_lu(&mut self, values: &[f64]) -> Result<(), SolveError> {
+    /// Numeric factorization of a non-symmetric tangent: the symmetric part
+    /// as lower-triangle `values`, plus skew-symmetric entries `(slot, w)`
+    /// (w at the slot's below-diagonal position, −w at its mirror), as
+    /// friction produces. Uses LU; with no skew entries it is [`Self::factor`].
+    pub fn factor_nonsymmetric(&mut self, values: &[f64], skew: &[(usize, f64)]) -> Result<FactorKind, SolveError> {
+        if skew.is_empty() {
+            return self.factor(values);
+        }
+        let t = Instant::now();
+        self.factor_lu(values, skew)?;
+        self.stats.numeric_time += t.elapsed().as_secs_f64();
+        self.stats.numeric_count += 1;
+        self.stats.lu_nonsymmetric += 1;
+        self.last = Some(FactorKind::LuNonsymmetric);
+        Ok(FactorKind::LuNonsymmetric)
+    }
+
+    fn factor_lu(&mut self, values: &[f64], skew: &[(usize, f64)]) -> Result<(), SolveError> {
         if self.lu.is_none() {
             let m = self.symbolic_matrix.as_ref();
             let (col_ptr, row_idx) = (m.col_ptr(), m.row_idx());
             let mut pairs = Vec::with_capacity(2 * row_idx.len());
             let mut source = Vec::with_capacity(2 * row_idx.len());
+            let mut first = vec![0; row_idx.len()];
             for c in 0..m.ncols() {
                 for s in col_ptr[c]..col_ptr[c + 1] {
                     let r = row_idx[s];
+                    first[s] = pairs.len();
                     pairs.push(Pair::new(r, c));
                     source.push(s);
                     if r != c {
@@ -216,11 +242,17 @@ impl LinearSolver {
                 .map_err(|e| SolveError::Linear(format!("LU pattern: {e:?}")))?;
             let symbolic_lu = SymbolicLu::try_new(symbolic_full.as_ref())
                 .map_err(|e| SolveError::Linear(format!("symbolic LU: {e:?}")))?;
-            self.lu = Some(LuFallback { symbolic_full, argsort, values: vec![0.0; source.len()], source, symbolic_lu, factor: None });
+            self.lu = Some(LuFallback { symbolic_full, argsort, values: vec![0.0; source.len()], source, first, symbolic_lu, factor: None });
         }
         let lu = self.lu.as_mut().expect("built above");
         for (v, &s) in lu.values.iter_mut().zip(&lu.source) {
             *v = values[s];
+        }
+        // Non-symmetric part: +w at (row, col) below the diagonal, −w at its mirror.
+        for &(slot, w) in skew {
+            let i = lu.first[slot];
+            lu.values[i] += w;
+            lu.values[i + 1] -= w;
         }
         let a = SparseColMat::new_from_argsort(lu.symbolic_full.clone(), &lu.argsort, &lu.values)
             .map_err(|e| SolveError::Linear(format!("LU values: {e:?}")))?;
@@ -244,7 +276,7 @@ impl LinearSolver {
                 let ldlt = LdltRef::<usize, f64>::new(&self.symbolic, &self.l_values);
                 ldlt.solve_in_place_with_conj(Conj::No, x, self.par, MemStack::new(&mut self.mem));
             }
-            Some(FactorKind::LuFallback) => {
+            Some(FactorKind::LuFallback | FactorKind::LuNonsymmetric) => {
                 use faer::linalg::solvers::SolveCore;
                 let f = self.lu.as_ref().and_then(|l| l.factor.as_ref()).ok_or(SolveError::Linear("no LU factor".into()))?;
                 f.solve_in_place_with_conj(Conj::No, x);

@@ -1,0 +1,346 @@
+//! Contact during a solve: every rigid body of the model with its rubber
+//! side set, evaluated at each Newton iterate, with the augmented-Lagrangian
+//! updates between solves and the history kept at converged increments.
+//!
+//! The contact tangent only couples the degrees of freedom of one node with
+//! each other, so it fits in the node-diagonal blocks that the element
+//! pattern already holds: no new sparse entries are needed. Its symmetric
+//! part goes into the lower-triangle tangent; with friction, the skew part
+//! is returned separately for the non-symmetric factorization.
+
+use nalgebra::{Matrix3, Vector3};
+
+use super::law::{ContactParameters, NodeState, Status};
+use super::pair::{AreaMeasure, ContactPair, PairResponse};
+use super::surface::{Placement, RigidSurface};
+use crate::assembly::dofs::{DofMap, NONE};
+use crate::assembly::{Discretization, Pattern};
+use crate::element::Analysis;
+use crate::error::SolveError;
+use crate::model::{RigidBody, RigidMotion};
+
+/// Largest number of augmentation updates per increment.
+pub const MAX_AUGMENTATIONS: usize = 12;
+
+/// One rigid body in contact during the run.
+#[derive(Debug, Clone)]
+struct Body {
+    def: RigidBody,
+    pair: ContactPair,
+    /// Node states at the last converged increment.
+    committed: Vec<NodeState>,
+    /// Penetration allowed (length units).
+    tolerance: f64,
+    /// Motion at the start and at the end of the current stage.
+    from: RigidMotion,
+    to: RigidMotion,
+    surface: RigidSurface,
+    last: PairResponse,
+}
+
+/// Per-rigid-body figures of one converged increment.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ContactSummary {
+    pub name: String,
+    /// Total force of the rubber on the body (axisymmetric: over 2π).
+    pub force: [f64; 3],
+    /// Contact width (2-D: length of the touching band; 3-D: largest
+    /// distance between touching nodes).
+    pub contact_width: f64,
+    pub peak_pressure: f64,
+    pub max_penetration: f64,
+    pub touching_nodes: usize,
+}
+
+/// Nodal contact fields (every mesh node; zero where no contact).
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct ContactFields {
+    /// Contact pressure (force per tributary area).
+    pub pressure: Vec<f64>,
+    /// Signed gap to the nearest rigid body (0 for nodes of no contact set).
+    pub gap: Vec<f64>,
+    /// Elastic slip distance from the stick anchor.
+    pub slip: Vec<f64>,
+    /// 0 open (or not a contact node), 1 stick, 2 slip.
+    pub status: Vec<u8>,
+}
+
+/// All contact bodies of a model.
+#[derive(Debug, Clone, Default)]
+pub struct ActiveContacts {
+    bodies: Vec<Body>,
+    dim: usize,
+    /// Skew-symmetric part of the tangent at lower-triangle slots (friction).
+    pub skew: Vec<(usize, f64)>,
+}
+
+fn rest(name: &str) -> RigidMotion {
+    RigidMotion { body: name.to_string(), translation: [0.0; 3], rotation: 0.0 }
+}
+
+impl ActiveContacts {
+    /// Sets up every rigid body: its rubber nodes, tributary areas and the
+    /// default penalty from the neighbouring material.
+    pub fn new(disc: &Discretization) -> Result<Self, SolveError> {
+        let model = disc.model;
+        let mesh = disc.mesh();
+        let measure = match model.analysis {
+            Analysis::Solid3d => AreaMeasure::Solid,
+            Analysis::Axisymmetric => AreaMeasure::Axisymmetric,
+            Analysis::PlaneStrain { thickness } => AreaMeasure::PlaneStrain { thickness },
+        };
+        let mut bodies = Vec::new();
+        for def in &model.rigid {
+            let bad = |reason: String| SolveError::BadContact { body: def.name.clone(), reason };
+            let sides = mesh.side_sets.get(&def.sides).ok_or_else(|| {
+                bad(format!("no side set named `{}`", def.sides))
+            })?;
+            if sides.is_empty() {
+                return Err(bad(format!("side set `{}` is empty", def.sides)));
+            }
+            if !(def.friction >= 0.0 && def.friction.is_finite()) {
+                return Err(bad(format!("friction coefficient {} must be ≥ 0", def.friction)));
+            }
+            // Mean side size h and the stiffest neighbouring material.
+            let mut h = 0.0;
+            let mut mu: f64 = 0.0;
+            for &s in sides {
+                let nodes = mesh.side_nodes(s);
+                let x: Vec<Vector3<f64>> = nodes.iter().map(|&n| Vector3::from(mesh.nodes[n])).collect();
+                h += if disc.dim == 2 {
+                    (x[1] - x[0]).norm()
+                } else {
+                    (0.5 * (x[2] - x[0]).cross(&(x[3 % x.len()] - x[1])).norm()).sqrt()
+                };
+                mu = mu.max(model.regions[disc.region_of[s.element]].material.shear_modulus());
+            }
+            h /= sides.len() as f64;
+            let normal_penalty = match def.normal_penalty {
+                Some(p) if p > 0.0 && p.is_finite() => p,
+                Some(p) => return Err(bad(format!("normal penalty {p} must be positive"))),
+                None => 50.0 * mu / h,
+            };
+            if !(def.penetration_tolerance > 0.0) {
+                return Err(bad(format!("penetration tolerance {} must be positive", def.penetration_tolerance)));
+            }
+            let params = ContactParameters { normal_penalty, tangential_penalty: normal_penalty, friction: def.friction };
+            let pair = ContactPair::new(mesh, sides, measure, params);
+            let committed = pair.states.clone();
+            bodies.push(Body {
+                surface: RigidSurface { shape: def.shape.clone(), placement: Placement::default() },
+                from: rest(&def.name),
+                to: rest(&def.name),
+                tolerance: def.penetration_tolerance * h,
+                def: def.clone(),
+                pair,
+                committed,
+                last: PairResponse::default(),
+            });
+        }
+        // Motions must name existing bodies.
+        for stage in &model.stages {
+            for m in &stage.rigid_motions {
+                if !model.rigid.iter().any(|b| b.name == m.body) {
+                    return Err(SolveError::BadContact {
+                        body: m.body.clone(),
+                        reason: format!("stage `{}` moves a rigid body that does not exist", stage.name),
+                    });
+                }
+            }
+        }
+        Ok(ActiveContacts { bodies, dim: disc.dim, skew: Vec::new() })
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.bodies.is_empty()
+    }
+
+    pub fn has_friction(&self) -> bool {
+        self.bodies.iter().any(|b| b.def.friction > 0.0)
+    }
+
+    /// Starts a stage: bodies named by the stage move from where they are to
+    /// the stage's target positions.
+    pub fn begin_stage(&mut self, motions: &[RigidMotion]) {
+        for b in &mut self.bodies {
+            b.from = b.to.clone();
+            if let Some(m) = motions.iter().find(|m| m.body == b.def.name) {
+                b.to = m.clone();
+            }
+        }
+    }
+
+    fn place(b: &mut Body, t: f64) {
+        let lerp = |a: f64, c: f64| a + t * (c - a);
+        let tr = Vector3::new(
+            lerp(b.from.translation[0], b.to.translation[0]),
+            lerp(b.from.translation[1], b.to.translation[1]),
+            lerp(b.from.translation[2], b.to.translation[2]),
+        );
+        b.surface.placement = Placement::new(
+            tr,
+            Vector3::from(b.def.rotation_axis),
+            lerp(b.from.rotation, b.to.rotation),
+            Vector3::from(b.def.rotation_center),
+        );
+    }
+
+    /// Evaluates contact at displacement `u` and stage fraction `t`: adds the
+    /// contact forces to `f_ext`, the symmetric tangent part to `k` (lower
+    /// triangle, pattern order), the skew part to `self.skew`, and the
+    /// predictor term `−K_fp du_p` to `rhs`.
+    #[allow(clippy::too_many_arguments)]
+    pub fn evaluate(
+        &mut self,
+        mesh_nodes: &[[f64; 3]],
+        u: &[f64],
+        t: f64,
+        dofs: &DofMap,
+        pattern: &Pattern,
+        f_ext: &mut [f64],
+        mut k: Option<&mut [f64]>,
+        mut predictor: Option<(&[f64], &mut [f64])>,
+    ) {
+        let dim = self.dim;
+        self.skew.clear();
+        let position = |n: usize| {
+            let mut x = Vector3::from(mesh_nodes[n]);
+            for i in 0..dim {
+                x[i] += u[n * dim + i];
+            }
+            x
+        };
+        for b in &mut self.bodies {
+            Self::place(b, t);
+            b.last = b.pair.evaluate(&b.surface, position);
+            for (k_node, (&node, r)) in b.pair.nodes.iter().zip(&b.last.nodes).enumerate() {
+                if r.status == Status::Open {
+                    continue;
+                }
+                let _ = k_node;
+                for i in 0..dim {
+                    f_ext[node * dim + i] += r.force[i];
+                }
+                let km: &Matrix3<f64> = &r.stiffness;
+                for i in 0..dim {
+                    let qi = dofs.eq[node * dim + i];
+                    if qi == NONE {
+                        continue;
+                    }
+                    if let Some((dup, rhs)) = predictor.as_mut() {
+                        for j in 0..dim {
+                            rhs[qi] -= km[(i, j)] * dup[node * dim + j];
+                        }
+                    }
+                    let Some(vals) = k.as_deref_mut() else { continue };
+                    for j in 0..dim {
+                        let qj = dofs.eq[node * dim + j];
+                        if qj == NONE || qi < qj {
+                            continue;
+                        }
+                        let slot = pattern.slot(qi, qj).expect("node-diagonal blocks are in the pattern");
+                        if qi == qj {
+                            vals[slot] += km[(i, i)];
+                        } else {
+                            vals[slot] += 0.5 * (km[(i, j)] + km[(j, i)]);
+                            let skew = 0.5 * (km[(i, j)] - km[(j, i)]);
+                            if skew != 0.0 {
+                                self.skew.push((slot, skew));
+                            }
+                        }
+                    }
+                }
+            }
+        }
+    }
+
+    /// Whether some touching node penetrates more than its tolerance.
+    pub fn needs_augmentation(&self) -> bool {
+        self.bodies.iter().any(|b| b.last.max_penetration > b.tolerance)
+    }
+
+    /// The largest penetration beyond tolerance: (penetration, its tolerance).
+    pub fn worst_penetration(&self) -> (f64, f64) {
+        self.bodies
+            .iter()
+            .map(|b| (b.last.max_penetration, b.tolerance))
+            .max_by(|a, b| (a.0 - a.1).total_cmp(&(b.0 - b.1)))
+            .unwrap_or((0.0, 0.0))
+    }
+
+    /// Augmented-Lagrangian multiplier update from the last evaluation.
+    pub fn augment(&mut self) {
+        for b in &mut self.bodies {
+            b.pair.augment(&b.last);
+        }
+    }
+
+    /// Keeps the converged state (multipliers and stick anchors).
+    pub fn commit(&mut self, mesh_nodes: &[[f64; 3]], u: &[f64]) {
+        let dim = self.dim;
+        let position = |n: usize| {
+            let mut x = Vector3::from(mesh_nodes[n]);
+            for i in 0..dim {
+                x[i] += u[n * dim + i];
+            }
+            x
+        };
+        for b in &mut self.bodies {
+            let last = b.last.clone();
+            b.pair.commit(&b.surface, &last, position);
+            b.committed = b.pair.states.clone();
+        }
+    }
+
+    /// Returns to the last converged state after a failed increment.
+    pub fn restore(&mut self) {
+        for b in &mut self.bodies {
+            b.pair.states = b.committed.clone();
+        }
+    }
+
+    /// Per-body figures of the last evaluation.
+    pub fn summaries(&self) -> Vec<ContactSummary> {
+        self.bodies
+            .iter()
+            .map(|b| ContactSummary {
+                name: b.def.name.clone(),
+                force: [b.last.surface_force.x, b.last.surface_force.y, b.last.surface_force.z],
+                contact_width: b.last.contact_width,
+                peak_pressure: b.last.peak_pressure,
+                max_penetration: b.last.max_penetration,
+                touching_nodes: b.last.nodes.iter().filter(|r| r.status != Status::Open).count(),
+            })
+            .collect()
+    }
+
+    /// Nodal fields of the last evaluation, over `node_count` mesh nodes.
+    pub fn fields(&self, node_count: usize) -> ContactFields {
+        let mut f = ContactFields {
+            pressure: vec![0.0; node_count],
+            gap: vec![0.0; node_count],
+            slip: vec![0.0; node_count],
+            status: vec![0; node_count],
+        };
+        let mut seen = vec![false; node_count];
+        for b in &self.bodies {
+            for (k, &n) in b.pair.nodes.iter().enumerate() {
+                let (Some(r), Some(&g)) = (b.last.nodes.get(k), b.last.gaps.get(k)) else { continue };
+                let g = if g.is_finite() { g } else { 0.0 };
+                // A node in several pairs reports the one pressing hardest (or the nearest if none does).
+                if !seen[n] || r.pressure > f.pressure[n] || (f.pressure[n] == 0.0 && g < f.gap[n]) {
+                    f.pressure[n] = r.pressure;
+                    f.gap[n] = g;
+                    f.slip[n] = r.slip.norm();
+                    f.status[n] = match r.status {
+                        Status::Open => 0,
+                        Status::Stick => 1,
+                        Status::Slip => 2,
+                    };
+                    seen[n] = true;
+                }
+            }
+        }
+        f
+    }
+}
