@@ -73,10 +73,11 @@ pub struct RigidBody {
     pub sides: String,
     /// Coulomb friction coefficient (0: frictionless). Default 0.
     pub friction: f64,
-    /// Normal penalty ε_n (stress / length). `None` (default): 50 μ / h, from
-    /// the largest shear modulus μ next to the side set and its mean side size h.
+    /// Normal penalty ε_n (stress / length). `None` (default): 50 μ / h at each
+    /// node, from the largest shear modulus μ next to the side set and the
+    /// node's local side size h.
     pub normal_penalty: Option<f64>,
-    /// Allowed penetration as a fraction of the mean side size h; the
+    /// Allowed penetration as a fraction of the local side size h; the
     /// augmented Lagrangian iterates until every touching node is within it.
     /// Default 0.01.
     pub penetration_tolerance: f64,

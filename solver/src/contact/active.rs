@@ -19,6 +19,11 @@ use crate::element::Analysis;
 use crate::error::SolveError;
 use crate::model::{RigidBody, RigidMotion};
 
+/// Default normal penalty as a multiple of μ / h (common practice for
+/// penalty contact: stiff against the rubber, not so stiff it spoils the
+/// conditioning; the augmentation removes the remaining penetration).
+pub const PENALTY_FACTOR: f64 = 50.0;
+
 /// Largest number of augmentation updates per increment.
 pub const MAX_AUGMENTATIONS: usize = 12;
 
@@ -29,7 +34,7 @@ struct Body {
     pair: ContactPair,
     /// Node states at the last converged increment.
     committed: Vec<NodeState>,
-    /// Penetration allowed (length units).
+    /// Penetration allowed, as a fraction of the local side size.
     tolerance: f64,
     /// Motion at the start and at the end of the current stage.
     from: RigidMotion,
@@ -101,36 +106,32 @@ impl ActiveContacts {
             if !(def.friction >= 0.0 && def.friction.is_finite()) {
                 return Err(bad(format!("friction coefficient {} must be ≥ 0", def.friction)));
             }
-            // Mean side size h and the stiffest neighbouring material.
-            let mut h = 0.0;
-            let mut mu: f64 = 0.0;
-            for &s in sides {
-                let nodes = mesh.side_nodes(s);
-                let x: Vec<Vector3<f64>> = nodes.iter().map(|&n| Vector3::from(mesh.nodes[n])).collect();
-                h += if disc.dim == 2 {
-                    (x[1] - x[0]).norm()
-                } else {
-                    (0.5 * (x[2] - x[0]).cross(&(x[3 % x.len()] - x[1])).norm()).sqrt()
-                };
-                mu = mu.max(model.regions[disc.region_of[s.element]].material.shear_modulus());
+            // The stiffest neighbouring material sets the default penalty.
+            let mu = sides
+                .iter()
+                .map(|s| model.regions[disc.region_of[s.element]].material.shear_modulus())
+                .fold(0.0, f64::max);
+            if let Some(p) = def.normal_penalty {
+                if !(p > 0.0 && p.is_finite()) {
+                    return Err(bad(format!("normal penalty {p} must be positive")));
+                }
             }
-            h /= sides.len() as f64;
-            let normal_penalty = match def.normal_penalty {
-                Some(p) if p > 0.0 && p.is_finite() => p,
-                Some(p) => return Err(bad(format!("normal penalty {p} must be positive"))),
-                None => 50.0 * mu / h,
-            };
             if !(def.penetration_tolerance > 0.0) {
                 return Err(bad(format!("penetration tolerance {} must be positive", def.penetration_tolerance)));
             }
-            let params = ContactParameters { normal_penalty, tangential_penalty: normal_penalty, friction: def.friction };
-            let pair = ContactPair::new(mesh, sides, measure, params);
+            let params = ContactParameters { normal_penalty: 0.0, tangential_penalty: 0.0, friction: def.friction };
+            let mut pair = ContactPair::new(mesh, sides, measure, params);
+            // Default: 50 μ / h with the local side size h, so the penalty
+            // follows mesh grading and penetration scales with the element.
+            for (eps, &h) in pair.penalties.iter_mut().zip(&pair.sizes) {
+                *eps = def.normal_penalty.unwrap_or(PENALTY_FACTOR * mu / h);
+            }
             let committed = pair.states.clone();
             bodies.push(Body {
                 surface: RigidSurface { shape: def.shape.clone(), placement: Placement::default() },
                 from: rest(&def.name),
                 to: rest(&def.name),
-                tolerance: def.penetration_tolerance * h,
+                tolerance: def.penetration_tolerance,
                 def: def.clone(),
                 pair,
                 committed,
@@ -256,15 +257,18 @@ impl ActiveContacts {
 
     /// Whether some touching node penetrates more than its tolerance.
     pub fn needs_augmentation(&self) -> bool {
-        self.bodies.iter().any(|b| b.last.max_penetration > b.tolerance)
+        self.bodies.iter().any(|b| {
+            let (pen, tol) = b.pair.worst_penetration_ratio(&b.last, b.tolerance);
+            pen > tol
+        })
     }
 
     /// The largest penetration beyond tolerance: (penetration, its tolerance).
     pub fn worst_penetration(&self) -> (f64, f64) {
         self.bodies
             .iter()
-            .map(|b| (b.last.max_penetration, b.tolerance))
-            .max_by(|a, b| (a.0 - a.1).total_cmp(&(b.0 - b.1)))
+            .map(|b| b.pair.worst_penetration_ratio(&b.last, b.tolerance))
+            .max_by(|a, b| (a.0 / a.1.max(f64::MIN_POSITIVE)).total_cmp(&(b.0 / b.1.max(f64::MIN_POSITIVE))))
             .unwrap_or((0.0, 0.0))
     }
 

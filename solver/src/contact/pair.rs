@@ -29,9 +29,15 @@ pub struct ContactPair {
     sides: Vec<Vec<usize>>,
     /// Tributary area of each node in the reference configuration.
     pub areas: Vec<f64>,
+    /// Local element size at each node: mean reference size of its sides.
+    pub sizes: Vec<f64>,
+    /// Normal penalty of each node (stress / length); the tangential penalty equals it.
+    pub penalties: Vec<f64>,
     pub params: ContactParameters,
     pub states: Vec<NodeState>,
     measure: AreaMeasure,
+    /// Sides around each node (indices into `sides`).
+    neighbours: Vec<Vec<usize>>,
 }
 
 /// Evaluation of a whole pair at one iterate.
@@ -81,14 +87,31 @@ impl ContactPair {
             }
         }
         let mut areas = vec![0.0; nodes.len()];
+        let mut sizes = vec![0.0; nodes.len()];
+        let mut count = vec![0usize; nodes.len()];
         for p in &polys {
             let x: Vec<Vector3<f64>> = p.iter().map(|&i| Vector3::from(mesh.nodes[nodes[i]])).collect();
             for (k, a) in tributary(&x, measure).into_iter().enumerate() {
                 areas[p[k]] += a;
             }
+            let size = side_size(&x);
+            for &k in p {
+                sizes[k] += size;
+                count[k] += 1;
+            }
+        }
+        for (s, c) in sizes.iter_mut().zip(&count) {
+            *s /= *c as f64;
         }
         let states = vec![NodeState::default(); nodes.len()];
-        ContactPair { nodes, sides: polys, areas, params, states, measure }
+        let penalties = vec![params.normal_penalty; nodes.len()];
+        let mut neighbours = vec![Vec::new(); nodes.len()];
+        for (e, p) in polys.iter().enumerate() {
+            for &k in p {
+                neighbours[k].push(e);
+            }
+        }
+        ContactPair { nodes, sides: polys, areas, sizes, penalties, params, states, measure, neighbours }
     }
 
     /// Evaluates every node at the current positions (`position(node)` gives
@@ -102,7 +125,7 @@ impl ContactPair {
                 Some(proj) => {
                     out.gaps.push(proj.gap);
                     let anchor = self.states[k].anchor.map(|a| surface.placement.apply(&a));
-                    evaluate(&proj, &xi, self.areas[k], &self.params, &self.states[k], anchor)
+                    evaluate(&proj, &xi, self.areas[k], &self.node_params(k), &self.states[k], anchor)
                 }
                 None => {
                     out.gaps.push(f64::INFINITY);
@@ -124,25 +147,45 @@ impl ContactPair {
         out
     }
 
-    /// 2-D contact width: along each edge, the part where the linearly
-    /// interpolated trial pressure (λ − ε g) is positive.
+    /// 2-D contact width: the length of the edges with both ends touching,
+    /// plus, on each edge where the contact ends, the part up to the
+    /// estimated contact edge. Near the edge of a contact the pressure of a
+    /// smooth profile falls like a square root (Hertz: p² ∝ a² − x²), so p²
+    /// is extrapolated linearly from the last two touching nodes; without a
+    /// usable neighbour, half the edge is counted.
     fn band_length(&self, r: &PairResponse, position: &impl Fn(usize) -> Vector3<f64>) -> f64 {
-        let trial = |k: usize| self.states[k].multiplier - self.params.normal_penalty * r.gaps[k];
-        self.sides
-            .iter()
-            .map(|e| {
-                let (a, b) = (e[0], e[1]);
-                let len = (position(self.nodes[a]) - position(self.nodes[b])).norm();
-                let (pa, pb) = (trial(a), trial(b));
-                let fraction = match (pa > 0.0, pb > 0.0) {
-                    (true, true) => 1.0,
-                    (false, false) => 0.0,
-                    (true, false) => pa / (pa - pb),
-                    (false, true) => pb / (pb - pa),
-                };
-                if fraction.is_finite() { fraction * len } else { 0.0 }
-            })
-            .sum()
+        let touching = |k: usize| r.nodes[k].status != Status::Open;
+        let mut width = 0.0;
+        for (e, side) in self.sides.iter().enumerate() {
+            let (a, b) = (side[0], side[1]);
+            let len = (position(self.nodes[a]) - position(self.nodes[b])).norm();
+            width += match (touching(a), touching(b)) {
+                (true, true) => len,
+                (false, false) => 0.0,
+                (true, false) => len * self.edge_fraction(e, a, r, position),
+                (false, true) => len * self.edge_fraction(e, b, r, position),
+            };
+        }
+        width
+    }
+
+    /// Fraction of side `e`, measured from its touching node `i`, that is in contact.
+    fn edge_fraction(&self, e: usize, i: usize, r: &PairResponse, position: &impl Fn(usize) -> Vector3<f64>) -> f64 {
+        let inner = self.neighbours[i].iter().filter(|&&f| f != e).find_map(|&f| {
+            let other = if self.sides[f][0] == i { self.sides[f][1] } else { self.sides[f][0] };
+            (r.nodes[other].status != Status::Open).then_some(other)
+        });
+        let Some(j) = inner else { return 0.5 };
+        let (pi, pj) = (r.nodes[i].pressure, r.nodes[j].pressure);
+        let outer = if self.sides[e][0] == i { self.sides[e][1] } else { self.sides[e][0] };
+        let len_e = (position(self.nodes[outer]) - position(self.nodes[i])).norm();
+        let len_ji = (position(self.nodes[i]) - position(self.nodes[j])).norm();
+        if !(pj > pi && len_e > 0.0) {
+            return 0.5;
+        }
+        // p² linear in arc length: zero at distance len_ji · pi² / (pj² − pi²) beyond i.
+        let beyond = len_ji * pi * pi / (pj * pj - pi * pi);
+        (beyond / len_e).clamp(0.0, 1.0)
     }
 
     /// Augmented-Lagrangian update after a converged solve: λ ← max(0, λ − ε g).
@@ -157,7 +200,7 @@ impl ContactPair {
             if response.nodes[k].status != Status::Open {
                 worst = worst.max(-g);
             }
-            s.multiplier = (s.multiplier - self.params.normal_penalty * g).max(0.0);
+            s.multiplier = (s.multiplier - self.penalties[k] * g).max(0.0);
         }
         worst
     }
@@ -165,14 +208,16 @@ impl ContactPair {
     /// Stores the converged state: stick anchors (in the surface frame, via
     /// `to_local`) for touching nodes, none for open ones.
     pub fn commit(&mut self, surface: &RigidSurface, response: &PairResponse, position: impl Fn(usize) -> Vector3<f64>) {
+        let penalties = &self.penalties;
         for (k, s) in self.states.iter_mut().enumerate() {
+            let _ = penalties;
             let r = &response.nodes[k];
             s.anchor = match r.status {
                 Status::Open => None,
                 // The anchor sits so that the elastic slip reproduces the current shear.
-                _ if self.params.tangential_penalty > 0.0 => {
+                _ if self.penalties[k] > 0.0 => {
                     let xi = position(self.nodes[k]);
-                    let elastic = -r.shear / self.params.tangential_penalty;
+                    let elastic = -r.shear / self.penalties[k];
                     Some(surface.placement.to_local(&(xi - elastic)))
                 }
                 _ => None,
@@ -181,6 +226,29 @@ impl ContactPair {
                 s.multiplier = 0.0;
             }
         }
+    }
+
+    /// The law's parameters at node `k` (its own penalty).
+    pub fn node_params(&self, k: usize) -> ContactParameters {
+        ContactParameters { normal_penalty: self.penalties[k], tangential_penalty: self.penalties[k], friction: self.params.friction }
+    }
+
+    /// Penetration of every touching node relative to its allowed value
+    /// `fraction × size`; the largest ratio (> 1: needs augmentation).
+    pub fn worst_penetration_ratio(&self, response: &PairResponse, fraction: f64) -> (f64, f64) {
+        let mut worst = (0.0, 0.0, 0.0);
+        for (k, r) in response.nodes.iter().enumerate() {
+            if r.status == Status::Open {
+                continue;
+            }
+            let pen = -response.gaps[k];
+            let tol = fraction * self.sizes[k];
+            let ratio = pen / tol;
+            if ratio > worst.0 {
+                worst = (ratio, pen, tol);
+            }
+        }
+        (worst.1, worst.2)
     }
 
     /// The tangent blocks −∂f/∂x per node (node index into the mesh, 3×3 block).
@@ -212,6 +280,15 @@ fn largest_distance(points: &[Vector3<f64>]) -> f64 {
         }
     }
     d
+}
+
+/// Size of one side: its length (2-D) or the square root of its area (3-D).
+fn side_size(x: &[Vector3<f64>]) -> f64 {
+    match x.len() {
+        2 => (x[1] - x[0]).norm(),
+        3 => (0.5 * (x[1] - x[0]).cross(&(x[2] - x[0])).norm()).sqrt(),
+        _ => (0.5 * (x[2] - x[0]).cross(&(x[3] - x[1])).norm()).sqrt(),
+    }
 }
 
 /// Tributary areas of the corners of one side (reference geometry).
