@@ -79,7 +79,7 @@ pub struct RigidBody {
     pub normal_penalty: Option<f64>,
     /// Allowed penetration as a fraction of the local side size h; the
     /// augmented Lagrangian iterates until every touching node is within it.
-    /// Default 0.01.
+    /// Default 0.001.
     pub penetration_tolerance: f64,
     /// Centre of rotations (length units). Default origin.
     pub rotation_center: [f64; 3],
@@ -96,7 +96,7 @@ impl RigidBody {
             sides: sides.into(),
             friction: 0.0,
             normal_penalty: None,
-            penetration_tolerance: 0.01,
+            penetration_tolerance: 0.001,
             rotation_center: [0.0; 3],
             rotation_axis: [0.0, 0.0, 1.0],
         }

@@ -78,7 +78,10 @@ pub fn evaluate(
 ) -> NodeResponse {
     let n = proj.normal;
     let trial = state.multiplier - params.normal_penalty * proj.gap;
-    if trial <= 0.0 {
+    // A node exactly on the surface (gap 0, no pressure yet) counts as
+    // touching: it contributes stiffness, so a part resting on a surface is
+    // supported from the first iteration.
+    if trial < 0.0 || (trial == 0.0 && proj.gap > 0.0) {
         return NodeResponse {
             status: Status::Open,
             pressure: 0.0,
