@@ -99,8 +99,8 @@ pub fn evaluate(
     let mut status = Status::Stick;
     if params.friction > 0.0 {
         let proj_t = Matrix3::identity() - nn;
-        // A node touching for the first time sticks where it lands.
-        let anchor = anchor_global.unwrap_or(proj.point + n * proj.gap);
+        // Without history (frictionless until now), the node sticks where it is.
+        let anchor = anchor_global.unwrap_or(*x);
         slip = proj_t * (x - anchor);
         let t_trial = -slip * params.tangential_penalty;
         let t_norm = t_trial.norm();

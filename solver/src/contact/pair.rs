@@ -103,7 +103,12 @@ impl ContactPair {
         for (s, c) in sizes.iter_mut().zip(&count) {
             *s /= *c as f64;
         }
-        let states = vec![NodeState::default(); nodes.len()];
+        // Until the first converged increment, every node is anchored where it
+        // starts (surfaces start in their own frame).
+        let states: Vec<NodeState> = nodes
+            .iter()
+            .map(|&n| NodeState { multiplier: 0.0, anchor: Some(Vector3::from(mesh.nodes[n])) })
+            .collect();
         let penalties = vec![params.normal_penalty; nodes.len()];
         let mut neighbours = vec![Vec::new(); nodes.len()];
         for (e, p) in polys.iter().enumerate() {
@@ -205,15 +210,18 @@ impl ContactPair {
         worst
     }
 
-    /// Stores the converged state: stick anchors (in the surface frame, via
-    /// `to_local`) for touching nodes, none for open ones.
+    /// Stores the converged state: stick anchors in the surface frame (the
+    /// elastic-slip origin of touching nodes, the position of open ones).
     pub fn commit(&mut self, surface: &RigidSurface, response: &PairResponse, position: impl Fn(usize) -> Vector3<f64>) {
         let penalties = &self.penalties;
         for (k, s) in self.states.iter_mut().enumerate() {
             let _ = penalties;
             let r = &response.nodes[k];
             s.anchor = match r.status {
-                Status::Open => None,
+                // An open node keeps its converged position as anchor, so a
+                // node that touches during the next increment sticks where it
+                // was, not wherever the iterate happens to be.
+                Status::Open => Some(surface.placement.to_local(&position(self.nodes[k]))),
                 // The anchor sits so that the elastic slip reproduces the current shear.
                 _ if self.penalties[k] > 0.0 => {
                     let xi = position(self.nodes[k]);

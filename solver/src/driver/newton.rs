@@ -60,6 +60,24 @@ pub struct NewtonContext<'a> {
     pub last_converged: Vec<f64>,
     /// Rigid-surface contact (may hold no bodies).
     pub contacts: &'a mut ActiveContacts,
+    /// Smallest force scale: 1e-10 × the model's force unit μ·L² (see [`force_unit`]).
+    force_floor: f64,
+}
+
+/// A force characteristic of the model: the largest shear modulus times
+/// the square of the mesh's bounding-box diagonal (per unit thickness in
+/// plane strain, over the full ring when axisymmetric).
+pub fn force_unit(disc: &Discretization) -> f64 {
+    let model = disc.model;
+    let mu = model.regions.iter().map(|r| r.material.shear_modulus()).fold(0.0, f64::max);
+    let (lo, hi) = model.mesh.bounding_box();
+    let l = ((hi[0] - lo[0]).powi(2) + (hi[1] - lo[1]).powi(2) + (hi[2] - lo[2]).powi(2)).sqrt();
+    let unit = match model.analysis {
+        crate::element::Analysis::Solid3d => mu * l * l,
+        crate::element::Analysis::PlaneStrain { thickness } => mu * l * thickness,
+        crate::element::Analysis::Axisymmetric => mu * l * std::f64::consts::TAU * hi[0].abs().max(l),
+    };
+    if unit.is_finite() && unit > 0.0 { unit } else { 1.0 }
 }
 
 impl<'a> NewtonContext<'a> {
@@ -95,6 +113,7 @@ impl<'a> NewtonContext<'a> {
             dup: vec![0.0; ndof],
             base: vec![0.0; ndof],
             last_converged: start.to_vec(),
+            force_floor: 1e-10 * force_unit(disc),
             contacts,
         }
     }
@@ -219,13 +238,16 @@ impl<'a> NewtonContext<'a> {
             }
         }
         let s = ext.sqrt().max(reac.sqrt());
-        if s > 0.0 {
+        let s = if s > 0.0 {
             s
         } else if int > 0.0 {
             int.sqrt()
         } else {
             1.0
-        }
+        };
+        // When every load vanishes (a seal released, a plate moved back) the
+        // scale would vanish with it; the model's own force unit bounds it below.
+        s.max(self.force_floor)
     }
 
     fn free_residual_norm(&self) -> f64 {

@@ -1,0 +1,169 @@
+//! Contact with rigid surfaces in cases whose answer is known exactly:
+//! a frictionless plate compressing a block (homogeneous compression),
+//! Coulomb's law at the onset of sliding, the release of contact when the
+//! surface moves back, and Newton's convergence rate with contact active.
+
+use olli_solver::contact::Shape;
+use olli_solver::model::{RigidBody, RigidMotion};
+use olli_solver::{solve, Analysis, Formulation, IncrementControls, Model, Motion, Quiet, Solution, Stage, Support};
+use olli_verification::{neo_hookean, rectangle};
+
+const MU: f64 = 1.0;
+const KAPPA: f64 = 5000.0;
+
+fn block_on_line(width: f64, height: f64, nx: usize, ny: usize) -> Model {
+    let mesh = rectangle(0.0, width, 0.0, height, nx, ny, 0.0);
+    let mut model = Model::single_region(mesh, Analysis::PlaneStrain { thickness: 1.0 }, neo_hookean(MU, KAPPA), Formulation::Mixed);
+    model.rigid.push(RigidBody::new("floor", Shape::Line { point: [0.0, 0.0], direction: [1.0, 0.0] }, "t0"));
+    model
+}
+
+fn run(model: &Model) -> Solution {
+    let sol = solve(model, &mut Quiet).expect("valid model");
+    assert!(sol.completed(), "{:?}", sol.termination);
+    sol
+}
+
+// Plane-strain compression of an incompressible neo-Hookean block between
+// frictionless plates is homogeneous, with σ_yy = μ (λ² − λ⁻²) for the
+// stretch λ along the load (Rivlin 1948 / Treloar, "The Physics of Rubber
+// Elasticity"; REFERENCES.md §7, planar mode). The block sits on a rigid
+// floor and a bonded top plate moves down; the floor force must match the
+// closed form. κ = 5000 μ leaves ≈ μ/κ relative compressibility, and the
+// penetration tolerance 1e-3 of the side size on a 0.3 mm compression of a
+// 2 mm block gives ≈ 0.2 % more: 0.5 % is the tolerance.
+#[test]
+fn contact_flat_floor_reproduces_homogeneous_compression() {
+    let (w, h, squeeze) = (4.0, 2.0, 0.3);
+    let mut model = block_on_line(w, h, 4, 4);
+    model.stages.push(Stage {
+        name: "press".into(),
+        controls: IncrementControls { first: 0.25, ..Default::default() },
+        motions: vec![Motion { set: "t1".into(), displacement: [None, Some(-squeeze), None] }],
+        // The floor is frictionless: one corner holds x.
+        supports: vec![Support { set: "corner".into(), components: [true, false, false] }],
+        ..Default::default()
+    });
+    model.mesh.node_sets.insert("corner".into(), vec![0]);
+    let sol = run(&model);
+    let last = sol.last().unwrap();
+    let lambda = (h - squeeze) / h;
+    let sigma = MU * (lambda * lambda - 1.0 / (lambda * lambda));
+    let expected = -sigma * w / lambda; // current width w/λ, thickness 1
+    let floor = last.contact[0].force[1];
+    // The rubber pushes the floor down (negative y).
+    assert!(((-floor) - expected).abs() / expected < 5e-3, "floor force {floor} vs {expected}");
+    assert!(last.contact[0].max_penetration < 1e-3 * (w / 4.0) * 1.0001);
+}
+
+// Coulomb friction (Coulomb 1785; any statics text): a block pressed on a
+// rough floor and pushed sideways sticks while the tangential force is
+// below f·N and slides at T = f·N. The top plate first presses the block,
+// then moves it sideways; the floor's tangential force must stay below
+// f·N early in the push and reach f·N (within 1 %, the regularisation of
+// the stick law) once the whole contact slides.
+#[test]
+fn coulomb_slip_starts_at_friction_times_normal_force() {
+    let friction = 0.3;
+    let mut model = block_on_line(4.0, 1.0, 8, 2);
+    model.rigid[0].friction = friction;
+    model.stages.push(Stage {
+        name: "press".into(),
+        controls: IncrementControls { first: 0.5, ..Default::default() },
+        motions: vec![Motion { set: "t1".into(), displacement: [Some(0.0), Some(-0.1), None] }],
+        ..Default::default()
+    });
+    model.stages.push(Stage {
+        name: "push".into(),
+        controls: IncrementControls { first: 0.02, max: 0.1, ..Default::default() },
+        motions: vec![Motion { set: "t1".into(), displacement: [Some(1.0), Some(-0.1), None] }],
+        ..Default::default()
+    });
+    let sol = run(&model);
+    let ratios: Vec<f64> = sol
+        .increments
+        .iter()
+        .filter(|i| i.stage == 1)
+        .map(|i| {
+            let f = i.contact[0].force;
+            f[0].abs() / f[1].abs()
+        })
+        .collect();
+    println!("T/N during the push: {ratios:?}");
+    assert!(ratios[0] < 0.9 * friction, "early push sticks: {}", ratios[0]);
+    let last = *ratios.last().unwrap();
+    assert!((last - friction).abs() < 0.01 * friction, "sliding: T/N = {last}");
+    assert!(ratios.iter().all(|&r| r <= friction * (1.0 + 1e-6)), "never above f·N");
+    let fields = sol.last().unwrap().contact_fields.as_ref().unwrap();
+    // Once sliding, no touching node sticks (status 1).
+    assert!(fields.status.iter().all(|&s| s != 1), "statuses {:?}", fields.status);
+    assert!(fields.status.iter().filter(|&&s| s == 2).count() >= 5, "the floor contact slides");
+}
+
+// Moving the rigid surface back to its start must release all contact and
+// return the rubber to its undeformed shape (hyperelasticity is path
+// independent; the elastic stick law leaves no residual slip when the
+// contact opens, since the anchors are dropped).
+#[test]
+fn contact_release_restores_the_undeformed_shape() {
+    // A block bonded to a base (edge t0) with a rigid cover pressed on its top.
+    let mesh = rectangle(0.0, 4.0, 0.0, 2.0, 4, 4, 0.0);
+    let mut model = Model::single_region(mesh, Analysis::PlaneStrain { thickness: 1.0 }, neo_hookean(MU, KAPPA), Formulation::Mixed);
+    model.rigid.push(RigidBody::new("cover", Shape::Line { point: [4.0, 2.0], direction: [-1.0, 0.0] }, "t1"));
+    let press = RigidMotion { body: "cover".into(), translation: [0.0, -0.4, 0.0], rotation: 0.0 };
+    let back = RigidMotion { body: "cover".into(), translation: [0.0, 0.1, 0.0], rotation: 0.0 };
+    let support = vec![Support { set: "t0".into(), components: [true, true, false] }];
+    model.stages.push(Stage { name: "press".into(), rigid_motions: vec![press], supports: support.clone(), ..Default::default() });
+    model.stages.push(Stage { name: "release".into(), rigid_motions: vec![back], supports: support, ..Default::default() });
+    let sol = run(&model);
+    let pressed = sol.increments.iter().filter(|i| i.stage == 0).next_back().unwrap();
+    let h_min = 1.0;
+    for c in &pressed.contact {
+        assert!(c.touching_nodes > 0, "{} touches while pressed", c.name);
+        assert!(c.max_penetration <= 1e-3 * h_min * 1.0001, "penetration {} within tolerance", c.max_penetration);
+    }
+    let last = sol.last().unwrap();
+    for c in &last.contact {
+        assert_eq!(c.touching_nodes, 0, "{} released", c.name);
+        assert!(c.force.iter().all(|f| f.abs() < 1e-12));
+    }
+    let max_u = last.displacement.iter().flatten().fold(0.0f64, |m, v| m.max(v.abs()));
+    assert!(max_u < 1e-9, "undeformed again: |u| = {max_u}");
+}
+
+// Newton–Raphson with the consistent contact tangent converges
+// quadratically once the contact status settles (Wriggers, "Computational
+// Contact Mechanics", 2006, ch. 6, from memory: the exact linearisation of
+// the penalty/augmented term keeps the quadratic rate). Check: in the last
+// increment's residual history, the final reductions satisfy
+// r_{k+1} ≤ C r_k² with a modest C, i.e. the exponent log r_{k+1} / log r_k
+// approaches 2.
+#[test]
+fn newton_quadratic_with_contact_active() {
+    let mut model = block_on_line(4.0, 2.0, 6, 4);
+    model.mesh.node_sets.insert("corner".into(), vec![0]);
+    // A roller (circle of radius 3) pressed into the top; the arc runs
+    // clockwise so the rubber is on its outside.
+    model.rigid.push(RigidBody::new(
+        "roller",
+        Shape::Profile(vec![olli_solver::contact::Piece2::Arc { center: [2.0, 5.0], radius: 3.0, start: 1.0 - std::f64::consts::FRAC_PI_2, end: -1.0 - std::f64::consts::FRAC_PI_2 }]),
+        "t1",
+    ));
+    model.stages.push(Stage {
+        name: "press".into(),
+        controls: IncrementControls { first: 0.25, max: 0.25, force_tolerance: 1e-10, ..Default::default() },
+        rigid_motions: vec![RigidMotion { body: "roller".into(), translation: [0.0, -0.3, 0.0], rotation: 0.0 }],
+        supports: vec![Support { set: "corner".into(), components: [true, false, false] }],
+        ..Default::default()
+    });
+    let sol = run(&model);
+    let last = sol.last().unwrap();
+    println!("residual history {:?}", last.residual_history);
+    let r = &last.residual_history;
+    // Quadratic: somewhere in the tail a reduction with exponent ≥ 1.8.
+    let quadratic = r.windows(2).any(|w| w[0] < 1e-2 && w[1] > 0.0 && w[1].ln() / w[0].ln() >= 1.8)
+        || r.windows(2).any(|w| w[0] < 1e-4 && w[1] < 1e-12);
+    assert!(quadratic, "no quadratic step in {r:?}");
+    // Two quadratic solves (before and after one augmentation update) fit in 12.
+    assert!(last.newton_iterations <= 12, "{} iterations", last.newton_iterations);
+}
