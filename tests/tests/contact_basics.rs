@@ -167,3 +167,32 @@ fn newton_quadratic_with_contact_active() {
     // Two quadratic solves (before and after one augmentation update) fit in 12.
     assert!(last.newton_iterations <= 12, "{} iterations", last.newton_iterations);
 }
+
+// The 3-D counterpart: a block on a frictionless rigid plane, compressed by
+// a top plate that moves only along z, is in homogeneous uniaxial
+// compression: σ_zz = μ (λ² − 1/λ) (Rivlin 1948 / Treloar; REFERENCES.md
+// §7). Symmetry planes x = 0 and y = 0 hold the rigid-body modes. Same
+// tolerance argument as the plane-strain case.
+#[test]
+fn contact_rigid_plane_3d_reproduces_uniaxial_compression() {
+    let (l, squeeze) = (2.0, 0.3);
+    let mesh = olli_verification::block([l, l, l], [2, 2, 2], 0.0);
+    let mut model = Model::single_region(mesh, Analysis::Solid3d, neo_hookean(MU, KAPPA), Formulation::Mixed);
+    model.rigid.push(RigidBody::new("floor", Shape::Plane { point: [0.0, 0.0, 0.0], normal: [0.0, 0.0, 1.0] }, "z0"));
+    model.stages.push(Stage {
+        name: "press".into(),
+        controls: IncrementControls { first: 0.25, ..Default::default() },
+        motions: vec![Motion { set: "z1".into(), displacement: [None, None, Some(-squeeze)] }],
+        supports: vec![
+            Support { set: "x0".into(), components: [true, false, false] },
+            Support { set: "y0".into(), components: [false, true, false] },
+        ],
+        ..Default::default()
+    });
+    let sol = run(&model);
+    let lambda = (l - squeeze) / l;
+    let sigma = MU * (lambda * lambda - 1.0 / lambda);
+    let expected = -sigma * l * l / lambda;
+    let floor = -sol.last().unwrap().contact[0].force[2];
+    assert!((floor - expected).abs() / expected < 5e-3, "floor force {floor} vs {expected}");
+}
