@@ -47,6 +47,8 @@ impl std::ops::Sub for D {
 }
 impl std::ops::Mul for D {
     type Output = D;
+    // The product rule adds the two derivative terms.
+    #[allow(clippy::suspicious_arithmetic_impl)]
     fn mul(self, o: D) -> D {
         let f = |k: usize| self.d[k] * o.v + self.v * o.d[k];
         D { v: self.v * o.v, d: [f(0), f(1), f(2)] }

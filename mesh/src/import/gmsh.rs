@@ -226,7 +226,7 @@ pub(crate) fn read(path: &Path, bytes: &[u8]) -> Result<Imported, MeshError> {
 /// True when the `$MeshFormat` line says ASCII (file type 0).
 fn is_ascii_format(bytes: &[u8]) -> bool {
     let head = String::from_utf8_lossy(&bytes[..bytes.len().min(64)]);
-    head.lines().nth(1).and_then(|l| l.split_whitespace().nth(1)).map_or(true, |t| t == "0")
+    head.lines().nth(1).and_then(|l| l.split_whitespace().nth(1)).is_none_or(|t| t == "0")
 }
 
 /// `$PhysicalNames` entries: (dimension, tag) → name. The section is text
