@@ -262,3 +262,78 @@ fn tetrahedral_block_is_conforming() {
         assert_eq!(olli_mesh::cleanup::unreferenced_nodes(&m).len(), 0);
     }
 }
+
+/// Fixed-seed xorshift64 (Marsaglia 2003, "Xorshift RNGs", J. Stat. Softw. 8(14)).
+struct XorShift(u64);
+impl XorShift {
+    fn next(&mut self) -> u64 {
+        self.0 ^= self.0 << 13;
+        self.0 ^= self.0 >> 7;
+        self.0 ^= self.0 << 17;
+        self.0
+    }
+    /// Uniform in [lo, hi).
+    fn range(&mut self, lo: f64, hi: f64) -> f64 {
+        lo + (hi - lo) * (self.next() >> 11) as f64 / (1u64 << 53) as f64
+    }
+    fn int(&mut self, lo: usize, hi: usize) -> usize {
+        lo + (self.next() % (hi - lo + 1) as u64) as usize
+    }
+}
+
+/// Property test: random (fixed-seed) parameters, including impossible ones,
+/// give either a typed error or a mesh whose every element is positive and
+/// whose measure matches the exact shape within the coarse-mesh error.
+#[test]
+fn random_generator_parameters_give_positive_meshes_or_errors() {
+    let mut rng = XorShift(0x2545_F491_4F6C_DD1D);
+    let mut built = 0;
+    for case in 0..200 {
+        let order = ORDERS[rng.int(0, 2)];
+        let tri = rng.int(0, 3) == 0;
+        let toward = [Face::Left, Face::Right, Face::Bottom, Face::Top, Face::Front, Face::Back][rng.int(0, 5)];
+        let grading = Some(Grading { toward, ratio: rng.range(0.5, 20.0) });
+        // `exact` is None where the mesh is too coarse for a 10 % comparison
+        // (arcs of more than 30° per element, or fewer than 12 around a circle).
+        let (result, exact): (Result<Mesh, _>, Option<f64>) = match case % 5 {
+            0 => {
+                let size = [rng.range(-0.5, 5.0), rng.range(0.01, 5.0)];
+                let p = RectangleParams { size, divisions: [rng.int(0, 6), rng.int(1, 6)], order, triangles: tri, grading, ..Default::default() };
+                (rectangle(&p), Some(size[0] * size[1]))
+            }
+            1 => {
+                let size = [rng.range(0.1, 3.0), rng.range(0.1, 3.0), rng.range(0.1, 3.0)];
+                let p = BlockParams { size, divisions: [rng.int(1, 3), rng.int(1, 3), rng.int(1, 3)], order, triangles: tri, tetrahedra: rng.int(0, 2) == 0, grading, ..Default::default() };
+                (block(&p), Some(size[0] * size[1] * size[2]))
+            }
+            2 => {
+                let (ri, ro, angle) = (rng.range(0.05, 2.0), rng.range(0.05, 3.0), rng.range(-10.0, 370.0));
+                let p = AnnulusParams { inner_radius: ri, outer_radius: ro, angle, start_angle: rng.range(-180.0, 180.0), radial_divisions: rng.int(1, 3), circumferential_divisions: rng.int(1, 24), order, triangles: tri, ..Default::default() };
+                let fine = angle / p.circumferential_divisions as f64 <= 30.0;
+                (annulus(&p), fine.then(|| 0.5 * (ro * ro - ri * ri) * angle.to_radians()))
+            }
+            3 => {
+                let r = rng.range(0.01, 10.0);
+                let p = CircleParams { center: [rng.range(-5.0, 5.0), rng.range(-5.0, 5.0)], radius: r, divisions: 4 * rng.int(1, 8) + rng.int(0, 4) / 4, radial_divisions: Some(rng.int(1, 4)), order, triangles: tri, ..Default::default() };
+                (cord(&p), (p.divisions >= 12).then(|| std::f64::consts::PI * r * r))
+            }
+            _ => {
+                let (x0, w, h, angle) = (rng.range(-0.5, 3.0), rng.range(0.1, 2.0), rng.range(0.1, 2.0), rng.range(1.0, 360.0));
+                let sec = rectangle(&RectangleParams { origin: [x0, 0.0], size: [w, h], divisions: [rng.int(1, 2), rng.int(1, 2)], order, triangles: tri && order == Order::Linear, ..Default::default() }).unwrap();
+                let v = std::f64::consts::PI * ((x0 + w).powi(2) - x0 * x0) * h * angle / 360.0;
+                let n = rng.int(1, 12);
+                (sweep(&sec, angle, n), (angle / n as f64 <= 30.0).then_some(v))
+            }
+        };
+        let Ok(mesh) = result else { continue };
+        built += 1;
+        for e in 0..mesh.element_count() {
+            assert!(element_quality(&mesh, e).min_det > 0.0, "case {case}: element {e} not positive");
+        }
+        if let Some(exact) = exact {
+            let m = measure(&mesh);
+            assert!((m - exact).abs() <= 0.1 * exact, "case {case}: measure {m} vs {exact}");
+        }
+    }
+    assert!(built > 100, "only {built} of 200 random cases built a mesh");
+}
