@@ -351,13 +351,21 @@ fn random_and_truncated_bytes_never_panic() {
     let small = rectangle(&RectangleParams { divisions: [2, 1], order: Order::Quadratic, ..Default::default() }).unwrap();
     let vtu_path = tmp("fuzz_seed.vtu");
     write_vtu(&small, &vtu_path).unwrap();
+    let mut legacy = olli_mesh::export::to_vtk(&small, Default::default());
+    legacy.version = vtkio::model::Version::new_legacy(4, 2);
+    legacy.byte_order = vtkio::model::ByteOrder::BigEndian;
+    let mut legacy_binary = Vec::new();
+    legacy.write_legacy(&mut legacy_binary).unwrap();
     let seeds: Vec<(&str, Vec<u8>)> = vec![
+        ("e.vtk", legacy_binary),
         ("a.msh", std::fs::read(data("two_quads.msh")).unwrap()),
         ("b.msh", hex20_cube().write(true)),
         ("c.vtk", std::fs::read(data("quad_and_triangle.vtk")).unwrap()),
         ("d.vtu", std::fs::read(&vtu_path).unwrap()),
     ];
     let mut rng = XorShift(0x9E37_79B9_7F4A_7C15);
+    // OLLI_MESH_FUZZ_ROUNDS raises the number of corrupted copies per seed for a longer hunt.
+    let rounds: usize = std::env::var("OLLI_MESH_FUZZ_ROUNDS").ok().and_then(|v| v.parse().ok()).unwrap_or(150);
     let mut outcomes = [0usize; 2];
     for (name, bytes) in &seeds {
         let path = Path::new(name);
@@ -372,7 +380,7 @@ fn random_and_truncated_bytes_never_panic() {
         for cut in (0..bytes.len()).step_by(step) {
             try_bytes(&bytes[..cut]);
         }
-        for _ in 0..150 {
+        for _ in 0..rounds {
             let mut b = bytes.clone();
             for _ in 0..1 + rng.next() % 4 {
                 let i = (rng.next() % b.len() as u64) as usize;
@@ -399,4 +407,22 @@ fn vtu_side_masks_restore_the_same_faces() {
     write_vtu(&m, &path).unwrap();
     let back: Mesh = read_mesh(&path).unwrap();
     assert_eq!(back.side_sets["two"], m.side_sets["two"]);
+}
+
+/// Legacy `.vtk`, binary (big-endian, the legacy default) and ASCII, written
+/// by vtkio from our model, reads back to the same mesh with its sets.
+#[test]
+fn legacy_vtk_round_trip_binary_and_ascii() {
+    let mesh = hollow_cylinder(&AnnulusParams { angle: 120.0, circumferential_divisions: 4, axial_divisions: 2, order: Order::Quadratic, ..Default::default() }).unwrap();
+    let mut vtk = olli_mesh::export::to_vtk(&mesh, Default::default());
+    vtk.version = vtkio::model::Version::new_legacy(4, 2);
+    vtk.byte_order = vtkio::model::ByteOrder::BigEndian; // the legacy standard
+    let mut binary = Vec::new();
+    vtk.clone().write_legacy(&mut binary).unwrap();
+    let mut ascii = String::new();
+    vtk.write_legacy_ascii(&mut ascii).unwrap();
+    for (what, bytes) in [("binary", binary), ("ascii", ascii.into_bytes())] {
+        let back = import_bytes(Path::new("legacy.vtk"), &bytes).unwrap_or_else(|e| panic!("{what}: {e}"));
+        assert_eq!(back.mesh, mesh, "{what}");
+    }
 }
