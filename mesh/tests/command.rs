@@ -1,17 +1,13 @@
 //! The library side of `olli mesh info / convert / generate`.
 
-use std::path::{Path, PathBuf};
+mod common;
+
+use std::path::Path;
+
+use common::{data, tmp};
 
 use olli_mesh::command::{convert, generate_file, generate_options, info};
 use olli_mesh::read_mesh;
-
-fn data(name: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/data").join(name)
-}
-
-fn tmp(name: &str) -> PathBuf {
-    Path::new(env!("CARGO_TARGET_TMPDIR")).join(name)
-}
 
 /// `info` prints the documented lines for the hand-written Gmsh file.
 #[test]

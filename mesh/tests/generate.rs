@@ -1,7 +1,11 @@
 //! Generated meshes: exact geometry in the limit, positive elements, outward
 //! side normals and correctly named sets.
 
+mod common;
+
 use std::f64::consts::PI;
+
+use common::XorShift;
 
 use olli_mesh::generate::*;
 use olli_mesh::quality::{element_quality, measure};
@@ -263,24 +267,6 @@ fn tetrahedral_block_is_conforming() {
     }
 }
 
-/// Fixed-seed xorshift64 (Marsaglia 2003, "Xorshift RNGs", J. Stat. Softw. 8(14)).
-struct XorShift(u64);
-impl XorShift {
-    fn next(&mut self) -> u64 {
-        self.0 ^= self.0 << 13;
-        self.0 ^= self.0 >> 7;
-        self.0 ^= self.0 << 17;
-        self.0
-    }
-    /// Uniform in [lo, hi).
-    fn range(&mut self, lo: f64, hi: f64) -> f64 {
-        lo + (hi - lo) * (self.next() >> 11) as f64 / (1u64 << 53) as f64
-    }
-    fn int(&mut self, lo: usize, hi: usize) -> usize {
-        lo + (self.next() % (hi - lo + 1) as u64) as usize
-    }
-}
-
 /// Property test: random (fixed-seed) parameters, including impossible ones,
 /// give either a typed error or a mesh whose every element is positive and
 /// whose measure matches the exact shape within the coarse-mesh error.
@@ -315,7 +301,7 @@ fn random_generator_parameters_give_positive_meshes_or_errors() {
             3 => {
                 let r = rng.range(0.01, 10.0);
                 let p = CircleParams { center: [rng.range(-5.0, 5.0), rng.range(-5.0, 5.0)], radius: r, divisions: 4 * rng.int(1, 8) + rng.int(0, 4) / 4, radial_divisions: Some(rng.int(1, 4)), order, triangles: tri, ..Default::default() };
-                (cord(&p), (p.divisions >= 12).then(|| std::f64::consts::PI * r * r))
+                (cord(&p), (p.divisions >= 12).then_some(std::f64::consts::PI * r * r))
             }
             _ => {
                 let (x0, w, h, angle) = (rng.range(-0.5, 3.0), rng.range(0.1, 2.0), rng.range(0.1, 2.0), rng.range(1.0, 360.0));

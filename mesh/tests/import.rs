@@ -1,20 +1,16 @@
 //! Importers and the `.vtu` writer: round trips, hand-written Gmsh and
 //! legacy VTK files, error locations, and random or truncated bytes.
 
-use std::path::{Path, PathBuf};
+mod common;
+
+use std::path::Path;
+
+use common::{data, tmp, XorShift};
 
 use olli_mesh::generate::*;
 use olli_mesh::import::import_bytes;
 use olli_mesh::quality::element_quality;
 use olli_mesh::{import, read_mesh, write_vtu, ElementKind, Location, Mesh, MeshError, Side};
-
-fn data(name: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/data").join(name)
-}
-
-fn tmp(name: &str) -> PathBuf {
-    Path::new(env!("CARGO_TARGET_TMPDIR")).join(name)
-}
 
 /// generate → write .vtu → read gives back identical nodes, connectivity and sets.
 #[test]
@@ -331,17 +327,6 @@ fn malformed_files_name_file_and_line() {
 
     assert!(matches!(read_mesh(Path::new("mesh.stl")), Err(MeshError::UnknownFormat { .. })));
     assert!(matches!(read_mesh(Path::new("/nonexistent/mesh.msh")), Err(MeshError::Io { .. })));
-}
-
-/// Fixed-seed xorshift64 (Marsaglia 2003, "Xorshift RNGs", J. Stat. Softw. 8(14)).
-struct XorShift(u64);
-impl XorShift {
-    fn next(&mut self) -> u64 {
-        self.0 ^= self.0 << 13;
-        self.0 ^= self.0 >> 7;
-        self.0 ^= self.0 << 17;
-        self.0
-    }
 }
 
 /// Truncated, corrupted and random bytes give an error or a mesh, never a
