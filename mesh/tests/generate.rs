@@ -323,3 +323,40 @@ fn random_generator_parameters_give_positive_meshes_or_errors() {
     }
     assert!(built > 100, "only {built} of 200 random cases built a mesh");
 }
+
+/// End caps of extrusions and partial sweeps sit where they should, with
+/// outward normals: extrude `start` at z = 0 (normal −z), `end` at z = L;
+/// a 90° sweep's `start` in the plane y = 0 (normal −y) and `end` in x = 0
+/// (normal −x). Checked for hexes and wedges, linear and quadratic.
+#[test]
+fn caps_of_extrusions_and_sweeps_face_outward() {
+    for (order, tri) in [(Order::Linear, false), (Order::Linear, true), (Order::Quadratic, false), (Order::QuadraticFull, false)] {
+        let sec = rectangle(&RectangleParams { origin: [1.0, 0.0], divisions: [2, 3], order, triangles: tri, ..Default::default() }).unwrap();
+        let n = sec.element_count();
+        let e = extrude(&sec, 2.0, 3).unwrap();
+        let s = sweep(&sec, 90.0, 4).unwrap();
+        for (mesh, name, axis, value, normal) in [
+            (&e, "start", 2, 0.0, [0.0, 0.0, -1.0]),
+            (&e, "end", 2, 2.0, [0.0, 0.0, 1.0]),
+            (&s, "start", 1, 0.0, [0.0, -1.0, 0.0]),
+            (&s, "end", 0, 0.0, [-1.0, 0.0, 0.0]),
+        ] {
+            let sides = &mesh.side_sets[name];
+            assert_eq!(sides.len(), n, "{order:?} {tri} {name}");
+            for &side in sides {
+                assert!(mesh.side_nodes(side).iter().all(|&i| (mesh.nodes[i][axis] - value).abs() < 1e-12), "{name}");
+                let got = mesh.side_normal(side);
+                assert!((0..3).all(|k| (got[k] - normal[k]).abs() < 1e-12), "{order:?} {tri} {name}: {got:?}");
+            }
+        }
+        // The section's `left` edge (r = 1) becomes the inner cylinder of the sweep.
+        for &side in &s.side_sets["left"] {
+            let got = s.side_normal(side);
+            let c = s.side_nodes(side)[0];
+            let p = s.nodes[c];
+            let r = (p[0] * p[0] + p[1] * p[1]).sqrt();
+            assert!((r - 1.0).abs() < 1e-12);
+            assert!(got[0] * p[0] + got[1] * p[1] < 0.0, "inner face must point toward the axis");
+        }
+    }
+}
