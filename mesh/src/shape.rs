@@ -240,6 +240,18 @@ const G3: [(f64, f64); 3] = [
 /// and 3 × 2 points for the wedge (rules from memory; their weights sum to
 /// the reference measure, which `gauss_weights_sum_to_reference_measure` checks).
 pub fn gauss_points(kind: ElementKind) -> Vec<([f64; 3], f64)> {
+    gauss_rule(kind).to_vec()
+}
+
+/// [`gauss_points`] without allocating: the rules are built once.
+pub fn gauss_rule(kind: ElementKind) -> &'static [([f64; 3], f64)] {
+    static RULES: std::sync::OnceLock<Vec<Vec<([f64; 3], f64)>>> = std::sync::OnceLock::new();
+    let rules = RULES.get_or_init(|| ElementKind::ALL.iter().map(|&k| build_gauss_points(k)).collect());
+    let index = ElementKind::ALL.iter().position(|&k| k == kind).unwrap_or(0);
+    &rules[index]
+}
+
+fn build_gauss_points(kind: ElementKind) -> Vec<([f64; 3], f64)> {
     let line: &[(f64, f64)] = match kind {
         ElementKind::Quad8 | ElementKind::Quad9 | ElementKind::Hex20 | ElementKind::Hex27 => &G3,
         _ => &G2,
@@ -287,7 +299,7 @@ pub fn gauss_points(kind: ElementKind) -> Vec<([f64; 3], f64)> {
 
 /// Area (2-D) or volume (3-D) of element `e` by Gauss quadrature of det J.
 pub fn element_measure(kind: ElementKind, x: &[[f64; 3]]) -> f64 {
-    gauss_points(kind).iter().map(|&(p, w)| w * jacobian_det(kind, x, p)).sum()
+    gauss_rule(kind).iter().map(|&(p, w)| w * jacobian_det(kind, x, p)).sum()
 }
 
 #[cfg(test)]
