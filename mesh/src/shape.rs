@@ -243,9 +243,12 @@ pub fn gauss_points(kind: ElementKind) -> Vec<([f64; 3], f64)> {
     gauss_rule(kind).to_vec()
 }
 
+/// A reference point and its weight.
+pub type GaussPoint = ([f64; 3], f64);
+
 /// [`gauss_points`] without allocating: the rules are built once.
 pub fn gauss_rule(kind: ElementKind) -> &'static [([f64; 3], f64)] {
-    static RULES: std::sync::OnceLock<Vec<Vec<([f64; 3], f64)>>> = std::sync::OnceLock::new();
+    static RULES: std::sync::OnceLock<Vec<Vec<GaussPoint>>> = std::sync::OnceLock::new();
     let rules = RULES.get_or_init(|| ElementKind::ALL.iter().map(|&k| build_gauss_points(k)).collect());
     let index = ElementKind::ALL.iter().position(|&k| k == kind).unwrap_or(0);
     &rules[index]
