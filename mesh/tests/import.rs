@@ -300,6 +300,11 @@ fn malformed_files_name_file_and_line() {
     assert!(text.starts_with("bad.msh: line"), "{text}");
     assert!(matches!(loc, Location::Line(l) if (18..=20).contains(&l)), "{text}");
 
+    // MSH 2.2 is not supported: the version line is named.
+    let old = "$MeshFormat\n2.2 0 8\n$EndMeshFormat\n$Nodes\n1\n1 0 0 0\n$EndNodes\n";
+    let (text, loc) = location(import_bytes(Path::new("old.msh"), old.as_bytes()).unwrap_err());
+    assert_eq!(loc, Location::Line(2), "{text}");
+
     let vtk = std::fs::read_to_string(data("quad_and_triangle.vtk")).unwrap();
     let bad = vtk.replacen("1 1 0\n", "1 one 0\n", 1);
     let (text, loc) = location(import_bytes(Path::new("bad.vtk"), bad.as_bytes()).unwrap_err());
