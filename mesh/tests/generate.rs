@@ -360,3 +360,20 @@ fn caps_of_extrusions_and_sweeps_face_outward() {
         }
     }
 }
+
+/// Linear meshes of circles are exact polygons: the O-grid's surface nodes
+/// are equally spaced in angle, so a linear cord of N divisions has the area
+/// of the inscribed regular N-gon, (N/2) r² sin(2π/N), and a linear ring the
+/// difference of two such polygons (elementary geometry). Tolerance: round-off.
+#[test]
+fn linear_circles_have_exact_polygon_areas() {
+    for n in [4usize, 8, 12, 40] {
+        let polygon = |r: f64| 0.5 * n as f64 * r * r * (2.0 * PI / n as f64).sin();
+        let c = cord_mesh(n, Order::Linear, false);
+        assert!((measure(&c) - polygon(1.75)).abs() < 1e-12, "cord {n}");
+        let tri = cord_mesh(n, Order::Linear, true);
+        assert!((measure(&tri) - polygon(1.75)).abs() < 1e-12, "tri cord {n}");
+        let r = ring(n, Order::Linear);
+        assert!((measure(&r) - (polygon(2.0) - polygon(1.0))).abs() < 1e-12, "ring {n}");
+    }
+}
