@@ -3,38 +3,100 @@
 //! blocks independently and rely on the merge to stitch them; importers use
 //! the reorientation so the solver only ever sees positive elements.
 
-use std::collections::BTreeMap;
+use std::collections::{BTreeMap, HashMap};
 
 use crate::element::ElementKind;
 use crate::model::{Mesh, Side};
 
 /// Groups of nodes closer than `tol` to each other: `rep[i]` is the node that
-/// represents node `i` (itself if it is not a duplicate).
+/// represents node `i`: the earliest representative within `tol`, or `i` itself.
+///
+/// Representatives go into a hash grid with cells of 4 `tol`, so a node is
+/// compared only with the few representatives in its own cell and, when it
+/// lies within `tol` of a cell face, the neighbouring cells: linear time,
+/// where a sort along one axis would compare whole planes of a structured mesh.
 pub fn duplicate_representatives(mesh: &Mesh, tol: f64) -> Vec<usize> {
     let n = mesh.nodes.len();
-    let mut order: Vec<usize> = (0..n).collect();
-    order.sort_by(|&a, &b| mesh.nodes[a][0].total_cmp(&mesh.nodes[b][0]));
     let mut rep: Vec<usize> = (0..n).collect();
-    for (k, &i) in order.iter().enumerate() {
-        if rep[i] != i {
-            continue;
+    if !(tol > 0.0 && tol.is_finite()) {
+        // Exact duplicates only: the coordinates' bit patterns are the key.
+        let mut seen: HashMap<(u64, u64, u64), usize, CellHash> = HashMap::with_capacity_and_hasher(n, CellHash::default());
+        for (i, x) in mesh.nodes.iter().enumerate() {
+            rep[i] = *seen.entry((x[0].to_bits(), x[1].to_bits(), x[2].to_bits())).or_insert(i);
         }
-        let xi = mesh.nodes[i];
-        for &j in &order[k + 1..] {
-            let xj = mesh.nodes[j];
-            if xj[0] - xi[0] > tol {
-                break;
-            }
-            if rep[j] == j {
-                let d2 = (0..3).map(|c| (xj[c] - xi[c]).powi(2)).sum::<f64>();
-                if d2 <= tol * tol {
-                    rep[j] = i;
+        return rep;
+    }
+    let size = 4.0 * tol;
+    // Head of each cell's list of representatives; `next` chains them.
+    let mut head: HashMap<(i64, i64, i64), usize, CellHash> = HashMap::with_capacity_and_hasher(n, CellHash::default());
+    let mut next = vec![usize::MAX; n];
+    for i in 0..n {
+        let x = mesh.nodes[i];
+        // Cells to search along each axis: own cell, plus a neighbour within tol.
+        // Float-to-int casts saturate, so far-away points share edge cells and
+        // are still told apart by the distance test.
+        let mut span = [[0i64; 2]; 3];
+        let mut own = [0i64; 3];
+        for k in 0..3 {
+            let t = x[k] / size;
+            let c = t.floor();
+            own[k] = c as i64;
+            let f = t - c;
+            span[k] = [own[k] - i64::from(f < 0.25), own[k] + i64::from(f > 0.75)];
+        }
+        // The earliest representative within tol, so the result does not
+        // depend on the grid (a node near two groups joins the older one).
+        let mut found = usize::MAX;
+        for cx in span[0][0]..=span[0][1] {
+            for cy in span[1][0]..=span[1][1] {
+                for cz in span[2][0]..=span[2][1] {
+                    let mut j = head.get(&(cx, cy, cz)).copied().unwrap_or(usize::MAX);
+                    while j != usize::MAX {
+                        let y = mesh.nodes[j];
+                        let d2 = (x[0] - y[0]).powi(2) + (x[1] - y[1]).powi(2) + (x[2] - y[2]).powi(2);
+                        if d2 <= tol * tol {
+                            found = found.min(j);
+                        }
+                        j = next[j];
+                    }
                 }
+            }
+        }
+        match found {
+            j if j != usize::MAX => rep[i] = j,
+            _ => {
+                let slot = head.entry((own[0], own[1], own[2])).or_insert(usize::MAX);
+                next[i] = *slot;
+                *slot = i;
             }
         }
     }
     rep
 }
+
+/// A fast multiplicative hash for integer cell keys (not DoS-resistant, which
+/// mesh coordinates do not need).
+#[derive(Default, Clone, Copy)]
+struct CellHasher(u64);
+
+impl std::hash::Hasher for CellHasher {
+    fn write(&mut self, bytes: &[u8]) {
+        for &b in bytes {
+            self.write_u64(u64::from(b));
+        }
+    }
+    fn write_u64(&mut self, v: u64) {
+        self.0 = (self.0.rotate_left(5) ^ v).wrapping_mul(0x517c_c1b7_2722_0a95);
+    }
+    fn write_i64(&mut self, v: i64) {
+        self.write_u64(v as u64);
+    }
+    fn finish(&self) -> u64 {
+        self.0
+    }
+}
+
+type CellHash = std::hash::BuildHasherDefault<CellHasher>;
 
 /// Merges nodes closer than `tol` and returns how many nodes were removed.
 pub fn merge_duplicate_nodes(mesh: &mut Mesh, tol: f64) -> usize {

@@ -41,6 +41,15 @@ pub fn convert(input: &Path, output: &Path) -> Result<Vec<String>, MeshError> {
     Ok(imported.notes)
 }
 
+/// `olli mesh generate GENERATOR key=value ... -o OUT.vtu`: builds the spec
+/// from options (see [`GeneratorSpec::from_options`]), writes the mesh and
+/// returns its summary text.
+pub fn generate_options(generator: &str, options: &[&str], output: &Path) -> Result<String, MeshError> {
+    let mesh = generate(&GeneratorSpec::from_options(generator, options)?)?;
+    write_vtu(&mesh, output)?;
+    Ok(summary(&mesh).to_string())
+}
+
 /// `olli mesh generate SPEC.toml OUT.vtu`: runs the generator a TOML spec
 /// file describes and writes the mesh; returns its summary text.
 pub fn generate_file(spec: &Path, output: &Path) -> Result<String, MeshError> {

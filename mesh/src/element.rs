@@ -3,7 +3,11 @@
 //!
 //! Node orders follow the VTK convention for every kind, so meshes can be
 //! written to `.vtu` without permutation. Importers of other formats map their
-//! node order onto this one.
+//! node order onto this one. Two VTK details matter: the wedge's base triangle
+//! 0-1-2 faces away from the top triangle 3-4-5 (VTK file-format document),
+//! and the hex27 face centres come in the order x-min, x-max, y-min, y-max,
+//! z-min, z-max (VTK's vtkTriQuadraticHexahedron face table). The test
+//! `side_normals_point_outward` checks every side table on generated elements.
 
 /// One element shape. The mesh side reads and checks all of them; the solver
 /// supports a subset.

@@ -17,6 +17,16 @@ pub enum Location {
     Unknown,
 }
 
+impl Location {
+    /// `"line 12: "` and the like, or nothing when the position is unknown.
+    pub fn prefix(&self) -> String {
+        match self {
+            Location::Unknown => String::new(),
+            known => format!("{known}: "),
+        }
+    }
+}
+
 impl fmt::Display for Location {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         match self {
@@ -38,7 +48,7 @@ pub enum MeshError {
         source: std::io::Error,
     },
     /// A malformed or unsupported file.
-    #[error("{path}: {location}: {message}")]
+    #[error("{}: {}{message}", .path.display(), .location.prefix())]
     Parse {
         path: PathBuf,
         location: Location,

@@ -5,7 +5,7 @@
 
 use crate::cleanup::{duplicate_representatives, unreferenced_nodes};
 use crate::model::Mesh;
-use crate::shape::{gauss_points, jacobian_det, reference_nodes};
+use crate::shape::{gauss_rule, jacobian_det, reference_nodes};
 
 /// Quality measures of one element.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -69,7 +69,7 @@ pub fn element_quality(mesh: &Mesh, e: usize) -> ElementQuality {
     let x = &x[..nodes.len()];
     let (mut lo, mut hi) = (f64::INFINITY, f64::NEG_INFINITY);
     let corners = &reference_nodes(kind)[..kind.corner_count()];
-    for p in corners.iter().copied().chain(gauss_points(kind).into_iter().map(|g| g.0)) {
+    for p in corners.iter().copied().chain(gauss_rule(kind).iter().map(|g| g.0)) {
         let d = jacobian_det(kind, x, p);
         let d = if d.is_nan() { f64::NEG_INFINITY } else { d };
         lo = lo.min(d);
@@ -122,10 +122,14 @@ pub fn check(mesh: &Mesh, settings: &QualitySettings) -> QualityReport {
 
 /// Area (2-D) or volume (3-D) of the whole mesh.
 pub fn measure(mesh: &Mesh) -> f64 {
+    let mut x = [[0.0; 3]; crate::shape::MAX_NODES];
     (0..mesh.kinds.len())
         .map(|e| {
-            let x: Vec<[f64; 3]> = mesh.element_nodes(e).iter().map(|&n| mesh.nodes[n]).collect();
-            crate::shape::element_measure(mesh.kinds[e], &x)
+            let nodes = mesh.element_nodes(e);
+            for (k, &n) in nodes.iter().enumerate() {
+                x[k] = mesh.nodes[n];
+            }
+            crate::shape::element_measure(mesh.kinds[e], &x[..nodes.len()])
         })
         .sum()
 }

@@ -90,7 +90,9 @@ pub fn default_tolerance(mesh: &Mesh) -> f64 {
 }
 
 /// A predicate on positions for a geometric selection, or `None` if `sel` is not geometric.
-fn predicate(sel: &Selection, tol: f64) -> Result<Option<Box<dyn Fn([f64; 3]) -> bool>>, MeshError> {
+type Predicate = Box<dyn Fn([f64; 3]) -> bool>;
+
+fn predicate(sel: &Selection, tol: f64) -> Result<Option<Predicate>, MeshError> {
     Ok(Some(match sel.clone() {
         Selection::Box { min, max } => {
             Box::new(move |x| (0..3).all(|k| x[k] >= min.0[k] - tol && x[k] <= max.0[k] + tol))

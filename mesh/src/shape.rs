@@ -47,6 +47,8 @@ impl std::ops::Sub for D {
 }
 impl std::ops::Mul for D {
     type Output = D;
+    // The product rule adds the two derivative terms.
+    #[allow(clippy::suspicious_arithmetic_impl)]
     fn mul(self, o: D) -> D {
         let f = |k: usize| self.d[k] * o.v + self.v * o.d[k];
         D { v: self.v * o.v, d: [f(0), f(1), f(2)] }
@@ -238,6 +240,21 @@ const G3: [(f64, f64); 3] = [
 /// and 3 × 2 points for the wedge (rules from memory; their weights sum to
 /// the reference measure, which `gauss_weights_sum_to_reference_measure` checks).
 pub fn gauss_points(kind: ElementKind) -> Vec<([f64; 3], f64)> {
+    gauss_rule(kind).to_vec()
+}
+
+/// A reference point and its weight.
+pub type GaussPoint = ([f64; 3], f64);
+
+/// [`gauss_points`] without allocating: the rules are built once.
+pub fn gauss_rule(kind: ElementKind) -> &'static [([f64; 3], f64)] {
+    static RULES: std::sync::OnceLock<Vec<Vec<GaussPoint>>> = std::sync::OnceLock::new();
+    let rules = RULES.get_or_init(|| ElementKind::ALL.iter().map(|&k| build_gauss_points(k)).collect());
+    let index = ElementKind::ALL.iter().position(|&k| k == kind).unwrap_or(0);
+    &rules[index]
+}
+
+fn build_gauss_points(kind: ElementKind) -> Vec<([f64; 3], f64)> {
     let line: &[(f64, f64)] = match kind {
         ElementKind::Quad8 | ElementKind::Quad9 | ElementKind::Hex20 | ElementKind::Hex27 => &G3,
         _ => &G2,
@@ -285,7 +302,7 @@ pub fn gauss_points(kind: ElementKind) -> Vec<([f64; 3], f64)> {
 
 /// Area (2-D) or volume (3-D) of element `e` by Gauss quadrature of det J.
 pub fn element_measure(kind: ElementKind, x: &[[f64; 3]]) -> f64 {
-    gauss_points(kind).iter().map(|&(p, w)| w * jacobian_det(kind, x, p)).sum()
+    gauss_rule(kind).iter().map(|&(p, w)| w * jacobian_det(kind, x, p)).sum()
 }
 
 #[cfg(test)]

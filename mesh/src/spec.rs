@@ -48,6 +48,32 @@ pub enum GeneratorSpec {
     },
 }
 
+impl GeneratorSpec {
+    /// Builds a spec from a generator name and `key=value` options, as typed
+    /// on a command line: `cord`, `["diameter=3.5", "center=[20, 1.75]", "order=quadratic"]`.
+    /// Values are TOML; a bare word that is not valid TOML is taken as a string.
+    pub fn from_options(generator: &str, options: &[&str]) -> Result<Self, MeshError> {
+        let mut text = format!("generate = {}\n", toml_string(generator));
+        for opt in options {
+            let (key, value) = opt.split_once('=').ok_or_else(|| MeshError::Spec {
+                message: format!("option `{opt}` is not of the form key=value"),
+            })?;
+            let (key, value) = (key.trim(), value.trim());
+            let literal = if toml::from_str::<toml::Table>(&format!("v = {value}")).is_ok() {
+                value.to_string()
+            } else {
+                toml_string(value)
+            };
+            text.push_str(&format!("{key} = {literal}\n"));
+        }
+        Self::from_toml(&text)
+    }
+}
+
+fn toml_string(s: &str) -> String {
+    toml::Value::String(s.to_string()).to_string()
+}
+
 /// Line of the first `key =` whose key is quoted in the message as `key`.
 fn key_line(text: &str, message: &str) -> Option<usize> {
     let key = message.split('`').nth(1)?;

@@ -1,7 +1,11 @@
 //! Generated meshes: exact geometry in the limit, positive elements, outward
 //! side normals and correctly named sets.
 
+mod common;
+
 use std::f64::consts::PI;
+
+use common::XorShift;
 
 use olli_mesh::generate::*;
 use olli_mesh::quality::{element_quality, measure};
@@ -260,5 +264,116 @@ fn tetrahedral_block_is_conforming() {
         }
         // Every node of a tet10 is used: no stray hex27 nodes.
         assert_eq!(olli_mesh::cleanup::unreferenced_nodes(&m).len(), 0);
+    }
+}
+
+/// Property test: random (fixed-seed) parameters, including impossible ones,
+/// give either a typed error or a mesh whose every element is positive and
+/// whose measure matches the exact shape within the coarse-mesh error.
+#[test]
+fn random_generator_parameters_give_positive_meshes_or_errors() {
+    let mut rng = XorShift(0x2545_F491_4F6C_DD1D);
+    let mut built = 0;
+    for case in 0..200 {
+        let order = ORDERS[rng.int(0, 2)];
+        let tri = rng.int(0, 3) == 0;
+        let toward = [Face::Left, Face::Right, Face::Bottom, Face::Top, Face::Front, Face::Back][rng.int(0, 5)];
+        let grading = Some(Grading { toward, ratio: rng.range(0.5, 20.0) });
+        // `exact` is None where the mesh is too coarse for a 10 % comparison
+        // (arcs of more than 30° per element, or fewer than 12 around a circle).
+        let (result, exact): (Result<Mesh, _>, Option<f64>) = match case % 5 {
+            0 => {
+                let size = [rng.range(-0.5, 5.0), rng.range(0.01, 5.0)];
+                let p = RectangleParams { size, divisions: [rng.int(0, 6), rng.int(1, 6)], order, triangles: tri, grading, ..Default::default() };
+                (rectangle(&p), Some(size[0] * size[1]))
+            }
+            1 => {
+                let size = [rng.range(0.1, 3.0), rng.range(0.1, 3.0), rng.range(0.1, 3.0)];
+                let p = BlockParams { size, divisions: [rng.int(1, 3), rng.int(1, 3), rng.int(1, 3)], order, triangles: tri, tetrahedra: rng.int(0, 2) == 0, grading, ..Default::default() };
+                (block(&p), Some(size[0] * size[1] * size[2]))
+            }
+            2 => {
+                let (ri, ro, angle) = (rng.range(0.05, 2.0), rng.range(0.05, 3.0), rng.range(-10.0, 370.0));
+                let p = AnnulusParams { inner_radius: ri, outer_radius: ro, angle, start_angle: rng.range(-180.0, 180.0), radial_divisions: rng.int(1, 3), circumferential_divisions: rng.int(1, 24), order, triangles: tri, ..Default::default() };
+                let fine = angle / p.circumferential_divisions as f64 <= 30.0;
+                (annulus(&p), fine.then(|| 0.5 * (ro * ro - ri * ri) * angle.to_radians()))
+            }
+            3 => {
+                let r = rng.range(0.01, 10.0);
+                let p = CircleParams { center: [rng.range(-5.0, 5.0), rng.range(-5.0, 5.0)], radius: r, divisions: 4 * rng.int(1, 8) + rng.int(0, 4) / 4, radial_divisions: Some(rng.int(1, 4)), order, triangles: tri, ..Default::default() };
+                (cord(&p), (p.divisions >= 12).then_some(std::f64::consts::PI * r * r))
+            }
+            _ => {
+                let (x0, w, h, angle) = (rng.range(-0.5, 3.0), rng.range(0.1, 2.0), rng.range(0.1, 2.0), rng.range(1.0, 360.0));
+                let sec = rectangle(&RectangleParams { origin: [x0, 0.0], size: [w, h], divisions: [rng.int(1, 2), rng.int(1, 2)], order, triangles: tri && order == Order::Linear, ..Default::default() }).unwrap();
+                let v = std::f64::consts::PI * ((x0 + w).powi(2) - x0 * x0) * h * angle / 360.0;
+                let n = rng.int(1, 12);
+                (sweep(&sec, angle, n), (angle / n as f64 <= 30.0).then_some(v))
+            }
+        };
+        let Ok(mesh) = result else { continue };
+        built += 1;
+        for e in 0..mesh.element_count() {
+            assert!(element_quality(&mesh, e).min_det > 0.0, "case {case}: element {e} not positive");
+        }
+        if let Some(exact) = exact {
+            let m = measure(&mesh);
+            assert!((m - exact).abs() <= 0.1 * exact, "case {case}: measure {m} vs {exact}");
+        }
+    }
+    assert!(built > 100, "only {built} of 200 random cases built a mesh");
+}
+
+/// End caps of extrusions and partial sweeps sit where they should, with
+/// outward normals: extrude `start` at z = 0 (normal −z), `end` at z = L;
+/// a 90° sweep's `start` in the plane y = 0 (normal −y) and `end` in x = 0
+/// (normal −x). Checked for hexes and wedges, linear and quadratic.
+#[test]
+fn caps_of_extrusions_and_sweeps_face_outward() {
+    for (order, tri) in [(Order::Linear, false), (Order::Linear, true), (Order::Quadratic, false), (Order::QuadraticFull, false)] {
+        let sec = rectangle(&RectangleParams { origin: [1.0, 0.0], divisions: [2, 3], order, triangles: tri, ..Default::default() }).unwrap();
+        let n = sec.element_count();
+        let e = extrude(&sec, 2.0, 3).unwrap();
+        let s = sweep(&sec, 90.0, 4).unwrap();
+        for (mesh, name, axis, value, normal) in [
+            (&e, "start", 2, 0.0, [0.0, 0.0, -1.0]),
+            (&e, "end", 2, 2.0, [0.0, 0.0, 1.0]),
+            (&s, "start", 1, 0.0, [0.0, -1.0, 0.0]),
+            (&s, "end", 0, 0.0, [-1.0, 0.0, 0.0]),
+        ] {
+            let sides = &mesh.side_sets[name];
+            assert_eq!(sides.len(), n, "{order:?} {tri} {name}");
+            for &side in sides {
+                assert!(mesh.side_nodes(side).iter().all(|&i| (mesh.nodes[i][axis] - value).abs() < 1e-12), "{name}");
+                let got = mesh.side_normal(side);
+                assert!((0..3).all(|k| (got[k] - normal[k]).abs() < 1e-12), "{order:?} {tri} {name}: {got:?}");
+            }
+        }
+        // The section's `left` edge (r = 1) becomes the inner cylinder of the sweep.
+        for &side in &s.side_sets["left"] {
+            let got = s.side_normal(side);
+            let c = s.side_nodes(side)[0];
+            let p = s.nodes[c];
+            let r = (p[0] * p[0] + p[1] * p[1]).sqrt();
+            assert!((r - 1.0).abs() < 1e-12);
+            assert!(got[0] * p[0] + got[1] * p[1] < 0.0, "inner face must point toward the axis");
+        }
+    }
+}
+
+/// Linear meshes of circles are exact polygons: the O-grid's surface nodes
+/// are equally spaced in angle, so a linear cord of N divisions has the area
+/// of the inscribed regular N-gon, (N/2) r² sin(2π/N), and a linear ring the
+/// difference of two such polygons (elementary geometry). Tolerance: round-off.
+#[test]
+fn linear_circles_have_exact_polygon_areas() {
+    for n in [4usize, 8, 12, 40] {
+        let polygon = |r: f64| 0.5 * n as f64 * r * r * (2.0 * PI / n as f64).sin();
+        let c = cord_mesh(n, Order::Linear, false);
+        assert!((measure(&c) - polygon(1.75)).abs() < 1e-12, "cord {n}");
+        let tri = cord_mesh(n, Order::Linear, true);
+        assert!((measure(&tri) - polygon(1.75)).abs() < 1e-12, "tri cord {n}");
+        let r = ring(n, Order::Linear);
+        assert!((measure(&r) - (polygon(2.0) - polygon(1.0))).abs() < 1e-12, "ring {n}");
     }
 }

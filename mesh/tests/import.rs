@@ -1,20 +1,16 @@
 //! Importers and the `.vtu` writer: round trips, hand-written Gmsh and
 //! legacy VTK files, error locations, and random or truncated bytes.
 
-use std::path::{Path, PathBuf};
+mod common;
+
+use std::path::Path;
+
+use common::{data, tmp, XorShift};
 
 use olli_mesh::generate::*;
 use olli_mesh::import::import_bytes;
 use olli_mesh::quality::element_quality;
 use olli_mesh::{import, read_mesh, write_vtu, ElementKind, Location, Mesh, MeshError, Side};
-
-fn data(name: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/data").join(name)
-}
-
-fn tmp(name: &str) -> PathBuf {
-    Path::new(env!("CARGO_TARGET_TMPDIR")).join(name)
-}
 
 /// generate → write .vtu → read gives back identical nodes, connectivity and sets.
 #[test]
@@ -86,11 +82,14 @@ struct Block {
     elements: Vec<Vec<u64>>,
 }
 
+/// (dim, entity tag, [(node tag, coordinates)])
+type NodeBlock = (i32, i32, Vec<(u64, [f64; 3])>);
+
 struct Msh {
     names: Vec<(i32, i32, &'static str)>,
     /// (dim, entity tag, physical tags)
     entities: Vec<(i32, i32, Vec<i32>)>,
-    nodes: Vec<(i32, i32, Vec<(u64, [f64; 3])>)>,
+    nodes: Vec<NodeBlock>,
     blocks: Vec<Block>,
 }
 
@@ -301,6 +300,11 @@ fn malformed_files_name_file_and_line() {
     assert!(text.starts_with("bad.msh: line"), "{text}");
     assert!(matches!(loc, Location::Line(l) if (18..=20).contains(&l)), "{text}");
 
+    // MSH 2.2 is not supported: the version line is named.
+    let old = "$MeshFormat\n2.2 0 8\n$EndMeshFormat\n$Nodes\n1\n1 0 0 0\n$EndNodes\n";
+    let (text, loc) = location(import_bytes(Path::new("old.msh"), old.as_bytes()).unwrap_err());
+    assert_eq!(loc, Location::Line(2), "{text}");
+
     let vtk = std::fs::read_to_string(data("quad_and_triangle.vtk")).unwrap();
     let bad = vtk.replacen("1 1 0\n", "1 one 0\n", 1);
     let (text, loc) = location(import_bytes(Path::new("bad.vtk"), bad.as_bytes()).unwrap_err());
@@ -315,24 +319,19 @@ fn malformed_files_name_file_and_line() {
     let path = tmp("broken.vtu");
     write_vtu(&mesh, &path).unwrap();
     let xml = std::fs::read_to_string(&path).unwrap();
+    // Our .vtu files are one line: the error gives the byte offset of the bad tag.
     let cut = xml.replacen("</Points>", "</Pointz>", 1);
-    let line = 1 + xml[..xml.find("</Points>").unwrap()].matches('\n').count();
+    let at = xml.find("</Points>").unwrap();
     let (text, loc) = location(import_bytes(Path::new("broken.vtu"), cut.as_bytes()).unwrap_err());
+    assert!(matches!(loc, Location::Offset(o) if o.abs_diff(at) < 12), "{text} (tag at {at})");
+    // Split into lines, the same error names the line.
+    let lines = cut.replace("><", ">\n<");
+    let line = 1 + lines[..lines.find("</Pointz>").unwrap()].matches('\n').count();
+    let (text, loc) = location(import_bytes(Path::new("broken.vtu"), lines.as_bytes()).unwrap_err());
     assert_eq!(loc, Location::Line(line), "{text}");
 
     assert!(matches!(read_mesh(Path::new("mesh.stl")), Err(MeshError::UnknownFormat { .. })));
     assert!(matches!(read_mesh(Path::new("/nonexistent/mesh.msh")), Err(MeshError::Io { .. })));
-}
-
-/// Fixed-seed xorshift64 (Marsaglia 2003, "Xorshift RNGs", J. Stat. Softw. 8(14)).
-struct XorShift(u64);
-impl XorShift {
-    fn next(&mut self) -> u64 {
-        self.0 ^= self.0 << 13;
-        self.0 ^= self.0 >> 7;
-        self.0 ^= self.0 << 17;
-        self.0
-    }
 }
 
 /// Truncated, corrupted and random bytes give an error or a mesh, never a
@@ -342,13 +341,21 @@ fn random_and_truncated_bytes_never_panic() {
     let small = rectangle(&RectangleParams { divisions: [2, 1], order: Order::Quadratic, ..Default::default() }).unwrap();
     let vtu_path = tmp("fuzz_seed.vtu");
     write_vtu(&small, &vtu_path).unwrap();
+    let mut legacy = olli_mesh::export::to_vtk(&small, Default::default());
+    legacy.version = vtkio::model::Version::new_legacy(4, 2);
+    legacy.byte_order = vtkio::model::ByteOrder::BigEndian;
+    let mut legacy_binary = Vec::new();
+    legacy.write_legacy(&mut legacy_binary).unwrap();
     let seeds: Vec<(&str, Vec<u8>)> = vec![
+        ("e.vtk", legacy_binary),
         ("a.msh", std::fs::read(data("two_quads.msh")).unwrap()),
         ("b.msh", hex20_cube().write(true)),
         ("c.vtk", std::fs::read(data("quad_and_triangle.vtk")).unwrap()),
         ("d.vtu", std::fs::read(&vtu_path).unwrap()),
     ];
     let mut rng = XorShift(0x9E37_79B9_7F4A_7C15);
+    // OLLI_MESH_FUZZ_ROUNDS raises the number of corrupted copies per seed for a longer hunt.
+    let rounds: usize = std::env::var("OLLI_MESH_FUZZ_ROUNDS").ok().and_then(|v| v.parse().ok()).unwrap_or(150);
     let mut outcomes = [0usize; 2];
     for (name, bytes) in &seeds {
         let path = Path::new(name);
@@ -363,7 +370,7 @@ fn random_and_truncated_bytes_never_panic() {
         for cut in (0..bytes.len()).step_by(step) {
             try_bytes(&bytes[..cut]);
         }
-        for _ in 0..150 {
+        for _ in 0..rounds {
             let mut b = bytes.clone();
             for _ in 0..1 + rng.next() % 4 {
                 let i = (rng.next() % b.len() as u64) as usize;
@@ -390,4 +397,22 @@ fn vtu_side_masks_restore_the_same_faces() {
     write_vtu(&m, &path).unwrap();
     let back: Mesh = read_mesh(&path).unwrap();
     assert_eq!(back.side_sets["two"], m.side_sets["two"]);
+}
+
+/// Legacy `.vtk`, binary (big-endian, the legacy default) and ASCII, written
+/// by vtkio from our model, reads back to the same mesh with its sets.
+#[test]
+fn legacy_vtk_round_trip_binary_and_ascii() {
+    let mesh = hollow_cylinder(&AnnulusParams { angle: 120.0, circumferential_divisions: 4, axial_divisions: 2, order: Order::Quadratic, ..Default::default() }).unwrap();
+    let mut vtk = olli_mesh::export::to_vtk(&mesh, Default::default());
+    vtk.version = vtkio::model::Version::new_legacy(4, 2);
+    vtk.byte_order = vtkio::model::ByteOrder::BigEndian; // the legacy standard
+    let mut binary = Vec::new();
+    vtk.clone().write_legacy(&mut binary).unwrap();
+    let mut ascii = String::new();
+    vtk.write_legacy_ascii(&mut ascii).unwrap();
+    for (what, bytes) in [("binary", binary), ("ascii", ascii.into_bytes())] {
+        let back = import_bytes(Path::new("legacy.vtk"), &bytes).unwrap_or_else(|e| panic!("{what}: {e}"));
+        assert_eq!(back.mesh, mesh, "{what}");
+    }
 }

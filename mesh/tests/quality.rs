@@ -1,5 +1,7 @@
 //! Quality checks and repairs on small hand-built meshes with known answers.
 
+mod common;
+
 use olli_mesh::cleanup::{merge_duplicate_nodes, remove_unreferenced_nodes, reorient_clockwise_2d};
 use olli_mesh::quality::{check, element_quality, QualitySettings};
 use olli_mesh::{ElementKind, Mesh, Side};
@@ -82,4 +84,35 @@ fn reorientation_keeps_side_sets_on_the_same_edge() {
     nodes.sort_by(|a, b| a[0].total_cmp(&b[0]));
     assert_eq!(nodes, vec![[0.0, 0.0, 0.0], [1.0, 0.0, 0.0]]);
     assert_eq!(m.side_normal(s), [0.0, -1.0, 0.0]);
+}
+
+/// The hash-grid duplicate search agrees with the brute-force definition
+/// (node i duplicates the first earlier representative within tol) on random
+/// clusters placed across grid-cell faces.
+#[test]
+fn duplicate_search_matches_brute_force() {
+    let mut rng = common::XorShift(0xD1B5_4A32_D192_ED03);
+    let tol = 1e-3;
+    let mut m = Mesh::new(3);
+    for _ in 0..400 {
+        // Centres on a coarse lattice (cell faces of the grid), jittered copies.
+        let c = [rng.int(0, 5) as f64 * 4e-3, rng.int(0, 5) as f64 * 4e-3, rng.range(-0.01, 0.01)];
+        let copies = rng.int(1, 3);
+        for _ in 0..copies {
+            m.add_node([c[0] + rng.range(-3e-4, 3e-4), c[1] + rng.range(-3e-4, 3e-4), c[2]]);
+        }
+    }
+    let fast = olli_mesh::cleanup::duplicate_representatives(&m, tol);
+    let mut slow: Vec<usize> = (0..m.node_count()).collect();
+    for i in 0..m.node_count() {
+        for j in 0..i {
+            let d2: f64 = (0..3).map(|k| (m.nodes[i][k] - m.nodes[j][k]).powi(2)).sum();
+            if slow[j] == j && d2 <= tol * tol {
+                slow[i] = j;
+                break;
+            }
+        }
+    }
+    assert_eq!(fast, slow);
+    assert!(fast.iter().enumerate().filter(|&(i, &r)| r != i).count() > 100);
 }

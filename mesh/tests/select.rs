@@ -133,3 +133,15 @@ fn generator_specs_from_toml() {
     assert!(err.contains("sise") && err.contains("line 2"), "{err}");
     assert!(GeneratorSpec::from_toml("generate = \"teapot\"\n").is_err());
 }
+
+/// Command-line style options build the same spec as the TOML table.
+#[test]
+fn generator_specs_from_options() {
+    let a = GeneratorSpec::from_options("cord", &["center=[20.0, 1.75]", "diameter=3.5", "divisions=16", "order=quadratic"]).unwrap();
+    let b = GeneratorSpec::from_toml("generate = \"cord\"\ncenter = [20.0, 1.75]\ndiameter = 3.5\ndivisions = 16\norder = \"quadratic\"\n").unwrap();
+    assert_eq!(a, b);
+    let g = GeneratorSpec::from_options("rectangle", &["grading={ toward = \"top\", ratio = 3 }", "divisions=[2, 6]"]).unwrap();
+    assert_eq!(generate(&g).unwrap().element_count(), 12);
+    assert!(GeneratorSpec::from_options("cord", &["diameter"]).is_err());
+    assert!(GeneratorSpec::from_options("cord", &["diameter=big"]).is_err());
+}

@@ -74,7 +74,7 @@ const BULGE: f64 = 0.5;
 fn ogrid(mesh: &mut Mesh, p: &CircleParams) -> Result<[Vec<Side>; 4], MeshError> {
     let r = p.effective_radius();
     check_positive("radius", r)?;
-    if p.divisions < 4 || p.divisions % 4 != 0 {
+    if p.divisions < 4 || p.divisions & 3 != 0 {
         return Err(MeshError::param("divisions", format!("must be a multiple of 4, got {}", p.divisions)));
     }
     check_divisions("divisions", p.divisions)?;

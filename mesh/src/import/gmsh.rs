@@ -68,7 +68,18 @@ pub(crate) fn read(path: &Path, bytes: &[u8]) -> Result<Imported, MeshError> {
     let located = |offset: usize| if ascii { Location::Line(line_of(bytes, offset)) } else { Location::Offset(offset) };
     let parsed = super::guard(path, || {
         mshio::parse_msh_bytes(bytes).map_err(|e| {
-            let offset = e.backtrace.first().map(|(rest, _)| bytes.len().saturating_sub(rest.len())).unwrap_or(0);
+            // The innermost MSH-level error is where the reader stopped.
+            let offset = e
+                .begin_msh_errors()
+                .next()
+                .or(e.backtrace.first())
+                .map(|(rest, _)| bytes.len().saturating_sub(rest.len()))
+                .unwrap_or(0);
+            // The version sits on the line after `$MeshFormat`.
+            let offset = match e.first_msh_error() {
+                Some(mshio::error::MshParserErrorKind::UnsupportedMshVersion) => find(bytes, b"\n").map_or(0, |i| i + 1),
+                _ => offset,
+            };
             let what = e.first_msh_error().map(|k| k.to_string()).unwrap_or_else(|| "malformed MSH data".into());
             let context: Vec<String> = e
                 .filter_msh_errors()
@@ -226,7 +237,7 @@ pub(crate) fn read(path: &Path, bytes: &[u8]) -> Result<Imported, MeshError> {
 /// True when the `$MeshFormat` line says ASCII (file type 0).
 fn is_ascii_format(bytes: &[u8]) -> bool {
     let head = String::from_utf8_lossy(&bytes[..bytes.len().min(64)]);
-    head.lines().nth(1).and_then(|l| l.split_whitespace().nth(1)).map_or(true, |t| t == "0")
+    head.lines().nth(1).and_then(|l| l.split_whitespace().nth(1)).is_none_or(|t| t == "0")
 }
 
 /// `$PhysicalNames` entries: (dimension, tag) → name. The section is text

@@ -206,7 +206,8 @@ fn read_sets(path: &Path, mesh: &mut Mesh, point: &[Attribute], cell: &[Attribut
     Ok(())
 }
 
-/// Position of the first XML syntax error, found by quick-xml.
+/// Position of the first XML syntax error, found by quick-xml: a line, or
+/// a byte offset for single-line files.
 fn xml_error_location(bytes: &[u8]) -> Location {
     let mut reader = quick_xml::Reader::from_reader(bytes);
     let mut buf = Vec::new();
@@ -214,7 +215,12 @@ fn xml_error_location(bytes: &[u8]) -> Location {
         match reader.read_event_into(&mut buf) {
             Ok(quick_xml::events::Event::Eof) => return Location::Unknown,
             Ok(_) => buf.clear(),
-            Err(_) => return Location::Line(line_of(bytes, reader.error_position() as usize)),
+            Err(_) => {
+                let at = reader.error_position() as usize;
+                // Files written as one long line (ours are) are better served by an offset.
+                let multi_line = bytes.iter().filter(|&&b| b == b'\n').count() > 1;
+                return if multi_line { Location::Line(line_of(bytes, at)) } else { Location::Offset(at) };
+            }
         }
     }
 }
