@@ -98,3 +98,59 @@ fn eight_chain_reports_locking_instead_of_nan() {
         "{err}"
     );
 }
+
+/// Largest relative errors (stress, tangent) of `isochoric_response` by
+/// central differences on C (same conventions as `fd_check::fd_errors`).
+fn isochoric_fd_errors(m: &Material, c: &Matrix3<f64>, h: f64) -> (f64, f64) {
+    use olli_solver::material::tensor::VOIGT_PAIRS;
+    let r = m.isochoric_response(c).unwrap();
+    let (s_scale, d_scale) = (r.stress.norm(), r.tangent.norm());
+    let (mut es, mut et): (f64, f64) = (0.0, 0.0);
+    for (q, &(k, l)) in VOIGT_PAIRS.iter().enumerate() {
+        let mut dc = Matrix3::zeros();
+        dc[(k, l)] += h;
+        if k != l {
+            dc[(l, k)] += h;
+        }
+        let (rp, rm) = (m.isochoric_response(&(c + dc)).unwrap(), m.isochoric_response(&(c - dc)).unwrap());
+        // dW = S : dC / 2 (an off-diagonal pair counts twice).
+        let s_fd = (rp.energy - rm.energy) / (2.0 * h) * if k == l { 2.0 } else { 1.0 };
+        es = es.max((s_fd - r.stress[(k, l)]).abs() / s_scale);
+        // dS = D dE with dE_kk = h/2, engineering γ_kl = h.
+        let de = if k == l { 0.5 * h } else { h };
+        for (p, &(i, j)) in VOIGT_PAIRS.iter().enumerate() {
+            let d_fd = (rp.stress[(i, j)] - rm.stress[(i, j)]) / (2.0 * de);
+            et = et.max((d_fd - r.tangent[(p, q)]).abs() / d_scale);
+        }
+    }
+    (es, et)
+}
+
+// The pieces a mixed u–p element uses: the isochoric response alone must be
+// consistent (FD, general mathematics), its Cauchy stress deviatoric
+// (S_iso : C = 0, Holzapfel 2000 §6.4, from memory), and the full response
+// must equal S_iso + J U'(J) C⁻¹ (the split W = W_iso + U(J)).
+#[test]
+fn isochoric_pieces_for_mixed_elements_are_consistent() {
+    for (model, constants) in [
+        ("mooney-rivlin", vec![("c10", 0.3), ("c01", 0.15)]),
+        ("yeoh", vec![("c10", 0.5), ("c20", -0.05), ("c30", 0.004)]),
+        ("eight-chain", vec![("shear_modulus", 0.7), ("locking_stretch", 2.2)]),
+    ] {
+        let m = material(model, &constants, VolumetricForm::SimoTaylor);
+        for seed in 1..15 {
+            let f = random_deformation(seed + 500, 0.4);
+            let c = f.transpose() * f;
+            let (es, et) = isochoric_fd_errors(&m, &c, 1e-6);
+            assert!(es < 1e-6 && et < 1e-6, "{model} seed {seed}: stress {es:e}, tangent {et:e}");
+            let iso = m.isochoric_response(&c).unwrap();
+            let full = m.response(&c).unwrap();
+            let trace = (iso.stress * c).trace();
+            assert!(trace.abs() < 1e-12 * iso.stress.norm() * c.norm(), "{model}: S_iso : C = {trace:e}");
+            let j = c.determinant().sqrt();
+            let p = m.volumetric.pressure(j).unwrap();
+            let expected = iso.stress + c.try_inverse().unwrap() * (j * p);
+            assert!((full.stress - expected).norm() < 1e-12 * full.stress.norm().max(1.0), "{model}: split");
+        }
+    }
+}

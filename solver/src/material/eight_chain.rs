@@ -97,7 +97,10 @@ impl IsochoricEnergy for EightChain {
     }
 
     fn derivatives(&self, i1b: f64, _i2b: f64) -> Result<InvariantDerivatives, MaterialError> {
-        let lam = (i1b.max(0.0) / 3.0).sqrt();
+        // Ī1 ≥ 3 for every real deformation; below it only by round-off. A NaN
+        // invariant is treated as unbounded stretch so it fails as locking.
+        let i1b = if i1b.is_nan() { f64::INFINITY } else { i1b.max(3.0) };
+        let lam = (i1b / 3.0).sqrt();
         let sqrt_n = self.locking_stretch;
         let locked = MaterialError::ChainLocking {
             chain_stretch: lam,
@@ -123,5 +126,41 @@ impl IsochoricEnergy for EightChain {
 
     fn shear_modulus(&self) -> f64 {
         self.shear_modulus
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // The energy must be the integral of ∂W/∂Ī1 from the reference state
+    // (fundamental theorem of calculus): composite Simpson's rule on W1 with
+    // 2000 panels has error ~1e-13 here, so 1e-10 relative is safe. Covers
+    // both branches of ln(β/sinh β) and the offset W0 (W(3) = 0).
+    #[test]
+    fn energy_is_the_integral_of_w1_from_the_reference_state() {
+        for (mu, lock) in [(0.8, 1.3), (0.8, 2.5), (1.2, 40.0)] {
+            let m = EightChain::new(mu, lock).unwrap();
+            assert!(m.derivatives(3.0, 3.0).unwrap().w.abs() < 1e-14 * mu);
+            let i1_end = 3.0 * (0.97 * lock).powi(2);
+            let n = 2000;
+            let h = (i1_end - 3.0) / n as f64;
+            let w1 = |i: usize| m.derivatives(3.0 + h * i as f64, 3.0).unwrap().w1;
+            let simpson: f64 = (0..=n)
+                .map(|i| w1(i) * if i == 0 || i == n { 1.0 } else if i % 2 == 1 { 4.0 } else { 2.0 })
+                .sum::<f64>()
+                * h
+                / 3.0;
+            let w = m.derivatives(i1_end, 3.0).unwrap().w;
+            assert!(((w - simpson) / w).abs() < 1e-10, "μ={mu} λL={lock}: W = {w}, ∫W1 = {simpson}");
+        }
+    }
+
+    #[test]
+    fn locking_is_an_error_not_nan() {
+        let m = EightChain::new(1.0, 2.0).unwrap();
+        assert!(matches!(m.derivatives(12.0, 3.0), Err(MaterialError::ChainLocking { .. })));
+        assert!(matches!(m.derivatives(f64::NAN, 3.0), Err(MaterialError::ChainLocking { .. })));
+        assert!(EightChain::new(1.0, 1.0).is_err() && EightChain::new(0.0, 2.0).is_err());
     }
 }
