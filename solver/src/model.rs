@@ -108,7 +108,7 @@ impl Default for IncrementControls {
             cutback: 0.25,
             max_iterations: 15,
             force_tolerance: 1e-6,
-            energy_tolerance: 1e-12,
+            energy_tolerance: 1e-8,
             displacement_tolerance: 1e-6,
             line_search: true,
             extrapolate: true,
