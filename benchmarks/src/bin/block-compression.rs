@@ -39,6 +39,7 @@ fn main() {
     let args: Vec<String> = std::env::args().collect();
     let mut divisions = [20, 20, 5];
     let mut ordering = "amd".to_string();
+    let mut extrapolate = true;
     let mut i = 1;
     while i < args.len() {
         match args[i].as_str() {
@@ -53,8 +54,12 @@ fn main() {
                 ordering = args[i + 1].clone();
                 i += 2;
             }
+            "--no-extrapolation" => {
+                extrapolate = false;
+                i += 1;
+            }
             other => {
-                eprintln!("unknown argument `{other}`; usage: block-compression --divisions NX,NY,NZ [--ordering amd|nd]");
+                eprintln!("unknown argument `{other}`; usage: block-compression --divisions NX,NY,NZ [--ordering amd|nd] [--no-extrapolation]");
                 std::process::exit(2);
             }
         }
@@ -66,7 +71,7 @@ fn main() {
     model.output.nodal_fields = false;
     model.stages.push(Stage {
         name: "compress".into(),
-        controls: IncrementControls { first: 0.1, max: 0.1, ..Default::default() },
+        controls: IncrementControls { first: 0.1, max: 0.1, extrapolate, ..Default::default() },
         supports: vec![Support { set: "z0".into(), components: [true, true, true] }],
         motions: vec![Motion { set: "z1".into(), displacement: [Some(0.0), Some(0.0), Some(-2.0)] }],
         ..Default::default()

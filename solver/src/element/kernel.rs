@@ -178,12 +178,56 @@ fn kinematics<const ND: usize>(
     Ok((vol, vol_def))
 }
 
+/// Element pressure and dilatation carried as Newton unknowns of the
+/// three-field form (Simo, Taylor & Pister 1985), with what the element
+/// reports back for their update.
+///
+/// Carrying p and θ as element unknowns, updated by the linearised
+/// equations `θ = v/V` and `p = U'(θ)`, keeps the large volumetric error of a
+/// predictor step (κ times a second-order dilatation) out of the pressure
+/// used in the tangent's initial-stress term, so the tangent stays positive
+/// definite and Newton converges in fewer iterations for nearly
+/// incompressible rubber. The condensed residual itself does not depend on
+/// the carried p (it is eliminated) and on θ only to second order, so the
+/// converged solution is that of the condensed (two-field) element.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct MixedState {
+    /// Element pressure p (input).
+    pub pressure: f64,
+    /// Element dilatation θ (input).
+    pub dilatation: f64,
+    /// v/V at the current displacement (output).
+    pub volume_ratio: f64,
+    /// ∂(v/V)/∂u_e (output).
+    pub dvolume_du: [f64; MAX_DOFS],
+}
+
+impl Default for MixedState {
+    fn default() -> Self {
+        MixedState { pressure: 0.0, dilatation: 1.0, volume_ratio: 1.0, dvolume_du: [0.0; MAX_DOFS] }
+    }
+}
+
+impl MixedState {
+    /// Linearised changes (dθ, dp) for an element displacement change `du`
+    /// (only the first `nd` entries used).
+    pub fn increments(&self, du: &[f64], material: &crate::material::Material) -> Result<(f64, f64), MaterialError> {
+        let dtheta = self.volume_ratio - self.dilatation
+            + self.dvolume_du.iter().zip(du).map(|(a, b)| a * b).sum::<f64>();
+        let dp = material.volumetric.pressure_derivative(self.dilatation)? * dtheta
+            + material.volumetric.pressure(self.dilatation)?
+            - self.pressure;
+        Ok((dtheta, dp))
+    }
+}
+
 fn integrate<const ND: usize>(
     ctx: &ElementContext,
     x: &[[f64; 3]],
     u: &SVector<f64, ND>,
     force: &mut SVector<f64, ND>,
     mut stiffness: Option<&mut SMatrix<f64, ND, ND>>,
+    state: Option<&mut MixedState>,
 ) -> Result<f64, ElementError> {
     let axi = ctx.analysis == Analysis::Axisymmetric;
     let mut kin = [Kin::default(); MAX_POINTS];
@@ -195,19 +239,20 @@ fn integrate<const ND: usize>(
     let mat = ctx.material;
     let mut energy = 0.0;
     let mixed = ctx.formulation == Formulation::Mixed;
-    let (p, dp, theta) = if mixed {
-        let theta = vol_def / vol;
-        let m = |e| map_material(e, 0, theta);
-        energy += vol * mat.volumetric.energy(theta).map_err(m)?;
-        (
-            mat.volumetric.pressure(theta).map_err(m)?,
-            mat.volumetric.pressure_derivative(theta).map_err(m)?,
-            theta,
-        )
+    let ratio = vol_def / vol;
+    // Pressure and dilatation: condensed from u, or the carried unknowns.
+    let (p, dp, theta) = if !mixed {
+        (0.0, 0.0, ratio)
     } else {
-        (0.0, 0.0, 1.0)
+        let theta = state.as_ref().map(|s| s.dilatation).unwrap_or(ratio);
+        let m = |e| map_material(e, 0, theta);
+        energy += vol * mat.volumetric.energy(ratio).map_err(|e| map_material(e, 0, ratio))?;
+        let p = match state.as_ref() {
+            Some(s) => s.pressure,
+            None => mat.volumetric.pressure(theta).map_err(m)?,
+        };
+        (p, mat.volumetric.pressure_derivative(theta).map_err(m)?, theta)
     };
-    let _ = theta;
     let mut g = SVector::<f64, ND>::zeros();
     for (q, k) in kin.iter().take(ctx.shape.points()).enumerate() {
         let c = k.f.transpose() * k.f;
@@ -239,6 +284,16 @@ fn integrate<const ND: usize>(
         if let Some(kk) = stiffness {
             kk.ger(dp / vol, &g, &g, 1.0);
         }
+        if let Some(st) = state {
+            // Condensed residual of the three-field equations:
+            // f += g [U''(θ)(v/V − θ) + U'(θ) − p].
+            let u1 = mat.volumetric.pressure(theta).map_err(|e| map_material(e, 0, theta))?;
+            *force += g * (dp * (ratio - theta) + u1 - p);
+            st.volume_ratio = ratio;
+            for (d, gv) in st.dvolume_du.iter_mut().zip(g.iter()) {
+                *d = gv / vol;
+            }
+        }
     }
     Ok(energy)
 }
@@ -255,9 +310,23 @@ pub fn element_into(
     force: &mut [f64],
     stiffness: Option<&mut [f64]>,
 ) -> Result<f64, ElementError> {
+    element_with_state_into(ctx, x, u, force, stiffness, None)
+}
+
+/// As [`element_into`], with the mixed element's pressure and dilatation
+/// taken from `state` (three-field form) instead of condensed from u.
+/// Ignored by displacement elements.
+pub fn element_with_state_into(
+    ctx: &ElementContext,
+    x: &[[f64; 3]],
+    u: &[[f64; 3]],
+    force: &mut [f64],
+    stiffness: Option<&mut [f64]>,
+    state: Option<&mut MixedState>,
+) -> Result<f64, ElementError> {
     match ctx.shape {
-        Shape::Hex8 => run::<24>(ctx, x, u, 3, force, stiffness),
-        Shape::Quad4 => run::<8>(ctx, x, u, 2, force, stiffness),
+        Shape::Hex8 => run::<24>(ctx, x, u, 3, force, stiffness, state),
+        Shape::Quad4 => run::<8>(ctx, x, u, 2, force, stiffness, state),
     }
 }
 
@@ -268,19 +337,20 @@ fn run<const ND: usize>(
     dim: usize,
     force: &mut [f64],
     stiffness: Option<&mut [f64]>,
+    state: Option<&mut MixedState>,
 ) -> Result<f64, ElementError> {
     let uv = SVector::<f64, ND>::from_fn(|r, _| u[r / dim][r % dim]);
     let mut f = SVector::<f64, ND>::zeros();
     match stiffness {
         Some(kbuf) => {
             let mut k = SMatrix::<f64, ND, ND>::zeros();
-            let e = integrate::<ND>(ctx, x, &uv, &mut f, Some(&mut k))?;
+            let e = integrate::<ND>(ctx, x, &uv, &mut f, Some(&mut k), state)?;
             kbuf[..ND * ND].copy_from_slice(k.as_slice());
             force[..ND].copy_from_slice(f.as_slice());
             Ok(e)
         }
         None => {
-            let e = integrate::<ND>(ctx, x, &uv, &mut f, None)?;
+            let e = integrate::<ND>(ctx, x, &uv, &mut f, None, state)?;
             force[..ND].copy_from_slice(f.as_slice());
             Ok(e)
         }
