@@ -23,6 +23,8 @@ pub struct Pattern {
     pub scatter: Vec<u32>,
     /// Start of each element's block in `scatter`.
     pub scatter_offset: Vec<usize>,
+    /// Mesh node of each equation (for node-level orderings).
+    pub eq_node: Vec<usize>,
 }
 
 impl Pattern {
@@ -46,12 +48,14 @@ impl Pattern {
         let mut col_ptr = Vec::with_capacity(n + 1);
         col_ptr.push(0);
         let mut row_idx = Vec::new();
+        let mut eq_node = Vec::with_capacity(n);
         for (node, list) in adj.iter().enumerate() {
             for i in 0..dim {
                 let c = dofs.eq[node * dim + i];
                 if c == NONE {
                     continue;
                 }
+                eq_node.push(node);
                 for &m in list {
                     for j in 0..dim {
                         let r = dofs.eq[m * dim + j];
@@ -92,7 +96,7 @@ impl Pattern {
             }
             scatter_offset.push(scatter.len());
         }
-        Ok(Pattern { n, col_ptr, row_idx, scatter, scatter_offset })
+        Ok(Pattern { n, col_ptr, row_idx, scatter, scatter_offset, eq_node })
     }
 
     /// Storage slot of entry (row, col) with row ≥ col, if in the pattern.

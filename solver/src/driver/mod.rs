@@ -21,7 +21,7 @@ use rayon::prelude::*;
 
 use crate::assembly::{Discretization, DofMap, Pattern};
 use crate::contact::active::ActiveContacts;
-use crate::element::{point_states, PointState};
+use crate::element::{point_states, MixedState, PointState};
 use crate::error::SolveError;
 use crate::linear::{LinearSolver, LinearStats};
 use crate::model::Model;
@@ -43,6 +43,7 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
     let mut stats = SolveStats::default();
     let mut increments = Vec::new();
     let mut u = vec![0.0; ndof];
+    let mut states: Vec<MixedState> = Vec::new();
     let mut system: Option<(Vec<bool>, DofMap, Pattern, LinearSolver)> = None;
     for (si, (stage, prog)) in model.stages.iter().zip(&programs).enumerate() {
         if system.as_ref().map(|s| s.0 != prog.prescribed).unwrap_or(true) {
@@ -61,6 +62,12 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
         let start: Vec<f64> = u.clone();
         contacts.begin_stage(&stage.rigid_motions);
         let mut ctx = NewtonContext::new(&disc, dofs, pattern, linear, prog, &start, &stage.controls, &stage.name, &mut contacts);
+        if stage.controls.carry_pressure {
+            if states.is_empty() {
+                states = vec![MixedState::default(); model.mesh.element_count()];
+            }
+            ctx = ctx.with_states(std::mem::take(&mut states));
+        }
         let c = &stage.controls;
         let (mut t, mut dt) = (0.0f64, c.first.clamp(c.min, c.max).min(1.0));
         let mut history: Option<(Vec<f64>, f64)> = None;
@@ -86,6 +93,9 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
                         Err(e) => return Ok(finish(increments, Termination::Stopped(e), stats, system)),
                     };
                     observer.event(&Event::Converged(&result));
+                    if stage.controls.carry_pressure {
+                        states.clone_from(&ctx.states_converged);
+                    }
                     increments.push(result);
                     if iterations <= c.fast_iterations {
                         dt = (step * c.growth).min(c.max);

@@ -22,6 +22,7 @@ use crate::assembly::assembler::Outputs;
 use crate::assembly::dofs::NONE;
 use crate::assembly::{Assembler, Discretization, DofMap, Pattern};
 use crate::contact::active::{ActiveContacts, MAX_AUGMENTATIONS};
+use crate::element::{ElementError, Formulation, MixedState};
 use crate::error::SolveError;
 use crate::linear::{FactorKind, LinearSolver};
 use crate::load::pressure::{pressure_side_into, MAX_SIDE_DOFS};
@@ -62,6 +63,14 @@ pub struct NewtonContext<'a> {
     pub contacts: &'a mut ActiveContacts,
     /// Smallest force scale: 1e-10 × the model's force unit μ·L² (see [`force_unit`]).
     force_floor: f64,
+    /// Element pressure/dilatation unknowns (three-field form), at the
+    /// current iterate, at the start of the line search, and converged.
+    states: Vec<MixedState>,
+    states_base: Vec<MixedState>,
+    pub states_converged: Vec<MixedState>,
+    /// Per element: dilatation change per unit line-search step, and the part
+    /// applied in full (prescribed motion and consistency residuals).
+    dtheta: Vec<(f64, f64)>,
 }
 
 /// A force characteristic of the model: the largest shear modulus times
@@ -115,7 +124,77 @@ impl<'a> NewtonContext<'a> {
             last_converged: start.to_vec(),
             force_floor: 1e-10 * force_unit(disc),
             contacts,
+            states: Vec::new(),
+            states_base: Vec::new(),
+            states_converged: Vec::new(),
+            dtheta: vec![(0.0, 0.0); disc.mesh().element_count()],
         }
+    }
+
+    /// Starts from carried element states (from the previous stage).
+    pub fn with_states(mut self, states: Vec<MixedState>) -> Self {
+        self.states_base = states.clone();
+        self.states = states.clone();
+        self.states_converged = states;
+        self
+    }
+
+    /// Linearised dilatation changes of every mixed element for the free
+    /// correction `du` (per unit step) and the prescribed change `dup`.
+    fn state_directions(&mut self, with_prescribed: bool) -> Result<(), SolveError> {
+        if self.states.is_empty() {
+            return Ok(());
+        }
+        let mesh = self.disc.mesh();
+        let dim = self.dofs.dim;
+        for e in 0..mesh.element_count() {
+            if self.disc.context(e).formulation != Formulation::Mixed {
+                continue;
+            }
+            let st = &self.states[e];
+            let (mut free, mut fixed) = (0.0, st.volume_ratio - st.dilatation);
+            for (a, &n) in mesh.element_nodes(e).iter().enumerate() {
+                for i in 0..dim {
+                    let d = n * dim + i;
+                    let q = self.dofs.eq[d];
+                    let w = st.dvolume_du[a * dim + i];
+                    if q != NONE {
+                        free += w * self.du[q];
+                    } else if with_prescribed {
+                        fixed += w * self.dup[d];
+                    }
+                }
+            }
+            self.dtheta[e] = (free, fixed);
+        }
+        Ok(())
+    }
+
+    /// Element states at line-search step `s` from the base states.
+    fn apply_states(&mut self, s: f64) -> Result<(), SolveError> {
+        if self.states.is_empty() {
+            return Ok(());
+        }
+        for e in 0..self.states.len() {
+            let ctx = self.disc.context(e);
+            if ctx.formulation != Formulation::Mixed {
+                continue;
+            }
+            let base = self.states_base[e];
+            let (free, fixed) = self.dtheta[e];
+            let dtheta = fixed + s * free;
+            let vol = &ctx.material.volumetric;
+            let m = |err| SolveError::from_element(e, ElementError::Material(err));
+            let dp = vol.pressure_derivative(base.dilatation).map_err(m)? * dtheta + vol.pressure(base.dilatation).map_err(m)?
+                - base.pressure;
+            let st = &mut self.states[e];
+            st.dilatation = base.dilatation + dtheta;
+            st.pressure = base.pressure + dp;
+            if !(st.dilatation > 0.0) {
+                return Err(SolveError::InvertedElement { element: e, point: 0, j: st.dilatation });
+            }
+        }
+        Ok(())
     }
 
     fn prescribed_at(&self, t: f64, d: usize) -> f64 {
@@ -138,6 +217,7 @@ impl<'a> NewtonContext<'a> {
                 internal: &mut self.f_int,
                 tangent: if want_k { Some(&mut self.k) } else { None },
                 predictor: if predict { Some((&self.dup, &mut self.rhs)) } else { None },
+                mixed: if self.states.is_empty() { None } else { Some(&mut self.states) },
             },
         );
         let energy = match energy {
@@ -294,6 +374,7 @@ impl<'a> NewtonContext<'a> {
         // Predictor: extrapolated start, then the remaining prescribed change through the tangent.
         let mut extrapolated = false;
         u.copy_from_slice(&self.last_converged);
+        self.states.copy_from_slice(&self.states_converged);
         if let Some((prev, ratio)) = extrapolation {
             for d in 0..ndof {
                 u[d] += ratio * (self.last_converged[d] - prev[d]);
@@ -339,6 +420,8 @@ impl<'a> NewtonContext<'a> {
             self.du.copy_from_slice(&self.rhs);
             self.linear.solve(&mut self.du)?;
             iterations += 1;
+            self.state_directions(iterations == 1)?;
+            self.states_base.copy_from_slice(&self.states);
             stats.newton_iterations += 1;
             // G(0) = du·r = −du·rhs (negative for a descent direction).
             let g0: f64 = -self.du.iter().zip(&self.rhs).map(|(a, b)| a * b).sum::<f64>();
@@ -348,7 +431,8 @@ impl<'a> NewtonContext<'a> {
             let mut tries = 0;
             let energy = loop {
                 self.apply(u, s);
-                match self.evaluate(u, t, true, false, stats) {
+                let evaluated = self.apply_states(s).and_then(|_| self.evaluate(u, t, true, false, stats));
+                match evaluated {
                     Ok(w) => {
                         if !c.line_search || tries >= 4 {
                             break w;
@@ -393,6 +477,7 @@ impl<'a> NewtonContext<'a> {
             let disp_ok = step2.sqrt() <= c.displacement_tolerance * inc2.sqrt().max(f64::MIN_POSITIVE);
             if rel <= c.force_tolerance && (energy_ok || disp_ok) {
                 if !self.contacts.needs_augmentation() {
+                    self.states_converged.copy_from_slice(&self.states);
                     return Ok(IncrementOutcome::Converged { iterations, residuals, energy });
                 }
                 // Augmented Lagrangian: move the multipliers toward the contact

@@ -121,3 +121,37 @@ fn inverted_point_is_reported() {
     let mut f = vec![0.0; 8];
     assert!(matches!(element_into(&ctx, &x, &u, &mut f, None), Err(ElementError::Inverted { .. })));
 }
+
+#[test]
+fn carried_state_at_the_consistent_point_reproduces_the_condensed_element() {
+    // With p = U'(v/V) and θ = v/V the three-field residual and tangent are
+    // those of the condensed element, so both paths converge to one solution.
+    let mat = material();
+    let ctx = ElementContext { shape: Shape::Hex8, analysis: Analysis::Solid3d, formulation: Formulation::Mixed, material: &mat };
+    let (x, u) = distorted(Shape::Hex8);
+    let (mut f0, mut k0) = (vec![0.0; 24], vec![0.0; 576]);
+    element_into(&ctx, &x, &u, &mut f0, Some(&mut k0)).unwrap();
+    // First pass only to learn v/V.
+    let mut st = MixedState::default();
+    let (mut f1, mut k1) = (vec![0.0; 24], vec![0.0; 576]);
+    element_with_state_into(&ctx, &x, &u, &mut f1, Some(&mut k1), Some(&mut st)).unwrap();
+    st.dilatation = st.volume_ratio;
+    st.pressure = mat.volumetric.pressure(st.volume_ratio).unwrap();
+    element_with_state_into(&ctx, &x, &u, &mut f1, Some(&mut k1), Some(&mut st)).unwrap();
+    let scale = f0.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+    for (a, b) in f0.iter().zip(&f1) {
+        assert!((a - b).abs() <= 1e-12 * scale);
+    }
+    let kscale = k0.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+    for (a, b) in k0.iter().zip(&k1) {
+        assert!((a - b).abs() <= 1e-12 * kscale);
+    }
+    // Away from it: the carried pressure cancels from the condensed residual
+    // (p is eliminated) but enters the tangent's initial-stress term ...
+    st.pressure += 1.0;
+    element_with_state_into(&ctx, &x, &u, &mut f1, Some(&mut k1), Some(&mut st)).unwrap();
+    assert!(f0.iter().zip(&f1).all(|(a, b)| (a - b).abs() <= 1e-10 * scale));
+    assert!(k0.iter().zip(&k1).any(|(a, b)| (a - b).abs() > 1e-3 * kscale));
+    // (A carried θ off v/V enters the residual only through
+    // U'(θ) + U''(θ)(v/V − θ), a Taylor step to U'(v/V): second order.)
+}

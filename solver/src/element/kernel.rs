@@ -63,20 +63,79 @@ fn cofactor_derivative(j: f64, fi: &Matrix3<f64>) -> M9 {
     })
 }
 
-fn b_matrix<const ND: usize>(geo: &PointGeometry, axisymmetric: bool) -> SMatrix<f64, 9, ND> {
-    let dim = if ND == 24 { 3 } else { 2 };
-    let mut b = SMatrix::<f64, 9, ND>::zeros();
-    for a in 0..ND / dim {
-        for i in 0..dim {
-            for jj in 0..3 {
-                b[(3 * i + jj, a * dim + i)] = geo.g[a][jj];
+/// The B operator is sparse: column (a, i) holds ∂N_a/∂X_J in rows 3i+J, plus
+/// N_a/R in row 8 (the hoop stretch) for the radial dof of an axisymmetric
+/// element. These helpers apply it without forming it.
+#[derive(Clone, Copy)]
+struct BOp<'g> {
+    geo: &'g PointGeometry,
+    dim: usize,
+    axisymmetric: bool,
+}
+
+impl BOp<'_> {
+    /// `F − I = B u` as a 9-vector.
+    fn apply<const ND: usize>(&self, u: &SVector<f64, ND>) -> V9 {
+        let mut f = V9::zeros();
+        for a in 0..ND / self.dim {
+            let g = &self.geo.g[a];
+            for i in 0..self.dim {
+                let ua = u[a * self.dim + i];
+                for jj in 0..3 {
+                    f[3 * i + jj] += ua * g[jj];
+                }
+            }
+            if self.axisymmetric {
+                f[8] += u[a * self.dim] * self.geo.n[a] / self.geo.radius;
             }
         }
-        if axisymmetric {
-            b[(8, a * dim)] += geo.n[a] / geo.radius;
+        f
+    }
+
+    /// `out += s · Bᵀ v`.
+    fn add_transpose<const ND: usize>(&self, v: &V9, s: f64, out: &mut SVector<f64, ND>) {
+        for a in 0..ND / self.dim {
+            let g = &self.geo.g[a];
+            for i in 0..self.dim {
+                let mut t = g[0] * v[3 * i] + g[1] * v[3 * i + 1] + g[2] * v[3 * i + 2];
+                if self.axisymmetric && i == 0 {
+                    t += v[8] * self.geo.n[a] / self.geo.radius;
+                }
+                out[a * self.dim + i] += s * t;
+            }
         }
     }
-    b
+
+    /// `k += s · Bᵀ A B`, using the sparsity of B (about a third of the dense product's work).
+    fn add_btab<const ND: usize>(&self, a: &M9, s: f64, k: &mut SMatrix<f64, ND, ND>) {
+        let mut ab = SMatrix::<f64, 9, ND>::zeros();
+        for b in 0..ND / self.dim {
+            let g = &self.geo.g[b];
+            for kk in 0..self.dim {
+                let col = b * self.dim + kk;
+                for r in 0..9 {
+                    let mut t = a[(r, 3 * kk)] * g[0] + a[(r, 3 * kk + 1)] * g[1] + a[(r, 3 * kk + 2)] * g[2];
+                    if self.axisymmetric && kk == 0 {
+                        t += a[(r, 8)] * self.geo.n[b] / self.geo.radius;
+                    }
+                    ab[(r, col)] = s * t;
+                }
+            }
+        }
+        for c in 0..ND {
+            let abc = ab.column(c);
+            for a_ in 0..ND / self.dim {
+                let g = &self.geo.g[a_];
+                for i in 0..self.dim {
+                    let mut t = g[0] * abc[3 * i] + g[1] * abc[3 * i + 1] + g[2] * abc[3 * i + 2];
+                    if self.axisymmetric && i == 0 {
+                        t += abc[8] * self.geo.n[a_] / self.geo.radius;
+                    }
+                    k[(a_ * self.dim + i, c)] += t;
+                }
+            }
+        }
+    }
 }
 
 fn map_material(e: MaterialError, point: usize, j: f64) -> ElementError {
@@ -106,7 +165,7 @@ fn kinematics<const ND: usize>(
     let (mut vol, mut vol_def) = (0.0, 0.0);
     for q in 0..ctx.shape.points() {
         let geo = point_geometry(ctx.shape, ctx.analysis, x, q)?;
-        let f9 = b_matrix::<ND>(&geo, axi) * u;
+        let f9 = BOp { geo: &geo, dim: ND / ctx.shape.nodes(), axisymmetric: axi }.apply(u);
         let f = Matrix3::from_fn(|i, jj| f9[3 * i + jj] + if i == jj { 1.0 } else { 0.0 });
         let j = f.determinant();
         if !(j > 0.0 && j.is_finite()) {
@@ -119,12 +178,56 @@ fn kinematics<const ND: usize>(
     Ok((vol, vol_def))
 }
 
+/// Element pressure and dilatation carried as Newton unknowns of the
+/// three-field form (Simo, Taylor & Pister 1985), with what the element
+/// reports back for their update.
+///
+/// Carrying p and θ as element unknowns, updated by the linearised
+/// equations `θ = v/V` and `p = U'(θ)`, keeps the large volumetric error of a
+/// predictor step (κ times a second-order dilatation) out of the pressure
+/// used in the tangent's initial-stress term, so the tangent stays positive
+/// definite and Newton converges in fewer iterations for nearly
+/// incompressible rubber. The condensed residual itself does not depend on
+/// the carried p (it is eliminated) and on θ only to second order, so the
+/// converged solution is that of the condensed (two-field) element.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct MixedState {
+    /// Element pressure p (input).
+    pub pressure: f64,
+    /// Element dilatation θ (input).
+    pub dilatation: f64,
+    /// v/V at the current displacement (output).
+    pub volume_ratio: f64,
+    /// ∂(v/V)/∂u_e (output).
+    pub dvolume_du: [f64; MAX_DOFS],
+}
+
+impl Default for MixedState {
+    fn default() -> Self {
+        MixedState { pressure: 0.0, dilatation: 1.0, volume_ratio: 1.0, dvolume_du: [0.0; MAX_DOFS] }
+    }
+}
+
+impl MixedState {
+    /// Linearised changes (dθ, dp) for an element displacement change `du`
+    /// (only the first `nd` entries used).
+    pub fn increments(&self, du: &[f64], material: &crate::material::Material) -> Result<(f64, f64), MaterialError> {
+        let dtheta = self.volume_ratio - self.dilatation
+            + self.dvolume_du.iter().zip(du).map(|(a, b)| a * b).sum::<f64>();
+        let dp = material.volumetric.pressure_derivative(self.dilatation)? * dtheta
+            + material.volumetric.pressure(self.dilatation)?
+            - self.pressure;
+        Ok((dtheta, dp))
+    }
+}
+
 fn integrate<const ND: usize>(
     ctx: &ElementContext,
     x: &[[f64; 3]],
     u: &SVector<f64, ND>,
     force: &mut SVector<f64, ND>,
     mut stiffness: Option<&mut SMatrix<f64, ND, ND>>,
+    state: Option<&mut MixedState>,
 ) -> Result<f64, ElementError> {
     let axi = ctx.analysis == Analysis::Axisymmetric;
     let mut kin = [Kin::default(); MAX_POINTS];
@@ -136,19 +239,20 @@ fn integrate<const ND: usize>(
     let mat = ctx.material;
     let mut energy = 0.0;
     let mixed = ctx.formulation == Formulation::Mixed;
-    let (p, dp, theta) = if mixed {
-        let theta = vol_def / vol;
-        let m = |e| map_material(e, 0, theta);
-        energy += vol * mat.volumetric.energy(theta).map_err(m)?;
-        (
-            mat.volumetric.pressure(theta).map_err(m)?,
-            mat.volumetric.pressure_derivative(theta).map_err(m)?,
-            theta,
-        )
+    let ratio = vol_def / vol;
+    // Pressure and dilatation: condensed from u, or the carried unknowns.
+    let (p, dp, theta) = if !mixed {
+        (0.0, 0.0, ratio)
     } else {
-        (0.0, 0.0, 1.0)
+        let theta = state.as_ref().map(|s| s.dilatation).unwrap_or(ratio);
+        let m = |e| map_material(e, 0, theta);
+        energy += vol * mat.volumetric.energy(ratio).map_err(|e| map_material(e, 0, ratio))?;
+        let p = match state.as_ref() {
+            Some(s) => s.pressure,
+            None => mat.volumetric.pressure(theta).map_err(m)?,
+        };
+        (p, mat.volumetric.pressure_derivative(theta).map_err(m)?, theta)
     };
-    let _ = theta;
     let mut g = SVector::<f64, ND>::zeros();
     for (q, k) in kin.iter().take(ctx.shape.points()).enumerate() {
         let c = k.f.transpose() * k.f;
@@ -159,27 +263,36 @@ fn integrate<const ND: usize>(
         }
         .map_err(|e| map_material(e, q, k.j))?;
         energy += resp.energy * k.geo.dv;
-        let b = b_matrix::<ND>(&k.geo, axi);
+        let b = BOp { geo: &k.geo, dim: ND / ctx.shape.nodes(), axisymmetric: axi };
         let mut p9 = to9(&(k.f * resp.stress));
         let fi = k.f.try_inverse().ok_or(ElementError::Inverted { point: q, j: k.j })?;
         if mixed {
             let jfit = to9(&(fi.transpose() * k.j));
             p9 += jfit * p;
-            g += b.transpose() * jfit * k.geo.dv;
+            b.add_transpose(&jfit, k.geo.dv, &mut g);
         }
-        *force += b.transpose() * p9 * k.geo.dv;
+        b.add_transpose(&p9, k.geo.dv, force);
         if let Some(kk) = stiffness.as_deref_mut() {
             let mut a = first_elasticity(&k.f, &resp.stress, &resp.tangent);
             if mixed {
                 a += cofactor_derivative(k.j, &fi) * p;
             }
-            let ab = a * b * k.geo.dv;
-            kk.gemm_tr(1.0, &b, &ab, 1.0);
+            b.add_btab(&a, k.geo.dv, kk);
         }
     }
     if mixed {
         if let Some(kk) = stiffness {
             kk.ger(dp / vol, &g, &g, 1.0);
+        }
+        if let Some(st) = state {
+            // Condensed residual of the three-field equations:
+            // f += g [U''(θ)(v/V − θ) + U'(θ) − p].
+            let u1 = mat.volumetric.pressure(theta).map_err(|e| map_material(e, 0, theta))?;
+            *force += g * (dp * (ratio - theta) + u1 - p);
+            st.volume_ratio = ratio;
+            for (d, gv) in st.dvolume_du.iter_mut().zip(g.iter()) {
+                *d = gv / vol;
+            }
         }
     }
     Ok(energy)
@@ -197,9 +310,23 @@ pub fn element_into(
     force: &mut [f64],
     stiffness: Option<&mut [f64]>,
 ) -> Result<f64, ElementError> {
+    element_with_state_into(ctx, x, u, force, stiffness, None)
+}
+
+/// As [`element_into`], with the mixed element's pressure and dilatation
+/// taken from `state` (three-field form) instead of condensed from u.
+/// Ignored by displacement elements.
+pub fn element_with_state_into(
+    ctx: &ElementContext,
+    x: &[[f64; 3]],
+    u: &[[f64; 3]],
+    force: &mut [f64],
+    stiffness: Option<&mut [f64]>,
+    state: Option<&mut MixedState>,
+) -> Result<f64, ElementError> {
     match ctx.shape {
-        Shape::Hex8 => run::<24>(ctx, x, u, 3, force, stiffness),
-        Shape::Quad4 => run::<8>(ctx, x, u, 2, force, stiffness),
+        Shape::Hex8 => run::<24>(ctx, x, u, 3, force, stiffness, state),
+        Shape::Quad4 => run::<8>(ctx, x, u, 2, force, stiffness, state),
     }
 }
 
@@ -210,19 +337,20 @@ fn run<const ND: usize>(
     dim: usize,
     force: &mut [f64],
     stiffness: Option<&mut [f64]>,
+    state: Option<&mut MixedState>,
 ) -> Result<f64, ElementError> {
     let uv = SVector::<f64, ND>::from_fn(|r, _| u[r / dim][r % dim]);
     let mut f = SVector::<f64, ND>::zeros();
     match stiffness {
         Some(kbuf) => {
             let mut k = SMatrix::<f64, ND, ND>::zeros();
-            let e = integrate::<ND>(ctx, x, &uv, &mut f, Some(&mut k))?;
+            let e = integrate::<ND>(ctx, x, &uv, &mut f, Some(&mut k), state)?;
             kbuf[..ND * ND].copy_from_slice(k.as_slice());
             force[..ND].copy_from_slice(f.as_slice());
             Ok(e)
         }
         None => {
-            let e = integrate::<ND>(ctx, x, &uv, &mut f, None)?;
+            let e = integrate::<ND>(ctx, x, &uv, &mut f, None, state)?;
             force[..ND].copy_from_slice(f.as_slice());
             Ok(e)
         }

@@ -30,7 +30,7 @@ pub mod geometry;
 pub mod kernel;
 
 pub use geometry::{PointGeometry, Shape};
-pub use kernel::{element_into, point_states, PointState, MAX_DOFS, MAX_POINTS};
+pub use kernel::{element_into, element_with_state_into, point_states, MixedState, PointState, MAX_DOFS, MAX_POINTS};
 
 use thiserror::Error;
 

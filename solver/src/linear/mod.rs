@@ -24,6 +24,8 @@ use faer::sparse::{Pair, SparseColMat, SparseColMatRef, SymbolicSparseColMat};
 use faer::{Conj, MatMut, Par, Side};
 
 use crate::assembly::Pattern;
+
+pub mod nested_dissection;
 use crate::error::SolveError;
 
 /// Fill-reducing ordering of the Cholesky factorization.
@@ -32,6 +34,9 @@ pub enum Ordering {
     /// Approximate minimum degree (faer's built-in). Default.
     #[default]
     Amd,
+    /// Nested dissection of the node graph through METIS (needs the `metis`
+    /// feature; without it the solver reports an error).
+    NestedDissection,
     /// A caller-supplied permutation: `perm[k]` is the equation eliminated k-th
     /// (e.g. from a nested-dissection partitioner).
     Custom(Vec<usize>),
@@ -113,9 +118,18 @@ impl LinearSolver {
         let t = Instant::now();
         let symbolic_matrix = pattern.symbolic();
         let perm_storage;
-        let ordering = match &settings.ordering {
-            Ordering::Amd => SymmetricOrdering::Amd,
-            Ordering::Custom(p) => {
+        let nd_perm;
+        let custom = match &settings.ordering {
+            Ordering::NestedDissection => {
+                nd_perm = nested_dissection::order(pattern)?;
+                Some(&nd_perm)
+            }
+            Ordering::Custom(p) => Some(p),
+            Ordering::Amd => None,
+        };
+        let ordering = match custom {
+            None => SymmetricOrdering::Amd,
+            Some(p) => {
                 if p.len() != pattern.n {
                     return Err(SolveError::Linear(format!(
                         "custom ordering has {} entries for {} equations",
