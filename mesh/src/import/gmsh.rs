@@ -112,7 +112,7 @@ pub(crate) fn read(path: &Path, bytes: &[u8]) -> Result<Imported, MeshError> {
                 t
             }
             (None, Some(all)) => all[running..running + b.nodes.len()].to_vec(),
-            (None, None) => (0..b.nodes.len()).map(|i| nodes.min_node_tag + (running + i) as u64).collect(),
+            (None, None) => (0..b.nodes.len()).map(|i| nodes.min_node_tag.wrapping_add((running + i) as u64)).collect(),
         };
         for (n, tag) in b.nodes.iter().zip(tags.drain(..)) {
             if ![n.x, n.y, n.z].iter().all(|c| c.is_finite()) {
@@ -144,7 +144,7 @@ pub(crate) fn read(path: &Path, bytes: &[u8]) -> Result<Imported, MeshError> {
         }
     }
     let group_name = |dim: i32, tag: i32| -> String {
-        names.get(&(dim, tag.abs())).cloned().unwrap_or_else(|| format!("physical_{dim}_{}", tag.abs()))
+        names.get(&(dim, tag.saturating_abs())).cloned().unwrap_or_else(|| format!("physical_{dim}_{}", tag.unsigned_abs()))
     };
 
     let mut dimension = 0;
