@@ -11,7 +11,7 @@
 //! mshio also drops node tags when they are contiguous, so this module reads
 //! the tag lists itself rather than assume file order equals tag order.
 
-use std::collections::{BTreeMap, HashMap};
+use std::collections::HashMap;
 use std::path::Path;
 
 use mshio::ElementType as G;
@@ -63,9 +63,96 @@ fn type_dimension(t: G) -> Option<usize> {
     volume_kind(t).map(|(k, _)| k.dimension()).or_else(|| boundary_corners(t).map(|c| c.1))
 }
 
+type Msh = mshio::MshFile<u64, i32, f64>;
+
 pub(crate) fn read(path: &Path, bytes: &[u8]) -> Result<Imported, MeshError> {
+    let msh = parse(path, bytes)?;
+    let err = |msg: String| MeshError::parse(path, Location::Unknown, msg);
+    let (Some(nodes), Some(elements)) = (msh.data.nodes.as_ref(), msh.data.elements.as_ref()) else {
+        return Err(err("no $Nodes or $Elements section".into()));
+    };
+    let mut dimension = 0;
+    for b in &elements.element_blocks {
+        match type_dimension(b.element_type) {
+            Some(d) => dimension = dimension.max(d),
+            None => return Err(err(format!("unsupported Gmsh element type {:?} ({})", b.element_type, b.element_type as i32))),
+        }
+    }
+    if dimension < 2 {
+        return Err(err("no 2-D or 3-D elements".into()));
+    }
+    let (coords, node_of) = read_nodes(path, bytes, nodes)?;
+    let groups = Groups::new(&msh, bytes);
+    let lookup = |tag: u64, element: u64| {
+        node_of.get(&tag).copied().ok_or_else(|| err(format!("element {element} refers to missing node {tag}")))
+    };
+    let mut mesh = Mesh::new(dimension);
+    mesh.nodes = coords;
+
+    let mut conn = Vec::with_capacity(27);
+    for b in &elements.element_blocks {
+        let Some((kind, perm)) = volume_kind(b.element_type).filter(|(k, _)| k.dimension() == dimension) else { continue };
+        let names = groups.names_of(b.entity_dim, b.entity_tag);
+        for el in &b.elements {
+            if el.nodes.len() != kind.node_count() {
+                return Err(err(format!("element {} has {} nodes; {kind} needs {}", el.element_tag, el.nodes.len(), kind.node_count())));
+            }
+            conn.clear();
+            for &p in perm {
+                conn.push(lookup(el.nodes[p], el.element_tag)?);
+            }
+            let e = mesh.add_element(kind, &conn);
+            for name in &names {
+                mesh.element_sets.entry(name.clone()).or_default().push(e);
+            }
+        }
+    }
+
+    // Boundary elements in physical groups: node sets, and side sets when
+    // one dimension below the mesh, matched to element sides by corner nodes.
+    let mut side_of: HashMap<Vec<usize>, Side> = HashMap::new();
+    for e in 0..mesh.kinds.len() {
+        for k in 0..mesh.kinds[e].sides().len() {
+            let side = Side { element: e, local: k as u8 };
+            side_of.entry(mesh.side_key(side)).or_insert(side);
+        }
+    }
+    let mut unmatched = 0usize;
+    for b in &elements.element_blocks {
+        let Some((corners, dim)) = boundary_corners(b.element_type).filter(|&(_, d)| d < dimension) else { continue };
+        let names = groups.names_of(b.entity_dim, b.entity_tag);
+        if names.is_empty() {
+            continue;
+        }
+        for el in &b.elements {
+            let ns = el.nodes.iter().map(|&t| lookup(t, el.element_tag)).collect::<Result<Vec<_>, _>>()?;
+            for name in &names {
+                mesh.node_sets.entry(name.clone()).or_default().extend(&ns);
+            }
+            if dim + 1 == dimension {
+                let mut key = ns.get(..corners).map(<[usize]>::to_vec).unwrap_or_default();
+                key.sort_unstable();
+                match side_of.get(&key) {
+                    Some(&s) => names.iter().for_each(|n| mesh.side_sets.entry(n.clone()).or_default().push(s)),
+                    None => unmatched += 1,
+                }
+            }
+        }
+    }
+    for set in mesh.node_sets.values_mut() {
+        set.sort_unstable();
+        set.dedup();
+    }
+    let mut notes = Vec::new();
+    if unmatched > 0 {
+        notes.push(format!("{unmatched} boundary elements in physical groups match no element side and were left out"));
+    }
+    Ok(Imported { mesh, notes })
+}
+
+/// Runs mshio, turning its error into one with a line (ASCII) or byte offset.
+fn parse(path: &Path, bytes: &[u8]) -> Result<Msh, MeshError> {
     let ascii = is_ascii_format(bytes);
-    let located = |offset: usize| if ascii { Location::Line(line_of(bytes, offset)) } else { Location::Offset(offset) };
     let parsed = super::guard(path, || {
         mshio::parse_msh_bytes(bytes).map_err(|e| {
             // The innermost MSH-level error is where the reader stopped.
@@ -81,27 +168,33 @@ pub(crate) fn read(path: &Path, bytes: &[u8]) -> Result<Imported, MeshError> {
                 _ => offset,
             };
             let what = e.first_msh_error().map(|k| k.to_string()).unwrap_or_else(|| "malformed MSH data".into());
-            let context: Vec<String> = e
-                .filter_msh_errors()
-                .filter_map(|(_, k)| k.context().map(str::to_string))
-                .collect();
+            let context: Vec<String> = e.filter_msh_errors().filter_map(|(_, k)| k.context().map(str::to_string)).collect();
             (offset, if context.is_empty() { what } else { format!("{what} (in {})", context.join(", in ")) })
         })
     })?;
-    let msh = parsed.map_err(|(offset, msg)| MeshError::parse(path, located(offset), msg))?;
-    let err = |msg: String| MeshError::parse(path, Location::Unknown, msg);
-    let (Some(nodes), Some(elements)) = (msh.data.nodes.as_ref(), msh.data.elements.as_ref()) else {
-        return Err(err("no $Nodes or $Elements section".into()));
-    };
+    parsed.map_err(|(offset, msg)| {
+        let location = if ascii { Location::Line(line_of(bytes, offset)) } else { Location::Offset(offset) };
+        MeshError::parse(path, location, msg)
+    })
+}
 
-    // Nodes, with their tags in file order.
+/// Node coordinates in file order, and the index of each node tag.
+type NodeTable = (Vec<[f64; 3]>, HashMap<u64, usize>);
+
+/// Reads the node blocks into a [`NodeTable`].
+fn read_nodes(
+    path: &Path,
+    bytes: &[u8],
+    nodes: &mshio::Nodes<u64, i32, f64>,
+) -> Result<NodeTable, MeshError> {
+    let err = |msg: String| MeshError::parse(path, Location::Unknown, msg);
     let total: usize = nodes.node_blocks.iter().map(|b| b.nodes.len()).sum();
-    let file_tags = scan_node_tags(bytes, ascii).filter(|t| t.len() == total);
+    let file_tags = scan_node_tags(bytes, is_ascii_format(bytes)).filter(|t| t.len() == total);
     let mut node_of: HashMap<u64, usize> = HashMap::with_capacity(total);
     let mut coords = Vec::with_capacity(total);
     let mut running = 0usize;
     for b in &nodes.node_blocks {
-        let mut tags: Vec<u64> = match (&b.node_tags, &file_tags) {
+        let tags: Vec<u64> = match (&b.node_tags, &file_tags) {
             (Some(map), _) => {
                 let mut t = vec![0u64; b.nodes.len()];
                 for (&tag, &i) in map {
@@ -112,9 +205,9 @@ pub(crate) fn read(path: &Path, bytes: &[u8]) -> Result<Imported, MeshError> {
                 t
             }
             (None, Some(all)) => all[running..running + b.nodes.len()].to_vec(),
-            (None, None) => (0..b.nodes.len()).map(|i| nodes.min_node_tag + (running + i) as u64).collect(),
+            (None, None) => (0..b.nodes.len()).map(|i| nodes.min_node_tag.wrapping_add((running + i) as u64)).collect(),
         };
-        for (n, tag) in b.nodes.iter().zip(tags.drain(..)) {
+        for (n, tag) in b.nodes.iter().zip(tags) {
             if ![n.x, n.y, n.z].iter().all(|c| c.is_finite()) {
                 return Err(err(format!("node {tag} has a non-finite coordinate")));
             }
@@ -125,113 +218,39 @@ pub(crate) fn read(path: &Path, bytes: &[u8]) -> Result<Imported, MeshError> {
         }
         running += b.nodes.len();
     }
+    Ok((coords, node_of))
+}
 
-    // Physical groups of each entity, and group names.
-    let names = physical_names(bytes);
-    let mut groups: HashMap<(i32, i32), Vec<i32>> = HashMap::new();
-    if let Some(ent) = msh.data.entities.as_ref() {
-        for p in &ent.points {
-            groups.insert((0, p.tag), p.physical_tags.clone());
-        }
-        for c in &ent.curves {
-            groups.insert((1, c.tag), c.physical_tags.clone());
-        }
-        for s in &ent.surfaces {
-            groups.insert((2, s.tag), s.physical_tags.clone());
-        }
-        for v in &ent.volumes {
-            groups.insert((3, v.tag), v.physical_tags.clone());
-        }
-    }
-    let group_name = |dim: i32, tag: i32| -> String {
-        names.get(&(dim, tag.abs())).cloned().unwrap_or_else(|| format!("physical_{dim}_{}", tag.abs()))
-    };
+/// Physical groups of each entity, with their names.
+struct Groups {
+    by_entity: HashMap<(i32, i32), Vec<i32>>,
+    names: HashMap<(i32, i32), String>,
+}
 
-    let mut dimension = 0;
-    for b in &elements.element_blocks {
-        match type_dimension(b.element_type) {
-            Some(d) => dimension = dimension.max(d),
-            None => return Err(err(format!("unsupported Gmsh element type {:?} ({})", b.element_type, b.element_type as i32))),
+impl Groups {
+    fn new(msh: &Msh, bytes: &[u8]) -> Self {
+        let mut by_entity = HashMap::new();
+        if let Some(ent) = msh.data.entities.as_ref() {
+            by_entity.extend(ent.points.iter().map(|p| ((0, p.tag), p.physical_tags.clone())));
+            by_entity.extend(ent.curves.iter().map(|c| ((1, c.tag), c.physical_tags.clone())));
+            by_entity.extend(ent.surfaces.iter().map(|s| ((2, s.tag), s.physical_tags.clone())));
+            by_entity.extend(ent.volumes.iter().map(|v| ((3, v.tag), v.physical_tags.clone())));
         }
-    }
-    if dimension < 2 {
-        return Err(err("no 2-D or 3-D elements".into()));
-    }
-    let mut mesh = Mesh::new(dimension);
-    mesh.nodes = coords;
-    let lookup = |tag: u64, element: u64| {
-        node_of.get(&tag).copied().ok_or_else(|| err(format!("element {element} refers to missing node {tag}")))
-    };
-    let mut element_sets: BTreeMap<String, Vec<usize>> = BTreeMap::new();
-    let mut conn = Vec::with_capacity(27);
-    for b in &elements.element_blocks {
-        let Some((kind, perm)) = volume_kind(b.element_type).filter(|(k, _)| k.dimension() == dimension) else { continue };
-        let names: Vec<String> = groups.get(&(b.entity_dim, b.entity_tag)).into_iter().flatten().map(|&t| group_name(b.entity_dim, t)).collect();
-        for el in &b.elements {
-            if el.nodes.len() != kind.node_count() {
-                return Err(err(format!("element {} has {} nodes; {kind} needs {}", el.element_tag, el.nodes.len(), kind.node_count())));
-            }
-            conn.clear();
-            for &p in perm {
-                conn.push(lookup(el.nodes[p], el.element_tag)?);
-            }
-            let e = mesh.add_element(kind, &conn);
-            for name in &names {
-                element_sets.entry(name.clone()).or_default().push(e);
-            }
-        }
+        Groups { by_entity, names: physical_names(bytes) }
     }
 
-    // Sides of all elements by sorted corner nodes, for matching boundary elements.
-    let mut side_of: HashMap<Vec<usize>, Side> = HashMap::new();
-    for e in 0..mesh.kinds.len() {
-        for k in 0..mesh.kinds[e].sides().len() {
-            let side = Side { element: e, local: k as u8 };
-            side_of.entry(mesh.side_key(side)).or_insert(side);
-        }
+    /// Set names of the groups an entity belongs to.
+    fn names_of(&self, dim: i32, entity: i32) -> Vec<String> {
+        let tags = self.by_entity.get(&(dim, entity)).map(Vec::as_slice).unwrap_or(&[]);
+        tags.iter()
+            .map(|&t| {
+                self.names
+                    .get(&(dim, t.saturating_abs()))
+                    .cloned()
+                    .unwrap_or_else(|| format!("physical_{dim}_{}", t.unsigned_abs()))
+            })
+            .collect()
     }
-    let mut side_sets: BTreeMap<String, Vec<Side>> = BTreeMap::new();
-    let mut node_sets: BTreeMap<String, Vec<usize>> = BTreeMap::new();
-    let mut unmatched = 0usize;
-    for b in &elements.element_blocks {
-        let Some((corners, dim)) = boundary_corners(b.element_type) else { continue };
-        if dim >= dimension {
-            continue;
-        }
-        let names: Vec<String> = groups.get(&(b.entity_dim, b.entity_tag)).into_iter().flatten().map(|&t| group_name(b.entity_dim, t)).collect();
-        if names.is_empty() {
-            continue;
-        }
-        for el in &b.elements {
-            let ns = el.nodes.iter().map(|&t| lookup(t, el.element_tag)).collect::<Result<Vec<_>, _>>()?;
-            for name in &names {
-                node_sets.entry(name.clone()).or_default().extend(&ns);
-            }
-            if dim + 1 == dimension {
-                let mut key = ns.get(..corners).map(<[usize]>::to_vec).unwrap_or_default();
-                key.sort_unstable();
-                match side_of.get(&key) {
-                    Some(&s) => names.iter().for_each(|n| side_sets.entry(n.clone()).or_default().push(s)),
-                    None => unmatched += 1,
-                }
-            }
-        }
-    }
-    for set in node_sets.values_mut() {
-        set.sort_unstable();
-        set.dedup();
-    }
-    for set in element_sets.values_mut() {
-        set.sort_unstable();
-    }
-    mesh.node_sets = node_sets;
-    mesh.element_sets = element_sets;
-    mesh.side_sets = side_sets;
-    let mut notes = Vec::new();
-    if unmatched > 0 {
-        notes.push(format!("{unmatched} boundary elements in physical groups match no element side and were left out"));
-    }
-    Ok(Imported { mesh, notes })
 }
 
 /// True when the `$MeshFormat` line says ASCII (file type 0).

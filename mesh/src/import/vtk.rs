@@ -256,7 +256,7 @@ fn legacy_error_location(bytes: &[u8]) -> Location {
         let (l, n) = expect("")?;
         let n: usize = n.parse().map_err(|_| l)?;
         expect("")?;
-        for _ in 0..3 * n {
+        for _ in 0..n.saturating_mul(3) {
             let (l, t) = expect("")?;
             t.parse::<f64>().map_err(|_| l)?;
         }
