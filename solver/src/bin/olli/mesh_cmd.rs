@@ -22,19 +22,21 @@ enum Action {
     },
     /// Read any supported mesh file and write it, with its sets, as .vtu.
     Convert { file: PathBuf, output: PathBuf },
-    /// Generate a part mesh from a TOML spec file or from options, and write it as .vtu.
+    /// Generate a part mesh and write it as .vtu: from a TOML spec file
+    /// (`--spec FILE`) or a generator name with KEY=VALUE options, e.g.
+    /// `olli mesh generate seal.vtu cord diameter=3.5 divisions=16`.
     Generate {
         /// The .vtu file to write.
         output: PathBuf,
-        /// TOML file describing the generator (`generate = "cord"`, parameters ...).
-        #[arg(long, conflicts_with = "shape")]
-        spec: Option<PathBuf>,
-        /// Generator name: rectangle, block, annulus, hollow-cylinder, disc, cord, solid-cylinder.
+        /// Generator: rectangle, block, annulus, hollow-cylinder, disc, cord, solid-cylinder.
+        #[arg(conflicts_with = "spec")]
+        generator: Option<String>,
+        /// Generator parameters as KEY=VALUE (VALUE in TOML syntax, e.g. size=[10,5]).
+        #[arg(value_name = "KEY=VALUE")]
+        options: Vec<String>,
+        /// TOML file describing the generator (`generate = "cord"` and its parameters).
         #[arg(long)]
-        shape: Option<String>,
-        /// A generator parameter as KEY=VALUE (VALUE in TOML syntax, e.g. size=[10,5]); repeatable.
-        #[arg(long = "set", value_name = "KEY=VALUE")]
-        set: Vec<String>,
+        spec: Option<PathBuf>,
     },
 }
 
@@ -47,7 +49,20 @@ pub fn run(args: Args) -> ExitCode {
             }
             println!("wrote {}", output.display());
         }),
-        Action::Generate { output, spec, shape, set } => generate(output, spec, shape, set),
+        Action::Generate { output, generator, options, spec } => {
+            let text = match (spec, generator) {
+                (Some(spec), _) => command::generate_file(&spec, &output),
+                (None, Some(g)) => {
+                    let opts: Vec<&str> = options.iter().map(String::as_str).collect();
+                    command::generate_options(&g, &opts, &output)
+                }
+                (None, None) => Err(MeshError::Spec { message: "give a generator name or --spec FILE".into() }),
+            };
+            text.map(|t| {
+                print!("{t}");
+                println!("wrote {}", output.display());
+            })
+        }
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,
@@ -58,40 +73,4 @@ pub fn run(args: Args) -> ExitCode {
             ExitCode::from(if matches!(e, MeshError::Write { .. }) { 1 } else { 2 })
         }
     }
-}
-
-fn generate(output: PathBuf, spec: Option<PathBuf>, shape: Option<String>, set: Vec<String>) -> Result<(), MeshError> {
-    let text = match (spec, shape) {
-        (Some(path), _) => {
-            if !set.is_empty() {
-                return Err(MeshError::Spec { message: "--set applies to --shape, not to --spec".into() });
-            }
-            let text = command::generate_file(&path, &output)?;
-            print!("{text}");
-            return Ok(());
-        }
-        (None, Some(shape)) => {
-            let mut text = format!("generate = {}\n", toml_string(&shape));
-            for pair in &set {
-                let (key, value) = pair.split_once('=').ok_or_else(|| MeshError::Spec {
-                    message: format!("--set {pair}: expected KEY=VALUE"),
-                })?;
-                text.push_str(&format!("{} = {}\n", key.trim(), value.trim()));
-            }
-            text
-        }
-        (None, None) => {
-            return Err(MeshError::Spec { message: "give --spec FILE or --shape NAME".into() });
-        }
-    };
-    let spec = olli_mesh::GeneratorSpec::from_toml(&text)?;
-    let mesh = olli_mesh::generate(&spec)?;
-    olli_mesh::write_vtu(&mesh, &output)?;
-    print!("{}", olli_mesh::summary(&mesh));
-    println!("wrote {}", output.display());
-    Ok(())
-}
-
-fn toml_string(s: &str) -> String {
-    format!("\"{}\"", s.replace('\\', "\\\\").replace('"', "\\\""))
 }
