@@ -29,6 +29,23 @@ pub struct ContactParameters {
     pub tangential_penalty: f64,
     /// Coulomb friction coefficient μ (0: frictionless).
     pub friction: f64,
+    /// Width δ (stress units) over which the pressure law p = max(0, λ − ε g)
+    /// is rounded (C¹) near p = 0, so a node at the edge of the contact does
+    /// not flip between open and closed from one Newton iteration to the next.
+    /// 0 gives the sharp law.
+    pub smoothing: f64,
+}
+
+/// The pressure for trial value `x = λ − ε g`, rounded over `|x| < δ`:
+/// 0 below −δ, `(x + δ)² / 4δ` inside, `x` above; returns `(p, dp/dx)`.
+pub fn smoothed_pressure(x: f64, delta: f64) -> (f64, f64) {
+    if x >= delta {
+        (x, 1.0)
+    } else if x <= -delta {
+        (0.0, 0.0)
+    } else {
+        ((x + delta).powi(2) / (4.0 * delta), (x + delta) / (2.0 * delta))
+    }
 }
 
 /// Whether the node touches, and how.
@@ -78,10 +95,8 @@ pub fn evaluate(
 ) -> NodeResponse {
     let n = proj.normal;
     let trial = state.multiplier - params.normal_penalty * proj.gap;
-    // A node exactly on the surface (gap 0, no pressure yet) counts as
-    // touching: it contributes stiffness, so a part resting on a surface is
-    // supported from the first iteration.
-    if trial < 0.0 || (trial == 0.0 && proj.gap > 0.0) {
+    let (p, dp) = smoothed_pressure(trial, params.smoothing);
+    if p <= 0.0 {
         return NodeResponse {
             status: Status::Open,
             pressure: 0.0,
@@ -91,9 +106,10 @@ pub fn evaluate(
             slip: Vector3::zeros(),
         };
     }
-    let p = trial;
+    // Effective normal stiffness ∂p/∂(−g).
+    let eps = params.normal_penalty * dp;
     let nn = n * n.transpose();
-    let mut stiffness = (nn * params.normal_penalty - proj.normal_derivative * p) * area;
+    let mut stiffness = (nn * eps - proj.normal_derivative * p) * area;
     let mut shear = Vector3::zeros();
     let mut slip = Vector3::zeros();
     let mut status = Status::Stick;
@@ -101,20 +117,25 @@ pub fn evaluate(
         let proj_t = Matrix3::identity() - nn;
         // Without history (frictionless until now), the node sticks where it is.
         let anchor = anchor_global.unwrap_or(*x);
-        slip = proj_t * (x - anchor);
+        let d = x - anchor;
+        slip = proj_t * d;
+        // ∂slip/∂x = P − (n·d) ∂n/∂x − n ⊗ (∂n/∂x d): the normal turns with the
+        // point on curved surfaces.
+        let dn = &proj.normal_derivative;
+        let dslip = proj_t - dn * n.dot(&d) - n * (dn * d).transpose();
         let t_trial = -slip * params.tangential_penalty;
         let t_norm = t_trial.norm();
         let limit = params.friction * p;
         if t_norm <= limit {
             shear = t_trial;
-            stiffness += proj_t * (params.tangential_penalty * area);
+            stiffness += dslip * (params.tangential_penalty * area);
         } else {
             status = Status::Slip;
             let s = t_trial / t_norm;
             shear = s * limit;
             let ss = s * s.transpose();
-            stiffness += ((proj_t - ss) * (limit * params.tangential_penalty / t_norm)
-                + s * n.transpose() * (params.friction * params.normal_penalty))
+            stiffness += ((Matrix3::identity() - ss) * dslip * (limit * params.tangential_penalty / t_norm)
+                + s * n.transpose() * (params.friction * eps))
                 * area;
         }
     } else {
@@ -167,7 +188,7 @@ mod tests {
             shape: Shape::Cylinder { point: [0.0, 0.0, 0.0], axis: [0.0, 0.0, 1.0], radius: 1.0, rubber_outside: true },
             placement: Placement::default(),
         };
-        let frictionless = ContactParameters { normal_penalty: 100.0, tangential_penalty: 80.0, friction: 0.0 };
+        let frictionless = ContactParameters { normal_penalty: 100.0, tangential_penalty: 80.0, friction: 0.0, smoothing: 0.0 };
         let rough = ContactParameters { friction: 0.3, ..frictionless };
         fd_check(&plane, Vector3::new(0.1, 0.2, -0.01), frictionless, None);
         fd_check(&shaft, Vector3::new(0.9, 0.2, 0.3), frictionless, None);
@@ -175,6 +196,13 @@ mod tests {
         fd_check(&plane, Vector3::new(0.1, 0.2, -0.01), rough, Some(Vector3::new(0.099, 0.2, 0.0)));
         // Slip: large offset.
         fd_check(&plane, Vector3::new(0.1, 0.2, -0.01), rough, Some(Vector3::new(0.0, 0.15, 0.0)));
+        // On a curved surface, stick and slip (the normal turns with the point).
+        fd_check(&shaft, Vector3::new(0.9, 0.2, 0.3), rough, Some(Vector3::new(0.95, 0.19, 0.299)));
+        fd_check(&shaft, Vector3::new(0.9, 0.2, 0.3), rough, Some(Vector3::new(0.7, 0.6, 0.1)));
+        // Inside the rounded zone of the pressure law (trial pressure within ±δ).
+        let rounded = ContactParameters { smoothing: 0.5, ..rough };
+        fd_check(&plane, Vector3::new(0.1, 0.2, -0.0005), rounded, Some(Vector3::new(0.099, 0.2, 0.0)));
+        fd_check(&plane, Vector3::new(0.1, 0.2, 0.0012), rounded, Some(Vector3::new(0.0, 0.15, 0.0)));
     }
 
     // Coulomb's law (Coulomb 1785, as in any statics text): in slip the
@@ -185,7 +213,7 @@ mod tests {
             shape: Shape::Plane { point: [0.0, 0.0, 0.0], normal: [0.0, 0.0, 1.0] },
             placement: Placement::default(),
         };
-        let params = ContactParameters { normal_penalty: 100.0, tangential_penalty: 80.0, friction: 0.4 };
+        let params = ContactParameters { normal_penalty: 100.0, tangential_penalty: 80.0, friction: 0.4, smoothing: 0.0 };
         let x = Vector3::new(1.0, 0.0, -0.02);
         let r = evaluate(&plane.project(&x).unwrap(), &x, 1.0, &params, &NodeState::default(), Some(Vector3::zeros()));
         assert_eq!(r.status, Status::Slip);

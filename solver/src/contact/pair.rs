@@ -6,8 +6,18 @@
 use nalgebra::{Matrix3, Vector3};
 use olli_mesh::{Mesh, Side};
 
-use super::law::{evaluate, ContactParameters, NodeResponse, NodeState, Status};
+use super::law::{evaluate, smoothed_pressure, ContactParameters, NodeResponse, NodeState, Status};
 use super::surface::RigidSurface;
+
+/// Tangential (stick) penalty as a fraction of the normal one. A softer
+/// stick law lets Newton settle the stick/slip state of each node in few
+/// iterations; the elastic slip it allows before sliding is μ p / ε_t.
+pub const TANGENTIAL_RATIO: f64 = 0.1;
+
+/// Rounding of the pressure law as a penetration, relative to the local side
+/// size: the law is sharp except within ±1e-4 h of zero trial pressure (a
+/// tenth of the default penetration tolerance).
+pub const SMOOTHING_FRACTION: f64 = 1e-3;
 
 /// How a side's length or area becomes a load-carrying area.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -196,6 +206,7 @@ impl ContactPair {
     /// Augmented-Lagrangian update after a converged solve: λ ← max(0, λ − ε g).
     /// Returns the largest penetration before the update.
     pub fn augment(&mut self, response: &PairResponse) -> f64 {
+        let smoothing: Vec<f64> = (0..self.nodes.len()).map(|k| self.node_params(k).smoothing).collect();
         let mut worst: f64 = 0.0;
         for (k, s) in self.states.iter_mut().enumerate() {
             let g = response.gaps[k];
@@ -205,7 +216,7 @@ impl ContactPair {
             if response.nodes[k].status != Status::Open {
                 worst = worst.max(-g);
             }
-            s.multiplier = (s.multiplier - self.penalties[k] * g).max(0.0);
+            s.multiplier = smoothed_pressure(s.multiplier - self.penalties[k] * g, smoothing[k]).0;
         }
         worst
     }
@@ -213,9 +224,8 @@ impl ContactPair {
     /// Stores the converged state: stick anchors in the surface frame (the
     /// elastic-slip origin of touching nodes, the position of open ones).
     pub fn commit(&mut self, surface: &RigidSurface, response: &PairResponse, position: impl Fn(usize) -> Vector3<f64>) {
-        let penalties = &self.penalties;
+        let tangential: Vec<f64> = (0..self.nodes.len()).map(|k| self.node_params(k).tangential_penalty).collect();
         for (k, s) in self.states.iter_mut().enumerate() {
-            let _ = penalties;
             let r = &response.nodes[k];
             s.anchor = match r.status {
                 // An open node keeps its converged position as anchor, so a
@@ -223,9 +233,9 @@ impl ContactPair {
                 // was, not wherever the iterate happens to be.
                 Status::Open => Some(surface.placement.to_local(&position(self.nodes[k]))),
                 // The anchor sits so that the elastic slip reproduces the current shear.
-                _ if self.penalties[k] > 0.0 => {
+                _ if tangential[k] > 0.0 => {
                     let xi = position(self.nodes[k]);
-                    let elastic = -r.shear / self.penalties[k];
+                    let elastic = -r.shear / tangential[k];
                     Some(surface.placement.to_local(&(xi - elastic)))
                 }
                 _ => None,
@@ -238,7 +248,12 @@ impl ContactPair {
 
     /// The law's parameters at node `k` (its own penalty).
     pub fn node_params(&self, k: usize) -> ContactParameters {
-        ContactParameters { normal_penalty: self.penalties[k], tangential_penalty: self.penalties[k], friction: self.params.friction }
+        ContactParameters {
+            normal_penalty: self.penalties[k],
+            tangential_penalty: TANGENTIAL_RATIO * self.penalties[k],
+            friction: self.params.friction,
+            smoothing: SMOOTHING_FRACTION * self.penalties[k] * self.sizes[k],
+        }
     }
 
     /// Penetration of every touching node relative to its allowed value
