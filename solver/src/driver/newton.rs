@@ -166,7 +166,7 @@ impl<'a> NewtonContext<'a> {
             let st = &mut self.states[e];
             st.dilatation = base.dilatation + dtheta;
             st.pressure = base.pressure + dp;
-            if !(st.dilatation > 0.0) {
+            if st.dilatation.is_nan() || st.dilatation <= 0.0 {
                 return Err(SolveError::InvertedElement { element: e, point: 0, j: st.dilatation });
             }
         }

@@ -34,8 +34,11 @@ pub struct StageProgram {
     pub dead_end: Vec<f64>,
 }
 
+/// Nodes of each set whose reaction is reported.
+pub type ReportSets = BTreeMap<String, Vec<usize>>;
+
 /// Resolves all stages, and the sets whose reactions are reported.
-pub fn resolve(disc: &Discretization) -> Result<(Vec<StageProgram>, BTreeMap<String, Vec<usize>>), SolveError> {
+pub fn resolve(disc: &Discretization) -> Result<(Vec<StageProgram>, ReportSets), SolveError> {
     let model = disc.model;
     let mesh = disc.mesh();
     let dim = disc.dim;
