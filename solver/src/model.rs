@@ -87,7 +87,8 @@ pub struct IncrementControls {
     /// Energy norm |du·r| of the last correction relative to that of the first.
     /// Default 1e-12. Either this or the displacement criterion must hold.
     pub energy_tolerance: f64,
-    /// Norm of the last correction relative to the increment's displacement. Default 1e-6.
+    /// Norm of the last correction relative to the larger of the increment's
+    /// and the total displacement. Default 1e-6.
     pub displacement_tolerance: f64,
     /// Backtracking line search on the residual along the Newton direction. Default true.
     pub line_search: bool,

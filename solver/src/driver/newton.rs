@@ -425,15 +425,18 @@ impl<'a> NewtonContext<'a> {
             }
             let e0 = *first_energy.get_or_insert(energy_norm);
             let energy_ok = e0 == 0.0 || energy_norm * s <= c.energy_tolerance * e0;
-            let (mut step2, mut inc2) = (0.0, 0.0);
+            // The correction against the larger of the increment's and the
+            // total displacement (a held stage has no increment to compare with).
+            let (mut step2, mut inc2, mut tot2) = (0.0, 0.0, 0.0);
             for d in 0..ndof {
                 let q = self.dofs.eq[d];
                 if q != NONE {
                     step2 += (s * self.du[q]).powi(2);
                 }
                 inc2 += (u[d] - self.last_converged[d]).powi(2);
+                tot2 += u[d] * u[d];
             }
-            let disp_ok = step2.sqrt() <= c.displacement_tolerance * inc2.sqrt().max(f64::MIN_POSITIVE);
+            let disp_ok = step2.sqrt() <= c.displacement_tolerance * inc2.max(tot2).sqrt().max(f64::MIN_POSITIVE);
             if rel <= c.force_tolerance && (energy_ok || disp_ok) {
                 self.states_converged.copy_from_slice(&self.states);
                 return Ok(IncrementOutcome::Converged { iterations, residuals, energy });
