@@ -234,8 +234,14 @@ impl<'a> NewtonContext<'a> {
                 continue;
             }
             for &side in &prog.sides {
-                let nodes = mesh.side_nodes(side);
+                // Side nodes without allocating (corner nodes of quad faces / edges).
+                let local = mesh.kinds[side.element].sides()[side.local as usize];
+                let enodes = mesh.element_nodes(side.element);
                 let nn = if dim == 3 { 4 } else { 2 };
+                let mut nodes = [0usize; 4];
+                for a in 0..nn {
+                    nodes[a] = enodes[local[a]];
+                }
                 let (mut x, mut us) = ([[0.0; 3]; 4], [[0.0; 3]; 4]);
                 for a in 0..nn {
                     x[a] = mesh.nodes[nodes[a]];
