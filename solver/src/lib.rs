@@ -42,5 +42,5 @@ pub mod shape;
 
 pub use driver::{solve, Event, Observer, Quiet};
 pub use error::SolveError;
-pub use model::{Analysis, Force, Formulation, IncrementControls, Model, Motion, OutputSettings, Pressure, Region, Stage, Support};
+pub use model::{Analysis, Force, Formulation, IncrementControls, Model, Motion, OutputSettings, Pressure, Ramp, Region, Stage, Support};
 pub use results::{IncrementResult, NodalFields, PointFields, Solution, SolveStats, Termination};

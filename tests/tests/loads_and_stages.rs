@@ -148,3 +148,37 @@ fn results_carry_point_and_nodal_fields() {
     assert!(nodal.cauchy.iter().all(|s| rel(s[2], l * l - 1.0 / l) < 1e-3));
     assert!(nodal.pressure.iter().all(|p| rel(*p, -(l * l - 1.0 / l) / 3.0) < 1e-3));
 }
+
+#[test]
+fn loads_follow_their_own_ramps_within_a_stage() {
+    // One stage, two loads: the top face moved with a step ramp (all at
+    // once) and the body force following a table ramp (full at t = 0.5).
+    // Equilibrium fixes the reaction of the dead load at every increment.
+    let b = -0.05;
+    let mut model = column(Analysis::Solid3d);
+    let mut ramps = std::collections::BTreeMap::new();
+    ramps.insert("z1".to_string(), Ramp::Step);
+    ramps.insert(olli_solver::model::BODY_FORCE_RAMP.to_string(), Ramp::Table(vec![(0.0, 0.0), (0.5, 1.0), (1.0, 1.0)]));
+    model.stages.push(Stage {
+        name: "ramps".into(),
+        controls: IncrementControls { first: 0.25, max: 0.25, ..Default::default() },
+        supports: vec![Support { set: "z0".into(), components: [true, true, true] }],
+        motions: vec![Motion { set: "z1".into(), displacement: [Some(0.1), None, None] }],
+        body_force: Some([0.0, 0.0, b]),
+        ramps,
+        ..Default::default()
+    });
+    let sol = solve(&model, &mut Quiet).unwrap();
+    assert!(sol.completed());
+    assert_eq!(sol.increments.len(), 4);
+    let top = model.mesh.node_sets["z1"][0];
+    for inc in &sol.increments {
+        // Step: the full motion from the first increment on.
+        assert!((inc.displacement[top][0] - 0.1).abs() < 1e-12);
+        // Table: weight fraction min(2t, 1); the vertical reactions of base
+        // and top together carry it.
+        let fraction = (2.0 * inc.load_factor).min(1.0);
+        let rz = inc.reactions["z0"][2] + inc.reactions["z1"][2];
+        assert!((rz + b * 3.0 * fraction).abs() < 1e-6 * 0.15, "t = {}: {rz}", inc.load_factor);
+    }
+}

@@ -174,15 +174,14 @@ impl<'a> NewtonContext<'a> {
     }
 
     fn prescribed_at(&self, t: f64, d: usize) -> f64 {
-        self.start[d] + t * (self.prog.target[d] - self.start[d])
+        let a = self.prog.ramps[self.prog.ramp_of_dof[d] as usize].fraction(t);
+        self.start[d] + a * (self.prog.target[d] - self.start[d])
     }
 
     /// Residual (and tangent, and the right-hand side `−r_f − K_fp Δu_p`) at `u`.
     fn evaluate(&mut self, u: &[f64], t: f64, want_k: bool, predict: bool, stats: &mut SolveStats) -> Result<f64, SolveError> {
         let clock = Instant::now();
-        for (d, f) in self.f_ext.iter_mut().enumerate() {
-            *f = self.prog.dead_start[d] + t * (self.prog.dead_end[d] - self.prog.dead_start[d]);
-        }
+        self.prog.dead_at(t, &mut self.f_ext);
         self.rhs.fill(0.0);
         let energy = self.assembler.assemble(
             self.disc,
@@ -229,7 +228,7 @@ impl<'a> NewtonContext<'a> {
         let mut fs = [0.0; MAX_SIDE_DOFS];
         let mut ks = [0.0; MAX_SIDE_DOFS * MAX_SIDE_DOFS];
         for prog in &self.prog.pressures {
-            let p = prog.start + t * (prog.end - prog.start);
+            let p = prog.start + prog.ramp.fraction(t) * (prog.end - prog.start);
             if p == 0.0 {
                 continue;
             }
