@@ -4,25 +4,46 @@
 //! the constitutive library ([`material`]) and, built on it, the elements
 //! ([`element`]), the sparse assembly ([`assembly`]), the sparse direct solve
 //! ([`linear`]), loads ([`load`]) and the Newton–Raphson driver with adaptive
-//! load stepping ([`driver`]). A problem is described in memory by a
-//! [`model::Model`] and solved by [`driver::solve`].
+//! load stepping ([`driver`]).
+//!
+//! A problem is described in memory by a [`Model`] — mesh, analysis kind,
+//! material regions, load stages — and solved by [`solve`], which reports
+//! progress to an [`Observer`] and returns every converged increment:
+//!
+//! ```no_run
+//! use std::sync::Arc;
+//! use olli_solver::material::{registry, VolumetricForm};
+//! use olli_solver::{solve, Analysis, Formulation, Model, Motion, Quiet, Stage, Support};
+//! # fn mesh() -> olli_mesh::Mesh { unimplemented!() }
+//! let rubber = registry::material("neo-hookean", &[("shear_modulus", 0.5), ("bulk_modulus", 500.0)],
+//!     VolumetricForm::Quadratic).unwrap();
+//! let mut model = Model::single_region(mesh(), Analysis::Solid3d, Arc::new(rubber), Formulation::Mixed);
+//! model.stages.push(Stage {
+//!     name: "squeeze".into(),
+//!     supports: vec![Support { set: "bottom".into(), components: [true; 3] }],
+//!     motions: vec![Motion { set: "top".into(), displacement: [Some(0.0), Some(0.0), Some(-2.0)] }],
+//!     ..Default::default()
+//! });
+//! let solution = solve(&model, &mut Quiet).unwrap();
+//! let force = solution.last().unwrap().reactions["top"];
+//! ```
 
-pub mod contact;
-pub mod element;
-pub mod job;
-pub mod output;
-pub mod material;
-pub mod quadrature;
-pub mod shape;
 pub mod assembly;
+pub mod contact;
+pub mod driver;
+pub mod element;
 pub mod error;
+pub mod job;
 pub mod linear;
 pub mod load;
+pub mod material;
 pub mod model;
-pub mod driver;
+pub mod output;
+pub mod quadrature;
 pub mod results;
+pub mod shape;
 
 pub use driver::{solve, Event, Observer, Quiet};
 pub use error::SolveError;
-pub use model::{Analysis, Force, Formulation, IncrementControls, Model, Motion, OutputSettings, Pressure, Region, Stage, Support};
+pub use model::{Analysis, Force, Formulation, IncrementControls, Model, Motion, OutputSettings, Pressure, Ramp, Region, RigidBody, RigidMotion, Stage, Support};
 pub use results::{IncrementResult, NodalFields, PointFields, Solution, SolveStats, Termination};

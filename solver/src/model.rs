@@ -140,7 +140,8 @@ pub struct IncrementControls {
     /// Energy norm |du·r| of the last correction relative to that of the first.
     /// Default 1e-12. Either this or the displacement criterion must hold.
     pub energy_tolerance: f64,
-    /// Norm of the last correction relative to the increment's displacement. Default 1e-6.
+    /// Norm of the last correction relative to the larger of the increment's
+    /// and the total displacement. Default 1e-6.
     pub displacement_tolerance: f64,
     /// Backtracking line search on the residual along the Newton direction. Default true.
     pub line_search: bool,
@@ -176,6 +177,54 @@ impl Default for IncrementControls {
     }
 }
 
+/// How a load's change over its stage is applied, as a function of the
+/// stage fraction t ∈ [0, 1].
+#[derive(Debug, Clone, PartialEq, Default)]
+pub enum Ramp {
+    /// Proportional to t. Default.
+    #[default]
+    Linear,
+    /// The whole change from the first increment on.
+    Step,
+    /// Piecewise linear through `(t, fraction)` points sorted by t, held
+    /// constant outside them.
+    Table(Vec<(f64, f64)>),
+}
+
+impl Ramp {
+    /// Fraction of the stage's change applied at stage fraction `t`.
+    pub fn fraction(&self, t: f64) -> f64 {
+        match self {
+            Ramp::Linear => t,
+            Ramp::Step => {
+                if t > 0.0 {
+                    1.0
+                } else {
+                    0.0
+                }
+            }
+            Ramp::Table(points) => {
+                let (Some(first), Some(last)) = (points.first(), points.last()) else {
+                    return t;
+                };
+                if t <= first.0 {
+                    return first.1;
+                }
+                for w in points.windows(2) {
+                    let ((t0, f0), (t1, f1)) = (w[0], w[1]);
+                    if t <= t1 {
+                        return if t1 > t0 { f0 + (f1 - f0) * (t - t0) / (t1 - t0) } else { f1 };
+                    }
+                }
+                last.1
+            }
+        }
+    }
+}
+
+/// Name under which [`Stage::ramps`] gives the body force's ramp.
+pub const BODY_FORCE_RAMP: &str = "body_force";
+
 /// One load stage; stages run one after another, each from the last
 /// converged state of the previous one.
 #[derive(Debug, Clone, Default)]
@@ -191,6 +240,10 @@ pub struct Stage {
     pub body_force: Option<[f64; 3]>,
     /// Rigid-body positions reached at the end of the stage.
     pub rigid_motions: Vec<RigidMotion>,
+    /// Ramps of the loads of this stage by set name (motions, pressures,
+    /// forces on that set; [`BODY_FORCE_RAMP`] for the body force). Loads
+    /// not named here ramp linearly.
+    pub ramps: std::collections::BTreeMap<String, Ramp>,
 }
 
 /// Which fields each converged increment keeps.

@@ -66,8 +66,8 @@ pub struct IncrementResult {
     pub reactions: BTreeMap<String, [f64; 3]>,
     /// Linear solves of this increment.
     pub newton_iterations: usize,
-    /// Out-of-balance force relative to the force scale, before each solve
-    /// and at convergence.
+    /// Out-of-balance force relative to the force scale after each Newton
+    /// correction (the last entry is the converged one).
     pub residual_history: Vec<f64>,
     /// Total strain energy (axisymmetric: full 2π; plane strain: thickness).
     pub strain_energy: f64,

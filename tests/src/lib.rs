@@ -20,7 +20,7 @@ impl Lcg {
     pub fn new(seed: u64) -> Self {
         Lcg(seed)
     }
-    pub fn next(&mut self) -> f64 {
+    pub fn uniform(&mut self) -> f64 {
         self.0 = self.0.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
         ((self.0 >> 11) as f64 / (1u64 << 53) as f64) * 2.0 - 1.0
     }
@@ -37,8 +37,8 @@ pub fn quad_grid(ns: usize, nt: usize, distort: f64, place: impl Fn(f64, f64) ->
         for i in 0..=ns {
             let (mut s, mut t) = (i as f64 / ns as f64, j as f64 / nt as f64);
             if i > 0 && i < ns && j > 0 && j < nt {
-                s += distort * rng.next() / ns as f64;
-                t += distort * rng.next() / nt as f64;
+                s += distort * rng.uniform() / ns as f64;
+                t += distort * rng.uniform() / nt as f64;
             }
             let p = place(s, t);
             mesh.add_node([p[0], p[1], 0.0]);
@@ -106,7 +106,7 @@ pub fn block(l: [f64; 3], n: [usize; 3], distort: f64) -> Mesh {
                 for d in 0..3 {
                     let mut s = idx[d] as f64 / n[d] as f64;
                     if interior {
-                        s += distort * rng.next() / n[d] as f64;
+                        s += distort * rng.uniform() / n[d] as f64;
                     }
                     p[d] = s * l[d];
                 }

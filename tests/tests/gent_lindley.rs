@@ -47,6 +47,10 @@ fn bonded(set_bottom: &str, set_top: &str, dim: usize, h: f64) -> (Vec<Support>,
 /// (each point scaled radially by max(|x|,|y|)/|x|₂, which keeps the elements
 /// well shaped).
 fn disc_modulus_3d(kappa: f64) -> f64 {
+    disc_modulus_3d_with(kappa, Formulation::Mixed)
+}
+
+fn disc_modulus_3d_with(kappa: f64, formulation: Formulation) -> f64 {
     let (r, h) = (4.0, 1.0);
     let mut mesh = block([1.0, 1.0, h], [12, 12, 4], 0.0);
     for x in &mut mesh.nodes {
@@ -56,7 +60,7 @@ fn disc_modulus_3d(kappa: f64) -> f64 {
         x[0] = r * u * scale;
         x[1] = r * v * scale;
     }
-    let mut model = Model::single_region(mesh, Analysis::Solid3d, neo_hookean(MU, kappa), Formulation::Mixed);
+    let mut model = Model::single_region(mesh, Analysis::Solid3d, neo_hookean(MU, kappa), formulation);
     model.output.point_fields = false;
     model.output.nodal_fields = false;
     let (mut supports, motions) = bonded("z0", "z1", 3, h);
@@ -104,6 +108,11 @@ fn check(name: &str, s: f64, modulus: impl Fn(f64) -> f64) {
 #[test]
 fn gent_lindley_bonded_disc_3d() {
     check("disc 3-D", 2.0, disc_modulus_3d);
+    // The plain displacement hex8 locks volumetrically on the same mesh at
+    // K/μ = 5000: its apparent modulus is far above the formula's.
+    let locked = disc_modulus_3d_with(5000.0 * MU, Formulation::Displacement);
+    eprintln!("disc 3-D, displacement hex8: E_a/μ = {locked:.3}");
+    assert!(locked > 1.5 * gent_lindley(2.0, 5000.0 * MU));
 }
 
 #[test]

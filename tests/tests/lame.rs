@@ -49,6 +49,7 @@ fn plane_strain_inner_u(form: Formulation) -> f64 {
 }
 
 fn axisymmetric_inner_u(form: Formulation) -> (f64, f64) {
+    // (the displacement variant is used below to show locking)
     let mesh = rectangle(A, B, 0.0, 0.1, 12, 1, 0.0);
     let inner = mesh.node_sets["s0"][0];
     let mut model = Model::single_region(mesh, Analysis::Axisymmetric, neo_hookean(MU, kappa()), form);
@@ -94,4 +95,8 @@ fn lame_axisymmetric_slice() {
     assert!(rel(got, want) < 5e-3);
     // The end force sums nodal reactions of a 12-element edge: 1 %.
     assert!(rel(fz.abs(), fz_want) < 1e-2);
+    // The axisymmetric displacement element locks at ν = 0.4999.
+    let (locked, _) = axisymmetric_inner_u(Formulation::Displacement);
+    eprintln!("axisymmetric displacement element u(a) = {locked:.6e}");
+    assert!(locked < 0.7 * want, "axisymmetric displacement element should lock");
 }

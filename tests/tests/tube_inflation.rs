@@ -60,7 +60,7 @@ fn tube_inflation_axisymmetric_pressure_vs_inner_stretch() {
     let sol = solve(&model, &mut Quiet).unwrap();
     assert!(sol.completed(), "{:?}", sol.termination);
     for (k, la) in stretches.iter().enumerate() {
-        let last = sol.increments.iter().filter(|r| r.stage == k).next_back().unwrap();
+        let last = sol.increments.iter().rfind(|r| r.stage == k).unwrap();
         // The bore's radial reaction (full 2π) is the pressure on the
         // current bore area 2π a H (H is unchanged in plane strain).
         let fr = last.reactions["s0"][0];

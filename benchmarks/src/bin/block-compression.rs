@@ -6,7 +6,7 @@
 //! U(J) = κ/2 (J − 1)², κ = 500 MPa; hex8 Q1/P0; 10 equal increments.
 //!
 //! Run from the workspace root:
-//! `cargo run --release --bin block-compression -- --divisions NX,NY,NZ [--ordering amd|nd]`
+//! `cargo run --release --bin block-compression -- --divisions NX,NY,NZ [--ordering best|amd|nd]`
 //! It prints the size, Newton iterations per increment, the time split
 //! (assembly, symbolic and numeric factorization, solves), the peak memory,
 //! and as its last line `plate_force_N=<value>`: the compressive force on the
@@ -38,7 +38,7 @@ fn peak_memory_mb() -> Option<f64> {
 fn main() {
     let args: Vec<String> = std::env::args().collect();
     let mut divisions = [20, 20, 5];
-    let mut ordering = "amd".to_string();
+    let mut ordering = "best".to_string();
     let mut extrapolate = true;
     let mut i = 1;
     while i < args.len() {
@@ -59,7 +59,7 @@ fn main() {
                 i += 1;
             }
             other => {
-                eprintln!("unknown argument `{other}`; usage: block-compression --divisions NX,NY,NZ [--ordering amd|nd] [--no-extrapolation]");
+                eprintln!("unknown argument `{other}`; usage: block-compression --divisions NX,NY,NZ [--ordering best|amd|nd] [--no-extrapolation]");
                 std::process::exit(2);
             }
         }
@@ -79,8 +79,9 @@ fn main() {
     model.linear.ordering = match ordering.as_str() {
         "amd" => Ordering::Amd,
         "nd" => Ordering::NestedDissection,
+        "best" => Ordering::LeastFill,
         _ => {
-            eprintln!("--ordering must be amd or nd");
+            eprintln!("--ordering must be amd, nd or best");
             std::process::exit(2);
         }
     };
@@ -122,6 +123,12 @@ fn main() {
     println!("time_setup_s={setup:.3} time_pattern_s={:.3} time_total_s={total:.3}", s.pattern_time);
     println!("time_assembly_s={:.3} assemblies={} time_symbolic_s={:.3} time_numeric_s={:.3} numeric_factorizations={} time_solve_s={:.3}", s.assembly_time, s.assemblies, l.symbolic_time, l.numeric_time, l.numeric_count, l.solve_time);
     println!("ldlt_fallbacks={} lu_fallbacks={}", l.ldlt_fallbacks, l.lu_fallbacks);
+    println!(
+        "ordering_used={} factor_entries_amd={} factor_entries_nd={}",
+        l.ordering,
+        l.fill_amd.map(|v| v.to_string()).unwrap_or("-".into()),
+        l.fill_nested_dissection.map(|v| v.to_string()).unwrap_or("-".into())
+    );
     println!("time_per_newton_iteration_s={:.3} bare_numeric_factorization_s={bare:.3} ratio={:.3}", total / iters, total / iters / bare);
     if let Some(mb) = peak_memory_mb() {
         println!("peak_memory_MB={mb:.1}");

@@ -21,6 +21,8 @@ pub struct Assembler {
     kbuf: Vec<f64>,
     fbuf: Vec<f64>,
     status: Vec<Result<f64, ElementError>>,
+    /// Stand-in states for condensed assembly, so both paths share one loop.
+    unused_states: Vec<MixedState>,
     /// Run the element loop on one thread (for the parallel/serial check).
     pub serial: bool,
 }
@@ -52,6 +54,7 @@ impl Assembler {
             kbuf: vec![0.0; CHUNK * KSTRIDE],
             fbuf: vec![0.0; CHUNK * MAX_DOFS],
             status: vec![Ok(0.0); CHUNK],
+            unused_states: vec![MixedState::default(); CHUNK],
             serial: false,
         }
     }
@@ -80,28 +83,30 @@ impl Assembler {
         while start < ne {
             let end = (start + CHUNK).min(ne);
             let count = end - start;
-            type Slot<'s> = (usize, (((&'s mut [f64], &'s mut [f64]), &'s mut Result<f64, ElementError>), Option<&'s mut MixedState>));
+            type Slot<'s> = (usize, (((&'s mut [f64], &'s mut [f64]), &'s mut Result<f64, ElementError>), &'s mut MixedState));
+            let carried = mixed.is_some();
             let work = |(i, (((k, f), st), ms)): Slot| {
                 let e = start + i;
                 let (mut x, mut ue) = ([[0.0; 3]; 8], [[0.0; 3]; 8]);
                 disc.gather(e, u, &mut x, &mut ue);
                 let ctx = disc.context(e);
-                *st = element_with_state_into(&ctx, &x, &ue, f, if want_k { Some(k) } else { None }, ms);
+                let state = if carried { Some(ms) } else { None };
+                *st = element_with_state_into(&ctx, &x, &ue, f, if want_k { Some(k) } else { None }, state);
             };
             let kb = &mut self.kbuf[..count * KSTRIDE];
             let fb = &mut self.fbuf[..count * MAX_DOFS];
             let sb = &mut self.status[..count];
-            let ms: Vec<Option<&mut MixedState>> = match mixed.as_deref_mut() {
-                Some(m) => m[start..end].iter_mut().map(Some).collect(),
-                None => (0..count).map(|_| None).collect(),
+            let ms: &mut [MixedState] = match mixed.as_deref_mut() {
+                Some(m) => &mut m[start..end],
+                None => &mut self.unused_states[..count],
             };
             if self.serial {
-                kb.chunks_mut(KSTRIDE).zip(fb.chunks_mut(MAX_DOFS)).zip(sb.iter_mut()).zip(ms).enumerate().for_each(work);
+                kb.chunks_mut(KSTRIDE).zip(fb.chunks_mut(MAX_DOFS)).zip(sb.iter_mut()).zip(ms.iter_mut()).enumerate().for_each(work);
             } else {
                 kb.par_chunks_mut(KSTRIDE)
                     .zip(fb.par_chunks_mut(MAX_DOFS))
                     .zip(sb.par_iter_mut())
-                    .zip(ms)
+                    .zip(ms.par_iter_mut())
                     .enumerate()
                     .for_each(work);
             }

@@ -152,6 +152,9 @@ fn add_linear_stats(total: &mut LinearStats, s: &LinearStats) {
     total.lu_fallbacks += s.lu_fallbacks;
     total.ldlt_fallbacks += s.ldlt_fallbacks;
     total.lu_nonsymmetric += s.lu_nonsymmetric;
+    total.ordering = s.ordering;
+    total.fill_amd = s.fill_amd;
+    total.fill_nested_dissection = s.fill_nested_dissection;
 }
 
 #[allow(clippy::too_many_arguments)]

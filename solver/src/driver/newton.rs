@@ -190,7 +190,7 @@ impl<'a> NewtonContext<'a> {
             let st = &mut self.states[e];
             st.dilatation = base.dilatation + dtheta;
             st.pressure = base.pressure + dp;
-            if !(st.dilatation > 0.0) {
+            if st.dilatation.is_nan() || st.dilatation <= 0.0 {
                 return Err(SolveError::InvertedElement { element: e, point: 0, j: st.dilatation });
             }
         }
@@ -198,15 +198,14 @@ impl<'a> NewtonContext<'a> {
     }
 
     fn prescribed_at(&self, t: f64, d: usize) -> f64 {
-        self.start[d] + t * (self.prog.target[d] - self.start[d])
+        let a = self.prog.ramps[self.prog.ramp_of_dof[d] as usize].fraction(t);
+        self.start[d] + a * (self.prog.target[d] - self.start[d])
     }
 
     /// Residual (and tangent, and the right-hand side `−r_f − K_fp Δu_p`) at `u`.
     fn evaluate(&mut self, u: &[f64], t: f64, want_k: bool, predict: bool, stats: &mut SolveStats) -> Result<f64, SolveError> {
         let clock = Instant::now();
-        for (d, f) in self.f_ext.iter_mut().enumerate() {
-            *f = self.prog.dead_start[d] + t * (self.prog.dead_end[d] - self.prog.dead_start[d]);
-        }
+        self.prog.dead_at(t, &mut self.f_ext);
         self.rhs.fill(0.0);
         let energy = self.assembler.assemble(
             self.disc,
@@ -265,13 +264,19 @@ impl<'a> NewtonContext<'a> {
         let mut fs = [0.0; MAX_SIDE_DOFS];
         let mut ks = [0.0; MAX_SIDE_DOFS * MAX_SIDE_DOFS];
         for prog in &self.prog.pressures {
-            let p = prog.start + t * (prog.end - prog.start);
+            let p = prog.start + prog.ramp.fraction(t) * (prog.end - prog.start);
             if p == 0.0 {
                 continue;
             }
             for &side in &prog.sides {
-                let nodes = mesh.side_nodes(side);
+                // Side nodes without allocating (corner nodes of quad faces / edges).
+                let local = mesh.kinds[side.element].sides()[side.local as usize];
+                let enodes = mesh.element_nodes(side.element);
                 let nn = if dim == 3 { 4 } else { 2 };
+                let mut nodes = [0usize; 4];
+                for a in 0..nn {
+                    nodes[a] = enodes[local[a]];
+                }
                 let (mut x, mut us) = ([[0.0; 3]; 4], [[0.0; 3]; 4]);
                 for a in 0..nn {
                     x[a] = mesh.nodes[nodes[a]];
@@ -477,15 +482,18 @@ impl<'a> NewtonContext<'a> {
             }
             let e0 = *first_energy.get_or_insert(energy_norm);
             let energy_ok = e0 == 0.0 || energy_norm * s <= c.energy_tolerance * e0;
-            let (mut step2, mut inc2) = (0.0, 0.0);
+            // The correction against the larger of the increment's and the
+            // total displacement (a held stage has no increment to compare with).
+            let (mut step2, mut inc2, mut tot2) = (0.0, 0.0, 0.0);
             for d in 0..ndof {
                 let q = self.dofs.eq[d];
                 if q != NONE {
                     step2 += (s * self.du[q]).powi(2);
                 }
                 inc2 += (u[d] - self.last_converged[d]).powi(2);
+                tot2 += u[d] * u[d];
             }
-            let disp_ok = step2.sqrt() <= c.displacement_tolerance * inc2.sqrt().max(f64::MIN_POSITIVE);
+            let disp_ok = step2.sqrt() <= c.displacement_tolerance * inc2.max(tot2).sqrt().max(f64::MIN_POSITIVE);
             if rel <= c.force_tolerance && (energy_ok || disp_ok) {
                 if !self.contacts.needs_augmentation() {
                     self.states_converged.copy_from_slice(&self.states);

@@ -11,6 +11,7 @@ use olli_mesh::Side;
 use crate::assembly::Discretization;
 use crate::error::SolveError;
 use crate::load::dead::{add_body_force, add_node_force, add_side_force};
+use crate::model::{Ramp, BODY_FORCE_RAMP};
 
 /// One pressurised side set during a stage.
 #[derive(Debug, Clone)]
@@ -18,6 +19,7 @@ pub struct PressureProgram {
     pub sides: Vec<Side>,
     pub start: f64,
     pub end: f64,
+    pub ramp: Ramp,
 }
 
 /// A stage as seen by the Newton driver.
@@ -27,15 +29,34 @@ pub struct StageProgram {
     pub prescribed: Vec<bool>,
     /// End-of-stage value of the prescribed dofs (others unused).
     pub target: Vec<f64>,
-    /// Dofs whose target is set by this stage (others hold their value).
-    pub driven: Vec<bool>,
+    /// Index into `ramps` of each dof's ramp (0: linear).
+    pub ramp_of_dof: Vec<u32>,
+    pub ramps: Vec<Ramp>,
     pub pressures: Vec<PressureProgram>,
+    /// Dead load at the start of the stage.
     pub dead_start: Vec<f64>,
-    pub dead_end: Vec<f64>,
+    /// Changes of the dead load over the stage, each with its ramp.
+    pub dead_changes: Vec<(Ramp, Vec<f64>)>,
 }
 
+impl StageProgram {
+    /// The dead load vector at stage fraction `t` into `f`.
+    pub fn dead_at(&self, t: f64, f: &mut [f64]) {
+        f.copy_from_slice(&self.dead_start);
+        for (ramp, change) in &self.dead_changes {
+            let a = ramp.fraction(t);
+            for (fi, ci) in f.iter_mut().zip(change) {
+                *fi += a * ci;
+            }
+        }
+    }
+}
+
+/// Nodes of each set whose reaction is reported.
+pub type ReportSets = BTreeMap<String, Vec<usize>>;
+
 /// Resolves all stages, and the sets whose reactions are reported.
-pub fn resolve(disc: &Discretization) -> Result<(Vec<StageProgram>, BTreeMap<String, Vec<usize>>), SolveError> {
+pub fn resolve(disc: &Discretization) -> Result<(Vec<StageProgram>, ReportSets), SolveError> {
     let model = disc.model;
     let mesh = disc.mesh();
     let dim = disc.dim;
@@ -50,7 +71,9 @@ pub fn resolve(disc: &Discretization) -> Result<(Vec<StageProgram>, BTreeMap<Str
     let mut programs = Vec::new();
     for stage in &model.stages {
         let unknown = |name: &str| SolveError::UnknownSet { stage: stage.name.clone(), name: name.to_string() };
-        let mut driven = vec![false; ndof];
+        let ramp_for = |set: &str| stage.ramps.get(set).cloned().unwrap_or_default();
+        let mut ramps = vec![Ramp::Linear];
+        let mut ramp_of_dof = vec![0u32; ndof];
         for s in &stage.supports {
             let nodes = mesh.nodes_of_set(&s.set).ok_or_else(|| unknown(&s.set))?;
             for &n in &nodes {
@@ -58,7 +81,6 @@ pub fn resolve(disc: &Discretization) -> Result<(Vec<StageProgram>, BTreeMap<Str
                     if s.components[i] {
                         prescribed[n * dim + i] = true;
                         target[n * dim + i] = 0.0;
-                        driven[n * dim + i] = true;
                     }
                 }
             }
@@ -66,12 +88,19 @@ pub fn resolve(disc: &Discretization) -> Result<(Vec<StageProgram>, BTreeMap<Str
         }
         for m in &stage.motions {
             let nodes = mesh.nodes_of_set(&m.set).ok_or_else(|| unknown(&m.set))?;
+            let ramp = ramp_for(&m.set);
+            let r = if ramp == Ramp::Linear {
+                0
+            } else {
+                ramps.push(ramp);
+                (ramps.len() - 1) as u32
+            };
             for &n in &nodes {
                 for i in 0..dim {
                     if let Some(v) = m.displacement[i] {
                         prescribed[n * dim + i] = true;
                         target[n * dim + i] = v;
-                        driven[n * dim + i] = true;
+                        ramp_of_dof[n * dim + i] = r;
                     }
                 }
             }
@@ -94,35 +123,56 @@ pub fn resolve(disc: &Discretization) -> Result<(Vec<StageProgram>, BTreeMap<Str
                 sides: mesh.side_sets[name].clone(),
                 start: before.get(name).copied().unwrap_or(0.0),
                 end,
+                ramp: ramp_for(name),
             })
             .collect();
+        let forces_before = forces.clone();
         for f in &stage.forces {
             if mesh.nodes_of_set(&f.set).is_none() {
                 return Err(unknown(&f.set));
             }
             forces.insert(f.set.clone(), f.total);
         }
+        let body_before = body;
         if stage.body_force.is_some() {
             body = stage.body_force;
         }
-        let mut dead = vec![0.0; ndof];
+        // Each changed load contributes its change with its own ramp.
+        let mut dead_changes = Vec::new();
         for (name, total) in &forces {
-            if let Some(sides) = mesh.side_sets.get(name) {
-                add_side_force(mesh, model.analysis, dim, sides, *total, &mut dead);
-            } else if let Some(nodes) = mesh.nodes_of_set(name) {
-                add_node_force(dim, &nodes, *total, &mut dead);
+            let old = forces_before.get(name).copied().unwrap_or([0.0; 3]);
+            if old == *total {
+                continue;
             }
+            let delta = [total[0] - old[0], total[1] - old[1], total[2] - old[2]];
+            let mut change = vec![0.0; ndof];
+            if let Some(sides) = mesh.side_sets.get(name) {
+                add_side_force(mesh, model.analysis, dim, sides, delta, &mut change);
+            } else if let Some(nodes) = mesh.nodes_of_set(name) {
+                add_node_force(dim, &nodes, delta, &mut change);
+            }
+            dead_changes.push((ramp_for(name), change));
         }
-        if let Some(b) = body {
-            add_body_force(disc, b, &mut dead);
+        if body != body_before {
+            let (new, old) = (body.unwrap_or([0.0; 3]), body_before.unwrap_or([0.0; 3]));
+            let mut change = vec![0.0; ndof];
+            add_body_force(disc, [new[0] - old[0], new[1] - old[1], new[2] - old[2]], &mut change);
+            dead_changes.push((ramp_for(BODY_FORCE_RAMP), change));
+        }
+        let mut dead = dead_prev.clone();
+        for (_, change) in &dead_changes {
+            for (d, c) in dead.iter_mut().zip(change) {
+                *d += c;
+            }
         }
         programs.push(StageProgram {
             prescribed: prescribed.clone(),
             target: target.clone(),
-            driven,
+            ramp_of_dof,
+            ramps,
             pressures: pressure_programs,
-            dead_start: std::mem::replace(&mut dead_prev, dead.clone()),
-            dead_end: dead,
+            dead_start: std::mem::replace(&mut dead_prev, dead),
+            dead_changes,
         });
     }
     Ok((programs, report))

@@ -420,8 +420,8 @@ fn states<const ND: usize>(
         if mixed {
             sigma += Matrix3::identity() * p;
         }
-        let mut ev: Vec<f64> = c.symmetric_eigenvalues().iter().map(|l| l.max(0.0).sqrt()).collect();
-        ev.sort_by(|a, b| b.total_cmp(a));
+        let mut ev = c.symmetric_eigenvalues().map(|l| l.max(0.0).sqrt());
+        ev.as_mut_slice().sort_by(|a, b| b.total_cmp(a));
         let mut position = [0.0; 3];
         for a in 0..ctx.shape.nodes() {
             for i in 0..3 {

@@ -37,6 +37,9 @@ pub enum Ordering {
     /// Nested dissection of the node graph through METIS (needs the `metis`
     /// feature; without it the solver reports an error).
     NestedDissection,
+    /// Both AMD and nested dissection (if available); keeps whichever gives
+    /// the factor with fewer entries.
+    LeastFill,
     /// A caller-supplied permutation: `perm[k]` is the equation eliminated k-th
     /// (e.g. from a nested-dissection partitioner).
     Custom(Vec<usize>),
@@ -79,6 +82,11 @@ pub struct LinearStats {
     pub ldlt_fallbacks: usize,
     /// LU factorizations of non-symmetric (frictional) tangents.
     pub lu_nonsymmetric: usize,
+    /// Ordering used for the factor (`amd`, `nested-dissection`, `custom`).
+    pub ordering: &'static str,
+    /// Factor entries with each ordering, when [`Ordering::LeastFill`] compared them.
+    pub fill_amd: Option<usize>,
+    pub fill_nested_dissection: Option<usize>,
 }
 
 struct LuFallback {
@@ -117,41 +125,53 @@ impl LinearSolver {
     pub fn new(pattern: &Pattern, settings: &LinearSettings) -> Result<Self, SolveError> {
         let t = Instant::now();
         let symbolic_matrix = pattern.symbolic();
-        let perm_storage;
-        let nd_perm;
-        let custom = match &settings.ordering {
-            Ordering::NestedDissection => {
-                nd_perm = nested_dissection::order(pattern)?;
-                Some(&nd_perm)
-            }
-            Ordering::Custom(p) => Some(p),
-            Ordering::Amd => None,
-        };
-        let ordering = match custom {
-            None => SymmetricOrdering::Amd,
-            Some(p) => {
-                if p.len() != pattern.n {
-                    return Err(SolveError::Linear(format!(
-                        "custom ordering has {} entries for {} equations",
-                        p.len(),
-                        pattern.n
-                    )));
+        let symbolic_with = |perm: Option<&Vec<usize>>| -> Result<SymbolicCholesky<usize>, SolveError> {
+            let perm_storage;
+            let ordering = match perm {
+                None => SymmetricOrdering::Amd,
+                Some(p) => {
+                    if p.len() != pattern.n {
+                        return Err(SolveError::Linear(format!(
+                            "custom ordering has {} entries for {} equations",
+                            p.len(),
+                            pattern.n
+                        )));
+                    }
+                    let mut inv = vec![0usize; p.len()];
+                    for (k, &i) in p.iter().enumerate() {
+                        inv[i] = k;
+                    }
+                    perm_storage = faer::perm::Perm::new_checked(p.clone().into_boxed_slice(), inv.into_boxed_slice(), p.len());
+                    SymmetricOrdering::Custom(perm_storage.as_ref())
                 }
-                let mut inv = vec![0usize; p.len()];
-                for (k, &i) in p.iter().enumerate() {
-                    inv[i] = k;
+            };
+            factorize_symbolic_cholesky(symbolic_matrix.as_ref(), Side::Lower, ordering, CholeskySymbolicParams::default())
+                .map_err(|e| SolveError::Linear(format!("symbolic Cholesky: {e:?}")))
+        };
+        let mut fill_amd = None;
+        let mut fill_nd = None;
+        let (symbolic, chosen) = match &settings.ordering {
+            Ordering::Amd => (symbolic_with(None)?, Ordering::Amd),
+            Ordering::Custom(p) => (symbolic_with(Some(p))?, Ordering::Custom(Vec::new())),
+            Ordering::NestedDissection => (symbolic_with(Some(&nested_dissection::order(pattern)?))?, Ordering::NestedDissection),
+            Ordering::LeastFill => {
+                let amd = symbolic_with(None)?;
+                fill_amd = Some(factor_counts(&amd).0);
+                match nested_dissection::order(pattern) {
+                    Ok(perm) => {
+                        let nd = symbolic_with(Some(&perm))?;
+                        fill_nd = Some(factor_counts(&nd).0);
+                        if fill_nd < fill_amd {
+                            (nd, Ordering::NestedDissection)
+                        } else {
+                            (amd, Ordering::Amd)
+                        }
+                    }
+                    // Without the `metis` feature only AMD is available.
+                    Err(_) => (amd, Ordering::Amd),
                 }
-                perm_storage = faer::perm::Perm::new_checked(p.clone().into_boxed_slice(), inv.into_boxed_slice(), p.len());
-                SymmetricOrdering::Custom(perm_storage.as_ref())
             }
         };
-        let symbolic = factorize_symbolic_cholesky(
-            symbolic_matrix.as_ref(),
-            Side::Lower,
-            ordering,
-            CholeskySymbolicParams::default(),
-        )
-        .map_err(|e| SolveError::Linear(format!("symbolic Cholesky: {e:?}")))?;
         let par = faer::get_global_parallelism();
         let scratch = symbolic
             .factorize_numeric_llt_scratch::<f64>(par, Default::default())
@@ -166,6 +186,13 @@ impl LinearSolver {
             nnz_factor,
             factor_flops,
             symbolic_time: t.elapsed().as_secs_f64(),
+            ordering: match chosen {
+                Ordering::Amd => "amd",
+                Ordering::NestedDissection => "nested-dissection",
+                _ => "custom",
+            },
+            fill_amd,
+            fill_nested_dissection: fill_nd,
             ..Default::default()
         };
         Ok(LinearSolver { symbolic_matrix, symbolic, l_values, mem, par, lu: None, last: None, stats })
