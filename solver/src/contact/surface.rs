@@ -275,6 +275,44 @@ impl Shape {
     }
 }
 
+impl Piece2 {
+    /// The same piece traversed the other way (the rubber side flips).
+    fn reversed(&self) -> Piece2 {
+        match *self {
+            Piece2::Segment { a, b } => Piece2::Segment { a: b, b: a },
+            Piece2::Arc { center, radius, start, end } => Piece2::Arc { center, radius, start: end, end: start },
+        }
+    }
+}
+
+impl Shape {
+    /// The same geometry with the rubber side chosen so that `point` (a point
+    /// inside the rubber, e.g. the centroid of the touching nodes) lies on
+    /// it. Lets job files describe a groove or a cover without caring about
+    /// the direction in which they list its points.
+    pub fn facing(&self, point: [f64; 3]) -> Shape {
+        let x = v3(point);
+        let flip = match self.project_local(&x) {
+            Some(p) => p.gap < 0.0,
+            None => false,
+        };
+        if !flip {
+            return self.clone();
+        }
+        match self {
+            Shape::Line { point, direction } => Shape::Line { point: *point, direction: [-direction[0], -direction[1]] },
+            Shape::Profile(pieces) => Shape::Profile(pieces.iter().rev().map(Piece2::reversed).collect()),
+            Shape::Plane { point, normal } => Shape::Plane { point: *point, normal: [-normal[0], -normal[1], -normal[2]] },
+            Shape::Cylinder { point, axis, radius, rubber_outside } => {
+                Shape::Cylinder { point: *point, axis: *axis, radius: *radius, rubber_outside: !rubber_outside }
+            }
+            Shape::Sphere { center, radius, rubber_outside } => {
+                Shape::Sphere { center: *center, radius: *radius, rubber_outside: !rubber_outside }
+            }
+        }
+    }
+}
+
 /// A named rigid surface with its placement at the current load factor.
 #[derive(Debug, Clone, PartialEq)]
 pub struct RigidSurface {
@@ -391,6 +429,18 @@ mod tests {
             let fd = fd_normal_derivative(&s, x);
             assert!((fd - p.normal_derivative).norm() < 1e-6, "{s:?}\n{fd}\n{}", p.normal_derivative);
         }
+    }
+
+    #[test]
+    fn facing_puts_the_given_point_on_the_rubber_side() {
+        let groove = Shape::Profile(filleted_polyline(&[[24.0, 2.8], [24.0, 0.0], [16.0, 0.0], [16.0, 2.8]], 0.2).unwrap());
+        let inside = [20.0, 1.0, 0.0];
+        // Listed right to left, the rubber would be below the groove: facing flips it.
+        assert!(groove.project_local(&v3(inside)).unwrap().gap < 0.0);
+        let fixed = groove.facing(inside);
+        assert!((fixed.project_local(&v3(inside)).unwrap().gap - 1.0).abs() < 1e-12);
+        let bore = Shape::Cylinder { point: [0.0; 3], axis: [0.0, 0.0, 1.0], radius: 5.0, rubber_outside: true };
+        assert_eq!(bore.facing([4.0, 0.0, 0.0]), Shape::Cylinder { point: [0.0; 3], axis: [0.0, 0.0, 1.0], radius: 5.0, rubber_outside: false });
     }
 
     #[test]
