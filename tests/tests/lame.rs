@@ -34,10 +34,10 @@ fn plane_strain_inner_u(form: Formulation) -> f64 {
     let mut model = Model::single_region(mesh, Analysis::PlaneStrain { thickness: 1.0 }, neo_hookean(MU, kappa()), form);
     model.stages.push(Stage {
         name: "pressure".into(),
-        controls: IncrementControls { first: 1.0, ..Default::default() },
+        controls: one_increment(),
         supports: vec![
-            Support { set: "t0".into(), components: [false, true, false] },
-            Support { set: "t1".into(), components: [true, false, false] },
+            support("t0", [false, true, false]),
+            support("t1", [true, false, false]),
         ],
         pressures: vec![Pressure { set: "s0".into(), value: P }],
         ..Default::default()
@@ -55,10 +55,10 @@ fn axisymmetric_inner_u(form: Formulation) -> (f64, f64) {
     let mut model = Model::single_region(mesh, Analysis::Axisymmetric, neo_hookean(MU, kappa()), form);
     model.stages.push(Stage {
         name: "pressure".into(),
-        controls: IncrementControls { first: 1.0, ..Default::default() },
+        controls: one_increment(),
         supports: vec![
-            Support { set: "t0".into(), components: [false, true, false] },
-            Support { set: "t1".into(), components: [false, true, false] },
+            support("t0", [false, true, false]),
+            support("t1", [false, true, false]),
         ],
         pressures: vec![Pressure { set: "s0".into(), value: P }],
         ..Default::default()
@@ -116,12 +116,12 @@ fn lame_hex8_quarter_annulus_follower_pressure_3d() {
     let mut model = Model::single_region(mesh, Analysis::Solid3d, neo_hookean(MU, kappa()), Formulation::Mixed);
     model.stages.push(Stage {
         name: "pressure".into(),
-        controls: IncrementControls { first: 1.0, ..Default::default() },
+        controls: one_increment(),
         supports: vec![
-            Support { set: "y0".into(), components: [false, true, false] },
-            Support { set: "y1".into(), components: [true, false, false] },
-            Support { set: "z0".into(), components: [false, false, true] },
-            Support { set: "z1".into(), components: [false, false, true] },
+            support("y0", [false, true, false]),
+            support("y1", [true, false, false]),
+            support("z0", [false, false, true]),
+            support("z1", [false, false, true]),
         ],
         pressures: vec![Pressure { set: "x0".into(), value: P }],
         ..Default::default()
