@@ -211,6 +211,15 @@ pub fn one_stage(stage: olli_solver::Stage) -> Vec<olli_solver::Stage> {
     vec![stage]
 }
 
+/// Components of a set held at zero.
+pub fn support(set: &str, components: [bool; 3]) -> olli_solver::Support {
+    olli_solver::Support { set: set.into(), components }
+}
+
+/// Controls that take a whole stage in one increment (small-load checks).
+pub fn one_increment() -> olli_solver::IncrementControls {
+    olli_solver::IncrementControls { first: 1.0, ..Default::default() }
+
 /// Independent implementations of textbook material formulas, kept apart from
 /// the solver's own code so that a test compares two different computations.
 pub mod material {

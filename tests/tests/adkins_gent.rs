@@ -22,11 +22,11 @@ fn adkins_gent_long_bush_axial_stiffness() {
     let mut model = Model::single_region(mesh, Analysis::Axisymmetric, neo_hookean(g, 5000.0 * g), Formulation::Mixed);
     model.stages.push(Stage {
         name: "push".into(),
-        controls: IncrementControls { first: 1.0, ..Default::default() },
+        controls: one_increment(),
         supports: vec![
-            Support { set: "s0".into(), components: [true, true, false] },
-            Support { set: "t0".into(), components: [true, false, false] },
-            Support { set: "t1".into(), components: [true, false, false] },
+            support("s0", [true, true, false]),
+            support("t0", [true, false, false]),
+            support("t1", [true, false, false]),
         ],
         motions: vec![Motion { set: "s1".into(), displacement: [Some(0.0), Some(w), None] }],
         ..Default::default()

@@ -64,9 +64,9 @@ fn disc_modulus_3d_with(kappa: f64, formulation: Formulation) -> f64 {
     model.output.point_fields = false;
     model.output.nodal_fields = false;
     let (mut supports, motions) = bonded("z0", "z1", 3, h);
-    supports.push(Support { set: "x0".into(), components: [true, false, false] });
-    supports.push(Support { set: "y0".into(), components: [false, true, false] });
-    model.stages.push(Stage { name: "squeeze".into(), controls: IncrementControls { first: 1.0, ..Default::default() }, supports, motions, ..Default::default() });
+    supports.push(support("x0", [true, false, false]));
+    supports.push(support("y0", [false, true, false]));
+    model.stages.push(Stage { name: "squeeze".into(), controls: one_increment(), supports, motions, ..Default::default() });
     let sol = solve(&model, &mut Quiet).unwrap();
     assert!(sol.completed(), "{:?}", sol.termination);
     let f = -4.0 * sol.last().unwrap().reactions["z1"][2];
@@ -81,8 +81,8 @@ fn disc_modulus(kappa: f64) -> f64 {
     model.output.point_fields = false;
     model.output.nodal_fields = false;
     let (mut supports, motions) = bonded("t0", "t1", 2, h);
-    supports.push(Support { set: "s0".into(), components: [true, false, false] });
-    model.stages.push(Stage { name: "squeeze".into(), controls: IncrementControls { first: 1.0, ..Default::default() }, supports, motions, ..Default::default() });
+    supports.push(support("s0", [true, false, false]));
+    model.stages.push(Stage { name: "squeeze".into(), controls: one_increment(), supports, motions, ..Default::default() });
     let sol = solve(&model, &mut Quiet).unwrap();
     assert!(sol.completed(), "{:?}", sol.termination);
     let f = -sol.last().unwrap().reactions["t1"][1];

@@ -44,8 +44,8 @@ fn tube_inflation_axisymmetric_pressure_vs_inner_stretch() {
     let mut model = Model::single_region(mesh, Analysis::Axisymmetric, neo_hookean(MU, KAPPA), Formulation::Mixed);
     model.output.point_fields = false;
     let ends = [
-        Support { set: "t0".into(), components: [false, true, false] },
-        Support { set: "t1".into(), components: [false, true, false] },
+        support("t0", [false, true, false]),
+        support("t1", [false, true, false]),
     ];
     let stretches = [1.2, 2.0, 4.0];
     for (k, la) in stretches.iter().enumerate() {
@@ -94,8 +94,8 @@ fn tube_inflation_plane_strain_follower_pressure() {
         name: "inflate".into(),
         controls: IncrementControls { first: 0.2, ..Default::default() },
         supports: vec![
-            Support { set: "t0".into(), components: [false, true, false] },
-            Support { set: "t1".into(), components: [true, false, false] },
+            support("t0", [false, true, false]),
+            support("t1", [true, false, false]),
         ],
         pressures: vec![Pressure { set: "s0".into(), value: p }],
         ..Default::default()
