@@ -37,10 +37,40 @@ pub fn mesh_from_table(
         let hint = t.keys().find_map(|k| nearest(k, ["file", "generate"])).map(|k| format!("; did you mean `{k}`?")).unwrap_or_default();
         return Err(err(format!("[mesh]: give `generate = \"<shape>\"` with its parameters, or `file = \"<path>\"`{hint}")));
     }
-    let spec = GeneratorSpec::deserialize(toml::Value::Table(t.clone()))
-        .map_err(|e| err(format!("[mesh]: {}", with_suggestion(e.message().trim()))))?;
-    let mesh = olli_mesh::generate(&spec).map_err(|e| err(format!("[mesh]: {e}")))?;
+    let spec = GeneratorSpec::deserialize(toml::Value::Table(t.clone())).map_err(|e| {
+        let message = e.message().trim();
+        // The table was re-read without positions: find the quoted key in its text.
+        let key = if message.starts_with("unknown variant") { Some("generate") } else { message.split('`').nth(1) };
+        let at = key.and_then(|key| key_offset(source, table.span(), key));
+        InputError::at(job, source, at.map(|o| o..o).or(span.clone()), format!("[mesh]: {}", with_suggestion(message)))
+    })?;
+    let mesh = olli_mesh::generate(&spec).map_err(|e| {
+        let at = match &e {
+            olli_mesh::MeshError::InvalidParameter { key, .. } => key_offset(source, table.span(), key),
+            _ => None,
+        };
+        InputError::at(job, source, at.map(|o| o..o).or(span.clone()), format!("[mesh]: {e}"))
+    })?;
     Ok((mesh, Vec::new()))
+}
+
+/// Byte offset of the line `key = ...` in the table starting at `span`
+/// (up to the next table header). `key` may be a path like `divisions[0]`.
+fn key_offset(source: &str, span: Range<usize>, key: &str) -> Option<usize> {
+    let key = key.split(['[', '.']).next()?;
+    let text = source.get(span.start..)?;
+    let mut offset = span.start;
+    for (i, line) in text.split_inclusive('\n').enumerate() {
+        let trimmed = line.trim_start();
+        if i > 0 && trimmed.starts_with('[') {
+            break;
+        }
+        if trimmed.strip_prefix(key).is_some_and(|rest| rest.trim_start().starts_with('=')) {
+            return Some(offset + line.len() - trimmed.len());
+        }
+        offset += line.len();
+    }
+    None
 }
 
 /// Adds each selection as a new set of the mesh, in file order.
