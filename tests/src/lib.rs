@@ -3,6 +3,8 @@
 //! and side sets, optional fixed-seed distortion of interior nodes, and
 //! material shorthands. The mesh crate's generators will replace these.
 
+pub mod jobs;
+
 use std::sync::Arc;
 
 use olli_mesh::{ElementKind, Mesh, Side};
