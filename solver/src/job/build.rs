@@ -89,6 +89,20 @@ impl Job {
     }
 }
 
+/// The key of a material table a material error is about: the constant at
+/// fault, or `model` when the set of constants does not fit the model. Job
+/// files and `olli material` point their messages at that key.
+pub fn material_error_key(e: &MaterialError) -> Option<&str> {
+    match e {
+        MaterialError::InvalidParameter { name, .. }
+        | MaterialError::DuplicateParameter { name, .. }
+        | MaterialError::ConflictingParameters { other: name, .. } => Some(name),
+        MaterialError::UnexpectedParameter { name, .. } => Some(name),
+        MaterialError::InvalidCombination { .. } | MaterialError::MissingParameter { .. } => Some("model"),
+        _ => None,
+    }
+}
+
 /// Reads, parses and checks the job file at `path`.
 pub fn load(path: &Path) -> Result<Job, InputError> {
     let source = std::fs::read_to_string(path).map_err(|e| InputError {
@@ -219,16 +233,9 @@ impl Builder<'_> {
         let given = t.constants();
         let constants: Vec<(&str, f64)> = given.iter().map(|(k, v)| (*k, *v.get_ref())).collect();
         crate::material::registry::material(model, &constants, form).map_err(|e| {
-            let key = match &e {
-                MaterialError::InvalidParameter { name, .. }
-                | MaterialError::DuplicateParameter { name, .. }
-                | MaterialError::ConflictingParameters { other: name, .. } => Some(name.to_string()),
-                MaterialError::UnexpectedParameter { name, .. } => Some(name.clone()),
-                _ => None,
-            };
-            let span = key
+            let span = material_error_key(&e)
                 .and_then(|k| given.iter().find(|(n, _)| *n == k).map(|(_, v)| v.span()))
-                .unwrap_or_else(|| table.span());
+                .unwrap_or_else(|| t.model.span());
             self.err(span, format!("material `{name}`: {e}"))
         })
     }
@@ -449,5 +456,90 @@ impl Builder<'_> {
         };
         let dir = self.path.parent().unwrap_or(Path::new("."));
         Ok(OutputPlan { folder: o.folder.as_ref().map(|f| dir.join(f)), every, fields })
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    const JOB: &str = r#"
+analysis = "axisymmetric"
+[mesh]
+generate = "rectangle"
+origin = [1.0, 0.0]
+size = [2.0, 1.0]
+divisions = [2, 2]
+[materials.m]
+model = "neo-hookean"
+shear_modulus = 1.0
+bulk_modulus = 100.0
+[[region]]
+elements = "all"
+material = "m"
+[[support]]
+nodes = "bottom"
+fix = ["z"]
+[[motion]]
+nodes = "top"
+displacement = { z = -0.1 }
+[[stage]]
+name = "a"
+[[motion]]
+nodes = "top"
+stage = "b"
+displacement = { r = 0.05 }
+[[stage]]
+name = "b"
+max_increment = 0.5
+"#;
+
+    fn job(text: &str) -> Result<Job, InputError> {
+        load_str(Path::new("unit.toml"), text)
+    }
+
+    #[test]
+    fn loads_go_to_their_stage_with_defaults() {
+        let j = job(JOB).unwrap();
+        let s = &j.model.stages;
+        assert_eq!(s.len(), 2);
+        assert_eq!(s[0].motions, vec![Motion { set: "top".into(), displacement: [None, Some(-0.1), None] }]);
+        assert_eq!(s[1].motions[0].displacement, [Some(0.05), None, None]);
+        assert_eq!(s[0].supports[0].components, [false, true, false]);
+        assert_eq!((s[0].controls.first, s[0].controls.max, s[0].controls.min), (0.1, 0.25, 1e-5));
+        assert_eq!(s[1].controls.max, 0.5);
+        assert_eq!(j.reaction_columns(), ["reaction_bottom_r", "reaction_bottom_z", "reaction_top_r", "reaction_top_z"]);
+        assert_eq!(j.title, "unit");
+        assert_eq!(j.output.every, 1);
+        assert_eq!(j.output.fields.len(), FIELD_NAMES.len());
+    }
+
+    #[test]
+    fn bad_values_are_rejected_where_they_stand() {
+        let e = job(&JOB.replace("max_increment = 0.5", "max_increment = 0.01")).unwrap_err();
+        assert!(e.message.contains("min_increment ≤ first_increment ≤ max_increment"), "{e}");
+        let e = job(&JOB.replace("analysis = \"axisymmetric\"", "analysis = \"axisymmetric\"\nthickness = 2.0")).unwrap_err();
+        assert_eq!(e.position, Some((3, 13)), "{e}");
+        let e = job(&JOB.replace("displacement = { r = 0.05 }", "displacement = { x = 0.05 }")).unwrap_err();
+        assert!(e.message.contains("unknown component `x` for axisymmetric"), "{e}");
+        let e = job(&JOB.replace("stage = \"b\"", "stage = \"c\"")).unwrap_err();
+        assert!(e.message.contains("no stage named `c`"), "{e}");
+        let e = job(&JOB.replace("fix = [\"z\"]", "fix = []")).unwrap_err();
+        assert!(e.message.contains("names no component"), "{e}");
+    }
+
+    #[test]
+    fn selections_add_sets_and_catch_empty_ones() {
+        let with = |sel: &str| job(&JOB.replace("[materials.m]", &format!("{sel}\n[materials.m]")));
+        let j = with("[[select]]\nname = \"corner\"\nnodes = { nearest = [3.0, 1.0] }").unwrap();
+        assert_eq!(j.model.mesh.node_sets["corner"].len(), 1);
+        let j = with("[[select]]\nname = \"outer\"\nsides = { line = { point = [3.0, 0.0], direction = [0.0, 1.0] } }").unwrap();
+        assert_eq!(j.model.mesh.side_sets["outer"].len(), 2);
+        let e = with("[[select]]\nname = \"none\"\nnodes = { line = { point = [9.0, 0.0], direction = [0.0, 1.0] } }").unwrap_err();
+        assert!(e.message.contains("selects nothing"), "{e}");
+        let e = with("[[select]]\nname = \"top\"\nnodes = { nearest = [3.0, 1.0] }").unwrap_err();
+        assert!(e.message.contains("already exists"), "{e}");
+        let e = with("[[select]]\nname = \"x\"\nnodes = { set = \"topp\" }").unwrap_err();
+        assert!(e.message.contains("did you mean `top`?"), "{e}");
     }
 }

@@ -138,23 +138,10 @@ pub fn check(job: &Job) -> CheckReport {
 
 impl fmt::Display for CheckReport {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        let m = &self.mesh;
         writeln!(f, "job: {}", self.title)?;
         writeln!(f, "analysis: {}", self.analysis)?;
-        writeln!(f, "nodes: {}", m.nodes)?;
-        writeln!(f, "elements: {}", m.elements)?;
-        for (k, n) in &m.per_kind {
-            writeln!(f, "{k}: {n}")?;
-        }
-        for (name, n) in &m.element_sets {
-            writeln!(f, "element set {name}: {n}")?;
-        }
-        for (name, n) in &m.node_sets {
-            writeln!(f, "node set {name}: {n}")?;
-        }
-        for (name, n) in &m.side_sets {
-            writeln!(f, "side set {name}: {n}")?;
-        }
+        // The same lines as `olli mesh info`: counts, sets, extent, quality.
+        write!(f, "{}", self.mesh)?;
         writeln!(f, "stages: {}", self.stages.join(", "))?;
         writeln!(
             f,
@@ -169,7 +156,6 @@ impl fmt::Display for CheckReport {
                 mat.name, mat.model, mat.shear_modulus, mat.bulk_modulus, mat.poisson_ratio, mat.young_modulus
             )?;
         }
-        writeln!(f, "mesh quality: smallest Jacobian ratio {:.3}, largest aspect ratio {:.2}", m.quality.min_jacobian_ratio, m.quality.max_aspect_ratio)?;
         for w in &self.warnings {
             writeln!(f, "warning: {w}")?;
         }

@@ -93,9 +93,9 @@ pub fn apply_selections(job: &Path, source: &str, mesh: &mut Mesh, selects: &[Sp
         let mesh_err = |e: olli_mesh::MeshError| {
             let text = e.to_string();
             let hint = text
-                .split('`')
+                .split("no set named `")
                 .nth(1)
-                .filter(|_| text.contains("no set named"))
+                .and_then(|rest| rest.split('`').next())
                 .and_then(|name| nearest(name, all_set_names(mesh).iter().map(String::as_str)).map(|n| format!("; did you mean `{n}`?")))
                 .unwrap_or_default();
             err(format!("{text}{hint}"))

@@ -232,3 +232,73 @@ fn element_result(disc: &Discretization, e: usize, u: &[f64]) -> Result<(Element
     }
     Ok((ElementResult { means, volume, peaks }, force))
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::job::load_str;
+
+    /// Von Mises stress of textbook states (general mechanics): uniaxial σ
+    /// gives |σ|, pure shear τ gives √3 τ, a hydrostatic state gives 0.
+    #[test]
+    fn von_mises_of_textbook_states() {
+        let uniaxial = Matrix3::new(-3.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0);
+        assert!((von_mises(&uniaxial) - 3.0).abs() < 1e-14);
+        let shear = Matrix3::new(0.0, 2.0, 0.0, 2.0, 0.0, 0.0, 0.0, 0.0, 0.0);
+        assert!((von_mises(&shear) - 2.0 * 3f64.sqrt()).abs() < 1e-14);
+        assert!(von_mises(&(Matrix3::identity() * 5.0)).abs() < 1e-14);
+    }
+
+    /// The nodal `reaction` array must add up, over a set, to the reaction
+    /// the solver reports for that set (both are the internal force at the
+    /// held components; no load acts on those nodes here).
+    #[test]
+    fn reaction_field_sums_to_the_set_reaction() {
+        let text = r#"
+analysis = "plane-strain"
+thickness = 2.0
+[mesh]
+generate = "rectangle"
+size = [4.0, 2.0]
+divisions = [4, 2]
+[materials.m]
+model = "neo-hookean"
+shear_modulus = 1.0
+bulk_modulus = 500.0
+[[region]]
+elements = "all"
+material = "m"
+[[support]]
+nodes = "bottom"
+fix = ["x", "y"]
+[[motion]]
+nodes = "top"
+displacement = { x = 0.3, y = -0.2 }
+[[stage]]
+name = "load"
+first_increment = 0.5
+max_increment = 0.5
+"#;
+        let job = load_str(std::path::Path::new("t.toml"), text).unwrap();
+        let sol = crate::solve(&job.model, &mut crate::Quiet).unwrap();
+        let last = sol.last().unwrap();
+        let disc = Discretization::new(&job.model).unwrap();
+        let (programs, _) = crate::driver::stages::resolve(&disc).unwrap();
+        let u: Vec<f64> = last.displacement.iter().flat_map(|d| d[..2].to_vec()).collect();
+        let f = frame(&disc, &u, &programs[0].prescribed, &["reaction".to_string()]).unwrap();
+        let reaction = &f.point[0].values;
+        for set in ["bottom", "top"] {
+            let want = last.reactions[set];
+            let mut sum = [0.0; 2];
+            for &n in &job.model.mesh.node_sets[set] {
+                sum[0] += reaction[n * 3];
+                sum[1] += reaction[n * 3 + 1];
+            }
+            for i in 0..2 {
+                assert!((sum[i] - want[i]).abs() < 1e-9 * (1.0 + want[i].abs()), "{set}[{i}]: {} vs {}", sum[i], want[i]);
+            }
+        }
+        assert!(last.reactions["top"][0].abs() > 0.1, "the top is sheared: a real reaction");
+        assert!(f.peaks.displacement.value >= (0.3f64.powi(2) + 0.2f64.powi(2)).sqrt() - 1e-12);
+    }
+}

@@ -107,6 +107,7 @@ impl<'m> ResultWriter<'m> {
             .collect();
         self.history.push(&r.stage_name, r.increment, r.load_factor, values, r.newton_iterations);
         let end_of_stage = r.load_factor >= 1.0 - 1e-9;
+        #[allow(clippy::manual_is_multiple_of)] // is_multiple_of needs Rust 1.87; the workspace allows 1.85
         if end_of_stage || r.increment % self.job.output.every == 0 {
             self.flush(|w| w.write_frame(r.stage, r.increment, r.load_factor, &r.displacement));
         }
