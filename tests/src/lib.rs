@@ -3,6 +3,8 @@
 //! and side sets, optional fixed-seed distortion of interior nodes, and
 //! material shorthands. The mesh crate's generators will replace these.
 
+pub mod jobs;
+
 use std::sync::Arc;
 
 use olli_mesh::{ElementKind, Mesh, Side};
@@ -219,6 +221,7 @@ pub fn support(set: &str, components: [bool; 3]) -> olli_solver::Support {
 /// Controls that take a whole stage in one increment (small-load checks).
 pub fn one_increment() -> olli_solver::IncrementControls {
     olli_solver::IncrementControls { first: 1.0, ..Default::default() }
+}
 
 /// Independent implementations of textbook material formulas, kept apart from
 /// the solver's own code so that a test compares two different computations.

@@ -68,7 +68,7 @@ pub fn nearest<'a>(word: &str, candidates: impl IntoIterator<Item = &'a str>) ->
 
 /// Adds "did you mean `x`?" to serde's "unknown field `a`, expected one of
 /// `b`, `c`" and "unknown variant" messages.
-fn with_suggestion(message: &str) -> String {
+pub fn with_suggestion(message: &str) -> String {
     let (Some(word), Some(list)) = (backticked(message).next(), message.split_once("expected")) else {
         return message.to_string();
     };

@@ -3,11 +3,13 @@
 //!
 //! This module only describes the file. [`super::build`] checks it against
 //! the mesh (sets exist, materials exist, components fit the analysis) and
-//! turns it into a solver model.
+//! turns it into a solver model. Defaults and units of every key are listed
+//! in the README's job-file reference.
 
 use std::collections::BTreeMap;
 use std::path::PathBuf;
 
+use olli_mesh::select::Selection;
 use serde::Deserialize;
 use toml::Spanned;
 
@@ -15,20 +17,20 @@ use toml::Spanned;
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct JobFile {
-    /// Free text shown in results and logs.
+    /// Free text shown in results and logs. Default: the job file's name.
     #[serde(default)]
     pub title: String,
     /// What kind of analysis the mesh describes.
     pub analysis: Spanned<AnalysisKind>,
     /// Out-of-plane thickness for `plane-strain` (length units; default 1).
     pub thickness: Option<Spanned<f64>>,
-    /// Where the mesh comes from.
+    /// Where the mesh comes from: a generator table (`generate = "..."`) or `file = "..."`.
     pub mesh: Spanned<toml::Table>,
     /// Extra sets built from geometry.
     #[serde(default)]
     pub select: Vec<Spanned<SelectSpec>>,
     /// Material tables by name.
-    pub materials: Spanned<BTreeMap<String, Spanned<toml::Table>>>,
+    pub materials: Spanned<BTreeMap<String, Spanned<MaterialTable>>>,
     /// Which elements are made of which material.
     pub region: Vec<Spanned<RegionSpec>>,
     /// Components held at zero displacement for the whole run.
@@ -40,12 +42,15 @@ pub struct JobFile {
     /// Follower pressures on side sets.
     #[serde(default)]
     pub pressure: Vec<Spanned<PressureSpec>>,
-    /// Total forces on node sets.
+    /// Total forces on sets.
     #[serde(default)]
     pub force: Vec<Spanned<ForceSpec>>,
-    /// Body forces per unit reference volume.
+    /// Body force per unit reference volume on every element.
     #[serde(default)]
     pub body_force: Vec<Spanned<BodyForceSpec>>,
+    /// Rigid surfaces (contact). Reserved: read so the message can say it is
+    /// not available yet rather than "unknown key".
+    pub rigid: Option<Spanned<toml::Value>>,
     /// Load stages, run in order.
     pub stage: Vec<Spanned<StageSpec>>,
     /// What to write and where.
@@ -66,81 +71,79 @@ pub enum AnalysisKind {
     PlaneStrain,
 }
 
-/// A geometric selection that defines a new node or side set.
+impl AnalysisKind {
+    /// Component names as written in the job file and in `history.csv`.
+    pub fn components(self) -> &'static [&'static str] {
+        match self {
+            AnalysisKind::Solid => &["x", "y", "z"],
+            AnalysisKind::Axisymmetric => &["r", "z"],
+            AnalysisKind::PlaneStrain => &["x", "y"],
+        }
+    }
+
+    pub fn name(self) -> &'static str {
+        match self {
+            AnalysisKind::Solid => "3d",
+            AnalysisKind::Axisymmetric => "axisymmetric",
+            AnalysisKind::PlaneStrain => "plane-strain",
+        }
+    }
+}
+
+/// A geometric selection that defines a new set: give exactly one of
+/// `nodes`, `sides` or `elements`. Selections are the mesh crate's
+/// ([`Selection`]): `{ plane = { point = [..], normal = [..] } }`,
+/// `{ box = { min = [..], max = [..] } }`, `{ set = "name" }`,
+/// `{ union = [..] }`, ...
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct SelectSpec {
     /// Name of the new set.
     pub name: String,
-    /// Build a node set (`"nodes"`, default) or a side set (`"sides"`).
-    #[serde(default)]
-    pub kind: SetKind,
-    /// Only consider nodes or sides of this existing set (default: the whole boundary for sides, all nodes for nodes).
-    pub within: Option<String>,
-    /// Distance tolerance for `plane`, `line`, `cylinder` and `circle` (length units; default 1e-6 × model size).
+    /// Nodes in the region.
+    pub nodes: Option<Selection>,
+    /// Boundary sides whose nodes are all in the region.
+    pub sides: Option<Selection>,
+    /// Elements whose nodes are all in the region.
+    pub elements: Option<Selection>,
+    /// Distance tolerance (length units; default 1e-6 × the mesh's bounding-box diagonal).
     pub tolerance: Option<f64>,
-    /// Axis-aligned box: `{ min = [..], max = [..] }`.
-    #[serde(rename = "box")]
-    pub inside_box: Option<BoxSpec>,
-    /// Plane (3-D) through `point` with `normal`.
-    pub plane: Option<PlaneSpec>,
-    /// Line (2-D) through `point` along `direction`.
-    pub line: Option<LineSpec>,
-    /// Cylinder surface (3-D): axis through `point` along `axis`, `radius`.
-    pub cylinder: Option<CylinderSpec>,
-    /// Circle (2-D): `center`, `radius`.
-    pub circle: Option<CircleSpec>,
-    /// The single node nearest to this point.
-    pub nearest: Option<Vec<f64>>,
-    /// Set algebra on existing sets of the same kind.
-    pub union: Option<Vec<String>>,
-    pub intersection: Option<Vec<String>>,
-    /// `["a", "b", ...]`: members of `a` not in any of the others.
-    pub difference: Option<Vec<String>>,
 }
 
-#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, Deserialize)]
-#[serde(rename_all = "kebab-case")]
-pub enum SetKind {
-    #[default]
-    Nodes,
-    Sides,
-}
-
+/// One material table: a model name, its constants and a volumetric law.
+/// The constant names are those of [`crate::material::registry::ALL_CONSTANTS`]
+/// (a unit test keeps the two lists equal).
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
-pub struct BoxSpec {
-    pub min: Vec<f64>,
-    pub max: Vec<f64>,
+pub struct MaterialTable {
+    pub model: Spanned<String>,
+    /// `"quadratic"` (default), `"logarithmic"` or `"simo-taylor"`.
+    pub volumetric: Option<Spanned<String>>,
+    pub shear_modulus: Option<Spanned<f64>>,
+    pub c10: Option<Spanned<f64>>,
+    pub c01: Option<Spanned<f64>>,
+    pub c20: Option<Spanned<f64>>,
+    pub c30: Option<Spanned<f64>>,
+    pub locking_stretch: Option<Spanned<f64>>,
+    pub bulk_modulus: Option<Spanned<f64>>,
+    pub poisson_ratio: Option<Spanned<f64>>,
 }
 
-#[derive(Debug, Clone, Deserialize)]
-#[serde(deny_unknown_fields)]
-pub struct PlaneSpec {
-    pub point: Vec<f64>,
-    pub normal: Vec<f64>,
-}
-
-#[derive(Debug, Clone, Deserialize)]
-#[serde(deny_unknown_fields)]
-pub struct LineSpec {
-    pub point: Vec<f64>,
-    pub direction: Vec<f64>,
-}
-
-#[derive(Debug, Clone, Deserialize)]
-#[serde(deny_unknown_fields)]
-pub struct CylinderSpec {
-    pub point: Vec<f64>,
-    pub axis: Vec<f64>,
-    pub radius: f64,
-}
-
-#[derive(Debug, Clone, Deserialize)]
-#[serde(deny_unknown_fields)]
-pub struct CircleSpec {
-    pub center: Vec<f64>,
-    pub radius: f64,
+impl MaterialTable {
+    /// The constants given, by name, with their spans.
+    pub fn constants(&self) -> Vec<(&'static str, &Spanned<f64>)> {
+        let all = [
+            ("shear_modulus", &self.shear_modulus),
+            ("c10", &self.c10),
+            ("c01", &self.c01),
+            ("c20", &self.c20),
+            ("c30", &self.c30),
+            ("locking_stretch", &self.locking_stretch),
+            ("bulk_modulus", &self.bulk_modulus),
+            ("poisson_ratio", &self.poisson_ratio),
+        ];
+        all.into_iter().filter_map(|(k, v)| v.as_ref().map(|v| (k, v))).collect()
+    }
 }
 
 /// Material assignment.
@@ -148,9 +151,9 @@ pub struct CircleSpec {
 #[serde(deny_unknown_fields)]
 pub struct RegionSpec {
     /// Element set (`"all"` for every element).
-    pub elements: String,
+    pub elements: Spanned<String>,
     /// Name of a table under `[materials]`.
-    pub material: String,
+    pub material: Spanned<String>,
     /// `"mixed"` (u–p, default: no volumetric locking) or `"displacement"`.
     #[serde(default)]
     pub formulation: FormulationKind,
@@ -169,9 +172,9 @@ pub enum FormulationKind {
 #[serde(deny_unknown_fields)]
 pub struct SupportSpec {
     /// Node set (or side or element set: its nodes).
-    pub nodes: String,
+    pub nodes: Spanned<String>,
     /// Components: `"x"`, `"y"`, `"z"` (axisymmetric: `"r"`, `"z"`).
-    pub fix: Vec<String>,
+    pub fix: Spanned<Vec<String>>,
 }
 
 /// Displacement components reached at the end of `stage`, ramped linearly
@@ -179,53 +182,52 @@ pub struct SupportSpec {
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct MotionSpec {
-    pub nodes: String,
+    pub nodes: Spanned<String>,
     /// Stage name (default: the first stage).
-    pub stage: Option<String>,
+    pub stage: Option<Spanned<String>>,
     /// Component → displacement (length units), e.g. `{ x = 0.0, z = -2.0 }`.
-    pub displacement: BTreeMap<String, f64>,
+    pub displacement: Spanned<BTreeMap<String, f64>>,
 }
 
 /// Follower pressure (stress units) on a side set, positive pushing into the material.
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct PressureSpec {
-    pub sides: String,
-    pub stage: Option<String>,
+    pub sides: Spanned<String>,
+    pub stage: Option<Spanned<String>>,
     pub value: f64,
 }
 
-/// Total force (force units; axisymmetric: over the full 2π) on a node set.
+/// Total force (force units; axisymmetric: over the full 2π) on a set: spread
+/// over the sides of a side set, split equally among the nodes of a node set.
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct ForceSpec {
-    pub nodes: String,
-    pub stage: Option<String>,
-    pub total: BTreeMap<String, f64>,
+    pub set: Spanned<String>,
+    pub stage: Option<Spanned<String>>,
+    pub total: Spanned<BTreeMap<String, f64>>,
 }
 
-/// Body force per unit reference volume (force / length³), e.g. ρ·g.
+/// Body force per unit reference volume (force / length³), e.g. ρ·g, on every element.
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct BodyForceSpec {
-    /// Element set (default `"all"`).
-    pub elements: Option<String>,
-    pub stage: Option<String>,
-    pub per_volume: BTreeMap<String, f64>,
+    pub stage: Option<Spanned<String>>,
+    pub per_volume: Spanned<BTreeMap<String, f64>>,
 }
 
 /// One load stage and its increment controls (fractions of the stage).
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct StageSpec {
-    pub name: String,
+    pub name: Spanned<String>,
     /// First increment as a fraction of the stage (default 0.1).
     pub first_increment: Option<f64>,
     /// Smallest increment before the run stops (default 1e-5).
     pub min_increment: Option<f64>,
     /// Largest increment (default 0.25).
     pub max_increment: Option<f64>,
-    /// Newton iterations allowed per increment before a cutback (default 20).
+    /// Newton iterations allowed per increment before a cutback (default 15).
     pub max_iterations: Option<usize>,
     /// Out-of-balance force relative to the force scale (default 1e-6).
     pub force_tolerance: Option<f64>,
@@ -239,18 +241,38 @@ pub struct OutputSpec {
     pub folder: Option<PathBuf>,
     /// Write a `.vtu` every n-th converged increment (default 1); the last increment of every stage is always written.
     #[serde(default = "one")]
-    pub every: usize,
+    pub every: Spanned<usize>,
+    /// Arrays written to the `.vtu` files (default: all of them).
+    pub fields: Option<Spanned<Vec<String>>>,
 }
 
 impl Default for OutputSpec {
     fn default() -> Self {
         OutputSpec {
             folder: None,
-            every: 1,
+            every: one(),
+            fields: None,
         }
     }
 }
 
-fn one() -> usize {
-    1
+fn one() -> Spanned<usize> {
+    Spanned::new(0..0, 1)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::material::registry::ALL_CONSTANTS;
+
+    #[test]
+    fn material_table_knows_every_registry_constant() {
+        let mut t = String::from("model = \"neo-hookean\"\n");
+        for k in ALL_CONSTANTS {
+            t.push_str(&format!("{k} = 1.0\n"));
+        }
+        let m: MaterialTable = toml::from_str(&t).unwrap();
+        let names: Vec<&str> = m.constants().iter().map(|(k, _)| *k).collect();
+        assert_eq!(names, ALL_CONSTANTS);
+    }
 }

@@ -3,11 +3,17 @@
 //!
 //! Every file is written atomically ([`atomic::write_atomic`]): to a temporary
 //! file in the same folder, then renamed into place, so an interrupted run
-//! never leaves a half-written result.
+//! never leaves a half-written result. [`writer::ResultWriter`] is the
+//! solver observer that writes them as increments converge.
 
 pub mod atomic;
+pub mod event_text;
+pub mod fields;
 pub mod history;
 pub mod pvd;
+pub mod summary;
 pub mod vtu;
+pub mod writer;
 
 pub use atomic::write_atomic;
+pub use writer::{ResultWriter, HISTORY_FILE, LOG_FILE, SUMMARY_FILE};

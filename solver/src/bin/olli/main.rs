@@ -2,8 +2,10 @@
 //! own module; this file only dispatches. Exit codes: 0 success, 1 a run that
 //! stopped without converging, 2 bad input.
 
+mod check_cmd;
 mod material_cmd;
 mod mesh_cmd;
+mod run_cmd;
 
 use std::process::ExitCode;
 
@@ -26,6 +28,10 @@ enum Command {
     Material(material_cmd::Args),
     /// Generate, inspect and convert meshes (info, convert, generate).
     Mesh(mesh_cmd::Args),
+    /// Solve a job file and write VTK, CSV and JSON results.
+    Run(run_cmd::Args),
+    /// Check a job file and its mesh without solving.
+    Check(check_cmd::Args),
 }
 
 fn main() -> ExitCode {
@@ -33,5 +39,7 @@ fn main() -> ExitCode {
     match cli.command {
         Command::Material(args) => material_cmd::run(args),
         Command::Mesh(args) => mesh_cmd::run(args),
+        Command::Run(args) => run_cmd::run(args),
+        Command::Check(args) => check_cmd::run(args),
     }
 }

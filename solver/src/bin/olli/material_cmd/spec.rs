@@ -6,6 +6,7 @@
 
 use std::ops::Range;
 
+use olli_solver::job::build::material_error_key;
 use olli_solver::material::registry::{self, ALL_CONSTANTS, MODEL_NAMES};
 use olli_solver::material::{Material, MaterialError, VolumetricForm};
 use thiserror::Error;
@@ -255,17 +256,7 @@ impl MaterialSpec {
     /// Builds the material; a bad constant is reported where it was given.
     pub fn build(&self) -> Result<Material, SpecError> {
         registry::material(&self.model, &self.constants, self.volumetric).map_err(|source| {
-            let key = match &source {
-                MaterialError::InvalidParameter { name, .. }
-                | MaterialError::DuplicateParameter { name, .. }
-                | MaterialError::ConflictingParameters { other: name, .. } => Some(name.to_string()),
-                MaterialError::UnexpectedParameter { name, .. } => Some(name.clone()),
-                MaterialError::InvalidCombination { .. } | MaterialError::MissingParameter { .. } => {
-                    Some("model".to_string())
-                }
-                _ => None,
-            };
-            let at = key
+            let at = material_error_key(&source)
                 .and_then(|k| self.origins.iter().rev().find(|(n, _)| *n == k).map(|(_, o)| o.clone()))
                 .unwrap_or_else(|| self.source.clone());
             SpecError::Material { at, source }

@@ -1,0 +1,29 @@
+//! `olli check JOB.toml`: reads and checks a job without solving it, and
+//! prints what it holds (counts, sets, materials with their moduli and
+//! stability) and its warnings. Exit codes: 0 a valid job, 2 bad input.
+
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+use olli_solver::job::{self, check::check};
+
+#[derive(clap::Args)]
+#[command(after_help = "Example:\n  olli check examples/bush.toml")]
+pub struct Args {
+    /// The job file (TOML).
+    pub job: PathBuf,
+}
+
+pub fn run(args: Args) -> ExitCode {
+    match job::load(&args.job) {
+        Ok(job) => {
+            print!("{}", check(&job));
+            println!("job is valid");
+            ExitCode::SUCCESS
+        }
+        Err(e) => {
+            eprintln!("error: {e}");
+            ExitCode::from(2)
+        }
+    }
+}

@@ -1,0 +1,178 @@
+//! `olli run JOB.toml [--output DIR] [--quiet]`: solves a job, shows progress
+//! (a progress bar on a terminal, plain lines otherwise), writes results as
+//! increments converge and ends with a summary.
+//!
+//! Exit codes: 0 converged, 1 stopped without converging (converged
+//! increments kept, `summary.json` says why), 2 bad input (nothing written).
+
+use std::io::IsTerminal;
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+use std::time::Duration;
+
+use indicatif::{ProgressBar, ProgressStyle};
+use olli_solver::job::{self, Job};
+use olli_solver::output::event_text::EventText;
+use olli_solver::output::summary::RunSummary;
+use olli_solver::output::ResultWriter;
+use olli_solver::{solve, Event, Observer};
+
+#[derive(clap::Args)]
+#[command(after_help = "Example:\n  olli run examples/bush.toml --output results/bush")]
+pub struct Args {
+    /// The job file (TOML).
+    pub job: PathBuf,
+    /// Result folder (default: `[output] folder` of the job, else `results/<job name>` beside the job file).
+    #[arg(long, value_name = "DIR")]
+    pub output: Option<PathBuf>,
+    /// Print only the final summary.
+    #[arg(long, short)]
+    pub quiet: bool,
+}
+
+/// Progress on stderr: a bar on a terminal, one line per increment otherwise.
+enum Progress {
+    Quiet,
+    Lines(EventText),
+    Bar { bar: ProgressBar, stages: usize, stage: String },
+}
+
+impl Progress {
+    fn new(quiet: bool, stages: usize) -> Self {
+        if quiet {
+            Progress::Quiet
+        } else if std::io::stderr().is_terminal() {
+            let bar = ProgressBar::new((stages * 1000) as u64);
+            let style = ProgressStyle::with_template("{spinner} [{elapsed_precise}] {bar:30.cyan/blue} {msg}")
+                .expect("fixed template")
+                .progress_chars("=> ");
+            bar.set_style(style);
+            bar.enable_steady_tick(Duration::from_millis(200));
+            Progress::Bar { bar, stages, stage: String::new() }
+        } else {
+            Progress::Lines(EventText::new(stages))
+        }
+    }
+
+    fn finish(&self) {
+        if let Progress::Bar { bar, .. } = self {
+            bar.finish_and_clear();
+        }
+    }
+}
+
+impl Observer for Progress {
+    fn event(&mut self, event: &Event) {
+        match self {
+            Progress::Quiet => {}
+            Progress::Lines(text) => {
+                if let Some(line) = text.line(event, false) {
+                    eprintln!("{line}");
+                }
+            }
+            Progress::Bar { bar, stages, stage } => match event {
+                Event::StageStart { stage: i, name, .. } => {
+                    *stage = format!("stage {}/{} `{name}`", i + 1, stages);
+                    bar.set_position((*i * 1000) as u64);
+                    bar.set_message(stage.clone());
+                }
+                Event::IncrementStart { increment, load_factor, step, .. } => {
+                    bar.set_message(format!("{stage} increment {increment}: load factor {load_factor:.4} (step {step:.4})"));
+                }
+                Event::Iteration { iteration, relative, .. } => {
+                    bar.set_message(format!("{stage}: iteration {iteration}, residual {relative:.2e}"));
+                }
+                Event::Cutback { load_factor, step, reason, .. } => {
+                    bar.println(format!("cutback at load factor {load_factor:.4}: {reason}; retrying with {step:.3e}"));
+                }
+                Event::Converged(r) => {
+                    bar.set_position((r.stage as f64 * 1000.0 + r.load_factor * 1000.0) as u64);
+                    let res = r.residual_history.last().copied().unwrap_or(0.0);
+                    bar.set_message(format!(
+                        "{stage} increment {}: load factor {:.4}, {} iterations, residual {res:.1e}",
+                        r.increment, r.load_factor, r.newton_iterations
+                    ));
+                }
+                Event::LinearFallback { .. } => {}
+            },
+        }
+    }
+}
+
+/// The result folder: `--output`, else `[output] folder`, else `results/<stem>` beside the job.
+fn output_folder(job: &Job, given: Option<PathBuf>) -> PathBuf {
+    given.or_else(|| job.output.folder.clone()).unwrap_or_else(|| {
+        let dir = job.path.parent().unwrap_or(Path::new("."));
+        let stem = job.path.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_else(|| "olli".into());
+        dir.join("results").join(stem)
+    })
+}
+
+fn print_summary(s: &RunSummary, folder: &Path, components: &[&str]) {
+    match &s.reason {
+        None => println!("converged: {} increments, {} Newton iterations, {} cutbacks", s.increments, s.newton_iterations, s.cutbacks),
+        Some(r) => {
+            println!("STOPPED in stage `{}`: {r}", s.stopped_in_stage.as_deref().unwrap_or("?"));
+            match &s.last_increment {
+                Some(l) => println!("last converged: stage `{}` increment {} at load factor {:.4}", l.stage, l.increment, l.load_factor),
+                None => println!("no increment converged"),
+            }
+        }
+    }
+    if let Some(p) = &s.peaks {
+        let at = |x: [f64; 3]| format!("({:.4}, {:.4}, {:.4})", x[0], x[1], x[2]);
+        println!("peak displacement: {:.5} at {}", p.displacement.value, at(p.displacement.at));
+        println!("peak max principal log strain: {:.5} at {}", p.max_principal_log_strain.value, at(p.max_principal_log_strain.at));
+        println!("peak von Mises stress: {:.5} at {}", p.von_mises.value, at(p.von_mises.at));
+        println!("principal stress range: {:.5} to {:.5}", p.min_principal_stress.value, p.max_principal_stress.value);
+        println!("hydrostatic pressure range: {:.5} to {:.5}", p.min_pressure.value, p.max_pressure.value);
+    }
+    for (set, r) in &s.reactions {
+        let parts: Vec<String> = components.iter().map(|c| format!("{c} = {:.6}", r.get(*c).copied().unwrap_or(0.0))).collect();
+        println!("reaction {set}: {}", parts.join(", "));
+    }
+    println!("wall time: {:.2} s", s.wall_time_s);
+    println!("results: {}", folder.display());
+}
+
+pub fn run(args: Args) -> ExitCode {
+    let job = match job::load(&args.job) {
+        Ok(j) => j,
+        Err(e) => {
+            eprintln!("error: {e}");
+            return ExitCode::from(2);
+        }
+    };
+    let folder = output_folder(&job, args.output);
+    let mut writer = match ResultWriter::new(&job, &folder) {
+        Ok(w) => w,
+        Err(e) => {
+            eprintln!("error: {}: cannot write results: {e}", folder.display());
+            return ExitCode::from(2);
+        }
+    };
+    let mut progress = Progress::new(args.quiet, job.model.stages.len());
+    let mut both = |e: &Event| {
+        writer.event(e);
+        progress.event(e);
+    };
+    let solution = match solve(&job.model, &mut both) {
+        Ok(s) => s,
+        Err(e) => {
+            progress.finish();
+            eprintln!("error: {}: {e}", job.path.display());
+            return ExitCode::from(2);
+        }
+    };
+    progress.finish();
+    match writer.finish(&solution) {
+        Ok(summary) => {
+            print_summary(&summary, &folder, job.components());
+            if solution.completed() { ExitCode::SUCCESS } else { ExitCode::from(1) }
+        }
+        Err(e) => {
+            eprintln!("error: {}: cannot write results: {e}", folder.display());
+            ExitCode::from(1)
+        }
+    }
+}

@@ -1,0 +1,164 @@
+//! `olli check`: what a job holds and what may go wrong with it, found
+//! without solving: counts, sets and their sizes, each material's
+//! small-strain moduli and its Drucker stability over the stretches the job
+//! may reach, mesh quality, and nearly incompressible materials on
+//! displacement-only elements.
+
+use std::fmt;
+
+use olli_mesh::{summary, MeshSummary};
+
+use super::build::Job;
+use crate::material::homogeneous::{Mode, Settings};
+use crate::material::stability::check_mode;
+use crate::model::Formulation;
+
+/// Poisson's ratio above which a material counts as nearly incompressible
+/// for the locking warning (κ/μ above about 50; common practice).
+pub const NEARLY_INCOMPRESSIBLE_POISSON: f64 = 0.49;
+
+/// Aspect ratio above which an element is reported (common practice).
+pub const ASPECT_WARNING: f64 = 10.0;
+
+/// One material's line in the report.
+#[derive(Debug, Clone, PartialEq)]
+pub struct MaterialCheck {
+    pub name: String,
+    pub model: String,
+    pub shear_modulus: f64,
+    pub bulk_modulus: f64,
+    pub poisson_ratio: f64,
+    pub young_modulus: f64,
+    /// Modes that lose Drucker stability in the checked range, with the stretch.
+    pub unstable: Vec<(Mode, f64)>,
+}
+
+/// The whole report.
+#[derive(Debug, Clone)]
+pub struct CheckReport {
+    pub title: String,
+    pub analysis: &'static str,
+    pub mesh: MeshSummary,
+    pub stages: Vec<String>,
+    pub materials: Vec<MaterialCheck>,
+    /// Stretch range of the stability check.
+    pub stretch_range: (f64, f64),
+    pub warnings: Vec<String>,
+}
+
+/// The stretch range the job may reach: at least 1/3 to 3 (the working range
+/// of most rubber parts; common practice), widened to 1 + 2·d/h for the
+/// largest prescribed displacement d over the smallest extent h of the part
+/// (a shear or compression concentrated in that thickness; common practice).
+pub fn stretch_range(job: &Job) -> (f64, f64) {
+    let (lo, hi) = job.model.mesh.bounding_box();
+    let dim = job.model.mesh.dimension;
+    let h = (0..dim).map(|k| hi[k] - lo[k]).fold(f64::INFINITY, f64::min);
+    let d = job
+        .model
+        .stages
+        .iter()
+        .flat_map(|s| &s.motions)
+        .flat_map(|m| m.displacement.iter().flatten())
+        .fold(0.0f64, |a, &v| a.max(v.abs()));
+    let top = if h > 0.0 { (1.0 + 2.0 * d / h).clamp(3.0, 20.0) } else { 3.0 };
+    (1.0 / top, top)
+}
+
+/// Checks a loaded job.
+pub fn check(job: &Job) -> CheckReport {
+    let mesh = summary(&job.model.mesh);
+    let range = stretch_range(job);
+    let n = 40;
+    let stretches: Vec<f64> = (0..=n).map(|i| range.0 * (range.1 / range.0).powf(i as f64 / n as f64)).collect();
+    let mut warnings: Vec<String> = job.mesh_notes.clone();
+    let settings = Settings::default();
+    let mut materials = Vec::new();
+    for m in &job.materials {
+        let mat = &m.material;
+        let (mu, kappa, nu) = (mat.shear_modulus(), mat.bulk_modulus(), mat.poisson_ratio());
+        let mut unstable = Vec::new();
+        for mode in [Mode::Uniaxial, Mode::Equibiaxial, Mode::Planar] {
+            let s = check_mode(mat, mode, &stretches, &settings);
+            if let Some(l) = s.lost_in_tension.or(s.lost_in_compression) {
+                unstable.push((mode, l));
+                warnings.push(format!(
+                    "material `{}` loses Drucker stability in {} at stretch {l:.3}",
+                    m.name,
+                    mode.name()
+                ));
+            }
+        }
+        if m.used_by.is_empty() {
+            warnings.push(format!("material `{}` is assigned to no region", m.name));
+        }
+        if nu > NEARLY_INCOMPRESSIBLE_POISSON && m.formulations.contains(&Formulation::Displacement) {
+            warnings.push(format!(
+                "material `{}` is nearly incompressible (ν = {nu:.4}) but a region uses `formulation = \"displacement\"`: \
+                 such elements lock and come out too stiff; use `formulation = \"mixed\"`",
+                m.name
+            ));
+        }
+        materials.push(MaterialCheck {
+            name: m.name.clone(),
+            model: m.model.clone(),
+            shear_modulus: mu,
+            bulk_modulus: kappa,
+            poisson_ratio: nu,
+            young_modulus: 2.0 * mu * (1.0 + nu),
+            unstable,
+        });
+    }
+    let q = &mesh.quality;
+    if !q.inverted.is_empty() {
+        warnings.push(format!("{} inverted elements (first: {})", q.inverted.len(), q.inverted[0]));
+    }
+    if !q.degenerate.is_empty() {
+        warnings.push(format!("{} badly distorted elements (Jacobian ratio below 0.05)", q.degenerate.len()));
+    }
+    if q.max_aspect_ratio > ASPECT_WARNING {
+        warnings.push(format!("largest element aspect ratio {:.1} (above {ASPECT_WARNING})", q.max_aspect_ratio));
+    }
+    if q.unreferenced_nodes > 0 {
+        warnings.push(format!("{} nodes belong to no element", q.unreferenced_nodes));
+    }
+    if q.duplicate_nodes > 0 {
+        warnings.push(format!("{} duplicate nodes (unconnected elements?)", q.duplicate_nodes));
+    }
+    CheckReport {
+        title: job.title.clone(),
+        analysis: job.kind.name(),
+        mesh,
+        stages: job.model.stages.iter().map(|s| s.name.clone()).collect(),
+        materials,
+        stretch_range: range,
+        warnings,
+    }
+}
+
+impl fmt::Display for CheckReport {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        writeln!(f, "job: {}", self.title)?;
+        writeln!(f, "analysis: {}", self.analysis)?;
+        // The same lines as `olli mesh info`: counts, sets, extent, quality.
+        write!(f, "{}", self.mesh)?;
+        writeln!(f, "stages: {}", self.stages.join(", "))?;
+        writeln!(
+            f,
+            "stability checked for stretches {:.3} to {:.3} (uniaxial, equibiaxial, planar)",
+            self.stretch_range.0, self.stretch_range.1
+        )?;
+        for mat in &self.materials {
+            let stable = if mat.unstable.is_empty() { "Drucker-stable".to_string() } else { "UNSTABLE".to_string() };
+            writeln!(
+                f,
+                "material {} ({}): shear modulus {:.4}, bulk modulus {:.4}, Poisson's ratio {:.5}, Young's modulus {:.4}; {stable}",
+                mat.name, mat.model, mat.shear_modulus, mat.bulk_modulus, mat.poisson_ratio, mat.young_modulus
+            )?;
+        }
+        for w in &self.warnings {
+            writeln!(f, "warning: {w}")?;
+        }
+        Ok(())
+    }
+}

@@ -1,0 +1,304 @@
+//! The arrays of one result frame, computed from a converged displacement:
+//! integration-point states per element (the element kernel's own
+//! [`point_states`]), their volume-weighted element means (cell data), the
+//! node averages of those means (point data), the nodal reaction forces, and
+//! the peak values the run summary reports.
+//!
+//! Frames are computed only for the increments that are written, so the
+//! solver keeps no per-increment fields and memory stays bounded.
+
+use nalgebra::Matrix3;
+use rayon::prelude::*;
+use serde::Serialize;
+
+use super::vtu::Field;
+use crate::assembly::Discretization;
+use crate::element::{element_into, point_states, PointState, MAX_DOFS, MAX_POINTS};
+use crate::error::SolveError;
+
+/// Von Mises equivalent stress of a symmetric stress tensor.
+pub fn von_mises(s: &Matrix3<f64>) -> f64 {
+    let (a, b, c) = (s[(0, 0)], s[(1, 1)], s[(2, 2)]);
+    let shear = s[(0, 1)].powi(2) + s[(1, 2)].powi(2) + s[(0, 2)].powi(2);
+    (0.5 * ((a - b).powi(2) + (b - c).powi(2) + (c - a).powi(2)) + 3.0 * shear).max(0.0).sqrt()
+}
+
+/// A value and where it occurs.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Peak {
+    pub value: f64,
+    /// Reference position (node, or integration point).
+    pub at: [f64; 3],
+}
+
+impl Peak {
+    fn none() -> Self {
+        Peak { value: f64::NEG_INFINITY, at: [0.0; 3] }
+    }
+
+    fn offer(&mut self, value: f64, at: [f64; 3]) {
+        if value > self.value {
+            *self = Peak { value, at };
+        }
+    }
+
+    /// Replaces the empty-mesh sentinel so JSON never holds infinities.
+    fn finite(self) -> Self {
+        if self.value.is_finite() { self } else { Peak { value: 0.0, at: [0.0; 3] } }
+    }
+}
+
+/// Peak values of one frame (stress units, length units, strain dimensionless).
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Peaks {
+    /// Largest displacement magnitude, at a node.
+    pub displacement: Peak,
+    /// Largest maximum principal logarithmic strain, at an integration point.
+    pub max_principal_log_strain: Peak,
+    /// Largest von Mises stress, at an integration point.
+    pub von_mises: Peak,
+    /// Largest principal Cauchy stress (most tensile), at an integration point.
+    pub max_principal_stress: Peak,
+    /// Smallest principal Cauchy stress (most compressive), at an integration point.
+    pub min_principal_stress: Peak,
+    /// Largest hydrostatic pressure (compression positive), at an integration point.
+    pub max_pressure: Peak,
+    /// Most negative hydrostatic pressure (hydrostatic tension), at an integration point.
+    pub min_pressure: Peak,
+}
+
+impl Peaks {
+    fn empty() -> Self {
+        Peaks {
+            displacement: Peak::none(),
+            max_principal_log_strain: Peak::none(),
+            von_mises: Peak::none(),
+            max_principal_stress: Peak::none(),
+            min_principal_stress: Peak::none(),
+            max_pressure: Peak::none(),
+            min_pressure: Peak::none(),
+        }
+    }
+
+    fn all_mut(&mut self) -> [&mut Peak; 7] {
+        [
+            &mut self.displacement,
+            &mut self.max_principal_log_strain,
+            &mut self.von_mises,
+            &mut self.max_principal_stress,
+            &mut self.min_principal_stress,
+            &mut self.max_pressure,
+            &mut self.min_pressure,
+        ]
+    }
+}
+
+/// The arrays and peaks of one frame.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Frame {
+    pub point: Vec<Field>,
+    pub cell: Vec<Field>,
+    pub peaks: Peaks,
+}
+
+/// Element means, in this order: Cauchy xx yy zz xy yz xz, pressure, J,
+/// max log strain, energy density, von Mises.
+const MEANS: usize = 11;
+
+struct ElementResult {
+    means: [f64; MEANS],
+    volume: f64,
+    peaks: Peaks,
+}
+
+/// Computes the frame of displacement `u` (flat, `dim` per node);
+/// `prescribed` flags the held dofs whose internal force is a reaction;
+/// `wanted` names the arrays to keep (see [`crate::job::FIELD_NAMES`]).
+pub fn frame(disc: &Discretization, u: &[f64], prescribed: &[bool], wanted: &[String]) -> Result<Frame, SolveError> {
+    let mesh = disc.mesh();
+    let dim = disc.dim;
+    let per: Vec<Result<(ElementResult, [f64; MAX_DOFS]), SolveError>> = (0..mesh.element_count())
+        .into_par_iter()
+        .map(|e| element_result(disc, e, u))
+        .collect();
+    let nn = mesh.node_count();
+    let ne = mesh.element_count();
+    let mut cell = vec![[0.0; MEANS]; ne];
+    let mut node = vec![[0.0; MEANS]; nn];
+    let mut weight = vec![0.0; nn];
+    let mut reaction = vec![0.0; nn * 3];
+    let mut peaks = Peaks::empty();
+    for (e, r) in per.into_iter().enumerate() {
+        let (mut r, force) = r?;
+        cell[e] = r.means;
+        merge(&mut peaks, &mut r.peaks);
+        for (a, &n) in mesh.element_nodes(e).iter().enumerate() {
+            weight[n] += r.volume;
+            for k in 0..MEANS {
+                node[n][k] += r.means[k] * r.volume;
+            }
+            for i in 0..dim {
+                if prescribed[n * dim + i] {
+                    reaction[n * 3 + i] += force[a * dim + i];
+                }
+            }
+        }
+    }
+    for n in 0..nn {
+        if weight[n] > 0.0 {
+            node[n].iter_mut().for_each(|v| *v /= weight[n]);
+        }
+        let mut d = [0.0; 3];
+        d[..dim].copy_from_slice(&u[n * dim..n * dim + dim]);
+        let size = (d[0] * d[0] + d[1] * d[1] + d[2] * d[2]).sqrt();
+        peaks.displacement.offer(size, mesh.nodes[n]);
+    }
+    let want = |name: &str| wanted.iter().any(|w| w == name);
+    let column = |rows: &[[f64; MEANS]], k: usize| rows.iter().map(|r| r[k]).collect::<Vec<f64>>();
+    let mut point = Vec::new();
+    if want("displacement") {
+        let mut d = vec![0.0; nn * 3];
+        for n in 0..nn {
+            d[n * 3..n * 3 + dim].copy_from_slice(&u[n * dim..n * dim + dim]);
+        }
+        point.push(Field::new("displacement", 3, d));
+    }
+    if want("cauchy_stress") {
+        point.push(Field::new("cauchy_stress", 6, node.iter().flat_map(|r| r[..6].to_vec()).collect()));
+    }
+    for (name, k) in [("pressure", 6), ("von_mises", 10), ("max_principal_log_strain", 8), ("energy_density", 9)] {
+        if want(name) {
+            point.push(Field::new(name, 1, column(&node, k)));
+        }
+    }
+    if want("reaction") {
+        point.push(Field::new("reaction", 3, reaction));
+    }
+    let mut cells = Vec::new();
+    if want("material") {
+        cells.push(Field::new("material", 1, disc.region_of.iter().map(|&r| r as f64).collect()));
+    }
+    if want("volume_ratio") {
+        cells.push(Field::new("volume_ratio", 1, column(&cell, 7)));
+    }
+    if want("element_pressure") {
+        cells.push(Field::new("element_pressure", 1, column(&cell, 6)));
+    }
+    for peak in peaks.all_mut() {
+        *peak = peak.finite();
+    }
+    let p = &mut peaks;
+    // Minima were tracked as maxima of the negated value.
+    p.min_principal_stress.value = -p.min_principal_stress.value;
+    p.min_pressure.value = -p.min_pressure.value;
+    Ok(Frame { point, cell: cells, peaks })
+}
+
+fn merge(into: &mut Peaks, from: &mut Peaks) {
+    for (a, b) in into.all_mut().into_iter().zip(from.all_mut()) {
+        a.offer(b.value, b.at);
+    }
+}
+
+/// Point states, means, peaks and internal force of element `e`.
+fn element_result(disc: &Discretization, e: usize, u: &[f64]) -> Result<(ElementResult, [f64; MAX_DOFS]), SolveError> {
+    let (mut x, mut ue) = ([[0.0; 3]; 8], [[0.0; 3]; 8]);
+    disc.gather(e, u, &mut x, &mut ue);
+    let ctx = disc.context(e);
+    let np = ctx.shape.points();
+    let mut states = [PointState::default(); MAX_POINTS];
+    point_states(&ctx, &x, &ue, &mut states[..np]).map_err(|err| SolveError::from_element(e, err))?;
+    let mut force = [0.0; MAX_DOFS];
+    element_into(&ctx, &x, &ue, &mut force[..ctx.shape.dofs()], None).map_err(|err| SolveError::from_element(e, err))?;
+    let volume: f64 = states[..np].iter().map(|s| s.volume).sum();
+    let mut means = [0.0; MEANS];
+    let mut peaks = Peaks::empty();
+    for s in &states[..np] {
+        let c = &s.cauchy;
+        let vm = von_mises(c);
+        let strain = s.max_log_strain();
+        let v = [c[(0, 0)], c[(1, 1)], c[(2, 2)], c[(0, 1)], c[(1, 2)], c[(0, 2)], s.pressure, s.j, strain, s.energy_density, vm];
+        let w = if volume > 0.0 { s.volume / volume } else { 1.0 / np as f64 };
+        for k in 0..MEANS {
+            means[k] += v[k] * w;
+        }
+        let eig = c.symmetric_eigenvalues();
+        peaks.max_principal_log_strain.offer(strain, s.position);
+        peaks.von_mises.offer(vm, s.position);
+        peaks.max_principal_stress.offer(eig.max(), s.position);
+        peaks.min_principal_stress.offer(-eig.min(), s.position);
+        peaks.max_pressure.offer(s.pressure, s.position);
+        peaks.min_pressure.offer(-s.pressure, s.position);
+    }
+    Ok((ElementResult { means, volume, peaks }, force))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::job::load_str;
+
+    /// Von Mises stress of textbook states (general mechanics): uniaxial σ
+    /// gives |σ|, pure shear τ gives √3 τ, a hydrostatic state gives 0.
+    #[test]
+    fn von_mises_of_textbook_states() {
+        let uniaxial = Matrix3::new(-3.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0);
+        assert!((von_mises(&uniaxial) - 3.0).abs() < 1e-14);
+        let shear = Matrix3::new(0.0, 2.0, 0.0, 2.0, 0.0, 0.0, 0.0, 0.0, 0.0);
+        assert!((von_mises(&shear) - 2.0 * 3f64.sqrt()).abs() < 1e-14);
+        assert!(von_mises(&(Matrix3::identity() * 5.0)).abs() < 1e-14);
+    }
+
+    /// The nodal `reaction` array must add up, over a set, to the reaction
+    /// the solver reports for that set (both are the internal force at the
+    /// held components; no load acts on those nodes here).
+    #[test]
+    fn reaction_field_sums_to_the_set_reaction() {
+        let text = r#"
+analysis = "plane-strain"
+thickness = 2.0
+[mesh]
+generate = "rectangle"
+size = [4.0, 2.0]
+divisions = [4, 2]
+[materials.m]
+model = "neo-hookean"
+shear_modulus = 1.0
+bulk_modulus = 500.0
+[[region]]
+elements = "all"
+material = "m"
+[[support]]
+nodes = "bottom"
+fix = ["x", "y"]
+[[motion]]
+nodes = "top"
+displacement = { x = 0.3, y = -0.2 }
+[[stage]]
+name = "load"
+first_increment = 0.5
+max_increment = 0.5
+"#;
+        let job = load_str(std::path::Path::new("t.toml"), text).unwrap();
+        let sol = crate::solve(&job.model, &mut crate::Quiet).unwrap();
+        let last = sol.last().unwrap();
+        let disc = Discretization::new(&job.model).unwrap();
+        let (programs, _) = crate::driver::stages::resolve(&disc).unwrap();
+        let u: Vec<f64> = last.displacement.iter().flat_map(|d| d[..2].to_vec()).collect();
+        let f = frame(&disc, &u, &programs[0].prescribed, &["reaction".to_string()]).unwrap();
+        let reaction = &f.point[0].values;
+        for set in ["bottom", "top"] {
+            let want = last.reactions[set];
+            let mut sum = [0.0; 2];
+            for &n in &job.model.mesh.node_sets[set] {
+                sum[0] += reaction[n * 3];
+                sum[1] += reaction[n * 3 + 1];
+            }
+            for i in 0..2 {
+                assert!((sum[i] - want[i]).abs() < 1e-9 * (1.0 + want[i].abs()), "{set}[{i}]: {} vs {}", sum[i], want[i]);
+            }
+        }
+        assert!(last.reactions["top"][0].abs() > 0.1, "the top is sheared: a real reaction");
+        assert!(f.peaks.displacement.value >= (0.3f64.powi(2) + 0.2f64.powi(2)).sqrt() - 1e-12);
+    }
+}

@@ -1,0 +1,86 @@
+//! `summary.json`: the machine-readable final state of a run — whether it
+//! converged or where and why it stopped, the last converged increment,
+//! reactions per named set, peak values, counts and times, the files
+//! written, and the physical dimension of every `history.csv` column (olli
+//! is unit-agnostic: a consistent set such as mm, N, MPa gives N for
+//! "force").
+
+use std::collections::BTreeMap;
+
+use serde::Serialize;
+
+use super::fields::Peaks;
+
+/// Where the last converged increment is.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct IncrementRef {
+    pub stage: String,
+    pub increment: usize,
+    pub load_factor: f64,
+}
+
+/// Names of the files a run wrote, relative to the output folder.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Files {
+    pub history: String,
+    pub collection: String,
+    pub log: String,
+    pub frames: usize,
+}
+
+/// The whole summary.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct RunSummary {
+    pub olli_version: String,
+    pub job: String,
+    pub title: String,
+    pub analysis: String,
+    /// `"converged"` or `"stopped"`.
+    pub status: String,
+    /// Why the run stopped (absent when it converged).
+    pub reason: Option<String>,
+    /// The stage the run stopped in (absent when it converged).
+    pub stopped_in_stage: Option<String>,
+    /// Stages that reached their end.
+    pub stages_completed: Vec<String>,
+    pub last_increment: Option<IncrementRef>,
+    /// Reaction force of each named set at the last converged increment, by
+    /// component (axisymmetric: over the full 2π).
+    pub reactions: BTreeMap<String, BTreeMap<String, f64>>,
+    /// Peaks at the last converged increment.
+    pub peaks: Option<Peaks>,
+    pub increments: usize,
+    pub newton_iterations: usize,
+    pub cutbacks: usize,
+    pub wall_time_s: f64,
+    pub files: Files,
+    /// Physical dimension of each `history.csv` column and each peak.
+    pub units: BTreeMap<String, String>,
+}
+
+impl RunSummary {
+    pub fn to_json(&self) -> String {
+        serde_json::to_string_pretty(self).expect("plain data serialises") + "\n"
+    }
+}
+
+/// Dimensions of the `history.csv` columns (`columns`: the reaction columns).
+pub fn units(columns: &[String]) -> BTreeMap<String, String> {
+    let mut u: BTreeMap<String, String> = [
+        ("stage", "name"),
+        ("increment", "count"),
+        ("load_factor", "fraction of the stage (0 to 1)"),
+        ("newton_iterations", "count"),
+        ("peaks.displacement", "length"),
+        ("peaks.max_principal_log_strain", "strain (ln of stretch)"),
+        ("peaks.*_stress, peaks.von_mises, peaks.*_pressure", "stress (force/length²)"),
+        ("wall_time_s", "second"),
+    ]
+    .into_iter()
+    .map(|(k, v)| (k.to_string(), v.to_string()))
+    .collect();
+    for c in columns {
+        u.insert(c.clone(), "force".into());
+    }
+    u
+}

@@ -1,0 +1,221 @@
+//! Writes a run's results as its increments converge: a `.vtu` frame per
+//! saved increment with the `.pvd` collection over the load, `history.csv`
+//! after every increment, the run log, and at the end `summary.json`.
+//! Every file is replaced atomically, so a run stopped at any moment leaves
+//! complete files holding every converged increment so far.
+
+use std::collections::BTreeMap;
+use std::io;
+use std::path::{Path, PathBuf};
+
+use super::atomic::write_atomic;
+use super::event_text::EventText;
+use super::fields::{frame, Peaks};
+use super::history::History;
+use super::pvd::{pvd_text, PvdEntry};
+use super::summary::{units, Files, IncrementRef, RunSummary};
+use super::vtu::write_vtu;
+use crate::assembly::Discretization;
+use crate::driver::{Event, Observer};
+use crate::error::SolveError;
+use crate::job::Job;
+use crate::results::{IncrementResult, Solution, Termination};
+
+/// Names of the files in the output folder.
+pub const HISTORY_FILE: &str = "history.csv";
+pub const SUMMARY_FILE: &str = "summary.json";
+pub const LOG_FILE: &str = "olli.log";
+
+/// The result writer of one run; pass it (or a wrapper) to [`crate::solve`].
+pub struct ResultWriter<'m> {
+    job: &'m Job,
+    folder: PathBuf,
+    stem: String,
+    disc: Discretization<'m>,
+    /// Held dofs of each stage (their internal force is a reaction).
+    prescribed: Vec<Vec<bool>>,
+    history: History,
+    frames: Vec<PvdEntry>,
+    log: String,
+    text: EventText,
+    /// (stage, increment) of the last frame written.
+    last_frame: Option<(usize, usize)>,
+    last_peaks: Option<Peaks>,
+    /// The first write failure; later writes are skipped.
+    error: Option<String>,
+}
+
+impl<'m> ResultWriter<'m> {
+    /// Prepares a writer into `folder` (created if missing).
+    pub fn new(job: &'m Job, folder: &Path) -> io::Result<Self> {
+        std::fs::create_dir_all(folder)?;
+        let disc = Discretization::new(&job.model).map_err(io::Error::other)?;
+        let (programs, _) = crate::driver::stages::resolve(&disc).map_err(io::Error::other)?;
+        let stem = job.path.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_else(|| "olli".into());
+        let mut w = ResultWriter {
+            job,
+            folder: folder.to_path_buf(),
+            stem,
+            disc,
+            prescribed: programs.into_iter().map(|p| p.prescribed).collect(),
+            history: History::new(job.reaction_columns()),
+            frames: Vec::new(),
+            log: String::new(),
+            text: EventText::new(job.model.stages.len()),
+            last_frame: None,
+            last_peaks: None,
+            error: None,
+        };
+        w.log_line(&format!("olli {} run of {} ({})", env!("CARGO_PKG_VERSION"), job.path.display(), job.title));
+        w.flush(|w| w.write(HISTORY_FILE, w.history.to_csv().as_bytes()));
+        Ok(w)
+    }
+
+    fn log_line(&mut self, line: &str) {
+        self.log.push_str(line);
+        self.log.push('\n');
+    }
+
+    fn write(&self, name: &str, bytes: &[u8]) -> io::Result<()> {
+        write_atomic(&self.folder.join(name), bytes)
+    }
+
+    /// Runs a write unless an earlier one failed; keeps the first failure.
+    fn flush(&mut self, f: impl FnOnce(&mut Self) -> io::Result<()>) {
+        if self.error.is_none() {
+            if let Err(e) = f(self) {
+                self.error = Some(e.to_string());
+            }
+        }
+    }
+
+    /// The first write failure, if any.
+    pub fn error(&self) -> Option<&str> {
+        self.error.as_deref()
+    }
+
+    fn converged(&mut self, r: &IncrementResult) {
+        let dim = self.disc.dim;
+        let values = self
+            .job
+            .reaction_sets
+            .iter()
+            .flat_map(|s| {
+                let f = r.reactions.get(s).copied().unwrap_or([0.0; 3]);
+                f.into_iter().take(dim)
+            })
+            .collect();
+        self.history.push(&r.stage_name, r.increment, r.load_factor, values, r.newton_iterations);
+        let end_of_stage = r.load_factor >= 1.0 - 1e-9;
+        #[allow(clippy::manual_is_multiple_of)] // is_multiple_of needs Rust 1.87; the workspace allows 1.85
+        if end_of_stage || r.increment % self.job.output.every == 0 {
+            self.flush(|w| w.write_frame(r.stage, r.increment, r.load_factor, &r.displacement));
+        }
+        self.flush(|w| {
+            w.write(HISTORY_FILE, w.history.to_csv().as_bytes())?;
+            w.write(LOG_FILE, w.log.as_bytes())
+        });
+    }
+
+    fn write_frame(&mut self, stage: usize, increment: usize, load_factor: f64, d: &[[f64; 3]]) -> io::Result<()> {
+        let dim = self.disc.dim;
+        let u: Vec<f64> = d.iter().flat_map(|x| x[..dim].to_vec()).collect();
+        let f = frame(&self.disc, &u, &self.prescribed[stage], &self.job.output.fields).map_err(io::Error::other)?;
+        let name = format!("{}_{:04}.vtu", self.stem, self.frames.len() + 1);
+        let title = format!("{}: stage {} increment {increment} load factor {load_factor}", self.job.title, stage + 1);
+        write_vtu(&self.folder.join(&name), &title, &self.job.model.mesh, &f.point, &f.cell)?;
+        self.frames.push(PvdEntry { time: stage as f64 + load_factor, file: name });
+        self.write(&format!("{}.pvd", self.stem), pvd_text(&self.frames).as_bytes())?;
+        self.last_frame = Some((stage, increment));
+        self.last_peaks = Some(f.peaks);
+        Ok(())
+    }
+
+    /// Writes the last frame if it was skipped, `summary.json` and the log.
+    /// Returns the summary, or the first write failure of the run.
+    pub fn finish(mut self, solution: &Solution) -> Result<RunSummary, String> {
+        let last = solution.last();
+        if let Some(r) = last {
+            if self.last_frame != Some((r.stage, r.increment)) {
+                self.flush(|w| w.write_frame(r.stage, r.increment, r.load_factor, &r.displacement));
+            }
+        }
+        let stages = &self.job.model.stages;
+        let (status, reason, stopped_in) = match &solution.termination {
+            Termination::Completed => ("converged", None, None),
+            Termination::Stopped(e) => {
+                let stage = match e {
+                    SolveError::IncrementTooSmall { stage, .. } | SolveError::NotConverged { stage, .. } => stage.clone(),
+                    _ => last.map(|r| r.stage_name.clone()).unwrap_or_else(|| stages[0].name.clone()),
+                };
+                ("stopped", Some(e.to_string()), Some(stage))
+            }
+        };
+        let completed_through = match &stopped_in {
+            None => stages.len(),
+            Some(name) => stages.iter().position(|s| &s.name == name).unwrap_or(0),
+        };
+        let components = self.job.components();
+        let reactions = match last {
+            Some(r) => self
+                .job
+                .reaction_sets
+                .iter()
+                .map(|s| {
+                    let f = r.reactions.get(s).copied().unwrap_or([0.0; 3]);
+                    (s.clone(), components.iter().enumerate().map(|(i, c)| (c.to_string(), f[i])).collect())
+                })
+                .collect(),
+            None => BTreeMap::new(),
+        };
+        let summary = RunSummary {
+            olli_version: env!("CARGO_PKG_VERSION").into(),
+            job: self.job.path.display().to_string(),
+            title: self.job.title.clone(),
+            analysis: self.job.kind.name().into(),
+            status: status.into(),
+            reason,
+            stopped_in_stage: stopped_in,
+            stages_completed: stages[..completed_through].iter().map(|s| s.name.clone()).collect(),
+            last_increment: last.map(|r| IncrementRef { stage: r.stage_name.clone(), increment: r.increment, load_factor: r.load_factor }),
+            reactions,
+            peaks: self.last_peaks,
+            increments: solution.increments.len(),
+            newton_iterations: solution.stats.newton_iterations,
+            cutbacks: solution.stats.cutbacks,
+            wall_time_s: self.text.elapsed(),
+            files: Files {
+                history: HISTORY_FILE.into(),
+                collection: format!("{}.pvd", self.stem),
+                log: LOG_FILE.into(),
+                frames: self.frames.len(),
+            },
+            units: units(&self.job.reaction_columns()),
+        };
+        let end = match &summary.reason {
+            None => format!("converged: {} increments, {} Newton iterations", summary.increments, summary.newton_iterations),
+            Some(r) => format!("stopped: {r}"),
+        };
+        let line = format!("[{:8.2} s] {end}", self.text.elapsed());
+        self.log_line(&line);
+        self.flush(|w| {
+            w.write(SUMMARY_FILE, summary.to_json().as_bytes())?;
+            w.write(LOG_FILE, w.log.as_bytes())
+        });
+        match self.error {
+            Some(e) => Err(e),
+            None => Ok(summary),
+        }
+    }
+}
+
+impl Observer for ResultWriter<'_> {
+    fn event(&mut self, event: &Event) {
+        if let Some(line) = self.text.line(event, true) {
+            self.log_line(&line);
+        }
+        if let Event::Converged(r) = event {
+            self.converged(r);
+        }
+    }
+}

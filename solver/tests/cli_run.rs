@@ -1,0 +1,297 @@
+//! `olli run` and `olli check` as scripts use them: exit codes, the files
+//! written (and not written), `history.csv` columns, `summary.json`, `.vtu`
+//! arrays read back with vtkio, and the message of every kind of bad input.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+use vtkio::model::{Attribute, DataSet, Vtk};
+
+/// A small axisymmetric bush: rubber tube r ∈ [10, 25], z ∈ [0, 40]
+/// (invented numbers), pin pushed along z, sleeve held.
+const BUSH: &str = r#"
+title = "test bush"
+analysis = "axisymmetric"
+
+[mesh]
+generate = "rectangle"
+origin = [10.0, 0.0]
+size = [15.0, 40.0]
+divisions = [4, 8]
+
+[[select]]
+name = "pin"
+nodes = { line = { point = [10.0, 0.0], direction = [0.0, 1.0] } }
+
+[materials.soft]
+model = "neo-hookean"
+shear_modulus = 0.5
+bulk_modulus = 1000.0
+
+[[region]]
+elements = "all"
+material = "soft"
+
+[[support]]
+nodes = "right"
+fix = ["r", "z"]
+
+[[motion]]
+nodes = "pin"
+stage = "push"
+displacement = { r = 0.0, z = 0.5 }
+
+[[stage]]
+name = "push"
+"#;
+
+struct Scratch(PathBuf);
+
+impl Scratch {
+    fn new(name: &str) -> Self {
+        let dir = std::env::temp_dir().join(format!("olli-cli-run-{}-{name}", std::process::id()));
+        let _ = std::fs::remove_dir_all(&dir);
+        std::fs::create_dir_all(&dir).unwrap();
+        Scratch(dir)
+    }
+
+    fn job(&self, text: &str) -> PathBuf {
+        let p = self.0.join("job.toml");
+        std::fs::write(&p, text).unwrap();
+        p
+    }
+
+    fn out(&self) -> PathBuf {
+        self.0.join("out")
+    }
+}
+
+impl Drop for Scratch {
+    fn drop(&mut self) {
+        let _ = std::fs::remove_dir_all(&self.0);
+    }
+}
+
+fn olli(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_olli")).args(args).output().unwrap()
+}
+
+fn text(o: &Output) -> String {
+    format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr))
+}
+
+fn run(job: &Path, out: &Path) -> Output {
+    olli(&["run", job.to_str().unwrap(), "--output", out.to_str().unwrap()])
+}
+
+/// Array names with their lengths.
+type Arrays = Vec<(String, usize)>;
+
+/// Point count, cell count, and the point and cell arrays of a `.vtu` file.
+fn arrays(path: &Path) -> (usize, usize, Arrays, Arrays) {
+    let vtk = Vtk::import(path).unwrap();
+    let DataSet::UnstructuredGrid { pieces, .. } = vtk.data else { panic!("not an unstructured grid") };
+    let piece = pieces[0].load_piece_data(None).unwrap();
+    let list = |a: &[Attribute]| {
+        a.iter()
+            .map(|a| match a {
+                Attribute::DataArray(d) => (d.name.clone(), d.data.len()),
+                Attribute::Field { name, .. } => (name.clone(), 0),
+            })
+            .collect::<Vec<_>>()
+    };
+    (piece.num_points(), piece.cells.types.len(), list(&piece.data.point), list(&piece.data.cell))
+}
+
+/// The frame files a `.pvd` collection lists, in order.
+fn pvd_files(dir: &Path) -> Vec<String> {
+    let pvd = std::fs::read_to_string(dir.join("job.pvd")).unwrap();
+    pvd.lines()
+        .filter_map(|l| l.split("file=\"").nth(1))
+        .map(|f| f.trim_end_matches("\"/>").to_string())
+        .collect()
+}
+
+#[test]
+fn run_writes_history_summary_and_readable_frames() {
+    let s = Scratch::new("ok");
+    let out = run(&s.job(BUSH), &s.out());
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out));
+    let history = std::fs::read_to_string(s.out().join("history.csv")).unwrap();
+    let header = history.lines().next().unwrap();
+    assert_eq!(
+        header,
+        "stage,increment,load_factor,reaction_right_r,reaction_right_z,reaction_pin_r,reaction_pin_z,newton_iterations"
+    );
+    let rows: Vec<Vec<&str>> = history.lines().skip(1).map(|l| l.split(',').collect()).collect();
+    assert!(rows.len() >= 4, "at least 1/max_increment = 4 increments");
+    let last = rows.last().unwrap();
+    assert_eq!(last[2].parse::<f64>().unwrap(), 1.0);
+    // Equilibrium: what the pin takes, the sleeve gives back (axial, full 2π).
+    let (pin, sleeve): (f64, f64) = (last[6].parse().unwrap(), last[4].parse().unwrap());
+    assert!(pin > 0.0 && (pin + sleeve).abs() < 1e-6 * pin, "pin {pin}, sleeve {sleeve}");
+
+    let summary: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(s.out().join("summary.json")).unwrap()).unwrap();
+    assert_eq!(summary["status"], "converged");
+    let pin_json = summary["reactions"]["pin"]["z"].as_f64().unwrap();
+    assert!((pin_json - pin).abs() < 1e-9 * pin, "summary {pin_json} vs history {pin}");
+    assert_eq!(summary["units"]["reaction_pin_z"], "force");
+    assert!(summary["peaks"]["displacement"]["value"].as_f64().unwrap() >= 0.5 - 1e-12);
+    assert!(s.out().join("olli.log").exists());
+
+    let frames = pvd_files(&s.out());
+    assert_eq!(frames.len(), rows.len(), "every increment is saved by default");
+    let (np, nc, point, cell) = arrays(&s.out().join(frames.last().unwrap()));
+    assert_eq!((np, nc), (5 * 9, 4 * 8));
+    let want_point = [
+        ("displacement", 3),
+        ("cauchy_stress", 6),
+        ("pressure", 1),
+        ("von_mises", 1),
+        ("max_principal_log_strain", 1),
+        ("energy_density", 1),
+        ("reaction", 3),
+    ];
+    for (name, comps) in want_point {
+        assert!(point.contains(&(name.to_string(), comps * np)), "point array {name}: {point:?}");
+    }
+    for name in ["material", "volume_ratio", "element_pressure"] {
+        assert!(cell.contains(&(name.to_string(), nc)), "cell array {name}: {cell:?}");
+    }
+    let leftovers = std::fs::read_dir(s.out()).unwrap().filter(|e| e.as_ref().unwrap().path().extension().is_some_and(|x| x == "tmp"));
+    assert_eq!(leftovers.count(), 0, "no temporary files left behind");
+}
+
+#[test]
+fn quiet_prints_only_the_summary() {
+    let s = Scratch::new("quiet");
+    let job = s.job(BUSH);
+    let out = olli(&["run", job.to_str().unwrap(), "--output", s.out().to_str().unwrap(), "--quiet"]);
+    assert_eq!(out.status.code(), Some(0));
+    assert!(out.stderr.is_empty(), "{}", String::from_utf8_lossy(&out.stderr));
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert!(stdout.contains("converged") && stdout.contains("reaction pin") && stdout.contains("wall time"), "{stdout}");
+}
+
+#[test]
+fn progress_lines_when_not_a_terminal() {
+    let s = Scratch::new("lines");
+    let out = run(&s.job(BUSH), &s.out());
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("stage `push` (1 of 1)"), "{err}");
+    assert!(err.contains("increment 1: load factor 0.1000"), "{err}");
+}
+
+#[test]
+fn output_every_keeps_the_stage_end() {
+    let s = Scratch::new("every");
+    let job = s.job(&format!("{BUSH}\n[output]\nevery = 100\nfields = [\"displacement\"]\n"));
+    let out = run(&job, &s.out());
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out));
+    assert_eq!(pvd_files(&s.out()), ["job_0001.vtu"], "only the end of the stage");
+    let (_, _, point, cell) = arrays(&s.out().join("job_0001.vtu"));
+    assert_eq!(point.len(), 1);
+    assert!(cell.is_empty());
+}
+
+/// Bad input: exit code 2, the message, and no output folder.
+fn rejects(job_text: &str, want: &[&str]) {
+    let s = Scratch::new(&format!("bad{}", want[0].len()));
+    let job = s.job(job_text);
+    let out = run(&job, &s.out());
+    let msg = text(&out);
+    assert_eq!(out.status.code(), Some(2), "{msg}");
+    for w in want {
+        assert!(msg.contains(w), "expected `{w}` in: {msg}");
+    }
+    assert!(!s.out().exists(), "nothing may be written for bad input");
+    let check = olli(&["check", job.to_str().unwrap()]);
+    assert_eq!(check.status.code(), Some(2), "{}", text(&check));
+}
+
+#[test]
+fn unknown_key_is_located_with_a_suggestion() {
+    rejects(&BUSH.replace("shear_modulus = 0.5", "shear_modulas = 0.5"), &["job.toml:17:1", "shear_modulas", "did you mean `shear_modulus`?"]);
+    rejects(&BUSH.replace("[[stage]]\nname = \"push\"", "[[stage]]\nname = \"push\"\nfirst_incremnt = 0.2"), &["first_incremnt", "did you mean `first_increment`?"]);
+}
+
+#[test]
+fn wrong_type_is_located() {
+    rejects(&BUSH.replace("bulk_modulus = 1000.0", "bulk_modulus = \"stiff\""), &["job.toml:18:16", "invalid type"]);
+}
+
+#[test]
+fn missing_material_is_named() {
+    rejects(&BUSH.replace("material = \"soft\"", "material = \"sotf\""), &["no material named `sotf`", "did you mean `soft`?"]);
+}
+
+#[test]
+fn unknown_set_is_named_with_a_suggestion() {
+    rejects(&BUSH.replace("nodes = \"right\"", "nodes = \"rigth\""), &["job.toml:25:", "no set named `rigth`", "did you mean `right`?"]);
+}
+
+#[test]
+fn negative_modulus_is_rejected_at_its_key() {
+    rejects(&BUSH.replace("shear_modulus = 0.5", "shear_modulus = -0.5"), &["job.toml:17:", "material `soft`", "shear_modulus"]);
+}
+
+#[test]
+fn stage_without_loads_is_rejected() {
+    rejects(&format!("{BUSH}\n[[stage]]\nname = \"hold\"\n"), &["stage `hold` has no loads"]);
+}
+
+#[test]
+fn unreadable_mesh_file_is_reported() {
+    let job = BUSH.replace(
+        "generate = \"rectangle\"\norigin = [10.0, 0.0]\nsize = [15.0, 40.0]\ndivisions = [4, 8]",
+        "file = \"missing.msh\"",
+    );
+    rejects(&job, &["[mesh]", "missing.msh", "cannot read"]);
+}
+
+#[test]
+fn rigid_tables_are_reserved() {
+    rejects(&format!("{BUSH}\n[[rigid]]\nname = \"plate\"\n"), &["rigid", "not available"]);
+}
+
+#[test]
+fn impossible_load_stops_and_keeps_converged_increments() {
+    // The pin is driven 20 mm outward through a 15 mm wall: the rubber
+    // must invert before the end, whatever the increment size.
+    let s = Scratch::new("stop");
+    let job = BUSH
+        .replace("displacement = { r = 0.0, z = 0.5 }", "displacement = { r = 20.0, z = 0.0 }")
+        .replace("name = \"push\"\n", "name = \"push\"\nmin_increment = 1e-3\n");
+    let out = run(&s.job(&job), &s.out());
+    let msg = text(&out);
+    assert_eq!(out.status.code(), Some(1), "{msg}");
+    assert!(msg.contains("STOPPED in stage `push`"), "{msg}");
+    let history = std::fs::read_to_string(s.out().join("history.csv")).unwrap();
+    let rows = history.lines().count() - 1;
+    assert!(rows >= 1, "some increments converge before the wall collapses");
+    let summary: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(s.out().join("summary.json")).unwrap()).unwrap();
+    assert_eq!(summary["status"], "stopped");
+    assert_eq!(summary["stopped_in_stage"], "push");
+    assert!(summary["reason"].as_str().unwrap().contains("minimum"), "{}", summary["reason"]);
+    let lf = summary["last_increment"]["load_factor"].as_f64().unwrap();
+    assert!(lf > 0.0 && lf < 1.0, "stopped part-way: {lf}");
+    let frames = pvd_files(&s.out());
+    let (np, _, point, _) = arrays(&s.out().join(frames.last().unwrap()));
+    assert!(point.contains(&("displacement".to_string(), 3 * np)));
+}
+
+#[test]
+fn check_reports_counts_moduli_and_warnings() {
+    let s = Scratch::new("check");
+    let job = s.job(&BUSH.replace("material = \"soft\"", "material = \"soft\"\nformulation = \"displacement\""));
+    let out = olli(&["check", job.to_str().unwrap()]);
+    let msg = text(&out);
+    assert_eq!(out.status.code(), Some(0), "{msg}");
+    for want in ["nodes: 45", "elements: 32", "node set pin: 9", "side set right: 8", "Drucker-stable", "job is valid"] {
+        assert!(msg.contains(want), "expected `{want}` in: {msg}");
+    }
+    // μ = 0.5, κ = 1000: ν = (3κ − 2μ)/(6κ + 2μ) = 2999/6001 (Lamé relations, general elasticity).
+    assert!(msg.contains(&format!("Poisson's ratio {:.5}", 2999.0 / 6001.0)), "{msg}");
+    assert!(msg.contains("nearly incompressible") && msg.contains("mixed"), "{msg}");
+    assert!(!s.out().exists(), "check writes nothing");
+}
