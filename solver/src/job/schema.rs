@@ -48,9 +48,9 @@ pub struct JobFile {
     /// Body force per unit reference volume on every element.
     #[serde(default)]
     pub body_force: Vec<Spanned<BodyForceSpec>>,
-    /// Rigid surfaces (contact). Reserved: read so the message can say it is
-    /// not available yet rather than "unknown key".
-    pub rigid: Option<Spanned<toml::Value>>,
+    /// Rigid (metal) surfaces the rubber touches.
+    #[serde(default)]
+    pub rigid: Vec<Spanned<RigidSpec>>,
     /// Load stages, run in order.
     pub stage: Vec<Spanned<StageSpec>>,
     /// What to write and where.
@@ -275,4 +275,91 @@ mod tests {
         let names: Vec<&str> = m.constants().iter().map(|(k, _)| *k).collect();
         assert_eq!(names, ALL_CONSTANTS);
     }
+}
+
+/// A rigid surface: one shape, the rubber side set it touches, friction,
+/// and its motion per stage.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RigidSpec {
+    /// Name used in `history.csv` (`rigid_<name>_...`) and the summary.
+    pub name: Spanned<String>,
+    /// Side set of the rubber that may touch this surface.
+    pub touches: Spanned<String>,
+    /// Coulomb friction coefficient (default 0: frictionless).
+    #[serde(default)]
+    pub friction: f64,
+    /// 2-D: an infinite line `{ point = [x, y], direction = [dx, dy] }`.
+    pub line: Option<Spanned<RigidLine>>,
+    /// 2-D: a chain of straight segments through these points, with corner
+    /// radius `fillet` at every interior corner (a groove, a housing).
+    pub polyline: Option<Spanned<Vec<[f64; 2]>>>,
+    /// Corner radius of `polyline` (length units; default 0: sharp corners).
+    pub fillet: Option<f64>,
+    /// 2-D: a circular arc `{ center = [x, y], radius, from = deg, to = deg }`,
+    /// counter-clockwise from `from` to `to`.
+    pub arc: Option<Spanned<RigidArc>>,
+    /// 3-D: a plane `{ point = [x, y, z], normal = [nx, ny, nz] }`.
+    pub plane: Option<Spanned<RigidPlane>>,
+    /// 3-D: a circular cylinder `{ point = [..], axis = [..], radius }` (a shaft or a bore).
+    pub cylinder: Option<Spanned<RigidCylinder>>,
+    /// 3-D: a sphere `{ center = [..], radius }`.
+    pub sphere: Option<Spanned<RigidSphere>>,
+    /// A point inside the rubber, which fixes the side of the surface the
+    /// rubber is on (default: the centroid of the `touches` nodes).
+    pub rubber_point: Option<Vec<f64>>,
+    /// Normal penalty (stress / length; default 50 μ / h with the local side size h).
+    pub penalty: Option<f64>,
+    /// Penetration allowed, as a fraction of the local side size (default 0.001).
+    pub penetration_tolerance: Option<f64>,
+    /// Centre of rotations (default: the origin).
+    pub rotation_center: Option<Vec<f64>>,
+    /// 3-D: axis of rotations (default z).
+    pub rotation_axis: Option<Vec<f64>>,
+    /// Translation reached at the end of each named stage, from the surface's
+    /// original position: `move = { squeeze = [0.0, -0.8] }`. Held afterwards.
+    #[serde(rename = "move")]
+    pub moves: Option<Spanned<BTreeMap<String, Vec<f64>>>>,
+    /// Rotation (degrees) reached at the end of each named stage: `rotate = { tilt = 5.0 }`.
+    pub rotate: Option<Spanned<BTreeMap<String, f64>>>,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RigidLine {
+    pub point: [f64; 2],
+    pub direction: [f64; 2],
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RigidArc {
+    pub center: [f64; 2],
+    pub radius: f64,
+    /// Start angle, degrees from the +x (r) axis.
+    pub from: f64,
+    /// End angle, degrees (counter-clockwise from `from`).
+    pub to: f64,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RigidPlane {
+    pub point: [f64; 3],
+    pub normal: [f64; 3],
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RigidCylinder {
+    pub point: [f64; 3],
+    pub axis: [f64; 3],
+    pub radius: f64,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RigidSphere {
+    pub center: [f64; 3],
+    pub radius: f64,
 }

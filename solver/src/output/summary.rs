@@ -47,6 +47,9 @@ pub struct RunSummary {
     /// Reaction force of each named set at the last converged increment, by
     /// component (axisymmetric: over the full 2π).
     pub reactions: BTreeMap<String, BTreeMap<String, f64>>,
+    /// Each rigid surface at the last converged increment: the force of the
+    /// rubber on it by component, `contact_width` and `peak_pressure`.
+    pub rigid: BTreeMap<String, BTreeMap<String, f64>>,
     /// Peaks at the last converged increment.
     pub peaks: Option<Peaks>,
     pub increments: usize,
@@ -64,7 +67,7 @@ impl RunSummary {
     }
 }
 
-/// Dimensions of the `history.csv` columns (`columns`: the reaction columns).
+/// Dimensions of the `history.csv` columns (`columns`: the reaction and rigid-surface columns).
 pub fn units(columns: &[String]) -> BTreeMap<String, String> {
     let mut u: BTreeMap<String, String> = [
         ("stage", "name"),
@@ -80,7 +83,14 @@ pub fn units(columns: &[String]) -> BTreeMap<String, String> {
     .map(|(k, v)| (k.to_string(), v.to_string()))
     .collect();
     for c in columns {
-        u.insert(c.clone(), "force".into());
+        let dimension = if c.ends_with("_contact_width") {
+            "length"
+        } else if c.ends_with("_peak_pressure") {
+            "stress (force/length²)"
+        } else {
+            "force"
+        };
+        u.insert(c.clone(), dimension.into());
     }
     u
 }

@@ -14,7 +14,7 @@ use super::fields::{frame, Peaks};
 use super::history::History;
 use super::pvd::{pvd_text, PvdEntry};
 use super::summary::{units, Files, IncrementRef, RunSummary};
-use super::vtu::write_vtu;
+use super::vtu::{write_vtu, Field};
 use crate::assembly::Discretization;
 use crate::driver::{Event, Observer};
 use crate::error::SolveError;
@@ -58,7 +58,7 @@ impl<'m> ResultWriter<'m> {
             stem,
             disc,
             prescribed: programs.into_iter().map(|p| p.prescribed).collect(),
-            history: History::new(job.reaction_columns()),
+            history: History::new(job.history_columns()),
             frames: Vec::new(),
             log: String::new(),
             text: EventText::new(job.model.stages.len()),
@@ -96,7 +96,7 @@ impl<'m> ResultWriter<'m> {
 
     fn converged(&mut self, r: &IncrementResult) {
         let dim = self.disc.dim;
-        let values = self
+        let mut values: Vec<f64> = self
             .job
             .reaction_sets
             .iter()
@@ -105,11 +105,21 @@ impl<'m> ResultWriter<'m> {
                 f.into_iter().take(dim)
             })
             .collect();
+        for name in &self.job.rigid_names {
+            match r.contact.iter().find(|c| &c.name == name) {
+                Some(c) => {
+                    values.extend(c.force.into_iter().take(dim));
+                    values.push(c.contact_width);
+                    values.push(c.peak_pressure);
+                }
+                None => values.extend(std::iter::repeat_n(0.0, dim + 2)),
+            }
+        }
         self.history.push(&r.stage_name, r.increment, r.load_factor, values, r.newton_iterations);
         let end_of_stage = r.load_factor >= 1.0 - 1e-9;
         #[allow(clippy::manual_is_multiple_of)] // is_multiple_of needs Rust 1.87; the workspace allows 1.85
         if end_of_stage || r.increment % self.job.output.every == 0 {
-            self.flush(|w| w.write_frame(r.stage, r.increment, r.load_factor, &r.displacement));
+            self.flush(|w| w.write_frame(r));
         }
         self.flush(|w| {
             w.write(HISTORY_FILE, w.history.to_csv().as_bytes())?;
@@ -117,10 +127,17 @@ impl<'m> ResultWriter<'m> {
         });
     }
 
-    fn write_frame(&mut self, stage: usize, increment: usize, load_factor: f64, d: &[[f64; 3]]) -> io::Result<()> {
+    fn write_frame(&mut self, r: &IncrementResult) -> io::Result<()> {
+        let (stage, increment, load_factor) = (r.stage, r.increment, r.load_factor);
         let dim = self.disc.dim;
-        let u: Vec<f64> = d.iter().flat_map(|x| x[..dim].to_vec()).collect();
-        let f = frame(&self.disc, &u, &self.prescribed[stage], &self.job.output.fields).map_err(io::Error::other)?;
+        let u: Vec<f64> = r.displacement.iter().flat_map(|x| x[..dim].to_vec()).collect();
+        let mut f = frame(&self.disc, &u, &self.prescribed[stage], &self.job.output.fields).map_err(io::Error::other)?;
+        if let Some(c) = r.contact_fields.as_ref().filter(|_| self.job.output.fields.iter().any(|w| w == "contact")) {
+            f.point.push(Field::new("contact_pressure", 1, c.pressure.clone()));
+            f.point.push(Field::new("contact_gap", 1, c.gap.clone()));
+            f.point.push(Field::new("contact_slip", 1, c.slip.clone()));
+            f.point.push(Field::new("contact_status", 1, c.status.iter().map(|&s| s as f64).collect()));
+        }
         let name = format!("{}_{:04}.vtu", self.stem, self.frames.len() + 1);
         let title = format!("{}: stage {} increment {increment} load factor {load_factor}", self.job.title, stage + 1);
         write_vtu(&self.folder.join(&name), &title, &self.job.model.mesh, &f.point, &f.cell)?;
@@ -137,7 +154,7 @@ impl<'m> ResultWriter<'m> {
         let last = solution.last();
         if let Some(r) = last {
             if self.last_frame != Some((r.stage, r.increment)) {
-                self.flush(|w| w.write_frame(r.stage, r.increment, r.load_factor, &r.displacement));
+                self.flush(|w| w.write_frame(r));
             }
         }
         let stages = &self.job.model.stages;
@@ -168,6 +185,19 @@ impl<'m> ResultWriter<'m> {
                 .collect(),
             None => BTreeMap::new(),
         };
+        let rigid = match last {
+            Some(r) => r
+                .contact
+                .iter()
+                .map(|c| {
+                    let mut m: BTreeMap<String, f64> = components.iter().enumerate().map(|(i, k)| (k.to_string(), c.force[i])).collect();
+                    m.insert("contact_width".into(), c.contact_width);
+                    m.insert("peak_pressure".into(), c.peak_pressure);
+                    (c.name.clone(), m)
+                })
+                .collect(),
+            None => BTreeMap::new(),
+        };
         let summary = RunSummary {
             olli_version: env!("CARGO_PKG_VERSION").into(),
             job: self.job.path.display().to_string(),
@@ -179,6 +209,7 @@ impl<'m> ResultWriter<'m> {
             stages_completed: stages[..completed_through].iter().map(|s| s.name.clone()).collect(),
             last_increment: last.map(|r| IncrementRef { stage: r.stage_name.clone(), increment: r.increment, load_factor: r.load_factor }),
             reactions,
+            rigid,
             peaks: self.last_peaks,
             increments: solution.increments.len(),
             newton_iterations: solution.stats.newton_iterations,
@@ -190,7 +221,7 @@ impl<'m> ResultWriter<'m> {
                 log: LOG_FILE.into(),
                 frames: self.frames.len(),
             },
-            units: units(&self.job.reaction_columns()),
+            units: units(&self.job.history_columns()),
         };
         let end = match &summary.reason {
             None => format!("converged: {} increments, {} Newton iterations", summary.increments, summary.newton_iterations),

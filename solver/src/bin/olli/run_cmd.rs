@@ -131,6 +131,16 @@ fn print_summary(s: &RunSummary, folder: &Path, components: &[&str]) {
         let parts: Vec<String> = components.iter().map(|c| format!("{c} = {:.6}", r.get(*c).copied().unwrap_or(0.0))).collect();
         println!("reaction {set}: {}", parts.join(", "));
     }
+    for (name, r) in &s.rigid {
+        let parts: Vec<String> = components.iter().map(|c| format!("{c} = {:.6}", r.get(*c).copied().unwrap_or(0.0))).collect();
+        let get = |k: &str| r.get(k).copied().unwrap_or(0.0);
+        println!(
+            "rigid {name}: force {}; contact width {:.5}, peak contact pressure {:.5}",
+            parts.join(", "),
+            get("contact_width"),
+            get("peak_pressure")
+        );
+    }
     println!("wall time: {:.2} s", s.wall_time_s);
     println!("results: {}", folder.display());
 }
