@@ -185,10 +185,14 @@ fn progress_lines_when_not_a_terminal() {
 #[test]
 fn output_every_keeps_the_stage_end() {
     let s = Scratch::new("every");
+    // A first run with every increment saved, then a second into the same folder.
+    assert_eq!(run(&s.job(BUSH), &s.out()).status.code(), Some(0));
+    assert!(s.out().join("job_0002.vtu").exists());
     let job = s.job(&format!("{BUSH}\n[output]\nevery = 100\nfields = [\"displacement\"]\n"));
     let out = run(&job, &s.out());
     assert_eq!(out.status.code(), Some(0), "{}", text(&out));
     assert_eq!(pvd_files(&s.out()), ["job_0001.vtu"], "only the end of the stage");
+    assert!(!s.out().join("job_0002.vtu").exists(), "frames of the earlier run in this folder are removed");
     let (_, _, point, cell) = arrays(&s.out().join("job_0001.vtu"));
     assert_eq!(point.len(), 1);
     assert!(cell.is_empty());

@@ -52,6 +52,7 @@ impl<'m> ResultWriter<'m> {
         let disc = Discretization::new(&job.model).map_err(io::Error::other)?;
         let (programs, _) = crate::driver::stages::resolve(&disc).map_err(io::Error::other)?;
         let stem = job.path.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_else(|| "olli".into());
+        remove_previous_results(folder, &stem)?;
         let mut w = ResultWriter {
             job,
             folder: folder.to_path_buf(),
@@ -207,6 +208,24 @@ impl<'m> ResultWriter<'m> {
             None => Ok(summary),
         }
     }
+}
+
+/// Removes the files an earlier run of the same job left in `folder`, so a
+/// stale summary or surplus frames never pass for this run's results.
+fn remove_previous_results(folder: &Path, stem: &str) -> io::Result<()> {
+    for entry in std::fs::read_dir(folder)? {
+        let name = entry?.file_name().to_string_lossy().into_owned();
+        let frame = name
+            .strip_prefix(stem)
+            .and_then(|r| r.strip_prefix('_'))
+            .and_then(|r| r.strip_suffix(".vtu"))
+            .is_some_and(|n| !n.is_empty() && n.bytes().all(|b| b.is_ascii_digit()));
+        let ours = [SUMMARY_FILE, HISTORY_FILE, LOG_FILE].contains(&name.as_str()) || name == format!("{stem}.pvd");
+        if frame || ours {
+            std::fs::remove_file(folder.join(&name))?;
+        }
+    }
+    Ok(())
 }
 
 impl Observer for ResultWriter<'_> {
