@@ -200,7 +200,9 @@ fn output_every_keeps_the_stage_end() {
 
 /// Bad input: exit code 2, the message, and no output folder.
 fn rejects(job_text: &str, want: &[&str]) {
-    let s = Scratch::new(&format!("bad{}", want[0].len()));
+    // Tests run in parallel: every call gets its own folder.
+    static CALLS: std::sync::atomic::AtomicUsize = std::sync::atomic::AtomicUsize::new(0);
+    let s = Scratch::new(&format!("bad{}", CALLS.fetch_add(1, std::sync::atomic::Ordering::Relaxed)));
     let job = s.job(job_text);
     let out = run(&job, &s.out());
     let msg = text(&out);
