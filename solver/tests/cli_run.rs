@@ -185,10 +185,14 @@ fn progress_lines_when_not_a_terminal() {
 #[test]
 fn output_every_keeps_the_stage_end() {
     let s = Scratch::new("every");
+    // A first run with every increment saved, then a second into the same folder.
+    assert_eq!(run(&s.job(BUSH), &s.out()).status.code(), Some(0));
+    assert!(s.out().join("job_0002.vtu").exists());
     let job = s.job(&format!("{BUSH}\n[output]\nevery = 100\nfields = [\"displacement\"]\n"));
     let out = run(&job, &s.out());
     assert_eq!(out.status.code(), Some(0), "{}", text(&out));
     assert_eq!(pvd_files(&s.out()), ["job_0001.vtu"], "only the end of the stage");
+    assert!(!s.out().join("job_0002.vtu").exists(), "frames of the earlier run in this folder are removed");
     let (_, _, point, cell) = arrays(&s.out().join("job_0001.vtu"));
     assert_eq!(point.len(), 1);
     assert!(cell.is_empty());
@@ -196,7 +200,9 @@ fn output_every_keeps_the_stage_end() {
 
 /// Bad input: exit code 2, the message, and no output folder.
 fn rejects(job_text: &str, want: &[&str]) {
-    let s = Scratch::new(&format!("bad{}", want[0].len()));
+    // Tests run in parallel: every call gets its own folder.
+    static CALLS: std::sync::atomic::AtomicUsize = std::sync::atomic::AtomicUsize::new(0);
+    let s = Scratch::new(&format!("bad{}", CALLS.fetch_add(1, std::sync::atomic::Ordering::Relaxed)));
     let job = s.job(job_text);
     let out = run(&job, &s.out());
     let msg = text(&out);

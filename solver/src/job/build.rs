@@ -282,13 +282,13 @@ impl Builder<'_> {
                 None if set == "all" => (0..mesh.element_count()).collect(),
                 None => {
                     let names: Vec<&str> = mesh.element_sets.keys().map(String::as_str).chain(["all"]).collect();
-                    return Err(self.unknown_name(spec.elements.span(), "element set", set, &names));
+                    return Err(self.unknown_name(spec.elements.span(), "elements", "element set", set, &names));
                 }
             };
             let mat_name = spec.material.get_ref();
             let Some(mat) = materials.iter_mut().find(|m| &m.name == mat_name) else {
                 let names: Vec<&str> = file.materials.get_ref().keys().map(String::as_str).collect();
-                return Err(self.unknown_name(spec.material.span(), "material", mat_name, &names));
+                return Err(self.unknown_name(spec.material.span(), "material", "material", mat_name, &names));
             };
             let formulation = match spec.formulation {
                 FormulationKind::Mixed => Formulation::Mixed,
@@ -301,20 +301,21 @@ impl Builder<'_> {
         Ok(out)
     }
 
-    fn unknown_name(&self, span: Range<usize>, what: &str, name: &str, known: &[&str]) -> InputError {
+    /// "`key`: no <what> named `name` (known: ...); did you mean ...?"
+    fn unknown_name(&self, span: Range<usize>, key: &str, what: &str, name: &str, known: &[&str]) -> InputError {
         let hint = nearest(name, known.iter().copied()).map(|k| format!("; did you mean `{k}`?")).unwrap_or_default();
         let list = if known.is_empty() { "none".to_string() } else { known.join(", ") };
-        self.err(span, format!("no {what} named `{name}` (known: {list}){hint}"))
+        self.err(span, format!("`{key}`: no {what} named `{name}` (known: {list}){hint}"))
     }
 
     /// Checks a set name against every set of the mesh.
-    fn node_set(&self, mesh: &Mesh, name: &Spanned<String>) -> Result<String, InputError> {
+    fn node_set(&self, mesh: &Mesh, key: &str, name: &Spanned<String>) -> Result<String, InputError> {
         if mesh.nodes_of_set(name.get_ref()).is_some() {
             return Ok(name.get_ref().clone());
         }
         let names = all_set_names(mesh);
         let known: Vec<&str> = names.iter().map(String::as_str).collect();
-        Err(self.unknown_name(name.span(), "set", name.get_ref(), &known))
+        Err(self.unknown_name(name.span(), key, "set", name.get_ref(), &known))
     }
 
     /// Component values `{ x = .., z = .. }` as an array for this analysis.
@@ -341,7 +342,7 @@ impl Builder<'_> {
         let Some(name) = name else { return Ok(0) };
         stages.iter().position(|s| s.get_ref().name.get_ref() == name.get_ref()).ok_or_else(|| {
             let names: Vec<&str> = stages.iter().map(|s| s.get_ref().name.get_ref().as_str()).collect();
-            self.unknown_name(name.span(), "stage", name.get_ref(), &names)
+            self.unknown_name(name.span(), "stage", "stage", name.get_ref(), &names)
         })
     }
 
@@ -360,7 +361,7 @@ impl Builder<'_> {
         let mut loaded = vec![false; stages.len()];
         for sup in &file.support {
             let spec = sup.get_ref();
-            let set = self.node_set(mesh, &spec.nodes)?;
+            let set = self.node_set(mesh, "nodes", &spec.nodes)?;
             let names = kind.components();
             let mut components = [false; 3];
             for c in spec.fix.get_ref() {
@@ -378,7 +379,7 @@ impl Builder<'_> {
         for m in &file.motion {
             let spec = m.get_ref();
             let i = self.stage_index(&file.stage, &spec.stage)?;
-            let set = self.node_set(mesh, &spec.nodes)?;
+            let set = self.node_set(mesh, "nodes", &spec.nodes)?;
             let displacement = self.components(kind, &spec.displacement)?;
             stages[i].motions.push(Motion { set, displacement });
             loaded[i] = true;
@@ -389,9 +390,9 @@ impl Builder<'_> {
             let name = spec.sides.get_ref();
             if !mesh.side_sets.contains_key(name) {
                 let known: Vec<&str> = mesh.side_sets.keys().map(String::as_str).collect();
-                let mut e = self.unknown_name(spec.sides.span(), "side set", name, &known);
+                let mut e = self.unknown_name(spec.sides.span(), "sides", "side set", name, &known);
                 if mesh.nodes_of_set(name).is_some() {
-                    e.message = format!("`{name}` is not a side set: a pressure acts on sides (edges or faces)");
+                    e.message = format!("`sides`: `{name}` is not a side set: a pressure acts on sides (edges or faces)");
                 }
                 return Err(e);
             }
@@ -404,7 +405,7 @@ impl Builder<'_> {
         for f in &file.force {
             let spec = f.get_ref();
             let i = self.stage_index(&file.stage, &spec.stage)?;
-            let set = self.node_set(mesh, &spec.set)?;
+            let set = self.node_set(mesh, "set", &spec.set)?;
             let total = self.components(kind, &spec.total)?.map(|v| v.unwrap_or(0.0));
             stages[i].forces.push(Force { set, total });
             loaded[i] = true;
@@ -631,7 +632,7 @@ impl Builder<'_> {
             Some(list) => {
                 for f in list.get_ref() {
                     if !FIELD_NAMES.contains(&f.as_str()) {
-                        return Err(self.unknown_name(list.span(), "output field", f, FIELD_NAMES));
+                        return Err(self.unknown_name(list.span(), "fields", "output field", f, FIELD_NAMES));
                     }
                 }
                 list.get_ref().clone()

@@ -146,3 +146,32 @@ pub fn all_set_names(mesh: &Mesh) -> Vec<String> {
     names.dedup();
     names
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use olli_mesh::generate::{rectangle, RectangleParams};
+
+    /// An imported mesh keeps its sets (written with set markers, read back)
+    /// and its path is taken relative to the job file.
+    #[test]
+    fn imports_a_mesh_file_beside_the_job() {
+        let dir = std::env::temp_dir().join(format!("olli-mesh-source-{}", std::process::id()));
+        std::fs::create_dir_all(&dir).unwrap();
+        let mesh = rectangle(&RectangleParams { size: [2.0, 1.0], divisions: [4, 2], ..Default::default() }).unwrap();
+        olli_mesh::write_vtu(&mesh, &dir.join("part.vtu")).unwrap();
+        let job = dir.join("job.toml");
+        let text = "[mesh]\nfile = \"part.vtu\"\n";
+        let table: toml::Table = toml::from_str(text).unwrap();
+        let spanned = Spanned::new(0..text.len(), table["mesh"].as_table().unwrap().clone());
+        let (read, _) = mesh_from_table(&job, text, &spanned).unwrap();
+        assert_eq!((read.node_count(), read.element_count()), (15, 8));
+        assert_eq!(read.side_sets["top"].len(), 4);
+        let missing = Spanned::new(0..text.len(), toml::from_str::<toml::Table>("file = \"nope.vtu\"").unwrap());
+        let e = mesh_from_table(&job, text, &missing).unwrap_err();
+        assert!(e.message.contains("nope.vtu") && e.message.contains("cannot read"), "{e}");
+        let both = Spanned::new(0..text.len(), toml::from_str::<toml::Table>("file = \"part.vtu\"\ngenerate = \"disc\"").unwrap());
+        assert!(mesh_from_table(&job, text, &both).unwrap_err().message.contains("cannot be combined"));
+        std::fs::remove_dir_all(&dir).unwrap();
+    }
+}

@@ -23,7 +23,8 @@ impl EventText {
         self.start.elapsed().as_secs_f64()
     }
 
-    /// The line for `event`; Newton iterations only when `iterations` is set.
+    /// The line for `event`; increment starts and Newton iterations only
+    /// when `iterations` is set (the log has them, plain progress does not).
     pub fn line(&mut self, event: &Event, iterations: bool) -> Option<String> {
         let t = self.elapsed();
         let text = match event {
@@ -31,7 +32,12 @@ impl EventText {
                 self.stage = name.to_string();
                 format!("stage `{name}` ({} of {}): {equations} equations", stage + 1, self.stage_count)
             }
-            Event::IncrementStart { .. } => return None,
+            Event::IncrementStart { increment, load_factor, step, .. } => {
+                if !iterations {
+                    return None;
+                }
+                format!("stage `{}` increment {increment}: to load factor {load_factor:.4} (increment {step:.4})", self.stage)
+            }
             Event::Iteration { iteration, residual, relative, line_search, .. } => {
                 if !iterations {
                     return None;

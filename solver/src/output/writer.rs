@@ -1,11 +1,13 @@
 //! Writes a run's results as its increments converge: a `.vtu` frame per
 //! saved increment with the `.pvd` collection over the load, `history.csv`
 //! after every increment, the run log, and at the end `summary.json`.
-//! Every file is replaced atomically, so a run stopped at any moment leaves
-//! complete files holding every converged increment so far.
+//! Every result file is replaced atomically, so a run stopped at any moment
+//! leaves complete files holding every converged increment so far. The log
+//! is appended to, a whole line at a time, and flushed at every increment.
 
 use std::collections::BTreeMap;
-use std::io;
+use std::fs::File;
+use std::io::{self, BufWriter, Write};
 use std::path::{Path, PathBuf};
 
 use super::atomic::write_atomic;
@@ -36,7 +38,7 @@ pub struct ResultWriter<'m> {
     prescribed: Vec<Vec<bool>>,
     history: History,
     frames: Vec<PvdEntry>,
-    log: String,
+    log: BufWriter<File>,
     text: EventText,
     /// (stage, increment) of the last frame written.
     last_frame: Option<(usize, usize)>,
@@ -52,6 +54,8 @@ impl<'m> ResultWriter<'m> {
         let disc = Discretization::new(&job.model).map_err(io::Error::other)?;
         let (programs, _) = crate::driver::stages::resolve(&disc).map_err(io::Error::other)?;
         let stem = job.path.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_else(|| "olli".into());
+        remove_previous_results(folder, &stem)?;
+        let log = BufWriter::new(File::create(folder.join(LOG_FILE))?);
         let mut w = ResultWriter {
             job,
             folder: folder.to_path_buf(),
@@ -60,7 +64,7 @@ impl<'m> ResultWriter<'m> {
             prescribed: programs.into_iter().map(|p| p.prescribed).collect(),
             history: History::new(job.history_columns()),
             frames: Vec::new(),
-            log: String::new(),
+            log,
             text: EventText::new(job.model.stages.len()),
             last_frame: None,
             last_peaks: None,
@@ -72,8 +76,9 @@ impl<'m> ResultWriter<'m> {
     }
 
     fn log_line(&mut self, line: &str) {
-        self.log.push_str(line);
-        self.log.push('\n');
+        if let Err(e) = writeln!(self.log, "{line}") {
+            self.error.get_or_insert(e.to_string());
+        }
     }
 
     fn write(&self, name: &str, bytes: &[u8]) -> io::Result<()> {
@@ -123,7 +128,7 @@ impl<'m> ResultWriter<'m> {
         }
         self.flush(|w| {
             w.write(HISTORY_FILE, w.history.to_csv().as_bytes())?;
-            w.write(LOG_FILE, w.log.as_bytes())
+            w.log.flush()
         });
     }
 
@@ -231,7 +236,7 @@ impl<'m> ResultWriter<'m> {
         self.log_line(&line);
         self.flush(|w| {
             w.write(SUMMARY_FILE, summary.to_json().as_bytes())?;
-            w.write(LOG_FILE, w.log.as_bytes())
+            w.log.flush()
         });
         match self.error {
             Some(e) => Err(e),
@@ -240,13 +245,33 @@ impl<'m> ResultWriter<'m> {
     }
 }
 
+/// Removes the files an earlier run of the same job left in `folder`, so a
+/// stale summary or surplus frames never pass for this run's results.
+fn remove_previous_results(folder: &Path, stem: &str) -> io::Result<()> {
+    for entry in std::fs::read_dir(folder)? {
+        let name = entry?.file_name().to_string_lossy().into_owned();
+        let frame = name
+            .strip_prefix(stem)
+            .and_then(|r| r.strip_prefix('_'))
+            .and_then(|r| r.strip_suffix(".vtu"))
+            .is_some_and(|n| !n.is_empty() && n.bytes().all(|b| b.is_ascii_digit()));
+        let ours = [SUMMARY_FILE, HISTORY_FILE, LOG_FILE].contains(&name.as_str()) || name == format!("{stem}.pvd");
+        if frame || ours {
+            std::fs::remove_file(folder.join(&name))?;
+        }
+    }
+    Ok(())
+}
+
 impl Observer for ResultWriter<'_> {
     fn event(&mut self, event: &Event) {
         if let Some(line) = self.text.line(event, true) {
             self.log_line(&line);
         }
-        if let Event::Converged(r) = event {
-            self.converged(r);
+        match event {
+            Event::Converged(r) => self.converged(r),
+            Event::Cutback { .. } => self.flush(|w| w.log.flush()),
+            _ => {}
         }
     }
 }

@@ -34,7 +34,7 @@ pub struct Args {
 enum Progress {
     Quiet,
     Lines(EventText),
-    Bar { bar: ProgressBar, stages: usize, stage: String },
+    Bar { bar: ProgressBar, stages: usize, stage: String, increment: String },
 }
 
 impl Progress {
@@ -48,7 +48,7 @@ impl Progress {
                 .progress_chars("=> ");
             bar.set_style(style);
             bar.enable_steady_tick(Duration::from_millis(200));
-            Progress::Bar { bar, stages, stage: String::new() }
+            Progress::Bar { bar, stages, stage: String::new(), increment: String::new() }
         } else {
             Progress::Lines(EventText::new(stages))
         }
@@ -70,17 +70,18 @@ impl Observer for Progress {
                     eprintln!("{line}");
                 }
             }
-            Progress::Bar { bar, stages, stage } => match event {
+            Progress::Bar { bar, stages, stage, increment: current } => match event {
                 Event::StageStart { stage: i, name, .. } => {
                     *stage = format!("stage {}/{} `{name}`", i + 1, stages);
                     bar.set_position((*i * 1000) as u64);
                     bar.set_message(stage.clone());
                 }
                 Event::IncrementStart { increment, load_factor, step, .. } => {
-                    bar.set_message(format!("{stage} increment {increment}: load factor {load_factor:.4} (step {step:.4})"));
+                    *current = format!("{stage} increment {increment}: load factor {load_factor:.4} (step {step:.4})");
+                    bar.set_message(current.clone());
                 }
                 Event::Iteration { iteration, relative, .. } => {
-                    bar.set_message(format!("{stage}: iteration {iteration}, residual {relative:.2e}"));
+                    bar.set_message(format!("{current}, iteration {iteration}, residual {relative:.2e}"));
                 }
                 Event::Cutback { load_factor, step, reason, .. } => {
                     bar.println(format!("cutback at load factor {load_factor:.4}: {reason}; retrying with {step:.3e}"));
