@@ -256,8 +256,20 @@ fn unreadable_mesh_file_is_reported() {
 }
 
 #[test]
-fn rigid_tables_are_reserved() {
-    rejects(&format!("{BUSH}\n[[rigid]]\nname = \"plate\"\n"), &["rigid", "not available"]);
+fn rigid_surface_without_a_shape_is_rejected() {
+    rejects(&format!("{BUSH}\n[[rigid]]\nname = \"plate\"\ntouches = \"right\"\n"), &["rigid `plate`", "give its shape"]);
+}
+
+#[test]
+fn rigid_surface_of_the_wrong_dimension_is_rejected() {
+    let job = format!("{BUSH}\n[[rigid]]\nname = \"plate\"\ntouches = \"right\"\nplane = {{ point = [0, 0, 0], normal = [0, 0, 1] }}\n");
+    rejects(&job, &["`plane` is a 3-D shape", "axisymmetric"]);
+}
+
+#[test]
+fn rigid_surface_on_an_unknown_side_set_is_named_with_a_suggestion() {
+    let job = format!("{BUSH}\n[[rigid]]\nname = \"plate\"\ntouches = \"rigth\"\nline = {{ point = [0, 0], direction = [1, 0] }}\n");
+    rejects(&job, &["no side set named `rigth`", "did you mean `right`?"]);
 }
 
 #[test]

@@ -442,7 +442,7 @@ impl Builder<'_> {
             let sides = spec.touches.get_ref();
             if !mesh.side_sets.contains_key(sides) {
                 let known: Vec<&str> = mesh.side_sets.keys().map(String::as_str).collect();
-                return Err(self.unknown_name(spec.touches.span(), "side set", sides, &known));
+                return Err(self.unknown_name(spec.touches.span(), "touches", "side set", sides, &known));
             }
             let bad = |span: Range<usize>, m: String| self.err(span, format!("rigid `{name}`: {m}"));
             let solid = kind == AnalysisKind::Solid;
@@ -551,7 +551,7 @@ impl Builder<'_> {
             let stage_names: Vec<&str> = stages.iter().map(|s| s.name.as_str()).collect();
             if let Some(m) = &spec.moves {
                 for (stage, v) in m.get_ref() {
-                    let i = stage_names.iter().position(|n| n == stage).ok_or_else(|| self.unknown_name(m.span(), "stage", stage, &stage_names))?;
+                    let i = stage_names.iter().position(|n| n == stage).ok_or_else(|| self.unknown_name(m.span(), "move", "stage", stage, &stage_names))?;
                     if v.len() != dim || v.iter().any(|x| !x.is_finite()) {
                         return Err(self.err(m.span(), format!("rigid `{name}`: move in stage `{stage}` needs {dim} finite components")));
                     }
@@ -562,7 +562,7 @@ impl Builder<'_> {
             }
             if let Some(m) = &spec.rotate {
                 for (stage, deg) in m.get_ref() {
-                    let i = stage_names.iter().position(|n| n == stage).ok_or_else(|| self.unknown_name(m.span(), "stage", stage, &stage_names))?;
+                    let i = stage_names.iter().position(|n| n == stage).ok_or_else(|| self.unknown_name(m.span(), "rotate", "stage", stage, &stage_names))?;
                     if !deg.is_finite() {
                         return Err(self.err(m.span(), format!("rigid `{name}`: rotation in stage `{stage}` must be finite")));
                     }
