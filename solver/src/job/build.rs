@@ -3,7 +3,6 @@
 //! values, and assigns every load to its stage. Every error points at the
 //! table or key at fault in the job file.
 
-use std::collections::BTreeMap;
 use std::ops::Range;
 use std::path::{Path, PathBuf};
 use std::sync::Arc;
@@ -13,13 +12,11 @@ use toml::Spanned;
 
 use super::diagnostics::{nearest, InputError};
 use super::mesh_source::{all_set_names, apply_selections, mesh_from_table};
-use super::schema::{AnalysisKind, FormulationKind, JobFile, MaterialTable, StageSpec};
+use super::schema::{AnalysisKind, FormulationKind, JobFile, MaterialTable};
 use crate::assembly::Discretization;
 use crate::linear::LinearSettings;
 use crate::material::{Material, MaterialError, VolumetricForm};
-use crate::model::{
-    Analysis, Force, Formulation, IncrementControls, Model, Motion, OutputSettings, Pressure, Region, Stage, Support,
-};
+use crate::model::{Analysis, Formulation, Model, OutputSettings, Region};
 
 /// Names of the arrays a `.vtu` frame can hold (`[output] fields`).
 pub const FIELD_NAMES: &[&str] = &[
@@ -119,13 +116,13 @@ pub fn load_str(path: &Path, source: &str) -> Result<Job, InputError> {
     Builder { path, source }.build(file)
 }
 
-struct Builder<'a> {
-    path: &'a Path,
-    source: &'a str,
+pub(super) struct Builder<'a> {
+    pub(super) path: &'a Path,
+    pub(super) source: &'a str,
 }
 
 impl Builder<'_> {
-    fn err(&self, span: Range<usize>, message: impl Into<String>) -> InputError {
+    pub(super) fn err(&self, span: Range<usize>, message: impl Into<String>) -> InputError {
         let span = if span.is_empty() && span.start == 0 { None } else { Some(span) };
         InputError::at(self.path, self.source, span, message)
     }
@@ -273,158 +270,20 @@ impl Builder<'_> {
     }
 
     /// "`key`: no <what> named `name` (known: ...); did you mean ...?"
-    fn unknown_name(&self, span: Range<usize>, key: &str, what: &str, name: &str, known: &[&str]) -> InputError {
+    pub(super) fn unknown_name(&self, span: Range<usize>, key: &str, what: &str, name: &str, known: &[&str]) -> InputError {
         let hint = nearest(name, known.iter().copied()).map(|k| format!("; did you mean `{k}`?")).unwrap_or_default();
         let list = if known.is_empty() { "none".to_string() } else { known.join(", ") };
         self.err(span, format!("`{key}`: no {what} named `{name}` (known: {list}){hint}"))
     }
 
     /// Checks a set name against every set of the mesh.
-    fn node_set(&self, mesh: &Mesh, key: &str, name: &Spanned<String>) -> Result<String, InputError> {
+    pub(super) fn node_set(&self, mesh: &Mesh, key: &str, name: &Spanned<String>) -> Result<String, InputError> {
         if mesh.nodes_of_set(name.get_ref()).is_some() {
             return Ok(name.get_ref().clone());
         }
         let names = all_set_names(mesh);
         let known: Vec<&str> = names.iter().map(String::as_str).collect();
         Err(self.unknown_name(name.span(), key, "set", name.get_ref(), &known))
-    }
-
-    /// Component values `{ x = .., z = .. }` as an array for this analysis.
-    fn components(&self, kind: AnalysisKind, map: &Spanned<BTreeMap<String, f64>>) -> Result<[Option<f64>; 3], InputError> {
-        let names = kind.components();
-        let mut out = [None; 3];
-        if map.get_ref().is_empty() {
-            return Err(self.err(map.span(), format!("give at least one component ({})", names.join(", "))));
-        }
-        for (k, v) in map.get_ref() {
-            let Some(i) = names.iter().position(|n| n == k) else {
-                let hint = nearest(k, names.iter().copied()).map(|n| format!("; did you mean `{n}`?")).unwrap_or_default();
-                return Err(self.err(map.span(), format!("unknown component `{k}` for {} analysis (use {}){hint}", kind.name(), names.join(", "))));
-            };
-            if !v.is_finite() {
-                return Err(self.err(map.span(), format!("component `{k}` must be a finite number")));
-            }
-            out[i] = Some(*v);
-        }
-        Ok(out)
-    }
-
-    fn stage_index(&self, stages: &[Spanned<StageSpec>], name: &Option<Spanned<String>>) -> Result<usize, InputError> {
-        let Some(name) = name else { return Ok(0) };
-        stages.iter().position(|s| s.get_ref().name.get_ref() == name.get_ref()).ok_or_else(|| {
-            let names: Vec<&str> = stages.iter().map(|s| s.get_ref().name.get_ref().as_str()).collect();
-            self.unknown_name(name.span(), "stage", "stage", name.get_ref(), &names)
-        })
-    }
-
-    fn stages(&self, file: &JobFile, mesh: &Mesh, kind: AnalysisKind) -> Result<Vec<Stage>, InputError> {
-        if file.stage.is_empty() {
-            return Err(self.err(0..0, "no [[stage]]: add at least one, e.g. `[[stage]] name = \"load\"`"));
-        }
-        let mut stages = Vec::new();
-        for (i, s) in file.stage.iter().enumerate() {
-            let spec = s.get_ref();
-            if file.stage[..i].iter().any(|o| o.get_ref().name.get_ref() == spec.name.get_ref()) {
-                return Err(self.err(spec.name.span(), format!("two stages are named `{}`", spec.name.get_ref())));
-            }
-            stages.push(Stage { name: spec.name.get_ref().clone(), controls: self.controls(s)?, ..Default::default() });
-        }
-        let mut loaded = vec![false; stages.len()];
-        for sup in &file.support {
-            let spec = sup.get_ref();
-            let set = self.node_set(mesh, "nodes", &spec.nodes)?;
-            let names = kind.components();
-            let mut components = [false; 3];
-            for c in spec.fix.get_ref() {
-                let Some(i) = names.iter().position(|n| n == c) else {
-                    let hint = nearest(c, names.iter().copied()).map(|n| format!("; did you mean `{n}`?")).unwrap_or_default();
-                    return Err(self.err(spec.fix.span(), format!("unknown component `{c}` for {} analysis (use {}){hint}", kind.name(), names.join(", "))));
-                };
-                components[i] = true;
-            }
-            if !components.iter().any(|&c| c) {
-                return Err(self.err(spec.fix.span(), "`fix` names no component"));
-            }
-            stages[0].supports.push(Support { set, components });
-        }
-        for m in &file.motion {
-            let spec = m.get_ref();
-            let i = self.stage_index(&file.stage, &spec.stage)?;
-            let set = self.node_set(mesh, "nodes", &spec.nodes)?;
-            let displacement = self.components(kind, &spec.displacement)?;
-            stages[i].motions.push(Motion { set, displacement });
-            loaded[i] = true;
-        }
-        for p in &file.pressure {
-            let spec = p.get_ref();
-            let i = self.stage_index(&file.stage, &spec.stage)?;
-            let name = spec.sides.get_ref();
-            if !mesh.side_sets.contains_key(name) {
-                let known: Vec<&str> = mesh.side_sets.keys().map(String::as_str).collect();
-                let mut e = self.unknown_name(spec.sides.span(), "sides", "side set", name, &known);
-                if mesh.nodes_of_set(name).is_some() {
-                    e.message = format!("`sides`: `{name}` is not a side set: a pressure acts on sides (edges or faces)");
-                }
-                return Err(e);
-            }
-            if !spec.value.is_finite() {
-                return Err(self.err(p.span(), "pressure `value` must be a finite number"));
-            }
-            stages[i].pressures.push(Pressure { set: name.clone(), value: spec.value });
-            loaded[i] = true;
-        }
-        for f in &file.force {
-            let spec = f.get_ref();
-            let i = self.stage_index(&file.stage, &spec.stage)?;
-            let set = self.node_set(mesh, "set", &spec.set)?;
-            let total = self.components(kind, &spec.total)?.map(|v| v.unwrap_or(0.0));
-            stages[i].forces.push(Force { set, total });
-            loaded[i] = true;
-        }
-        for b in &file.body_force {
-            let spec = b.get_ref();
-            let i = self.stage_index(&file.stage, &spec.stage)?;
-            if stages[i].body_force.is_some() {
-                return Err(self.err(b.span(), format!("stage `{}` has two body forces; give one with all components", stages[i].name)));
-            }
-            stages[i].body_force = Some(self.components(kind, &spec.per_volume)?.map(|v| v.unwrap_or(0.0)));
-            loaded[i] = true;
-        }
-        if let Some(i) = loaded.iter().position(|&l| !l) {
-            let name = &stages[i].name;
-            return Err(self.err(
-                file.stage[i].span(),
-                format!("stage `{name}` has no loads: give it a [[motion]], [[pressure]], [[force]] or [[body_force]] with `stage = \"{name}\"`"),
-            ));
-        }
-        Ok(stages)
-    }
-
-    fn controls(&self, s: &Spanned<StageSpec>) -> Result<IncrementControls, InputError> {
-        let spec = s.get_ref();
-        let d = IncrementControls::default();
-        let c = IncrementControls {
-            first: spec.first_increment.unwrap_or(d.first),
-            min: spec.min_increment.unwrap_or(d.min),
-            max: spec.max_increment.unwrap_or(0.25),
-            max_iterations: spec.max_iterations.unwrap_or(d.max_iterations),
-            force_tolerance: spec.force_tolerance.unwrap_or(d.force_tolerance),
-            ..d
-        };
-        let bad = |m: String| self.err(s.span(), format!("stage `{}`: {m}", spec.name.get_ref()));
-        if !(c.min > 0.0 && c.min <= c.first && c.first <= c.max && c.max <= 1.0) {
-            return Err(bad(format!(
-                "increments must satisfy 0 < min_increment ≤ first_increment ≤ max_increment ≤ 1 (got {}, {}, {})",
-                c.min, c.first, c.max
-            )));
-        }
-        if c.max_iterations == 0 {
-            return Err(bad("`max_iterations` must be at least 1".into()));
-        }
-        if !(c.force_tolerance > 0.0 && c.force_tolerance < 1.0) {
-            return Err(bad(format!("`force_tolerance` must be in (0, 1), got {}", c.force_tolerance)));
-        }
-        Ok(c)
     }
 
     fn reaction_sets(&self, file: &JobFile) -> Vec<String> {
@@ -463,6 +322,7 @@ impl Builder<'_> {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::model::Motion;
 
     const JOB: &str = r#"
 analysis = "axisymmetric"
