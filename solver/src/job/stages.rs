@@ -1,0 +1,155 @@
+//! The load program of a job: stages with their increment controls, and the
+//! supports, motions, pressures, forces and body forces assigned to them
+//! (a load without `stage` belongs to the first). Components are checked
+//! against the analysis kind; a stage that nothing loads is an error.
+
+use std::collections::BTreeMap;
+
+use olli_mesh::Mesh;
+use toml::Spanned;
+
+use super::build::Builder;
+use super::diagnostics::{nearest, InputError};
+use super::schema::{AnalysisKind, JobFile, StageSpec};
+use crate::model::{Force, IncrementControls, Motion, Pressure, Stage, Support};
+
+impl Builder<'_> {
+    /// Component values `{ x = .., z = .. }` as an array for this analysis.
+    fn components(&self, kind: AnalysisKind, map: &Spanned<BTreeMap<String, f64>>) -> Result<[Option<f64>; 3], InputError> {
+        let names = kind.components();
+        let mut out = [None; 3];
+        if map.get_ref().is_empty() {
+            return Err(self.err(map.span(), format!("give at least one component ({})", names.join(", "))));
+        }
+        for (k, v) in map.get_ref() {
+            let Some(i) = names.iter().position(|n| n == k) else {
+                let hint = nearest(k, names.iter().copied()).map(|n| format!("; did you mean `{n}`?")).unwrap_or_default();
+                return Err(self.err(map.span(), format!("unknown component `{k}` for {} analysis (use {}){hint}", kind.name(), names.join(", "))));
+            };
+            if !v.is_finite() {
+                return Err(self.err(map.span(), format!("component `{k}` must be a finite number")));
+            }
+            out[i] = Some(*v);
+        }
+        Ok(out)
+    }
+
+    fn stage_index(&self, stages: &[Spanned<StageSpec>], name: &Option<Spanned<String>>) -> Result<usize, InputError> {
+        let Some(name) = name else { return Ok(0) };
+        stages.iter().position(|s| s.get_ref().name.get_ref() == name.get_ref()).ok_or_else(|| {
+            let names: Vec<&str> = stages.iter().map(|s| s.get_ref().name.get_ref().as_str()).collect();
+            self.unknown_name(name.span(), "stage", "stage", name.get_ref(), &names)
+        })
+    }
+
+    pub(super) fn stages(&self, file: &JobFile, mesh: &Mesh, kind: AnalysisKind) -> Result<Vec<Stage>, InputError> {
+        if file.stage.is_empty() {
+            return Err(self.err(0..0, "no [[stage]]: add at least one, e.g. `[[stage]] name = \"load\"`"));
+        }
+        let mut stages = Vec::new();
+        for (i, s) in file.stage.iter().enumerate() {
+            let spec = s.get_ref();
+            if file.stage[..i].iter().any(|o| o.get_ref().name.get_ref() == spec.name.get_ref()) {
+                return Err(self.err(spec.name.span(), format!("two stages are named `{}`", spec.name.get_ref())));
+            }
+            stages.push(Stage { name: spec.name.get_ref().clone(), controls: self.controls(s)?, ..Default::default() });
+        }
+        let mut loaded = vec![false; stages.len()];
+        for sup in &file.support {
+            let spec = sup.get_ref();
+            let set = self.node_set(mesh, "nodes", &spec.nodes)?;
+            let names = kind.components();
+            let mut components = [false; 3];
+            for c in spec.fix.get_ref() {
+                let Some(i) = names.iter().position(|n| n == c) else {
+                    let hint = nearest(c, names.iter().copied()).map(|n| format!("; did you mean `{n}`?")).unwrap_or_default();
+                    return Err(self.err(spec.fix.span(), format!("unknown component `{c}` for {} analysis (use {}){hint}", kind.name(), names.join(", "))));
+                };
+                components[i] = true;
+            }
+            if !components.iter().any(|&c| c) {
+                return Err(self.err(spec.fix.span(), "`fix` names no component"));
+            }
+            stages[0].supports.push(Support { set, components });
+        }
+        for m in &file.motion {
+            let spec = m.get_ref();
+            let i = self.stage_index(&file.stage, &spec.stage)?;
+            let set = self.node_set(mesh, "nodes", &spec.nodes)?;
+            let displacement = self.components(kind, &spec.displacement)?;
+            stages[i].motions.push(Motion { set, displacement });
+            loaded[i] = true;
+        }
+        for p in &file.pressure {
+            let spec = p.get_ref();
+            let i = self.stage_index(&file.stage, &spec.stage)?;
+            let name = spec.sides.get_ref();
+            if !mesh.side_sets.contains_key(name) {
+                let known: Vec<&str> = mesh.side_sets.keys().map(String::as_str).collect();
+                let mut e = self.unknown_name(spec.sides.span(), "sides", "side set", name, &known);
+                if mesh.nodes_of_set(name).is_some() {
+                    e.message = format!("`sides`: `{name}` is not a side set: a pressure acts on sides (edges or faces)");
+                }
+                return Err(e);
+            }
+            if !spec.value.is_finite() {
+                return Err(self.err(p.span(), "pressure `value` must be a finite number"));
+            }
+            stages[i].pressures.push(Pressure { set: name.clone(), value: spec.value });
+            loaded[i] = true;
+        }
+        for f in &file.force {
+            let spec = f.get_ref();
+            let i = self.stage_index(&file.stage, &spec.stage)?;
+            let set = self.node_set(mesh, "set", &spec.set)?;
+            let total = self.components(kind, &spec.total)?.map(|v| v.unwrap_or(0.0));
+            stages[i].forces.push(Force { set, total });
+            loaded[i] = true;
+        }
+        for b in &file.body_force {
+            let spec = b.get_ref();
+            let i = self.stage_index(&file.stage, &spec.stage)?;
+            if stages[i].body_force.is_some() {
+                return Err(self.err(b.span(), format!("stage `{}` has two body forces; give one with all components", stages[i].name)));
+            }
+            stages[i].body_force = Some(self.components(kind, &spec.per_volume)?.map(|v| v.unwrap_or(0.0)));
+            loaded[i] = true;
+        }
+        self.rigid_motions(file, kind, &mut stages, &mut loaded)?;
+        if let Some(i) = loaded.iter().position(|&l| !l) {
+            let name = &stages[i].name;
+            return Err(self.err(
+                file.stage[i].span(),
+                format!("stage `{name}` has no loads: give it a [[motion]], [[pressure]], [[force]] or [[body_force]] with `stage = \"{name}\"`, or move a [[rigid]] surface in it"),
+            ));
+        }
+        Ok(stages)
+    }
+
+    fn controls(&self, s: &Spanned<StageSpec>) -> Result<IncrementControls, InputError> {
+        let spec = s.get_ref();
+        let d = IncrementControls::default();
+        let c = IncrementControls {
+            first: spec.first_increment.unwrap_or(d.first),
+            min: spec.min_increment.unwrap_or(d.min),
+            max: spec.max_increment.unwrap_or(0.25),
+            max_iterations: spec.max_iterations.unwrap_or(d.max_iterations),
+            force_tolerance: spec.force_tolerance.unwrap_or(d.force_tolerance),
+            ..d
+        };
+        let bad = |m: String| self.err(s.span(), format!("stage `{}`: {m}", spec.name.get_ref()));
+        if !(c.min > 0.0 && c.min <= c.first && c.first <= c.max && c.max <= 1.0) {
+            return Err(bad(format!(
+                "increments must satisfy 0 < min_increment ≤ first_increment ≤ max_increment ≤ 1 (got {}, {}, {})",
+                c.min, c.first, c.max
+            )));
+        }
+        if c.max_iterations == 0 {
+            return Err(bad("`max_iterations` must be at least 1".into()));
+        }
+        if !(c.force_tolerance > 0.0 && c.force_tolerance < 1.0) {
+            return Err(bad(format!("`force_tolerance` must be in (0, 1), got {}", c.force_tolerance)));
+        }
+        Ok(c)
+    }
+}
