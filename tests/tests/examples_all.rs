@@ -15,11 +15,11 @@ fn every_example_checks_and_has_a_note_and_a_test() {
             let stem = path.file_stem().unwrap().to_string_lossy().into_owned();
             let note = std::fs::read_to_string(path.with_extension("md")).unwrap_or_else(|_| panic!("{stem}.md missing"));
             assert!(note.contains("Key result"), "{stem}.md records no key result");
-            let test = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join(format!("tests/examples_{stem}.rs"));
+            let test = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join(format!("tests/examples_{}.rs", stem.replace('-', "_")));
             assert!(test.exists(), "no test for example {stem}");
             names.push(stem);
         }
     }
     names.sort();
-    assert_eq!(names, ["bush", "mount", "seal"]);
+    assert_eq!(names, ["bush", "mount", "radial-seal", "seal"]);
 }

@@ -1,31 +1,46 @@
-//! The seal example (examples/seal.toml, seal.md): it checks and runs, and
-//! its recorded squeeze force holds. Its plates are stand-ins (caps of the
-//! cord moved with the plates) until rigid-surface contact is available;
-//! the note explains why the force lies above Lindley's O-ring fit, and this
-//! test checks that it does, by less than a factor of 3.
+//! The face-seal example (examples/seal.toml, seal.md): it checks and runs,
+//! its recorded results hold, and before the cord meets the groove walls its
+//! squeeze force agrees with Lindley's O-ring relation
+//! F/L = E d (1.25 c^1.5 + 50 c^6) (P. B. Lindley 1967, "Compression
+//! characteristics of laterally-unrestrained rubber O-rings", J. Inst. Rubber
+//! Industry 1; from memory) within the ±20 % that empirical fit is good for.
 
 use std::f64::consts::PI;
 
 use olli_verification::jobs::*;
 
-/// Recorded in examples/seal.md: cover force at 15 % squeeze (whole ring).
-const COVER_FORCE: f64 = -290.0;
+/// Recorded in examples/seal.md.
+const COVER_FORCE_SQUEEZED: f64 = 375.5;
+const PEAK_PRESSURE_PRESSURISED: f64 = 3.015;
 
 #[test]
-fn seal_example_force_matches_its_note() {
+fn seal_example_results_match_its_note() {
     let (job, _) = load_example("seal.toml");
     let scratch = Scratch::new("seal");
     let (solution, summary) = run_job(&job, &scratch.0);
     assert!(solution.completed());
-    let f = summary.reactions["cover_pad"]["z"];
-    eprintln!("seal: cover force {f:.3} N");
-    // 4 significant figures in the note: 0.1 % allowed.
-    assert!(rel_diff(f, COVER_FORCE) < 1e-3, "{f}");
-    assert!(rel_diff(-summary.reactions["base_pad"]["z"], f) < 1e-6, "equilibrium");
-    // Lindley 1967 (J. Strain Analysis 2:190, from memory): F/L = E d (1.25 c^1.5 + 50 c^6).
-    let (e, d, c) = (3.0 * 2.0 * (0.62 + 0.16), 3.5, 0.15);
-    let lindley = e * d * (1.25 * f64::powf(c, 1.5) + 50.0 * c.powi(6)) * 2.0 * PI * 20.0;
-    let ratio = -f / lindley;
-    eprintln!("seal: {:.3} N/mm vs Lindley {:.3} N/mm", -f / (2.0 * PI * 20.0), lindley / (2.0 * PI * 20.0));
-    assert!(ratio > 1.0 && ratio < 3.0, "stuck caps are stiffer than sliding contact: ratio {ratio}");
+    let squeezed = solution.increments.iter().filter(|i| i.stage == 0).next_back().unwrap();
+    let cover = squeezed.contact.iter().find(|c| c.name == "cover").unwrap();
+    // The note gives 4 significant figures: 0.1 % allowed.
+    assert!(rel_diff(cover.force[1], COVER_FORCE_SQUEEZED) < 1e-3, "{}", cover.force[1]);
+    let groove = &summary.rigid["groove"];
+    assert!(rel_diff(groove["peak_pressure"], PEAK_PRESSURE_PRESSURISED) < 1e-3, "{}", groove["peak_pressure"]);
+    // The seal holds: peak contact pressure above the 1 MPa system pressure.
+    assert!(groove["peak_pressure"] > 1.0);
+    // Groove and cover take equal and opposite axial forces.
+    assert!(rel_diff(-groove["z"], summary.rigid["cover"]["z"]) < 1e-6);
+
+    // Lindley, at the increment nearest 10 % squeeze (before wall contact).
+    let (e, d, r) = (3.0 * 2.0 * (0.62 + 0.16), 3.5, 20.0);
+    let near = solution
+        .increments
+        .iter()
+        .filter(|i| i.stage == 0)
+        .min_by(|a, b| (a.load_factor * 0.8 / d - 0.1).abs().total_cmp(&(b.load_factor * 0.8 / d - 0.1).abs()))
+        .unwrap();
+    let c = near.load_factor * 0.8 / d;
+    let per_length = near.contact.iter().find(|x| x.name == "cover").unwrap().force[1] / (2.0 * PI * r);
+    let lindley = e * d * (1.25 * c.powf(1.5) + 50.0 * c.powi(6));
+    eprintln!("seal: c = {c:.4}: {per_length:.4} N/mm vs Lindley {lindley:.4} N/mm");
+    assert!((per_length / lindley - 1.0).abs() < 0.2, "{per_length} vs {lindley}");
 }
