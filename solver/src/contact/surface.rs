@@ -431,6 +431,23 @@ mod tests {
         }
     }
 
+    // A rigid rotation about a centre moves a surface like any rigid body
+    // (elementary kinematics): a horizontal line turned by 90° about c is the
+    // vertical line through c, and gaps are measured from it.
+    #[test]
+    fn rotation_about_a_centre_moves_the_surface_rigidly() {
+        let c = Vector3::new(2.0, 1.0, 0.0);
+        let line = RigidSurface {
+            shape: Shape::Line { point: [2.0, 1.0], direction: [1.0, 0.0] },
+            placement: Placement::new(Vector3::new(0.5, 0.0, 0.0), Vector3::z(), std::f64::consts::FRAC_PI_2, c),
+        };
+        // After the turn the rubber side (left of +x, i.e. +y) faces −x; then shifted by 0.5 in x.
+        let p = line.project(&Vector3::new(1.0, 7.0, 0.0)).unwrap();
+        assert!((p.gap - 1.5).abs() < 1e-12, "{}", p.gap);
+        assert!((p.normal - Vector3::new(-1.0, 0.0, 0.0)).norm() < 1e-12);
+        assert!((p.point - Vector3::new(2.5, 7.0, 0.0)).norm() < 1e-12);
+    }
+
     #[test]
     fn facing_puts_the_given_point_on_the_rubber_side() {
         let groove = Shape::Profile(filleted_polyline(&[[24.0, 2.8], [24.0, 0.0], [16.0, 0.0], [16.0, 2.8]], 0.2).unwrap());
