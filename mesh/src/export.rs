@@ -43,10 +43,6 @@ pub fn vtk_cell_type(kind: ElementKind) -> CellType {
 /// The mesh as a vtkio unstructured grid with set markers; `extra` holds
 /// further point and cell arrays (results) to write alongside.
 pub fn to_vtk(mesh: &Mesh, extra: Attributes) -> Vtk {
-    let points: Vec<f64> = mesh.nodes.iter().flatten().copied().collect();
-    let connectivity: Vec<u64> = mesh.connectivity.iter().map(|&c| c as u64).collect();
-    let offsets: Vec<u64> = mesh.offsets[1..].iter().map(|&o| o as u64).collect();
-    let types = mesh.kinds.iter().map(|&k| vtk_cell_type(k)).collect();
     let mut data = extra;
     for (name, nodes) in &mesh.node_sets {
         let mut flag = vec![0u8; mesh.nodes.len()];
@@ -69,6 +65,16 @@ pub fn to_vtk(mesh: &Mesh, extra: Attributes) -> Vtk {
         }
         data.cell.push(Attribute::scalars(format!("{SIDE_SET_PREFIX}{name}"), 1).with_data(mask));
     }
+    grid(mesh, data)
+}
+
+/// The mesh's nodes and cells as a vtkio unstructured grid holding exactly
+/// the arrays in `data` (no set markers).
+pub fn grid(mesh: &Mesh, data: Attributes) -> Vtk {
+    let points: Vec<f64> = mesh.nodes.iter().flatten().copied().collect();
+    let connectivity: Vec<u64> = mesh.connectivity.iter().map(|&c| c as u64).collect();
+    let offsets: Vec<u64> = mesh.offsets[1..].iter().map(|&o| o as u64).collect();
+    let types = mesh.kinds.iter().map(|&k| vtk_cell_type(k)).collect();
     let piece = UnstructuredGridPiece {
         points: IOBuffer::F64(points),
         cells: Cells { cell_verts: VertexNumbers::XML { connectivity, offsets }, types },

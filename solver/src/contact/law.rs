@@ -83,6 +83,20 @@ pub struct NodeResponse {
     pub slip: Vector3<f64>,
 }
 
+impl NodeResponse {
+    /// A node not touching: no force, no stiffness.
+    pub fn open() -> Self {
+        NodeResponse {
+            status: Status::Open,
+            pressure: 0.0,
+            shear: Vector3::zeros(),
+            force: Vector3::zeros(),
+            stiffness: Matrix3::zeros(),
+            slip: Vector3::zeros(),
+        }
+    }
+}
+
 /// Evaluates the law. `anchor_global` is the stick anchor moved with the
 /// surface into the current frame (None when the node has no stick history).
 pub fn evaluate(
@@ -97,14 +111,7 @@ pub fn evaluate(
     let trial = state.multiplier - params.normal_penalty * proj.gap;
     let (p, dp) = smoothed_pressure(trial, params.smoothing);
     if p <= 0.0 {
-        return NodeResponse {
-            status: Status::Open,
-            pressure: 0.0,
-            shear: Vector3::zeros(),
-            force: Vector3::zeros(),
-            stiffness: Matrix3::zeros(),
-            slip: Vector3::zeros(),
-        };
+        return NodeResponse::open();
     }
     // Effective normal stiffness ∂p/∂(−g).
     let eps = params.normal_penalty * dp;

@@ -144,7 +144,7 @@ impl ContactPair {
                 }
                 None => {
                     out.gaps.push(f64::INFINITY);
-                    open_response()
+                    NodeResponse::open()
                 }
             };
             if r.status != Status::Open {
@@ -281,17 +281,6 @@ impl ContactPair {
             .zip(&r.nodes)
             .filter(|(_, n)| n.status != Status::Open)
             .map(|(&node, n)| (node, &n.stiffness))
-    }
-}
-
-fn open_response() -> NodeResponse {
-    NodeResponse {
-        status: Status::Open,
-        pressure: 0.0,
-        shear: Vector3::zeros(),
-        force: Vector3::zeros(),
-        stiffness: Matrix3::zeros(),
-        slip: Vector3::zeros(),
     }
 }
 

@@ -7,12 +7,9 @@
 
 use std::path::Path;
 
-use olli_mesh::{ElementKind, Mesh};
+use olli_mesh::Mesh;
+use vtkio::model::{Attribute, Attributes, IOBuffer};
 use vtkio::xml::Compressor;
-use vtkio::model::{
-    Attribute, Attributes, ByteOrder, CellType, Cells, DataSet, IOBuffer, UnstructuredGridPiece,
-    Version, VertexNumbers, Vtk,
-};
 
 use super::atomic::write_atomic;
 
@@ -34,23 +31,6 @@ impl Field {
     }
 }
 
-/// The VTK cell type of an element kind (olli keeps VTK node order).
-pub fn vtk_cell_type(kind: ElementKind) -> CellType {
-    match kind {
-        ElementKind::Tri3 => CellType::Triangle,
-        ElementKind::Tri6 => CellType::QuadraticTriangle,
-        ElementKind::Quad4 => CellType::Quad,
-        ElementKind::Quad8 => CellType::QuadraticQuad,
-        ElementKind::Quad9 => CellType::BiquadraticQuad,
-        ElementKind::Tet4 => CellType::Tetra,
-        ElementKind::Tet10 => CellType::QuadraticTetra,
-        ElementKind::Wedge6 => CellType::Wedge,
-        ElementKind::Hex8 => CellType::Hexahedron,
-        ElementKind::Hex20 => CellType::QuadraticHexahedron,
-        ElementKind::Hex27 => CellType::TriquadraticHexahedron,
-    }
-}
-
 fn attribute(f: &Field) -> Attribute {
     let a = match f.components {
         3 => Attribute::vectors(f.name.clone()),
@@ -68,31 +48,13 @@ pub fn write_vtu(
     point_fields: &[Field],
     cell_fields: &[Field],
 ) -> std::io::Result<()> {
-    let points: Vec<f64> = mesh.nodes.iter().flatten().copied().collect();
-    let connectivity: Vec<u64> = mesh.connectivity.iter().map(|&n| n as u64).collect();
-    let offsets: Vec<u64> = mesh.offsets[1..].iter().map(|&o| o as u64).collect();
-    let types = mesh.kinds.iter().map(|&k| vtk_cell_type(k)).collect();
-    let piece = UnstructuredGridPiece {
-        points: IOBuffer::F64(points),
-        cells: Cells {
-            cell_verts: VertexNumbers::XML {
-                connectivity,
-                offsets,
-            },
-            types,
-        },
-        data: Attributes {
-            point: point_fields.iter().map(attribute).collect(),
-            cell: cell_fields.iter().map(attribute).collect(),
-        },
+    // The mesh crate's grid with exactly the chosen result arrays.
+    let extra = Attributes {
+        point: point_fields.iter().map(attribute).collect(),
+        cell: cell_fields.iter().map(attribute).collect(),
     };
-    let vtk = Vtk {
-        version: Version::new_xml(1, 0),
-        byte_order: ByteOrder::LittleEndian,
-        title: if title.is_empty() { "olli".into() } else { title.into() },
-        file_path: None,
-        data: DataSet::inline(piece),
-    };
+    let mut vtk = olli_mesh::export::grid(mesh, extra);
+    vtk.title = if title.is_empty() { "olli".into() } else { title.into() };
     let mut bytes = Vec::new();
     vtk.try_into_xml_format(Compressor::ZLib, 6)
         .and_then(|file| file.write(&mut bytes))
