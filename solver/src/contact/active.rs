@@ -126,9 +126,11 @@ impl ActiveContacts {
             for (eps, &h) in pair.penalties.iter_mut().zip(&pair.sizes) {
                 *eps = def.normal_penalty.unwrap_or(PENALTY_FACTOR * mu / h);
             }
+            let surface = RigidSurface { shape: def.shape.clone(), placement: Placement::default() };
+            pair.anchor_initial_contacts(mesh, &surface);
             let committed = pair.states.clone();
             bodies.push(Body {
-                surface: RigidSurface { shape: def.shape.clone(), placement: Placement::default() },
+                surface,
                 from: rest(&def.name),
                 to: rest(&def.name),
                 tolerance: def.penetration_tolerance,

@@ -120,10 +120,13 @@ pub fn evaluate(
     let mut shear = Vector3::zeros();
     let mut slip = Vector3::zeros();
     let mut status = Status::Stick;
-    if params.friction > 0.0 {
+    // A node that was not touching at the last converged state has no stick
+    // point yet: it slides freely for this increment and sticks where it
+    // landed from the next one (its anchor is set when the increment
+    // converges). Friction acts from the start of contact to within one
+    // increment, and each Newton iterate sees a smooth law.
+    if let (true, Some(anchor)) = (params.friction > 0.0, anchor_global) {
         let proj_t = Matrix3::identity() - nn;
-        // Without history (frictionless until now), the node sticks where it is.
-        let anchor = anchor_global.unwrap_or(*x);
         let d = x - anchor;
         slip = proj_t * d;
         // ∂slip/∂x = P − (n·d) ∂n/∂x − n ⊗ (∂n/∂x d): the normal turns with the

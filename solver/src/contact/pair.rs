@@ -113,12 +113,7 @@ impl ContactPair {
         for (s, c) in sizes.iter_mut().zip(&count) {
             *s /= *c as f64;
         }
-        // Until the first converged increment, every node is anchored where it
-        // starts (surfaces start in their own frame).
-        let states: Vec<NodeState> = nodes
-            .iter()
-            .map(|&n| NodeState { multiplier: 0.0, anchor: Some(Vector3::from(mesh.nodes[n])) })
-            .collect();
+        let states = vec![NodeState::default(); nodes.len()];
         let penalties = vec![params.normal_penalty; nodes.len()];
         let mut neighbours = vec![Vec::new(); nodes.len()];
         for (e, p) in polys.iter().enumerate() {
@@ -222,16 +217,14 @@ impl ContactPair {
     }
 
     /// Stores the converged state: stick anchors in the surface frame (the
-    /// elastic-slip origin of touching nodes, the position of open ones).
+    /// elastic-slip origin of touching nodes; none for open ones).
     pub fn commit(&mut self, surface: &RigidSurface, response: &PairResponse, position: impl Fn(usize) -> Vector3<f64>) {
         let tangential: Vec<f64> = (0..self.nodes.len()).map(|k| self.node_params(k).tangential_penalty).collect();
         for (k, s) in self.states.iter_mut().enumerate() {
             let r = &response.nodes[k];
             s.anchor = match r.status {
-                // An open node keeps its converged position as anchor, so a
-                // node that touches during the next increment sticks where it
-                // was, not wherever the iterate happens to be.
-                Status::Open => Some(surface.placement.to_local(&position(self.nodes[k]))),
+                // An open node has no stick point (see `law::evaluate`).
+                Status::Open => None,
                 // The anchor sits so that the elastic slip reproduces the current shear.
                 _ if tangential[k] > 0.0 => {
                     let xi = position(self.nodes[k]);
@@ -242,6 +235,17 @@ impl ContactPair {
             };
             if r.status == Status::Open {
                 s.multiplier = 0.0;
+            }
+        }
+    }
+
+    /// Anchors the nodes that touch `surface` (gap ≤ 0) in the reference
+    /// configuration where they are, so friction holds them from the start.
+    pub fn anchor_initial_contacts(&mut self, mesh: &Mesh, surface: &RigidSurface) {
+        for (k, &n) in self.nodes.iter().enumerate() {
+            let x = Vector3::from(mesh.nodes[n]);
+            if surface.project(&x).is_some_and(|p| p.gap <= 0.0) {
+                self.states[k].anchor = Some(surface.placement.to_local(&x));
             }
         }
     }
