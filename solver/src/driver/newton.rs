@@ -434,6 +434,10 @@ impl<'a> NewtonContext<'a> {
             self.base.copy_from_slice(u);
             let mut s = 1.0;
             let mut tries = 0;
+            // The line search assumes the Newton direction descends an energy;
+            // friction dissipates, so with friction only full steps are taken
+            // (still halved when an element would invert).
+            let line_search = c.line_search && !self.contacts.has_friction();
             let res_base = self.free_residual_norm();
             let guard_residual = !self.contacts.is_empty() && iterations >= 3;
             let energy = loop {
@@ -441,7 +445,7 @@ impl<'a> NewtonContext<'a> {
                 let evaluated = self.apply_states(s).and_then(|_| self.evaluate(u, t, true, false, stats));
                 match evaluated {
                     Ok(w) => {
-                        if !c.line_search || tries >= 4 {
+                        if !line_search || tries >= 4 {
                             break w;
                         }
                         // Contact can make a full step jump between two contact
