@@ -155,6 +155,11 @@ pub struct IncrementControls {
     /// iterations and a positive-definite tangent more often for nearly
     /// incompressible rubber. Default true.
     pub carry_pressure: bool,
+    /// Stabilisation factor (dimensionless, ≥ 0): ties every free node to its
+    /// last converged position by a weak spring `factor · μ V / h²`, for parts
+    /// not held in every direction until contact closes (see
+    /// [`crate::driver::stabilization`]). Default 0 (none).
+    pub stabilization: f64,
 }
 
 impl Default for IncrementControls {
@@ -173,6 +178,7 @@ impl Default for IncrementControls {
             line_search: true,
             extrapolate: true,
             carry_pressure: true,
+            stabilization: 0.0,
         }
     }
 }

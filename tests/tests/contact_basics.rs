@@ -196,3 +196,50 @@ fn contact_rigid_plane_3d_reproduces_uniaxial_compression() {
     let floor = -sol.last().unwrap().contact[0].force[2];
     assert!((floor - expected).abs() / expected < 5e-3, "floor force {floor} vs {expected}");
 }
+
+// A cord lying loose between two frictionless plates has no support in any
+// direction until contact closes: its tangent is singular and the solve
+// fails. The stabilisation springs (factor 1e-4) carry it; the answer must
+// match the same squeeze with the section held by its symmetry lines (the
+// exact way to remove the rigid-body modes) within 1 %, and the two plate
+// forces must balance to the springs' share (< 1 %).
+#[test]
+fn contact_stabilization_carries_a_loose_cord() {
+    use olli_mesh::generate::CircleParams;
+    use olli_mesh::{generate, GeneratorSpec};
+    let squeeze = |loose: bool| {
+        let spec = GeneratorSpec::Cord(CircleParams { center: [20.0, 0.0], diameter: Some(4.0), divisions: 32, ..Default::default() });
+        let mut mesh = generate(&spec).unwrap();
+        let mid: Vec<usize> = (0..mesh.node_count()).filter(|&n| mesh.nodes[n][1].abs() < 1e-9).collect();
+        mesh.node_sets.insert("mid".into(), mid);
+        let mut model = Model::single_region(mesh, Analysis::Axisymmetric, neo_hookean(MU, KAPPA), Formulation::Mixed);
+        model.rigid.push(RigidBody::new("lower", Shape::Line { point: [0.0, -2.0], direction: [1.0, 0.0] }, "surface"));
+        model.rigid.push(RigidBody::new("upper", Shape::Line { point: [0.0, 2.0], direction: [-1.0, 0.0] }, "surface"));
+        let mut stage = Stage {
+            name: "squeeze".into(),
+            controls: IncrementControls { first: 0.1, max: 0.1, ..Default::default() },
+            ..Default::default()
+        };
+        if loose {
+            // Only the upper plate moves; nothing holds the cord.
+            stage.controls.stabilization = 1e-4;
+            stage.rigid_motions.push(RigidMotion { body: "upper".into(), translation: [0.0, -0.8, 0.0], rotation: 0.0 });
+        } else {
+            stage.supports.push(Support { set: "mid".into(), components: [false, true, false] });
+            stage.rigid_motions.push(RigidMotion { body: "upper".into(), translation: [0.0, -0.4, 0.0], rotation: 0.0 });
+            stage.rigid_motions.push(RigidMotion { body: "lower".into(), translation: [0.0, 0.4, 0.0], rotation: 0.0 });
+        }
+        model.stages.push(stage);
+        let sol = run(&model);
+        let last = sol.last().unwrap();
+        (last.contact[0].force[1], last.contact[1].force[1])
+    };
+    let (lower, upper) = squeeze(true);
+    let (_, held) = squeeze(false);
+    assert!(rel(-lower, upper) < 1e-2, "plates balance: {lower} vs {upper}");
+    assert!(rel(upper, held) < 1e-2, "loose {upper} vs held {held}");
+}
+
+fn rel(a: f64, b: f64) -> f64 {
+    (a - b).abs() / b.abs()
+}

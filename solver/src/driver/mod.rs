@@ -11,6 +11,7 @@
 
 pub mod newton;
 pub mod observer;
+pub mod stabilization;
 pub mod stages;
 
 pub use observer::{Event, Observer, Quiet};

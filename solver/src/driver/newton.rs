@@ -63,6 +63,8 @@ pub struct NewtonContext<'a> {
     pub contacts: &'a mut ActiveContacts,
     /// Smallest force scale: 1e-10 × the model's force unit μ·L² (see [`force_unit`]).
     force_floor: f64,
+    /// Stabilisation spring per dof (empty when the stage has none).
+    stabilization: Vec<f64>,
     /// Element pressure/dilatation unknowns (three-field form), at the
     /// current iterate, at the start of the line search, and converged.
     states: Vec<MixedState>,
@@ -123,6 +125,11 @@ impl<'a> NewtonContext<'a> {
             base: vec![0.0; ndof],
             last_converged: start.to_vec(),
             force_floor: 1e-10 * force_unit(disc),
+            stabilization: if controls.stabilization > 0.0 {
+                super::stabilization::dof_weights(disc, controls.stabilization)
+            } else {
+                Vec::new()
+            },
             contacts,
             states: Vec::new(),
             states_base: Vec::new(),
@@ -238,6 +245,19 @@ impl<'a> NewtonContext<'a> {
                 if want_k { Some(&mut self.k) } else { None },
                 if predict { Some((&self.dup, &mut self.rhs)) } else { None },
             );
+        }
+        // Stabilisation springs to the last converged state (free dofs only).
+        for (d, &w) in self.stabilization.iter().enumerate() {
+            let q = self.dofs.eq[d];
+            if w == 0.0 || q == NONE {
+                continue;
+            }
+            self.f_ext[d] -= w * (u[d] - self.last_converged[d]);
+            if want_k {
+                if let Some(slot) = self.pattern.slot(q, q) {
+                    self.k[slot] += w;
+                }
+            }
         }
         let mut finite = true;
         for d in 0..self.residual.len() {

@@ -231,6 +231,10 @@ pub struct StageSpec {
     pub max_iterations: Option<usize>,
     /// Out-of-balance force relative to the force scale (default 1e-6).
     pub force_tolerance: Option<f64>,
+    /// Stabilisation factor for parts held only by contact (dimensionless,
+    /// default 0: none; try 1e-3). Ties each node weakly to where it was at the
+    /// last converged increment.
+    pub stabilization: Option<f64>,
 }
 
 /// What to write.

@@ -135,6 +135,7 @@ impl Builder<'_> {
             max: spec.max_increment.unwrap_or(0.25),
             max_iterations: spec.max_iterations.unwrap_or(d.max_iterations),
             force_tolerance: spec.force_tolerance.unwrap_or(d.force_tolerance),
+            stabilization: spec.stabilization.unwrap_or(d.stabilization),
             ..d
         };
         let bad = |m: String| self.err(s.span(), format!("stage `{}`: {m}", spec.name.get_ref()));
@@ -146,6 +147,9 @@ impl Builder<'_> {
         }
         if c.max_iterations == 0 {
             return Err(bad("`max_iterations` must be at least 1".into()));
+        }
+        if !(c.stabilization >= 0.0 && c.stabilization < 1.0) {
+            return Err(bad(format!("`stabilization` must be in [0, 1), got {}", c.stabilization)));
         }
         if !(c.force_tolerance > 0.0 && c.force_tolerance < 1.0) {
             return Err(bad(format!("`force_tolerance` must be in (0, 1), got {}", c.force_tolerance)));
