@@ -4,6 +4,7 @@
 //! may reach, mesh quality, and nearly incompressible materials on
 //! displacement-only elements.
 
+use crate::contact::Shape as RigidShape;
 use std::fmt;
 
 use olli_mesh::{summary, MeshSummary};
@@ -33,6 +34,19 @@ pub struct MaterialCheck {
     pub unstable: Vec<(Mode, f64)>,
 }
 
+/// One rigid surface as it starts.
+#[derive(Debug, Clone)]
+pub struct RigidCheck {
+    pub name: String,
+    pub shape: &'static str,
+    pub touches: String,
+    /// Nodes of the touching side set.
+    pub nodes: usize,
+    pub friction: f64,
+    /// Smallest signed gap of those nodes at the start (negative: penetrating).
+    pub min_gap: f64,
+}
+
 /// The whole report.
 #[derive(Debug, Clone)]
 pub struct CheckReport {
@@ -41,6 +55,7 @@ pub struct CheckReport {
     pub mesh: MeshSummary,
     pub stages: Vec<String>,
     pub materials: Vec<MaterialCheck>,
+    pub rigid: Vec<RigidCheck>,
     /// Stretch range of the stability check.
     pub stretch_range: (f64, f64),
     pub warnings: Vec<String>,
@@ -60,6 +75,7 @@ pub fn stretch_range(job: &Job) -> (f64, f64) {
         .iter()
         .flat_map(|s| &s.motions)
         .flat_map(|m| m.displacement.iter().flatten())
+        .chain(job.model.stages.iter().flat_map(|s| &s.rigid_motions).flat_map(|m| m.translation.iter()))
         .fold(0.0f64, |a, &v| a.max(v.abs()));
     let top = if h > 0.0 { (1.0 + 2.0 * d / h).clamp(3.0, 20.0) } else { 3.0 };
     (1.0 / top, top)
@@ -125,7 +141,17 @@ pub fn check(job: &Job) -> CheckReport {
     if q.duplicate_nodes > 0 {
         warnings.push(format!("{} duplicate nodes (unconnected elements?)", q.duplicate_nodes));
     }
+    let rigid = rigid_checks(job);
+    for r in &rigid {
+        if r.min_gap < -1e-9 * size(job) {
+            warnings.push(format!(
+                "rigid `{}` starts {:.4} inside the rubber (side set `{}`): the first increment pushes it out",
+                r.name, -r.min_gap, r.touches
+            ));
+        }
+    }
     CheckReport {
+        rigid,
         title: job.title.clone(),
         analysis: job.kind.name(),
         mesh,
@@ -156,9 +182,52 @@ impl fmt::Display for CheckReport {
                 mat.name, mat.model, mat.shear_modulus, mat.bulk_modulus, mat.poisson_ratio, mat.young_modulus
             )?;
         }
+        for r in &self.rigid {
+            writeln!(
+                f,
+                "rigid {} ({}): touches side set {} ({} nodes), friction {}, nearest start gap {:.4}",
+                r.name, r.shape, r.touches, r.nodes, r.friction, r.min_gap
+            )?;
+        }
         for w in &self.warnings {
             writeln!(f, "warning: {w}")?;
         }
         Ok(())
     }
+}
+
+/// Diagonal of the mesh's bounding box.
+fn size(job: &Job) -> f64 {
+    let (lo, hi) = job.model.mesh.bounding_box();
+    (0..3).map(|k| (hi[k] - lo[k]).powi(2)).sum::<f64>().sqrt()
+}
+
+/// Each rigid body against its side set's nodes, in the starting position.
+fn rigid_checks(job: &Job) -> Vec<RigidCheck> {
+    let mesh = &job.model.mesh;
+    job.model
+        .rigid
+        .iter()
+        .map(|b| {
+            let nodes = mesh.side_set_nodes(&b.sides).unwrap_or_default();
+            let min_gap = nodes
+                .iter()
+                .filter_map(|&n| b.shape.project_local(&nalgebra::Vector3::from(mesh.nodes[n])).map(|p| p.gap))
+                .fold(f64::INFINITY, f64::min);
+            RigidCheck {
+                name: b.name.clone(),
+                shape: match b.shape {
+                    RigidShape::Line { .. } => "line",
+                    RigidShape::Profile(_) => "profile",
+                    RigidShape::Plane { .. } => "plane",
+                    RigidShape::Cylinder { .. } => "cylinder",
+                    RigidShape::Sphere { .. } => "sphere",
+                },
+                touches: b.sides.clone(),
+                nodes: nodes.len(),
+                friction: b.friction,
+                min_gap: if min_gap.is_finite() { min_gap } else { 0.0 },
+            }
+        })
+        .collect()
 }
