@@ -4,12 +4,12 @@
 //! may reach, mesh quality, and nearly incompressible materials on
 //! displacement-only elements.
 
-use crate::contact::Shape as RigidShape;
 use std::fmt;
 
 use olli_mesh::{summary, MeshSummary};
 
 use super::build::Job;
+use crate::contact::Shape as RigidShape;
 use crate::material::homogeneous::{Mode, Settings};
 use crate::material::stability::check_mode;
 use crate::model::Formulation;
