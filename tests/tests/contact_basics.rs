@@ -116,7 +116,7 @@ fn contact_release_restores_the_undeformed_shape() {
     model.stages.push(Stage { name: "press".into(), rigid_motions: vec![press], supports: support.clone(), ..Default::default() });
     model.stages.push(Stage { name: "release".into(), rigid_motions: vec![back], supports: support, ..Default::default() });
     let sol = run(&model);
-    let pressed = sol.increments.iter().filter(|i| i.stage == 0).next_back().unwrap();
+    let pressed = sol.increments.iter().rfind(|i| i.stage == 0).unwrap();
     let h_min = 1.0;
     for c in &pressed.contact {
         assert!(c.touching_nodes > 0, "{} touches while pressed", c.name);

@@ -15,7 +15,7 @@ fn seal_example_results_match_its_note() {
     let scratch = Scratch::new("seal");
     let (solution, summary) = run_job(&job, &scratch.0);
     assert!(solution.completed());
-    let squeezed = solution.increments.iter().filter(|i| i.stage == 0).next_back().unwrap();
+    let squeezed = solution.increments.iter().rfind(|i| i.stage == 0).unwrap();
     let cover = squeezed.contact.iter().find(|c| c.name == "cover").unwrap();
     // The note gives 4 significant figures: 0.1 % allowed.
     assert!(rel_diff(cover.force[1], COVER_FORCE_SQUEEZED) < 1e-3, "{}", cover.force[1]);
@@ -41,7 +41,7 @@ fn seal_example_is_insensitive_to_its_stabilisation() {
     let scratch = Scratch::new("seal-half");
     let (solution, summary) = run_job(&job, &scratch.0);
     assert!(solution.completed());
-    let squeezed = solution.increments.iter().filter(|i| i.stage == 0).next_back().unwrap();
+    let squeezed = solution.increments.iter().rfind(|i| i.stage == 0).unwrap();
     let cover = squeezed.contact.iter().find(|c| c.name == "cover").unwrap().force[1];
     assert!(rel_diff(cover, COVER_FORCE_SQUEEZED) < 2e-3, "{cover}");
     let peak = summary.rigid["groove"]["peak_pressure"];

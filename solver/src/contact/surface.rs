@@ -107,12 +107,12 @@ impl Placement {
     }
 
     /// A point given in the moved frame, expressed in the surface's own frame.
-    pub fn to_local(&self, x: &Vector3<f64>) -> Vector3<f64> {
+    pub fn to_local(self, x: &Vector3<f64>) -> Vector3<f64> {
         self.rotation.inverse() * (x - self.center - self.translation) + self.center
     }
 
     /// A projection computed in the surface frame, expressed in the moved frame.
-    fn to_global(&self, p: Projection) -> Projection {
+    fn to_global(self, p: Projection) -> Projection {
         let r = self.rotation.matrix();
         Projection {
             gap: p.gap,
