@@ -247,8 +247,8 @@ pub struct Stage {
     /// Rigid-body positions reached at the end of the stage.
     pub rigid_motions: Vec<RigidMotion>,
     /// Ramps of the loads of this stage by set name (motions, pressures,
-    /// forces on that set; [`BODY_FORCE_RAMP`] for the body force). Loads
-    /// not named here ramp linearly.
+    /// forces on that set; [`BODY_FORCE_RAMP`] for the body force) or by
+    /// rigid-body name (its motion). Loads not named here ramp linearly.
     pub ramps: std::collections::BTreeMap<String, Ramp>,
 }
 

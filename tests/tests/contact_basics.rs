@@ -243,3 +243,27 @@ fn contact_stabilization_carries_a_loose_cord() {
 fn rel(a: f64, b: f64) -> f64 {
     (a - b).abs() / b.abs()
 }
+
+// Rigid-body motions follow the stage's ramp of the body's name, like any
+// load (a step ramp applies the whole motion from the first increment): the
+// first increment must already carry the final cover force.
+#[test]
+fn rigid_motion_follows_its_ramp() {
+    let mesh = rectangle(0.0, 4.0, 0.0, 2.0, 4, 4, 0.0);
+    let mut model = Model::single_region(mesh, Analysis::PlaneStrain { thickness: 1.0 }, neo_hookean(MU, KAPPA), Formulation::Mixed);
+    model.rigid.push(RigidBody::new("cover", Shape::Line { point: [4.0, 2.0], direction: [-1.0, 0.0] }, "t1"));
+    let mut stage = Stage {
+        name: "press".into(),
+        controls: IncrementControls { first: 0.5, ..Default::default() },
+        rigid_motions: vec![RigidMotion { body: "cover".into(), translation: [0.0, -0.1, 0.0], rotation: 0.0 }],
+        supports: vec![Support { set: "t0".into(), components: [true, true, false] }],
+        ..Default::default()
+    };
+    stage.ramps.insert("cover".into(), olli_solver::Ramp::Step);
+    model.stages.push(stage);
+    let sol = run(&model);
+    let first = sol.increments[0].contact[0].force[1];
+    let last = sol.last().unwrap().contact[0].force[1];
+    assert!(sol.increments.len() >= 2);
+    assert!(first > 0.0 && ((first - last) / last).abs() < 1e-6, "{first} vs {last}");
+}

@@ -17,7 +17,9 @@ use crate::assembly::dofs::{DofMap, NONE};
 use crate::assembly::{Discretization, Pattern};
 use crate::element::Analysis;
 use crate::error::SolveError;
-use crate::model::{RigidBody, RigidMotion};
+use std::collections::BTreeMap;
+
+use crate::model::{Ramp, RigidBody, RigidMotion};
 
 /// Default normal penalty as a multiple of μ / h (common practice for
 /// penalty contact: stiff against the rubber, not so stiff it spoils the
@@ -39,6 +41,8 @@ struct Body {
     /// Motion at the start and at the end of the current stage.
     from: RigidMotion,
     to: RigidMotion,
+    /// How the motion is spread over the stage.
+    ramp: Ramp,
     surface: RigidSurface,
     last: PairResponse,
 }
@@ -133,6 +137,7 @@ impl ActiveContacts {
                 surface,
                 from: rest(&def.name),
                 to: rest(&def.name),
+                ramp: Ramp::Linear,
                 tolerance: def.penetration_tolerance,
                 def: def.clone(),
                 pair,
@@ -163,18 +168,21 @@ impl ActiveContacts {
     }
 
     /// Starts a stage: bodies named by the stage move from where they are to
-    /// the stage's target positions.
-    pub fn begin_stage(&mut self, motions: &[RigidMotion]) {
+    /// the stage's target positions, along the stage's ramp of that name
+    /// (linear when it has none).
+    pub fn begin_stage(&mut self, motions: &[RigidMotion], ramps: &BTreeMap<String, Ramp>) {
         for b in &mut self.bodies {
             b.from = b.to.clone();
             if let Some(m) = motions.iter().find(|m| m.body == b.def.name) {
                 b.to = m.clone();
             }
+            b.ramp = ramps.get(&b.def.name).cloned().unwrap_or_default();
         }
     }
 
     fn place(b: &mut Body, t: f64) {
-        let lerp = |a: f64, c: f64| a + t * (c - a);
+        let f = b.ramp.fraction(t);
+        let lerp = |a: f64, c: f64| a + f * (c - a);
         let tr = Vector3::new(
             lerp(b.from.translation[0], b.to.translation[0]),
             lerp(b.from.translation[1], b.to.translation[1]),

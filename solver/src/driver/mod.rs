@@ -61,7 +61,7 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
         let (_, dofs, pattern, linear) = system.as_mut().expect("built above");
         observer.event(&Event::StageStart { stage: si, name: &stage.name, equations: dofs.n_free });
         let start: Vec<f64> = u.clone();
-        contacts.begin_stage(&stage.rigid_motions);
+        contacts.begin_stage(&stage.rigid_motions, &stage.ramps);
         let mut ctx = NewtonContext::new(&disc, dofs, pattern, linear, prog, &start, &stage.controls, &stage.name, &mut contacts);
         if stage.controls.carry_pressure {
             if states.is_empty() {
