@@ -122,3 +122,68 @@ fn hertz_line_contact_half_width_and_peak_pressure_converge() {
     // far off, the finer ones are not.
     assert!(errors[0].0 + errors[0].1 > ea + ep);
 }
+
+/// Hertz in 3-D with a rigid cylinder: the same line contact, turned round.
+/// A rigid cylinder (radius R = 10, axis along z) is pressed into a rubber
+/// slab one element thick, held in plane strain by its two faces (z fixed)
+/// and by symmetry at x = 0. For a rigid cylinder on an elastic half-space
+/// Hertz gives the same formulas (Johnson 1985, ch. 4; from memory): the peak
+/// pressure p0 = √(P E* / (π R)) for the load P per unit length, and the
+/// half-width a = 2P / (π p0). The slab is 10 R wide and 10 R deep, so the
+/// half-space assumption holds to about 1 %; the mesh is graded to 0.05 at
+/// the contact (about 10 edges across a). Checks: p0 within 2 %, and the
+/// contact edge between the last touching node and the next one.
+#[test]
+fn hertz_rigid_cylinder_on_a_3d_slab() {
+    use olli_mesh::generate::extrude;
+    let (radius, width, depth, edge) = (10.0, 10.0, 10.0, 0.05);
+    let count = |total: f64| ((1.0 + total * 0.12 / edge).ln() / 1.12f64.ln()).ceil() as usize;
+    let (nx, ny) = (count(width), count(depth));
+    let xs = geometric(nx, width, edge);
+    let ys = geometric(ny, depth, edge);
+    let section = quad_grid(nx, ny, 0.0, |s, t| {
+        let i = (s * nx as f64).round() as usize;
+        let j = (t * ny as f64).round() as usize;
+        // x fine at 0 (the contact), y fine at the top y = 0.
+        [xs[i], -ys[ny - j]]
+    });
+    let mesh = extrude(&section, 1.0, 1).unwrap();
+    let mu = 1.0;
+    let kappa = 1000.0 * mu;
+    let mut model = Model::single_region(mesh, Analysis::Solid3d, neo_hookean(mu, kappa), Formulation::Mixed);
+    model.rigid.push(RigidBody::new(
+        "roller",
+        Shape::Cylinder { point: [0.0, radius, 0.0], axis: [0.0, 0.0, 1.0], radius, rubber_outside: true },
+        "t1",
+    ));
+    model.stages.push(Stage {
+        name: "press".into(),
+        controls: IncrementControls { first: 0.25, max: 0.5, ..Default::default() },
+        supports: vec![
+            Support { set: "s0".into(), components: [true, false, false] },
+            Support { set: "t0".into(), components: [false, true, false] },
+            Support { set: "start".into(), components: [false, false, true] },
+            Support { set: "end".into(), components: [false, false, true] },
+        ],
+        rigid_motions: vec![RigidMotion { body: "roller".into(), translation: [0.0, -0.05, 0.0], rotation: 0.0 }],
+        ..Default::default()
+    });
+    let sol = solve(&model, &mut Quiet).expect("valid model");
+    assert!(sol.completed(), "{:?}", sol.termination);
+    let last = sol.last().unwrap();
+    let fields = last.contact_fields.as_ref().unwrap();
+    // Load per unit length of the full contact (two halves, thickness 1).
+    let load = 2.0 * last.contact[0].force[1].abs();
+    let e = 9.0 * kappa * mu / (3.0 * kappa + mu);
+    let nu = (3.0 * kappa - 2.0 * mu) / (2.0 * (3.0 * kappa + mu));
+    let e_star = e / (1.0 - nu * nu);
+    let p0 = (load * e_star / (std::f64::consts::PI * radius)).sqrt();
+    let a = 2.0 * load / (std::f64::consts::PI * p0);
+    let peak = fields.pressure.iter().copied().fold(0.0, f64::max);
+    let mesh = &model.mesh;
+    let last_touching = (0..mesh.node_count()).filter(|&n| fields.pressure[n] > 0.0).map(|n| mesh.nodes[n][0]).fold(0.0, f64::max);
+    let next = xs.iter().copied().find(|&x| x > last_touching + 1e-12).unwrap();
+    println!("3-D roller: P {load:.5} p0 {peak:.5} (Hertz {p0:.5}) a in [{last_touching:.4}, {next:.4}] (Hertz {a:.4})");
+    assert!((peak - p0).abs() / p0 < 0.02, "peak pressure {peak} vs {p0}");
+    assert!(last_touching <= a * 1.001 && a <= next * 1.001, "a = {a} not in [{last_touching}, {next}]");
+}
