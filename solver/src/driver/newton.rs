@@ -454,12 +454,11 @@ impl<'a> NewtonContext<'a> {
             self.base.copy_from_slice(u);
             let mut s = 1.0;
             let mut tries = 0;
-            // The line search assumes the Newton direction descends an energy;
-            // friction dissipates, so with friction only full steps are taken
-            // (still halved when an element would invert).
-            let line_search = c.line_search && !self.contacts.has_friction();
-            let res_base = self.free_residual_norm();
-            let guard_residual = !self.contacts.is_empty() && iterations >= 3;
+            // The line search assumes the Newton direction descends an energy:
+            // not so with friction (it dissipates) or an indefinite tangent, so
+            // then only full steps are taken (still halved when an element
+            // would invert).
+            let line_search = c.line_search && !self.contacts.has_friction() && kind == FactorKind::Cholesky;
             let energy = loop {
                 self.apply(u, s);
                 let evaluated = self.apply_states(s).and_then(|_| self.evaluate(u, t, true, false, stats));
@@ -467,15 +466,6 @@ impl<'a> NewtonContext<'a> {
                     Ok(w) => {
                         if !line_search || tries >= 4 {
                             break w;
-                        }
-                        // Contact can make a full step jump between two contact
-                        // states (a node opening and closing in turn); once past
-                        // the first iterations, a step that raises the residual
-                        // is halved, which breaks such cycles.
-                        if guard_residual && self.free_residual_norm() > 1.5 * res_base {
-                            s *= 0.5;
-                            tries += 1;
-                            continue;
                         }
                         let gs: f64 = self.dofs_dot_du();
                         if gs > 0.5 * g0.abs() && g0 < 0.0 {
