@@ -335,6 +335,15 @@ pub fn filleted_polyline(points: &[[f64; 2]], radius: f64) -> Result<Vec<Piece2>
     if points.len() < 2 {
         return Err("a polyline needs at least two points".into());
     }
+    if !(radius >= 0.0 && radius.is_finite()) {
+        return Err(format!("corner radius {radius} must be zero or positive"));
+    }
+    if points.iter().flatten().any(|v| !v.is_finite()) {
+        return Err("polyline points must be finite numbers".into());
+    }
+    if let Some(i) = points.windows(2).position(|w| w[0] == w[1]) {
+        return Err(format!("polyline points {} and {} coincide", i + 1, i + 2));
+    }
     let p: Vec<Vector3<f64>> = points.iter().map(|&q| v2(q)).collect();
     let mut pieces = Vec::new();
     let mut cursor = p[0];

@@ -34,6 +34,9 @@ impl Builder<'_> {
             let mut shapes: Vec<(Range<usize>, &str, RigidShape)> = Vec::new();
             if let Some(l) = &spec.line {
                 let v = l.get_ref();
+                if v.direction.iter().all(|&d| d == 0.0) || v.direction.iter().chain(&v.point).any(|d| !d.is_finite()) {
+                    return Err(bad(l.span(), "line needs a finite point and a non-zero direction".into()));
+                }
                 shapes.push((l.span(), "line", RigidShape::Line { point: v.point, direction: v.direction }));
             }
             if let Some(p) = &spec.polyline {
@@ -42,20 +45,29 @@ impl Builder<'_> {
             }
             if let Some(a) = &spec.arc {
                 let v = a.get_ref();
-                if !(v.radius > 0.0) {
+                if !(v.radius > 0.0 && v.radius.is_finite()) {
                     return Err(bad(a.span(), format!("arc radius {} must be positive", v.radius)));
+                }
+                if !(v.from.is_finite() && v.to.is_finite()) || v.from == v.to {
+                    return Err(bad(a.span(), "arc needs two different finite angles `from` and `to`".into()));
                 }
                 let piece = Piece2::Arc { center: v.center, radius: v.radius, start: v.from.to_radians(), end: v.to.to_radians() };
                 shapes.push((a.span(), "arc", RigidShape::Profile(vec![piece])));
             }
             if let Some(p) = &spec.plane {
                 let v = p.get_ref();
+                if v.normal.iter().all(|&d| d == 0.0) || v.normal.iter().chain(&v.point).any(|d| !d.is_finite()) {
+                    return Err(bad(p.span(), "plane needs a finite point and a non-zero normal".into()));
+                }
                 shapes.push((p.span(), "plane", RigidShape::Plane { point: v.point, normal: v.normal }));
             }
             if let Some(c) = &spec.cylinder {
                 let v = c.get_ref();
-                if !(v.radius > 0.0) {
+                if !(v.radius > 0.0 && v.radius.is_finite()) {
                     return Err(bad(c.span(), format!("cylinder radius {} must be positive", v.radius)));
+                }
+                if v.axis.iter().all(|&d| d == 0.0) {
+                    return Err(bad(c.span(), "cylinder axis must be non-zero".into()));
                 }
                 shapes.push((c.span(), "cylinder", RigidShape::Cylinder { point: v.point, axis: v.axis, radius: v.radius, rubber_outside: true }));
             }
