@@ -74,6 +74,9 @@ pub struct IncrementResult {
     pub axisymmetric: bool,
     pub points: Option<PointFields>,
     pub nodal: Option<NodalFields>,
+    /// Stabilisation springs' force relative to the problem's force scale
+    /// (0 without stabilisation); keep it well below 1 %.
+    pub stabilization_share: f64,
     /// Per rigid body: total force, contact width, peak pressure.
     pub contact: Vec<ContactSummary>,
     /// Contact pressure, gap, slip and status at nodes (when the model has rigid bodies).

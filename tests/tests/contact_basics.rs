@@ -231,6 +231,9 @@ fn contact_stabilization_carries_a_loose_cord() {
         }
         model.stages.push(stage);
         let sol = run(&model);
+        // The springs' share of the force is reported: some, and small.
+        let share = sol.increments.iter().map(|i| i.stabilization_share).fold(0.0, f64::max);
+        assert!(if loose { share > 0.0 && share < 0.01 } else { share == 0.0 }, "share {share}");
         let last = sol.last().unwrap();
         (last.contact[0].force[1], last.contact[1].force[1])
     };

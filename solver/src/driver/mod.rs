@@ -84,13 +84,14 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
                     t += step;
                     let prev_u = ctx.last_converged.clone();
                     history = Some((prev_u, step));
+                    let share = ctx.stabilization_share(&u);
                     ctx.last_converged.copy_from_slice(&u);
                     ctx.contacts.commit(&model.mesh.nodes, &u);
                     let result = increment_result(
                         &disc, &ctx, &u, si, &stage.name, count, t, step, iterations, residuals, energy, &report_sets,
                     );
                     let result = match result {
-                        Ok(r) => r,
+                        Ok(r) => IncrementResult { stabilization_share: share, ..r },
                         Err(e) => return Ok(finish(increments, Termination::Stopped(e), stats, system)),
                     };
                     observer.event(&Event::Converged(&result));
@@ -233,6 +234,8 @@ fn increment_result(
         newton_iterations: iterations,
         residual_history,
         strain_energy,
+        // Measured against the previous increment; set by the caller.
+        stabilization_share: 0.0,
         axisymmetric: model.analysis == crate::element::Analysis::Axisymmetric,
         contact: ctx.contacts.summaries(),
         contact_fields: if ctx.contacts.is_empty() { None } else { Some(ctx.contacts.fields(mesh.node_count())) },

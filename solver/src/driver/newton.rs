@@ -333,6 +333,23 @@ impl<'a> NewtonContext<'a> {
         }
     }
 
+    /// The stabilisation springs' force at displacement `u` relative to the
+    /// force scale of the problem: how much of the answer they carry (0
+    /// without stabilisation).
+    pub fn stabilization_share(&self, u: &[f64]) -> f64 {
+        if self.stabilization.is_empty() {
+            return 0.0;
+        }
+        let f2: f64 = self
+            .stabilization
+            .iter()
+            .enumerate()
+            .filter(|&(d, _)| self.dofs.eq[d] != NONE)
+            .map(|(d, &w)| (w * (u[d] - self.last_converged[d])).powi(2))
+            .sum();
+        f2.sqrt() / self.force_scale()
+    }
+
     fn force_scale(&self) -> f64 {
         let (mut ext, mut reac, mut int) = (0.0, 0.0, 0.0);
         for d in 0..self.residual.len() {

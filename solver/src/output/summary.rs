@@ -50,6 +50,9 @@ pub struct RunSummary {
     /// Each rigid surface at the last converged increment: the force of the
     /// rubber on it by component, `contact_width` and `peak_pressure`.
     pub rigid: BTreeMap<String, BTreeMap<String, f64>>,
+    /// Largest force of the stabilisation springs relative to the force
+    /// scale over the run (0 without stabilisation); keep it well below 1 %.
+    pub stabilization_share: f64,
     /// Peaks at the last converged increment.
     pub peaks: Option<Peaks>,
     pub increments: usize,

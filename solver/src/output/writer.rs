@@ -45,6 +45,8 @@ pub struct ResultWriter<'m> {
     last_peaks: Option<Peaks>,
     /// The first write failure; later writes are skipped.
     error: Option<String>,
+    /// Largest stabilisation share of any converged increment.
+    stabilization_share: f64,
 }
 
 impl<'m> ResultWriter<'m> {
@@ -69,6 +71,7 @@ impl<'m> ResultWriter<'m> {
             last_frame: None,
             last_peaks: None,
             error: None,
+            stabilization_share: 0.0,
         };
         w.log_line(&format!("olli {} run of {} ({})", env!("CARGO_PKG_VERSION"), job.path.display(), job.title));
         w.flush(|w| w.write(HISTORY_FILE, w.history.to_csv().as_bytes()));
@@ -121,6 +124,16 @@ impl<'m> ResultWriter<'m> {
             }
         }
         self.history.push(&r.stage_name, r.increment, r.load_factor, values, r.newton_iterations);
+        if r.stabilization_share > 0.01 && self.stabilization_share <= 0.01 {
+            let line = format!(
+                "warning: stage `{}` increment {}: the stabilisation springs carry {:.1} % of the force scale; lower `stabilization`",
+                r.stage_name,
+                r.increment,
+                100.0 * r.stabilization_share
+            );
+            self.log_line(&line);
+        }
+        self.stabilization_share = self.stabilization_share.max(r.stabilization_share);
         let end_of_stage = r.load_factor >= 1.0 - 1e-9;
         #[allow(clippy::manual_is_multiple_of)] // is_multiple_of needs Rust 1.87; the workspace allows 1.85
         if end_of_stage || r.increment % self.job.output.every == 0 {
@@ -215,6 +228,7 @@ impl<'m> ResultWriter<'m> {
             last_increment: last.map(|r| IncrementRef { stage: r.stage_name.clone(), increment: r.increment, load_factor: r.load_factor }),
             reactions,
             rigid,
+            stabilization_share: self.stabilization_share,
             peaks: self.last_peaks,
             increments: solution.increments.len(),
             newton_iterations: solution.stats.newton_iterations,
