@@ -187,3 +187,96 @@ fn hertz_rigid_cylinder_on_a_3d_slab() {
     assert!((peak - p0).abs() / p0 < 0.02, "peak pressure {peak} vs {p0}");
     assert!(last_touching <= a * 1.001 && a <= next * 1.001, "a = {a} not in [{last_touching}, {next}]");
 }
+
+/// Hertz point contact with a rigid sphere: a sphere of radius R = 5 pressed
+/// into a rubber block (quarter model, symmetry planes x = 0 and y = 0).
+/// Hertz (Johnson 1985, ch. 4; from memory) for a rigid sphere on an elastic
+/// half-space under total load P: a = (3 P R / (4 E*))^(1/3) and
+/// p0 = 3 P / (2 π a²). The block is 6 × 6 × 6 (7.5 a), graded to 0.1 at the
+/// contact, about six elements across a: the peak pressure, a single nodal
+/// value, is checked to 5 % and the contact radius is bracketed by the last
+/// touching node (within 2 %) and the next one.
+#[test]
+fn hertz_rigid_sphere_on_a_3d_block() {
+    use olli_mesh::{ElementKind, Mesh, Side};
+    use std::collections::BTreeMap;
+    let (radius, size, first, growth): (f64, f64, f64, f64) = (5.0, 6.0, 0.1, 1.25);
+    let n = ((1.0 + size * (growth - 1.0) / first).ln() / growth.ln()).ceil() as usize;
+    let g = geometric(n, size, first);
+    let mut mesh = Mesh::new(3);
+    let id = |i: usize, j: usize, k: usize| (k * (n + 1) + j) * (n + 1) + i;
+    for k in 0..=n {
+        for j in 0..=n {
+            for i in 0..=n {
+                // x, y fine at 0; z fine at the top z = 0.
+                mesh.add_node([g[i], g[j], -g[n - k]]);
+            }
+        }
+    }
+    let mut top = Vec::new();
+    let mut sets: BTreeMap<&str, Vec<usize>> = BTreeMap::new();
+    for k in 0..n {
+        for j in 0..n {
+            for i in 0..n {
+                let e = mesh.add_element(
+                    ElementKind::Hex8,
+                    &[id(i, j, k), id(i + 1, j, k), id(i + 1, j + 1, k), id(i, j + 1, k), id(i, j, k + 1), id(i + 1, j, k + 1), id(i + 1, j + 1, k + 1), id(i, j + 1, k + 1)],
+                );
+                if k == n - 1 {
+                    top.push(Side { element: e, local: 1 });
+                }
+            }
+        }
+    }
+    for (node, x) in mesh.nodes.iter().enumerate() {
+        if x[0] == 0.0 {
+            sets.entry("x0").or_default().push(node);
+        }
+        if x[1] == 0.0 {
+            sets.entry("y0").or_default().push(node);
+        }
+        if node < (n + 1) * (n + 1) {
+            sets.entry("bottom").or_default().push(node); // layer k = 0
+        }
+    }
+    for (name, nodes) in sets {
+        mesh.node_sets.insert(name.into(), nodes);
+    }
+    mesh.side_sets.insert("top".into(), top);
+    let mu = 1.0;
+    let kappa = 1000.0 * mu;
+    let mut model = Model::single_region(mesh, Analysis::Solid3d, neo_hookean(mu, kappa), Formulation::Mixed);
+    model.rigid.push(RigidBody::new("ball", Shape::Sphere { center: [0.0, 0.0, radius], radius, rubber_outside: true }, "top"));
+    model.stages.push(Stage {
+        name: "press".into(),
+        controls: IncrementControls { first: 0.25, max: 0.5, ..Default::default() },
+        supports: vec![
+            Support { set: "x0".into(), components: [true, false, false] },
+            Support { set: "y0".into(), components: [false, true, false] },
+            Support { set: "bottom".into(), components: [false, false, true] },
+        ],
+        rigid_motions: vec![RigidMotion { body: "ball".into(), translation: [0.0, 0.0, -0.12], rotation: 0.0 }],
+        ..Default::default()
+    });
+    let sol = solve(&model, &mut Quiet).expect("valid model");
+    assert!(sol.completed(), "{:?}", sol.termination);
+    let last = sol.last().unwrap();
+    let fields = last.contact_fields.as_ref().unwrap();
+    let load = 4.0 * last.contact[0].force[2].abs();
+    let e = 9.0 * kappa * mu / (3.0 * kappa + mu);
+    let nu = (3.0 * kappa - 2.0 * mu) / (2.0 * (3.0 * kappa + mu));
+    let e_star = e / (1.0 - nu * nu);
+    let a = (3.0 * load * radius / (4.0 * e_star)).cbrt();
+    let p0 = 3.0 * load / (2.0 * std::f64::consts::PI * a * a);
+    let peak = fields.pressure.iter().copied().fold(0.0, f64::max);
+    let mesh = &model.mesh;
+    // Along the x axis (y = 0, z = 0): the last touching node and the next one.
+    let on_axis = |n: usize| mesh.nodes[n][1] == 0.0 && mesh.nodes[n][2] == 0.0;
+    let last_touching = (0..mesh.node_count()).filter(|&n| on_axis(n) && fields.pressure[n] > 0.0).map(|n| mesh.nodes[n][0]).fold(0.0, f64::max);
+    let next = g.iter().copied().find(|&x| x > last_touching + 1e-12).unwrap();
+    println!("sphere: P {load:.4} p0 {peak:.4} (Hertz {p0:.4}) a in [{last_touching:.3}, {next:.3}] (Hertz {a:.3}), {} elements", model.mesh.element_count());
+    assert!((peak - p0).abs() / p0 < 0.05, "peak pressure {peak} vs {p0}");
+    // The rounded pressure law lets a node within 1e-3 h of the sphere carry a
+    // trace of pressure, so the last touching node may sit a hair past a.
+    assert!(last_touching <= a * 1.02 && a <= next * 1.001, "a = {a} not in [{last_touching}, {next}]");
+}
