@@ -313,3 +313,24 @@ fn check_reports_counts_moduli_and_warnings() {
     assert!(msg.contains("nearly incompressible") && msg.contains("mixed"), "{msg}");
     assert!(!s.out().exists(), "check writes nothing");
 }
+
+#[test]
+fn a_step_ramp_applies_the_whole_motion_in_the_first_increment() {
+    let s = Scratch::new("ramp");
+    let job = BUSH.replace("displacement = { r = 0.0, z = 0.5 }", "displacement = { r = 0.0, z = 0.5 }\nramp = \"step\"");
+    let out = run(&s.job(&job), &s.out());
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out));
+    let history = std::fs::read_to_string(s.out().join("history.csv")).unwrap();
+    let header: Vec<&str> = history.lines().next().unwrap().split(',').collect();
+    let col = header.iter().position(|c| *c == "reaction_pin_z").unwrap();
+    let rows: Vec<f64> = history.lines().skip(1).map(|l| l.split(',').nth(col).unwrap().parse().unwrap()).collect();
+    assert!(rows.len() >= 2, "several increments");
+    // Hyperelastic: the same displacement gives the same force at every increment.
+    assert!((rows[0] - rows[rows.len() - 1]).abs() <= 1e-6 * rows[0].abs(), "{rows:?}");
+}
+
+#[test]
+fn unknown_ramp_is_located_with_a_suggestion() {
+    let job = BUSH.replace("displacement = { r = 0.0, z = 0.5 }", "displacement = { r = 0.0, z = 0.5 }\nramp = \"stpe\"");
+    rejects(&job, &["unknown ramp `stpe`", "did you mean `step`?"]);
+}

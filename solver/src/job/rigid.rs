@@ -173,6 +173,7 @@ impl Builder<'_> {
                 }
                 translation = t.unwrap_or(translation);
                 rotation = a.unwrap_or(rotation);
+                self.set_ramp(&mut stages[i], name, &spec.ramp)?;
                 stages[i].rigid_motions.push(RigidMotion { body: name.clone(), translation, rotation });
                 loaded[i] = true;
             }

@@ -187,6 +187,9 @@ pub struct MotionSpec {
     pub stage: Option<Spanned<String>>,
     /// Component → displacement (length units), e.g. `{ x = 0.0, z = -2.0 }`.
     pub displacement: Spanned<BTreeMap<String, f64>>,
+    /// How the load changes over its stage: `"linear"` (default), `"step"`
+    /// (all at once), or a table `[[t, fraction], ...]` of stage fraction t.
+    pub ramp: Option<Spanned<RampSpec>>,
 }
 
 /// Follower pressure (stress units) on a side set, positive pushing into the material.
@@ -196,6 +199,9 @@ pub struct PressureSpec {
     pub sides: Spanned<String>,
     pub stage: Option<Spanned<String>>,
     pub value: f64,
+    /// How the load changes over its stage: `"linear"` (default), `"step"`
+    /// (all at once), or a table `[[t, fraction], ...]` of stage fraction t.
+    pub ramp: Option<Spanned<RampSpec>>,
 }
 
 /// Total force (force units; axisymmetric: over the full 2π) on a set: spread
@@ -206,6 +212,9 @@ pub struct ForceSpec {
     pub set: Spanned<String>,
     pub stage: Option<Spanned<String>>,
     pub total: Spanned<BTreeMap<String, f64>>,
+    /// How the load changes over its stage: `"linear"` (default), `"step"`
+    /// (all at once), or a table `[[t, fraction], ...]` of stage fraction t.
+    pub ramp: Option<Spanned<RampSpec>>,
 }
 
 /// Body force per unit reference volume (force / length³), e.g. ρ·g, on every element.
@@ -214,6 +223,9 @@ pub struct ForceSpec {
 pub struct BodyForceSpec {
     pub stage: Option<Spanned<String>>,
     pub per_volume: Spanned<BTreeMap<String, f64>>,
+    /// How the load changes over its stage: `"linear"` (default), `"step"`
+    /// (all at once), or a table `[[t, fraction], ...]` of stage fraction t.
+    pub ramp: Option<Spanned<RampSpec>>,
 }
 
 /// One load stage and its increment controls (fractions of the stage).
@@ -326,6 +338,8 @@ pub struct RigidSpec {
     pub moves: Option<Spanned<BTreeMap<String, Vec<f64>>>>,
     /// Rotation (degrees) reached at the end of each named stage: `rotate = { tilt = 5.0 }`.
     pub rotate: Option<Spanned<BTreeMap<String, f64>>>,
+    /// How each stage's move or turn is spread over the stage (as for loads).
+    pub ramp: Option<Spanned<RampSpec>>,
 }
 
 #[derive(Debug, Clone, Deserialize)]
@@ -366,4 +380,12 @@ pub struct RigidCylinder {
 pub struct RigidSphere {
     pub center: [f64; 3],
     pub radius: f64,
+}
+
+/// A load ramp as written: a name or a table of (stage fraction, fraction).
+#[derive(Debug, Clone, Deserialize)]
+#[serde(untagged)]
+pub enum RampSpec {
+    Named(String),
+    Table(Vec<[f64; 2]>),
 }

@@ -10,8 +10,8 @@ use toml::Spanned;
 
 use super::build::Builder;
 use super::diagnostics::{nearest, InputError};
-use super::schema::{AnalysisKind, JobFile, StageSpec};
-use crate::model::{Force, IncrementControls, Motion, Pressure, Stage, Support};
+use super::schema::{AnalysisKind, JobFile, RampSpec, StageSpec};
+use crate::model::{Force, IncrementControls, Motion, Pressure, Ramp, Stage, Support, BODY_FORCE_RAMP};
 
 impl Builder<'_> {
     /// Component values `{ x = .., z = .. }` as an array for this analysis.
@@ -40,6 +40,50 @@ impl Builder<'_> {
             let names: Vec<&str> = stages.iter().map(|s| s.get_ref().name.get_ref().as_str()).collect();
             self.unknown_name(name.span(), "stage", "stage", name.get_ref(), &names)
         })
+    }
+
+    /// A ramp as written, checked: `linear`, `step`, or a table of
+    /// (stage fraction, fraction) points with strictly increasing fractions
+    /// of the stage within [0, 1].
+    pub(super) fn ramp(&self, spec: &Option<Spanned<RampSpec>>) -> Result<Option<Ramp>, InputError> {
+        let Some(r) = spec else { return Ok(None) };
+        let bad = |m: String| self.err(r.span(), format!("`ramp`: {m}"));
+        match r.get_ref() {
+            RampSpec::Named(name) => match name.as_str() {
+                "linear" => Ok(Some(Ramp::Linear)),
+                "step" => Ok(Some(Ramp::Step)),
+                other => {
+                    let hint = nearest(other, ["linear", "step"]).map(|n| format!("; did you mean `{n}`?")).unwrap_or_default();
+                    Err(bad(format!("unknown ramp `{other}` (use \"linear\", \"step\" or a table [[t, fraction], ...]){hint}")))
+                }
+            },
+            RampSpec::Table(points) => {
+                if points.len() < 2 {
+                    return Err(bad("a table needs at least two [t, fraction] points".into()));
+                }
+                if points.iter().flatten().any(|v| !v.is_finite()) {
+                    return Err(bad("table values must be finite".into()));
+                }
+                if points.windows(2).any(|w| w[1][0] <= w[0][0]) || points[0][0] < 0.0 || points[points.len() - 1][0] > 1.0 {
+                    return Err(bad("table stage fractions t must increase strictly within [0, 1]".into()));
+                }
+                Ok(Some(Ramp::Table(points.iter().map(|p| (p[0], p[1])).collect())))
+            }
+        }
+    }
+
+    /// Records the ramp of the load on `key` in `stage`; two different ramps
+    /// for one set in one stage are an error.
+    pub(super) fn set_ramp(&self, stage: &mut Stage, key: &str, spec: &Option<Spanned<RampSpec>>) -> Result<(), InputError> {
+        let Some(ramp) = self.ramp(spec)? else { return Ok(()) };
+        if let Some(old) = stage.ramps.get(key) {
+            if *old != ramp {
+                let span = spec.as_ref().map(|s| s.span()).unwrap_or(0..0);
+                return Err(self.err(span, format!("`ramp`: stage `{}` already ramps `{key}` differently", stage.name)));
+            }
+        }
+        stage.ramps.insert(key.to_string(), ramp);
+        Ok(())
     }
 
     pub(super) fn stages(&self, file: &JobFile, mesh: &Mesh, kind: AnalysisKind) -> Result<Vec<Stage>, InputError> {
@@ -77,6 +121,7 @@ impl Builder<'_> {
             let i = self.stage_index(&file.stage, &spec.stage)?;
             let set = self.node_set(mesh, "nodes", &spec.nodes)?;
             let displacement = self.components(kind, &spec.displacement)?;
+            self.set_ramp(&mut stages[i], &set, &spec.ramp)?;
             stages[i].motions.push(Motion { set, displacement });
             loaded[i] = true;
         }
@@ -95,6 +140,7 @@ impl Builder<'_> {
             if !spec.value.is_finite() {
                 return Err(self.err(p.span(), "pressure `value` must be a finite number"));
             }
+            self.set_ramp(&mut stages[i], name, &spec.ramp)?;
             stages[i].pressures.push(Pressure { set: name.clone(), value: spec.value });
             loaded[i] = true;
         }
@@ -103,6 +149,7 @@ impl Builder<'_> {
             let i = self.stage_index(&file.stage, &spec.stage)?;
             let set = self.node_set(mesh, "set", &spec.set)?;
             let total = self.components(kind, &spec.total)?.map(|v| v.unwrap_or(0.0));
+            self.set_ramp(&mut stages[i], &set, &spec.ramp)?;
             stages[i].forces.push(Force { set, total });
             loaded[i] = true;
         }
@@ -112,6 +159,7 @@ impl Builder<'_> {
             if stages[i].body_force.is_some() {
                 return Err(self.err(b.span(), format!("stage `{}` has two body forces; give one with all components", stages[i].name)));
             }
+            self.set_ramp(&mut stages[i], BODY_FORCE_RAMP, &spec.ramp)?;
             stages[i].body_force = Some(self.components(kind, &spec.per_volume)?.map(|v| v.unwrap_or(0.0)));
             loaded[i] = true;
         }
