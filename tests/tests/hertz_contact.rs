@@ -42,6 +42,14 @@ fn geometric(n: usize, total: f64, first: f64) -> Vec<f64> {
 
 const PUSH: f64 = 0.05;
 
+/// E* = E / (1 − ν²) of the rubber against a rigid body, from μ and κ
+/// (isotropic elasticity: E = 9κμ/(3κ+μ), ν = (3κ−2μ)/(2(3κ+μ))).
+fn plane_strain_modulus(mu: f64, kappa: f64) -> f64 {
+    let e = 9.0 * kappa * mu / (3.0 * kappa + mu);
+    let nu = (3.0 * kappa - 2.0 * mu) / (2.0 * (3.0 * kappa + mu));
+    e / (1.0 - nu * nu)
+}
+
 struct HertzRun {
     load: f64,
     half_width: f64,
@@ -98,9 +106,7 @@ fn run(edge: f64, push: f64) -> HertzRun {
 fn hertz_line_contact_half_width_and_peak_pressure_converge() {
     let mu = 1.0;
     let kappa = 1000.0 * mu;
-    let e = 9.0 * kappa * mu / (3.0 * kappa + mu);
-    let nu = (3.0 * kappa - 2.0 * mu) / (2.0 * (3.0 * kappa + mu));
-    let e_star = e / (1.0 - nu * nu);
+    let e_star = plane_strain_modulus(mu, kappa);
     let radius = 10.0;
     let mut errors = Vec::new();
     for edge in [0.4, 0.2, 0.1, 0.05] {
@@ -174,9 +180,7 @@ fn hertz_rigid_cylinder_on_a_3d_slab() {
     let fields = last.contact_fields.as_ref().unwrap();
     // Load per unit length of the full contact (two halves, thickness 1).
     let load = 2.0 * last.contact[0].force[1].abs();
-    let e = 9.0 * kappa * mu / (3.0 * kappa + mu);
-    let nu = (3.0 * kappa - 2.0 * mu) / (2.0 * (3.0 * kappa + mu));
-    let e_star = e / (1.0 - nu * nu);
+    let e_star = plane_strain_modulus(mu, kappa);
     let p0 = (load * e_star / (std::f64::consts::PI * radius)).sqrt();
     let a = 2.0 * load / (std::f64::consts::PI * p0);
     let peak = fields.pressure.iter().copied().fold(0.0, f64::max);
@@ -263,9 +267,7 @@ fn hertz_rigid_sphere_on_a_3d_block() {
     let last = sol.last().unwrap();
     let fields = last.contact_fields.as_ref().unwrap();
     let load = 4.0 * last.contact[0].force[2].abs();
-    let e = 9.0 * kappa * mu / (3.0 * kappa + mu);
-    let nu = (3.0 * kappa - 2.0 * mu) / (2.0 * (3.0 * kappa + mu));
-    let e_star = e / (1.0 - nu * nu);
+    let e_star = plane_strain_modulus(mu, kappa);
     let a = (3.0 * load * radius / (4.0 * e_star)).cbrt();
     let p0 = 3.0 * load / (2.0 * std::f64::consts::PI * a * a);
     let peak = fields.pressure.iter().copied().fold(0.0, f64::max);
