@@ -223,7 +223,7 @@ impl ActiveContacts {
         };
         for b in &mut self.bodies {
             Self::place(b, t);
-            b.last = b.pair.evaluate(&b.surface, position);
+            b.pair.evaluate_into(&b.surface, position, &mut b.last);
             for (k_node, (&node, r)) in b.pair.nodes.iter().zip(&b.last.nodes).enumerate() {
                 if r.status == Status::Open {
                     continue;
@@ -320,7 +320,7 @@ impl ActiveContacts {
             .map(|b| ContactSummary {
                 name: b.def.name.clone(),
                 force: [b.last.surface_force.x, b.last.surface_force.y, b.last.surface_force.z],
-                contact_width: b.last.contact_width,
+                contact_width: b.pair.contact_width(&b.last),
                 peak_pressure: b.last.peak_pressure,
                 max_penetration: b.last.max_penetration,
                 touching_nodes: b.last.nodes.iter().filter(|r| r.status != Status::Open).count(),

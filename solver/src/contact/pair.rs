@@ -61,9 +61,8 @@ pub struct PairResponse {
     pub surface_force: Vector3<f64>,
     /// Peak contact pressure.
     pub peak_pressure: f64,
-    /// Contact width (2-D: length of the touching band along the surface;
-    /// 3-D: the largest distance between two touching nodes).
-    pub contact_width: f64,
+    /// Current positions of the pair's nodes.
+    pub positions: Vec<Vector3<f64>>,
     /// Largest penetration (−gap) of a touching node, ≥ 0.
     pub max_penetration: f64,
 }
@@ -126,11 +125,17 @@ impl ContactPair {
 
     /// Evaluates every node at the current positions (`position(node)` gives
     /// the current coordinates of a mesh node).
-    pub fn evaluate(&self, surface: &RigidSurface, position: impl Fn(usize) -> Vector3<f64>) -> PairResponse {
-        let mut out = PairResponse { peak_pressure: 0.0, ..Default::default() };
-        let mut touching = Vec::new();
+    pub fn evaluate_into(&self, surface: &RigidSurface, position: impl Fn(usize) -> Vector3<f64>, out: &mut PairResponse) {
+        // The buffers keep their capacity: no allocation per Newton evaluation.
+        out.nodes.clear();
+        out.gaps.clear();
+        out.positions.clear();
+        out.surface_force = Vector3::zeros();
+        out.peak_pressure = 0.0;
+        out.max_penetration = 0.0;
         for (k, &node) in self.nodes.iter().enumerate() {
             let xi = position(node);
+            out.positions.push(xi);
             let r = match surface.project(&xi) {
                 Some(proj) => {
                     out.gaps.push(proj.gap);
@@ -146,15 +151,22 @@ impl ContactPair {
                 out.surface_force -= r.force;
                 out.peak_pressure = out.peak_pressure.max(r.pressure);
                 out.max_penetration = out.max_penetration.max(-out.gaps[k]);
-                touching.push(xi);
             }
             out.nodes.push(r);
         }
-        out.contact_width = match self.measure {
-            AreaMeasure::Solid => largest_distance(&touching),
-            _ => self.band_length(&out, &position),
-        };
-        out
+    }
+
+    /// Contact width of an evaluation (2-D: length of the touching band along
+    /// the surface; 3-D: the extent of the touching nodes). Computed for
+    /// reports, not at every Newton evaluation.
+    pub fn contact_width(&self, r: &PairResponse) -> f64 {
+        match self.measure {
+            AreaMeasure::Solid => extent(r),
+            _ => self.band_length(r, &|n: usize| {
+                let k = self.nodes.binary_search(&n).expect("pair node");
+                r.positions[k]
+            }),
+        }
     }
 
     /// 2-D contact width: the length of the edges with both ends touching,
@@ -288,14 +300,16 @@ impl ContactPair {
     }
 }
 
-fn largest_distance(points: &[Vector3<f64>]) -> f64 {
-    let mut d: f64 = 0.0;
-    for (i, a) in points.iter().enumerate() {
-        for b in &points[i + 1..] {
-            d = d.max((a - b).norm());
-        }
-    }
-    d
+/// Extent of the touching nodes: the largest distance between two of them,
+/// found by two farthest-point sweeps (exact for the compact, convex contact
+/// patches of seals and mounts, and linear in the node count).
+fn extent(r: &PairResponse) -> f64 {
+    let touching = || r.nodes.iter().zip(&r.positions).filter(|(n, _)| n.status != Status::Open).map(|(_, x)| *x);
+    let Some(start) = touching().next() else { return 0.0 };
+    let far = |from: Vector3<f64>| touching().max_by(|a, b| (a - from).norm().total_cmp(&(b - from).norm())).unwrap_or(from);
+    let a = far(start);
+    let b = far(a);
+    (a - b).norm()
 }
 
 /// Size of one side: its length (2-D) or the square root of its area (3-D).
