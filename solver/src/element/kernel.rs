@@ -5,7 +5,7 @@ use nalgebra::{Matrix3, SMatrix, SVector};
 
 use super::geometry::{point_geometry, PointGeometry};
 use super::{Analysis, ElementContext, ElementError, Formulation, Shape};
-use crate::material::{MaterialError, Tangent};
+use crate::material::{Material, MaterialError, Response, Tangent};
 
 /// Largest number of element degrees of freedom (hex8: 8 × 3).
 pub const MAX_DOFS: usize = 24;
@@ -145,6 +145,15 @@ fn map_material(e: MaterialError, point: usize, j: f64) -> ElementError {
     }
 }
 
+/// The material's response at one Gauss point: the isochoric part alone for
+/// the mixed form (it adds the element pressure itself), the full one
+/// otherwise.
+fn point_response(mat: &Material, mixed: bool, k: &Kin, q: usize) -> Result<Response, ElementError> {
+    let c = k.f.transpose() * k.f;
+    let resp = if mixed { mat.isochoric_response(&c) } else { mat.response(&c) };
+    resp.map_err(|e| map_material(e, q, k.j))
+}
+
 /// Deformation state of one Gauss point.
 #[derive(Debug, Clone, Copy, Default)]
 struct Kin {
@@ -255,13 +264,7 @@ fn integrate<const ND: usize>(
     };
     let mut g = SVector::<f64, ND>::zeros();
     for (q, k) in kin.iter().take(ctx.shape.points()).enumerate() {
-        let c = k.f.transpose() * k.f;
-        let resp = if mixed {
-            mat.isochoric_response(&c)
-        } else {
-            mat.response(&c)
-        }
-        .map_err(|e| map_material(e, q, k.j))?;
+        let resp = point_response(mat, mixed, k, q)?;
         energy += resp.energy * k.geo.dv;
         let b = BOp { geo: &k.geo, dim: ND / ctx.shape.nodes(), axisymmetric: axi };
         let mut p9 = to9(&(k.f * resp.stress));
@@ -409,18 +412,12 @@ fn states<const ND: usize>(
         (0.0, 0.0)
     };
     for (q, k) in kin.iter().take(ctx.shape.points()).enumerate() {
-        let c = k.f.transpose() * k.f;
-        let resp = if mixed {
-            mat.isochoric_response(&c)
-        } else {
-            mat.response(&c)
-        }
-        .map_err(|e| map_material(e, q, k.j))?;
+        let resp = point_response(mat, mixed, k, q)?;
         let mut sigma = k.f * resp.stress * k.f.transpose() / k.j;
         if mixed {
             sigma += Matrix3::identity() * p;
         }
-        let mut ev = c.symmetric_eigenvalues().map(|l| l.max(0.0).sqrt());
+        let mut ev = (k.f.transpose() * k.f).symmetric_eigenvalues().map(|l| l.max(0.0).sqrt());
         ev.as_mut_slice().sort_by(|a, b| b.total_cmp(a));
         let mut position = [0.0; 3];
         for a in 0..ctx.shape.nodes() {
