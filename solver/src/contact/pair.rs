@@ -61,7 +61,7 @@ pub struct PairResponse {
     pub surface_force: Vector3<f64>,
     /// Peak contact pressure.
     pub peak_pressure: f64,
-    /// Current positions of the pair's nodes.
+    /// Current positions of the pair's nodes (indexed like `nodes`).
     pub positions: Vec<Vector3<f64>>,
     /// Largest penetration (−gap) of a touching node, ≥ 0.
     pub max_penetration: f64,
@@ -162,10 +162,7 @@ impl ContactPair {
     pub fn contact_width(&self, r: &PairResponse) -> f64 {
         match self.measure {
             AreaMeasure::Solid => extent(r),
-            _ => self.band_length(r, &|n: usize| {
-                let k = self.nodes.binary_search(&n).expect("pair node");
-                r.positions[k]
-            }),
+            _ => self.band_length(r),
         }
     }
 
@@ -175,24 +172,24 @@ impl ContactPair {
     /// smooth profile falls like a square root (Hertz: p² ∝ a² − x²), so p²
     /// is extrapolated linearly from the last two touching nodes; without a
     /// usable neighbour, half the edge is counted.
-    fn band_length(&self, r: &PairResponse, position: &impl Fn(usize) -> Vector3<f64>) -> f64 {
+    fn band_length(&self, r: &PairResponse) -> f64 {
         let touching = |k: usize| r.nodes[k].status != Status::Open;
         let mut width = 0.0;
         for (e, side) in self.sides.iter().enumerate() {
             let (a, b) = (side[0], side[1]);
-            let len = (position(self.nodes[a]) - position(self.nodes[b])).norm();
+            let len = (r.positions[a] - r.positions[b]).norm();
             width += match (touching(a), touching(b)) {
                 (true, true) => len,
                 (false, false) => 0.0,
-                (true, false) => len * self.edge_fraction(e, a, r, position),
-                (false, true) => len * self.edge_fraction(e, b, r, position),
+                (true, false) => len * self.edge_fraction(e, a, r),
+                (false, true) => len * self.edge_fraction(e, b, r),
             };
         }
         width
     }
 
     /// Fraction of side `e`, measured from its touching node `i`, that is in contact.
-    fn edge_fraction(&self, e: usize, i: usize, r: &PairResponse, position: &impl Fn(usize) -> Vector3<f64>) -> f64 {
+    fn edge_fraction(&self, e: usize, i: usize, r: &PairResponse) -> f64 {
         let inner = self.neighbours[i].iter().filter(|&&f| f != e).find_map(|&f| {
             let other = if self.sides[f][0] == i { self.sides[f][1] } else { self.sides[f][0] };
             (r.nodes[other].status != Status::Open).then_some(other)
@@ -200,8 +197,8 @@ impl ContactPair {
         let Some(j) = inner else { return 0.5 };
         let (pi, pj) = (r.nodes[i].pressure, r.nodes[j].pressure);
         let outer = if self.sides[e][0] == i { self.sides[e][1] } else { self.sides[e][0] };
-        let len_e = (position(self.nodes[outer]) - position(self.nodes[i])).norm();
-        let len_ji = (position(self.nodes[i]) - position(self.nodes[j])).norm();
+        let len_e = (r.positions[outer] - r.positions[i]).norm();
+        let len_ji = (r.positions[i] - r.positions[j]).norm();
         if !(pj > pi && len_e > 0.0) {
             return 0.5;
         }
