@@ -224,11 +224,10 @@ impl ActiveContacts {
         for b in &mut self.bodies {
             Self::place(b, t);
             b.pair.evaluate_into(&b.surface, position, &mut b.last);
-            for (k_node, (&node, r)) in b.pair.nodes.iter().zip(&b.last.nodes).enumerate() {
+            for (&node, r) in b.pair.nodes.iter().zip(&b.last.nodes) {
                 if r.status == Status::Open {
                     continue;
                 }
-                let _ = k_node;
                 for i in 0..dim {
                     f_ext[node * dim + i] += r.force[i];
                 }
@@ -290,18 +289,9 @@ impl ActiveContacts {
     }
 
     /// Keeps the converged state (multipliers and stick anchors).
-    pub fn commit(&mut self, mesh_nodes: &[[f64; 3]], u: &[f64]) {
-        let dim = self.dim;
-        let position = |n: usize| {
-            let mut x = Vector3::from(mesh_nodes[n]);
-            for i in 0..dim {
-                x[i] += u[n * dim + i];
-            }
-            x
-        };
+    pub fn commit(&mut self) {
         for b in &mut self.bodies {
-            let last = b.last.clone();
-            b.pair.commit(&b.surface, &last, position);
+            b.pair.commit(&b.surface, &b.last);
             b.committed = b.pair.states.clone();
         }
     }

@@ -3,7 +3,7 @@
 //! law for the whole set, and reports what a seal designer reads: the total
 //! force on the surface, the contact width and the peak contact pressure.
 
-use nalgebra::{Matrix3, Vector3};
+use nalgebra::Vector3;
 use olli_mesh::{Mesh, Side};
 
 use super::law::{evaluate, smoothed_pressure, ContactParameters, NodeResponse, NodeState, Status};
@@ -207,39 +207,31 @@ impl ContactPair {
         (beyond / len_e).clamp(0.0, 1.0)
     }
 
-    /// Augmented-Lagrangian update after a converged solve: λ ← max(0, λ − ε g).
-    /// Returns the largest penetration before the update.
-    pub fn augment(&mut self, response: &PairResponse) -> f64 {
-        let smoothing: Vec<f64> = (0..self.nodes.len()).map(|k| self.node_params(k).smoothing).collect();
-        let mut worst: f64 = 0.0;
-        for (k, s) in self.states.iter_mut().enumerate() {
+    /// Augmented-Lagrangian update after a converged solve: λ ← max(0, λ − ε g)
+    /// (with the rounded law near zero).
+    pub fn augment(&mut self, response: &PairResponse) {
+        for k in 0..self.nodes.len() {
             let g = response.gaps[k];
-            if !g.is_finite() {
-                continue;
+            if g.is_finite() {
+                let smoothing = self.node_params(k).smoothing;
+                let s = &mut self.states[k];
+                s.multiplier = smoothed_pressure(s.multiplier - self.penalties[k] * g, smoothing).0;
             }
-            if response.nodes[k].status != Status::Open {
-                worst = worst.max(-g);
-            }
-            s.multiplier = smoothed_pressure(s.multiplier - self.penalties[k] * g, smoothing[k]).0;
         }
-        worst
     }
 
     /// Stores the converged state: stick anchors in the surface frame (the
     /// elastic-slip origin of touching nodes; none for open ones).
-    pub fn commit(&mut self, surface: &RigidSurface, response: &PairResponse, position: impl Fn(usize) -> Vector3<f64>) {
-        let tangential: Vec<f64> = (0..self.nodes.len()).map(|k| self.node_params(k).tangential_penalty).collect();
-        for (k, s) in self.states.iter_mut().enumerate() {
+    pub fn commit(&mut self, surface: &RigidSurface, response: &PairResponse) {
+        for k in 0..self.nodes.len() {
             let r = &response.nodes[k];
+            let tangential = self.node_params(k).tangential_penalty;
+            let s = &mut self.states[k];
             s.anchor = match r.status {
                 // An open node has no stick point (see `law::evaluate`).
                 Status::Open => None,
                 // The anchor sits so that the elastic slip reproduces the current shear.
-                _ if tangential[k] > 0.0 => {
-                    let xi = position(self.nodes[k]);
-                    let elastic = -r.shear / tangential[k];
-                    Some(surface.placement.to_local(&(xi - elastic)))
-                }
+                _ if tangential > 0.0 => Some(surface.placement.to_local(&(response.positions[k] + r.shear / tangential))),
                 _ => None,
             };
             if r.status == Status::Open {
@@ -285,15 +277,6 @@ impl ContactPair {
             }
         }
         (worst.1, worst.2)
-    }
-
-    /// The tangent blocks −∂f/∂x per node (node index into the mesh, 3×3 block).
-    pub fn stiffness_blocks<'a>(&'a self, r: &'a PairResponse) -> impl Iterator<Item = (usize, &'a Matrix3<f64>)> + 'a {
-        self.nodes
-            .iter()
-            .zip(&r.nodes)
-            .filter(|(_, n)| n.status != Status::Open)
-            .map(|(&node, n)| (node, &n.stiffness))
     }
 }
 

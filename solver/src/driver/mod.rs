@@ -86,7 +86,7 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
                     history = Some((prev_u, step));
                     let share = ctx.stabilization_share(&u);
                     ctx.last_converged.copy_from_slice(&u);
-                    ctx.contacts.commit(&model.mesh.nodes, &u);
+                    ctx.contacts.commit();
                     let result = increment_result(
                         &disc, &ctx, &u, si, &stage.name, count, t, step, iterations, residuals, energy, &report_sets,
                     );
