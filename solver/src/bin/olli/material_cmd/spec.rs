@@ -7,6 +7,7 @@
 use std::ops::Range;
 
 use olli_solver::job::build::material_error_key;
+use olli_solver::job::diagnostics::{line_column, nearest};
 use olli_solver::material::registry::{self, ALL_CONSTANTS, MODEL_NAMES};
 use olli_solver::material::{Material, MaterialError, VolumetricForm};
 use thiserror::Error;
@@ -66,22 +67,10 @@ pub enum SpecError {
     },
 }
 
-/// ` (did you mean `x`?)` for the known name closest to `given`, if close.
+/// ` (did you mean `x`?)` for the known name closest to `given`, if close
+/// (the job files' spelling rule).
 pub fn did_you_mean(given: &str, known: &[&str]) -> String {
-    known
-        .iter()
-        .map(|k| (strsim::damerau_levenshtein(given, k), *k))
-        .filter(|&(d, k)| d <= 2.max(k.len() / 3))
-        .min()
-        .map(|(_, k)| format!(" (did you mean `{k}`?)"))
-        .unwrap_or_default()
-}
-
-fn line_col(text: &str, offset: usize) -> (usize, usize) {
-    let before = &text[..offset.min(text.len())];
-    let line = before.matches('\n').count() + 1;
-    let col = before.rfind('\n').map_or(before.len(), |i| before.len() - i - 1) + 1;
-    (line, col)
+    nearest(given, known.iter().copied()).map(|k| format!(" (did you mean `{k}`?)")).unwrap_or_default()
 }
 
 fn known_constant(name: &str) -> Option<&'static str> {
@@ -102,7 +91,7 @@ impl MaterialSpec {
     /// Parses TOML `text`; `path` is only used in messages.
     pub fn from_toml(text: &str, path: &str) -> Result<Self, SpecError> {
         let at = |span: Range<usize>| {
-            let (l, c) = line_col(text, span.start);
+            let (l, c) = line_column(text, span.start);
             format!("{path}:{l}:{c}")
         };
         let root = DeTable::parse(text).map_err(|e| SpecError::Syntax {
