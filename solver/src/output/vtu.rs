@@ -31,27 +31,28 @@ impl Field {
     }
 }
 
-fn attribute(f: &Field) -> Attribute {
+fn attribute(f: Field) -> Attribute {
     let a = match f.components {
-        3 => Attribute::vectors(f.name.clone()),
-        1 => Attribute::scalars(f.name.clone(), 1),
-        n => Attribute::generic(f.name.clone(), n as u32),
+        3 => Attribute::vectors(f.name),
+        1 => Attribute::scalars(f.name, 1),
+        n => Attribute::generic(f.name, n as u32),
     };
-    a.with_data(IOBuffer::F64(f.values.clone()))
+    a.with_data(IOBuffer::F64(f.values))
 }
 
-/// Writes `mesh` with the given arrays to `path` atomically.
+/// Writes `mesh` with the given arrays to `path` atomically (the arrays move
+/// into the file model rather than being copied).
 pub fn write_vtu(
     path: &Path,
     title: &str,
     mesh: &Mesh,
-    point_fields: &[Field],
-    cell_fields: &[Field],
+    point_fields: Vec<Field>,
+    cell_fields: Vec<Field>,
 ) -> std::io::Result<()> {
     // The mesh crate's grid with exactly the chosen result arrays.
     let extra = Attributes {
-        point: point_fields.iter().map(attribute).collect(),
-        cell: cell_fields.iter().map(attribute).collect(),
+        point: point_fields.into_iter().map(attribute).collect(),
+        cell: cell_fields.into_iter().map(attribute).collect(),
     };
     let mut vtk = olli_mesh::export::grid(mesh, extra);
     vtk.title = if title.is_empty() { "olli".into() } else { title.into() };

@@ -158,7 +158,7 @@ impl<'m> ResultWriter<'m> {
         }
         let name = format!("{}_{:04}.vtu", self.stem, self.frames.len() + 1);
         let title = format!("{}: stage {} increment {increment} load factor {load_factor}", self.job.title, stage + 1);
-        write_vtu(&self.folder.join(&name), &title, &self.job.model.mesh, &f.point, &f.cell)?;
+        write_vtu(&self.folder.join(&name), &title, &self.job.model.mesh, f.point, f.cell)?;
         self.frames.push(PvdEntry { time: stage as f64 + load_factor, file: name });
         self.write(&format!("{}.pvd", self.stem), pvd_text(&self.frames).as_bytes())?;
         self.last_frame = Some((stage, increment));
