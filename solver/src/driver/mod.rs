@@ -84,14 +84,15 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
                     t += step;
                     let prev_u = ctx.last_converged.clone();
                     history = Some((prev_u, step));
+                    // Springs pull toward the previous increment: measure before replacing it.
                     let share = ctx.stabilization_share(&u);
                     ctx.last_converged.copy_from_slice(&u);
                     ctx.contacts.commit();
                     let result = increment_result(
-                        &disc, &ctx, &u, si, &stage.name, count, t, step, iterations, residuals, energy, &report_sets,
+                        &disc, &ctx, &u, si, &stage.name, count, t, step, iterations, residuals, energy, share, &report_sets,
                     );
                     let result = match result {
-                        Ok(r) => IncrementResult { stabilization_share: share, ..r },
+                        Ok(r) => r,
                         Err(e) => return Ok(finish(increments, Termination::Stopped(e), stats, system)),
                     };
                     observer.event(&Event::Converged(&result));
@@ -172,6 +173,7 @@ fn increment_result(
     iterations: usize,
     residual_history: Vec<f64>,
     strain_energy: f64,
+    stabilization_share: f64,
     report_sets: &std::collections::BTreeMap<String, Vec<usize>>,
 ) -> Result<IncrementResult, SolveError> {
     let model = disc.model;
@@ -234,8 +236,7 @@ fn increment_result(
         newton_iterations: iterations,
         residual_history,
         strain_energy,
-        // Measured against the previous increment; set by the caller.
-        stabilization_share: 0.0,
+        stabilization_share,
         axisymmetric: model.analysis == crate::element::Analysis::Axisymmetric,
         contact: ctx.contacts.summaries(),
         contact_fields: if ctx.contacts.is_empty() { None } else { Some(ctx.contacts.fields(mesh.node_count())) },
