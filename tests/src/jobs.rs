@@ -3,10 +3,10 @@
 
 use std::path::{Path, PathBuf};
 
-use olli_solver::job::check::{check, CheckReport};
-use olli_solver::job::{load, load_str, Job};
-use olli_solver::output::summary::RunSummary;
-use olli_solver::output::ResultWriter;
+use olli_app::job::check::{check, CheckReport};
+use olli_app::job::{load, load_str, Job};
+use olli_app::output::summary::RunSummary;
+use olli_app::output::ResultWriter;
 use olli_solver::{solve, Solution};
 
 /// The repository's `examples/` folder.

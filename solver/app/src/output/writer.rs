@@ -17,18 +17,18 @@ use super::history::History;
 use super::pvd::{pvd_text, PvdEntry};
 use super::summary::{units, Files, IncrementRef, RunSummary};
 use super::vtu::{write_vtu, Field};
-use crate::assembly::Discretization;
-use crate::driver::{Event, Observer};
-use crate::error::SolveError;
+use olli_solver::assembly::Discretization;
+use olli_solver::driver::{Event, Observer};
+use olli_solver::error::SolveError;
 use crate::job::Job;
-use crate::results::{IncrementResult, Solution, Termination};
+use olli_solver::results::{IncrementResult, Solution, Termination};
 
 /// Names of the files in the output folder.
 pub const HISTORY_FILE: &str = "history.csv";
 pub const SUMMARY_FILE: &str = "summary.json";
 pub const LOG_FILE: &str = "olli.log";
 
-/// The result writer of one run; pass it (or a wrapper) to [`crate::solve`].
+/// The result writer of one run; pass it (or a wrapper) to [`olli_solver::solve`].
 pub struct ResultWriter<'m> {
     job: &'m Job,
     folder: PathBuf,
@@ -54,7 +54,7 @@ impl<'m> ResultWriter<'m> {
     pub fn new(job: &'m Job, folder: &Path) -> io::Result<Self> {
         std::fs::create_dir_all(folder)?;
         let disc = Discretization::new(&job.model).map_err(io::Error::other)?;
-        let (programs, _) = crate::driver::stages::resolve(&disc).map_err(io::Error::other)?;
+        let (programs, _) = olli_solver::driver::stages::resolve(&disc).map_err(io::Error::other)?;
         let stem = job.path.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_else(|| "olli".into());
         remove_previous_results(folder, &stem)?;
         let log = BufWriter::new(File::create(folder.join(LOG_FILE))?);

@@ -12,9 +12,9 @@ use rayon::prelude::*;
 use serde::Serialize;
 
 use super::vtu::Field;
-use crate::assembly::Discretization;
-use crate::element::{element_into, point_states, PointState, MAX_DOFS, MAX_POINTS};
-use crate::error::SolveError;
+use olli_solver::assembly::Discretization;
+use olli_solver::element::{element_into, point_states, PointState, MAX_DOFS, MAX_POINTS};
+use olli_solver::error::SolveError;
 
 /// Von Mises equivalent stress of a symmetric stress tensor.
 pub fn von_mises(s: &Matrix3<f64>) -> f64 {
@@ -280,10 +280,10 @@ first_increment = 0.5
 max_increment = 0.5
 "#;
         let job = load_str(std::path::Path::new("t.toml"), text).unwrap();
-        let sol = crate::solve(&job.model, &mut crate::Quiet).unwrap();
+        let sol = olli_solver::solve(&job.model, &mut olli_solver::Quiet).unwrap();
         let last = sol.last().unwrap();
         let disc = Discretization::new(&job.model).unwrap();
-        let (programs, _) = crate::driver::stages::resolve(&disc).unwrap();
+        let (programs, _) = olli_solver::driver::stages::resolve(&disc).unwrap();
         let u: Vec<f64> = last.displacement.iter().flat_map(|d| d[..2].to_vec()).collect();
         let f = frame(&disc, &u, &programs[0].prescribed, &["reaction".to_string()]).unwrap();
         let reaction = &f.point[0].values;

@@ -9,10 +9,10 @@ use std::fmt;
 use olli_mesh::{summary, MeshSummary};
 
 use super::build::Job;
-use crate::contact::Shape as RigidShape;
-use crate::material::homogeneous::{Mode, Settings};
-use crate::material::stability::check_mode;
-use crate::model::Formulation;
+use olli_solver::contact::Shape as RigidShape;
+use olli_solver::material::homogeneous::{Mode, Settings};
+use olli_solver::material::stability::check_mode;
+use olli_solver::model::Formulation;
 
 /// Poisson's ratio above which a material counts as nearly incompressible
 /// for the locking warning (κ/μ above about 50; common practice).

@@ -11,10 +11,10 @@ use std::process::ExitCode;
 use std::time::Duration;
 
 use indicatif::{ProgressBar, ProgressStyle};
-use olli_solver::job::{self, Job};
-use olli_solver::output::event_text::EventText;
-use olli_solver::output::summary::RunSummary;
-use olli_solver::output::ResultWriter;
+use olli_app::job::{self, Job};
+use olli_app::output::event_text::EventText;
+use olli_app::output::summary::RunSummary;
+use olli_app::output::ResultWriter;
 use olli_solver::{solve, Event, Observer};
 
 #[derive(clap::Args)]

@@ -3,7 +3,7 @@
 
 use std::time::Instant;
 
-use crate::driver::Event;
+use olli_solver::driver::Event;
 
 /// Formats events; remembers the current stage name and the run's start.
 #[derive(Debug, Clone)]

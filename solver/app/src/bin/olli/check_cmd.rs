@@ -5,7 +5,7 @@
 use std::path::PathBuf;
 use std::process::ExitCode;
 
-use olli_solver::job::{self, check::check};
+use olli_app::job::{self, check::check};
 
 #[derive(clap::Args)]
 #[command(after_help = "Example:\n  olli check examples/bush.toml")]

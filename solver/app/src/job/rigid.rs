@@ -10,9 +10,9 @@ use olli_mesh::Mesh;
 use super::build::Builder;
 use super::diagnostics::InputError;
 use super::schema::{AnalysisKind, JobFile};
-use crate::contact::surface::filleted_polyline;
-use crate::contact::{Piece2, Shape as RigidShape};
-use crate::model::{RigidBody, RigidMotion, Stage};
+use olli_solver::contact::surface::filleted_polyline;
+use olli_solver::contact::{Piece2, Shape as RigidShape};
+use olli_solver::model::{RigidBody, RigidMotion, Stage};
 
 impl Builder<'_> {
     /// Rigid surfaces: shape (facing the rubber), the side set they touch, friction.

@@ -111,7 +111,7 @@ pub struct SelectSpec {
 }
 
 /// One material table: a model name, its constants and a volumetric law.
-/// The constant names are those of [`crate::material::registry::ALL_CONSTANTS`]
+/// The constant names are those of [`olli_solver::material::registry::ALL_CONSTANTS`]
 /// (a unit test keeps the two lists equal).
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -279,7 +279,7 @@ fn one() -> Spanned<usize> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::material::registry::ALL_CONSTANTS;
+    use olli_solver::material::registry::ALL_CONSTANTS;
 
     #[test]
     fn material_table_knows_every_registry_constant() {

@@ -11,7 +11,7 @@ use toml::Spanned;
 use super::build::Builder;
 use super::diagnostics::{nearest, InputError};
 use super::schema::{AnalysisKind, JobFile, RampSpec, StageSpec};
-use crate::model::{Force, IncrementControls, Motion, Pressure, Ramp, Stage, Support, BODY_FORCE_RAMP};
+use olli_solver::model::{Force, IncrementControls, Motion, Pressure, Ramp, Stage, Support, BODY_FORCE_RAMP};
 
 impl Builder<'_> {
     /// Component values `{ x = .., z = .. }` as an array for this analysis.

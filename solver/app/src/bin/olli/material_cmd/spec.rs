@@ -6,8 +6,8 @@
 
 use std::ops::Range;
 
-use olli_solver::job::build::material_error_key;
-use olli_solver::job::diagnostics::{line_column, nearest};
+use olli_app::job::build::material_error_key;
+use olli_app::job::diagnostics::{line_column, nearest};
 use olli_solver::material::registry::{self, ALL_CONSTANTS, MODEL_NAMES};
 use olli_solver::material::{Material, MaterialError, VolumetricForm};
 use thiserror::Error;

@@ -13,10 +13,10 @@ use toml::Spanned;
 use super::diagnostics::{nearest, InputError};
 use super::mesh_source::{all_set_names, apply_selections, mesh_from_table};
 use super::schema::{AnalysisKind, FormulationKind, JobFile, MaterialTable};
-use crate::assembly::Discretization;
-use crate::linear::LinearSettings;
-use crate::material::{Material, MaterialError, VolumetricForm};
-use crate::model::{Analysis, Formulation, Model, OutputSettings, Region};
+use olli_solver::assembly::Discretization;
+use olli_solver::linear::LinearSettings;
+use olli_solver::material::{Material, MaterialError, VolumetricForm};
+use olli_solver::model::{Analysis, Formulation, Model, OutputSettings, Region};
 
 /// Names of the arrays a `.vtu` frame can hold (`[output] fields`).
 pub const FIELD_NAMES: &[&str] = &[
@@ -199,7 +199,7 @@ impl Builder<'_> {
         };
         // Element kinds, region cover and set kinds, checked by the solver's own tables.
         let disc = Discretization::new(&model).map_err(|e| self.err(file.mesh.span(), e.to_string()))?;
-        crate::driver::stages::resolve(&disc).map_err(|e| self.err(0..0, e.to_string()))?;
+        olli_solver::driver::stages::resolve(&disc).map_err(|e| self.err(0..0, e.to_string()))?;
         drop(disc);
         let title = if file.title.is_empty() {
             self.path.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_default()
@@ -242,7 +242,7 @@ impl Builder<'_> {
     fn material(&self, name: &str, table: &Spanned<MaterialTable>) -> Result<Material, InputError> {
         let t = table.get_ref();
         let model = t.model.get_ref();
-        let known = crate::material::registry::MODEL_NAMES;
+        let known = olli_solver::material::registry::MODEL_NAMES;
         if !known.contains(&model.as_str()) {
             let hint = nearest(model, known.iter().copied()).map(|k| format!("; did you mean `{k}`?")).unwrap_or_default();
             return Err(self.err(t.model.span(), format!("material `{name}`: unknown model `{model}` (known: {}){hint}", known.join(", "))));
@@ -255,7 +255,7 @@ impl Builder<'_> {
         };
         let given = t.constants();
         let constants: Vec<(&str, f64)> = given.iter().map(|(k, v)| (*k, *v.get_ref())).collect();
-        crate::material::registry::material(model, &constants, form).map_err(|e| {
+        olli_solver::material::registry::material(model, &constants, form).map_err(|e| {
             let span = material_error_key(&e)
                 .and_then(|k| given.iter().find(|(n, _)| *n == k).map(|(_, v)| v.span()))
                 .unwrap_or_else(|| t.model.span());
@@ -348,7 +348,7 @@ impl Builder<'_> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::model::Motion;
+    use olli_solver::model::Motion;
 
     const JOB: &str = r#"
 analysis = "axisymmetric"
