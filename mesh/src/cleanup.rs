@@ -221,10 +221,8 @@ fn remap_sides(mesh: &mut Mesh, changed: &[usize]) {
             // Corner nodes of the side before the permutation: local index i then was at old_perm^-1.
             let nodes = mesh.element_nodes(s.element);
             let old_local = kind.sides()[s.local as usize];
-            let mut old_corners: Vec<usize> = old_local[..2]
-                .iter()
-                .map(|&i| nodes[old_perm.iter().position(|&p| p == i).unwrap_or(i)])
-                .collect();
+            let mut old_corners: Vec<usize> =
+                old_local[..2].iter().map(|&i| nodes[old_perm.iter().position(|&p| p == i).unwrap_or(i)]).collect();
             old_corners.sort_unstable();
             for (k, local) in kind.sides().iter().enumerate() {
                 let mut c: Vec<usize> = local[..2].iter().map(|&i| nodes[i]).collect();

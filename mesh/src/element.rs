@@ -73,11 +73,7 @@ impl ElementKind {
     /// Spatial dimension of the reference shape (2 or 3).
     pub fn dimension(self) -> usize {
         match self {
-            ElementKind::Tri3
-            | ElementKind::Tri6
-            | ElementKind::Quad4
-            | ElementKind::Quad8
-            | ElementKind::Quad9 => 2,
+            ElementKind::Tri3 | ElementKind::Tri6 | ElementKind::Quad4 | ElementKind::Quad8 | ElementKind::Quad9 => 2,
             _ => 3,
         }
     }
@@ -119,31 +115,11 @@ impl ElementKind {
             ElementKind::Tri3 => &[&[0, 1], &[1, 2], &[2, 0]],
             ElementKind::Tri6 => &[&[0, 1, 3], &[1, 2, 4], &[2, 0, 5]],
             ElementKind::Quad4 => &[&[0, 1], &[1, 2], &[2, 3], &[3, 0]],
-            ElementKind::Quad8 | ElementKind::Quad9 => {
-                &[&[0, 1, 4], &[1, 2, 5], &[2, 3, 6], &[3, 0, 7]]
-            }
+            ElementKind::Quad8 | ElementKind::Quad9 => &[&[0, 1, 4], &[1, 2, 5], &[2, 3, 6], &[3, 0, 7]],
             ElementKind::Tet4 => &[&[0, 2, 1], &[0, 1, 3], &[1, 2, 3], &[0, 3, 2]],
-            ElementKind::Tet10 => &[
-                &[0, 2, 1, 6, 5, 4],
-                &[0, 1, 3, 4, 8, 7],
-                &[1, 2, 3, 5, 9, 8],
-                &[0, 3, 2, 7, 9, 6],
-            ],
-            ElementKind::Wedge6 => &[
-                &[0, 1, 2],
-                &[3, 5, 4],
-                &[0, 3, 4, 1],
-                &[1, 4, 5, 2],
-                &[0, 2, 5, 3],
-            ],
-            ElementKind::Hex8 => &[
-                &[0, 3, 2, 1],
-                &[4, 5, 6, 7],
-                &[0, 1, 5, 4],
-                &[1, 2, 6, 5],
-                &[2, 3, 7, 6],
-                &[3, 0, 4, 7],
-            ],
+            ElementKind::Tet10 => &[&[0, 2, 1, 6, 5, 4], &[0, 1, 3, 4, 8, 7], &[1, 2, 3, 5, 9, 8], &[0, 3, 2, 7, 9, 6]],
+            ElementKind::Wedge6 => &[&[0, 1, 2], &[3, 5, 4], &[0, 3, 4, 1], &[1, 4, 5, 2], &[0, 2, 5, 3]],
+            ElementKind::Hex8 => &[&[0, 3, 2, 1], &[4, 5, 6, 7], &[0, 1, 5, 4], &[1, 2, 6, 5], &[2, 3, 7, 6], &[3, 0, 4, 7]],
             ElementKind::Hex20 => &[
                 &[0, 3, 2, 1, 11, 10, 9, 8],
                 &[4, 5, 6, 7, 12, 13, 14, 15],

@@ -49,11 +49,7 @@ pub enum MeshError {
     },
     /// A malformed or unsupported file.
     #[error("{}: {}{message}", .path.display(), .location.prefix())]
-    Parse {
-        path: PathBuf,
-        location: Location,
-        message: String,
-    },
+    Parse { path: PathBuf, location: Location, message: String },
     #[error("{path}: unknown mesh file type (expected .vtu, .vtk or .msh)")]
     UnknownFormat { path: PathBuf },
     #[error("{path}: cannot write: {message}")]
@@ -68,17 +64,10 @@ pub enum MeshError {
 
 impl MeshError {
     pub(crate) fn parse(path: &std::path::Path, location: Location, message: impl Into<String>) -> Self {
-        MeshError::Parse {
-            path: path.to_path_buf(),
-            location,
-            message: message.into(),
-        }
+        MeshError::Parse { path: path.to_path_buf(), location, message: message.into() }
     }
 
     pub(crate) fn param(key: &str, message: impl Into<String>) -> Self {
-        MeshError::InvalidParameter {
-            key: key.to_string(),
-            message: message.into(),
-        }
+        MeshError::InvalidParameter { key: key.to_string(), message: message.into() }
     }
 }

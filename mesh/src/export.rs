@@ -10,8 +10,7 @@
 use std::path::Path;
 
 use vtkio::model::{
-    Attribute, Attributes, ByteOrder, CellType, Cells, DataSet, IOBuffer, UnstructuredGridPiece, Version,
-    VertexNumbers, Vtk,
+    Attribute, Attributes, ByteOrder, CellType, Cells, DataSet, IOBuffer, UnstructuredGridPiece, Version, VertexNumbers, Vtk,
 };
 
 use crate::element::ElementKind;

@@ -42,11 +42,7 @@ pub struct Mesh {
 impl Mesh {
     /// An empty mesh of the given dimension (2 or 3).
     pub fn new(dimension: usize) -> Self {
-        Mesh {
-            dimension,
-            offsets: vec![0],
-            ..Default::default()
-        }
+        Mesh { dimension, offsets: vec![0], ..Default::default() }
     }
 
     /// Appends a node and returns its index.
@@ -154,10 +150,7 @@ impl Mesh {
             return Some(n);
         }
         let elems = self.element_sets.get(name)?;
-        let mut nodes: Vec<usize> = elems
-            .iter()
-            .flat_map(|&e| self.element_nodes(e).iter().copied())
-            .collect();
+        let mut nodes: Vec<usize> = elems.iter().flat_map(|&e| self.element_nodes(e).iter().copied()).collect();
         nodes.sort_unstable();
         nodes.dedup();
         Some(nodes)

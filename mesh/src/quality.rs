@@ -115,8 +115,7 @@ pub fn check(mesh: &Mesh, settings: &QualitySettings) -> QualityReport {
     let (lo, hi) = mesh.bounding_box();
     let diag = (0..3).map(|k| (hi[k] - lo[k]).powi(2)).sum::<f64>().sqrt();
     let tol = settings.duplicate_tolerance * if diag.is_finite() { diag } else { 0.0 };
-    report.duplicate_nodes =
-        duplicate_representatives(mesh, tol).iter().enumerate().filter(|&(i, &r)| r != i).count();
+    report.duplicate_nodes = duplicate_representatives(mesh, tol).iter().enumerate().filter(|&(i, &r)| r != i).count();
     report
 }
 

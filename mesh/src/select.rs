@@ -41,16 +41,32 @@ impl From<Vec3> for Vec<f64> {
 #[serde(rename_all = "kebab-case")]
 pub enum Selection {
     /// Inside the axis-aligned box (boundary included).
-    Box { min: Vec3, max: Vec3 },
+    Box {
+        min: Vec3,
+        max: Vec3,
+    },
     /// On the plane through `point` with normal `normal`. In 2-D a plane with
     /// normal in the x–y plane is a line.
-    Plane { point: Vec3, normal: Vec3 },
+    Plane {
+        point: Vec3,
+        normal: Vec3,
+    },
     /// On the straight line through `point` along `direction`.
-    Line { point: Vec3, direction: Vec3 },
+    Line {
+        point: Vec3,
+        direction: Vec3,
+    },
     /// On the cylinder of `radius` around the axis through `point` along `axis`.
-    Cylinder { point: Vec3, axis: Vec3, radius: f64 },
+    Cylinder {
+        point: Vec3,
+        axis: Vec3,
+        radius: f64,
+    },
     /// On the circle of `radius` around `center` in the x–y plane (2-D).
-    Circle { center: Vec3, radius: f64 },
+    Circle {
+        center: Vec3,
+        radius: f64,
+    },
     /// The single node nearest to the point (for sides: the boundary side
     /// whose centre is nearest).
     Nearest(Vec3),
@@ -86,7 +102,11 @@ fn line_distance(x: [f64; 3], p: [f64; 3], d: [f64; 3]) -> f64 {
 pub fn default_tolerance(mesh: &Mesh) -> f64 {
     let (lo, hi) = mesh.bounding_box();
     let d = dot(sub(hi, lo), sub(hi, lo)).sqrt();
-    if d.is_finite() { 1e-6 * d } else { 0.0 }
+    if d.is_finite() {
+        1e-6 * d
+    } else {
+        0.0
+    }
 }
 
 /// A predicate on positions for a geometric selection, or `None` if `sel` is not geometric.
@@ -94,9 +114,7 @@ type Predicate = Box<dyn Fn([f64; 3]) -> bool>;
 
 fn predicate(sel: &Selection, tol: f64) -> Result<Option<Predicate>, MeshError> {
     Ok(Some(match sel.clone() {
-        Selection::Box { min, max } => {
-            Box::new(move |x| (0..3).all(|k| x[k] >= min.0[k] - tol && x[k] <= max.0[k] + tol))
-        }
+        Selection::Box { min, max } => Box::new(move |x| (0..3).all(|k| x[k] >= min.0[k] - tol && x[k] <= max.0[k] + tol)),
         Selection::Plane { point, normal } => {
             let n = unit("normal", normal.0)?;
             Box::new(move |x| dot(sub(x, point.0), n).abs() <= tol)
@@ -124,9 +142,7 @@ pub fn select_nodes(mesh: &Mesh, sel: &Selection, tol: f64) -> Result<Vec<usize>
     }
     Ok(match sel {
         Selection::Nearest(x) => nearest_node(mesh, x.0).into_iter().collect(),
-        Selection::Set(name) => mesh
-            .nodes_of_set(name)
-            .ok_or_else(|| MeshError::param("set", format!("no set named `{name}`")))?,
+        Selection::Set(name) => mesh.nodes_of_set(name).ok_or_else(|| MeshError::param("set", format!("no set named `{name}`")))?,
         Selection::Union(parts) | Selection::Intersection(parts) | Selection::Difference(parts) => {
             let lists = parts.iter().map(|p| select_nodes(mesh, p, tol)).collect::<Result<Vec<_>, _>>()?;
             combine(sel, lists)

@@ -38,7 +38,11 @@ pub enum GeneratorSpec {
     Cord(CircleParams),
     SolidCylinder(CircleParams),
     /// A 2-D section extruded along z by `length` in `layers` layers (caps `start`, `end`).
-    Extrude { section: Box<GeneratorSpec>, length: f64, layers: usize },
+    Extrude {
+        section: Box<GeneratorSpec>,
+        length: f64,
+        layers: usize,
+    },
     /// An r–z section swept by `angle` degrees (default 360) in `divisions` layers.
     Sweep {
         section: Box<GeneratorSpec>,
@@ -55,15 +59,11 @@ impl GeneratorSpec {
     pub fn from_options(generator: &str, options: &[&str]) -> Result<Self, MeshError> {
         let mut text = format!("generate = {}\n", toml_string(generator));
         for opt in options {
-            let (key, value) = opt.split_once('=').ok_or_else(|| MeshError::Spec {
-                message: format!("option `{opt}` is not of the form key=value"),
-            })?;
+            let (key, value) =
+                opt.split_once('=').ok_or_else(|| MeshError::Spec { message: format!("option `{opt}` is not of the form key=value") })?;
             let (key, value) = (key.trim(), value.trim());
-            let literal = if toml::from_str::<toml::Table>(&format!("v = {value}")).is_ok() {
-                value.to_string()
-            } else {
-                toml_string(value)
-            };
+            let literal =
+                if toml::from_str::<toml::Table>(&format!("v = {value}")).is_ok() { value.to_string() } else { toml_string(value) };
             text.push_str(&format!("{key} = {literal}\n"));
         }
         Self::from_toml(&text)
@@ -77,11 +77,12 @@ fn toml_string(s: &str) -> String {
 /// Line of the first `key =` whose key is quoted in the message as `key`.
 fn key_line(text: &str, message: &str) -> Option<usize> {
     let key = message.split('`').nth(1)?;
-    text.lines().position(|l| {
-        let l = l.trim_start();
-        l.strip_prefix(key).is_some_and(|rest| rest.trim_start().starts_with('='))
-    })
-    .map(|i| i + 1)
+    text.lines()
+        .position(|l| {
+            let l = l.trim_start();
+            l.strip_prefix(key).is_some_and(|rest| rest.trim_start().starts_with('='))
+        })
+        .map(|i| i + 1)
 }
 
 fn full_turn() -> f64 {

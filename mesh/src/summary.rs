@@ -27,11 +27,7 @@ pub struct MeshSummary {
 
 /// Summarises `mesh` with default quality settings.
 pub fn summary(mesh: &Mesh) -> MeshSummary {
-    let per_kind = ElementKind::ALL
-        .iter()
-        .map(|&k| (k, mesh.kinds.iter().filter(|&&x| x == k).count()))
-        .filter(|&(_, n)| n > 0)
-        .collect();
+    let per_kind = ElementKind::ALL.iter().map(|&k| (k, mesh.kinds.iter().filter(|&&x| x == k).count())).filter(|&(_, n)| n > 0).collect();
     let sizes = |m: &std::collections::BTreeMap<String, Vec<_>>| m.iter().map(|(k, v)| (k.clone(), v.len())).collect();
     let quality = check(mesh, &QualitySettings::default());
     let worst_kinds = quality.worst.iter().map(|&(e, _)| mesh.kinds[e]).collect();

@@ -14,23 +14,38 @@ use olli_mesh::{ElementKind, Mesh, Side};
 const ORDERS: [Order; 3] = [Order::Linear, Order::Quadratic, Order::QuadraticFull];
 
 fn cord_mesh(divisions: usize, order: Order, triangles: bool) -> Mesh {
-    cord(&CircleParams { center: [20.0, 1.75], diameter: Some(3.5), divisions, order, triangles, ..Default::default() })
-        .unwrap()
+    cord(&CircleParams { center: [20.0, 1.75], diameter: Some(3.5), divisions, order, triangles, ..Default::default() }).unwrap()
 }
 
 fn ring(circ: usize, order: Order) -> Mesh {
-    annulus(&AnnulusParams { inner_radius: 1.0, outer_radius: 2.0, radial_divisions: 2, circumferential_divisions: circ, order, ..Default::default() }).unwrap()
+    annulus(&AnnulusParams {
+        inner_radius: 1.0,
+        outer_radius: 2.0,
+        radial_divisions: 2,
+        circumferential_divisions: circ,
+        order,
+        ..Default::default()
+    })
+    .unwrap()
 }
 
 fn tube(circ: usize, order: Order) -> Mesh {
     hollow_cylinder(&AnnulusParams {
-        inner_radius: 1.0, outer_radius: 2.0, height: 3.0, radial_divisions: 1, axial_divisions: 1,
-        circumferential_divisions: circ, order, ..Default::default()
-    }).unwrap()
+        inner_radius: 1.0,
+        outer_radius: 2.0,
+        height: 3.0,
+        radial_divisions: 1,
+        axial_divisions: 1,
+        circumferential_divisions: circ,
+        order,
+        ..Default::default()
+    })
+    .unwrap()
 }
 
 fn swept_tube(circ: usize, order: Order) -> Mesh {
-    let section = rectangle(&RectangleParams { origin: [1.0, 0.0], size: [1.0, 3.0], divisions: [1, 1], order, ..Default::default() }).unwrap();
+    let section =
+        rectangle(&RectangleParams { origin: [1.0, 0.0], size: [1.0, 3.0], divisions: [1, 1], order, ..Default::default() }).unwrap();
     sweep(&section, 360.0, circ).unwrap()
 }
 
@@ -41,8 +56,14 @@ fn all_meshes() -> Vec<(String, Mesh)> {
         for tri in [false, true] {
             let tag = format!("{order:?}{}", if tri { "/tri" } else { "" });
             let graded = Some(Grading { toward: Face::Top, ratio: 5.0 });
-            out.push((format!("rectangle {tag}"), rectangle(&RectangleParams { divisions: [3, 4], order, triangles: tri, grading: graded, ..Default::default() }).unwrap()));
-            out.push((format!("annulus {tag}"), annulus(&AnnulusParams { angle: 90.0, circumferential_divisions: 5, order, triangles: tri, ..Default::default() }).unwrap()));
+            out.push((
+                format!("rectangle {tag}"),
+                rectangle(&RectangleParams { divisions: [3, 4], order, triangles: tri, grading: graded, ..Default::default() }).unwrap(),
+            ));
+            out.push((
+                format!("annulus {tag}"),
+                annulus(&AnnulusParams { angle: 90.0, circumferential_divisions: 5, order, triangles: tri, ..Default::default() }).unwrap(),
+            ));
             out.push((format!("cord {tag}"), cord_mesh(16, order, tri)));
             out.push((format!("disc {tag}"), disc(&CircleParams { divisions: 8, order, triangles: tri, ..Default::default() }).unwrap()));
             if tri && order != Order::Linear {
@@ -50,12 +71,33 @@ fn all_meshes() -> Vec<(String, Mesh)> {
             }
             let g = Some(Grading { toward: Face::Bottom, ratio: 3.0 });
             if !tri {
-                out.push((format!("tet block {tag}"), block(&BlockParams { divisions: [2, 1, 2], order, tetrahedra: true, grading: g, ..Default::default() }).unwrap()));
+                out.push((
+                    format!("tet block {tag}"),
+                    block(&BlockParams { divisions: [2, 1, 2], order, tetrahedra: true, grading: g, ..Default::default() }).unwrap(),
+                ));
             }
-            out.push((format!("block {tag}"), block(&BlockParams { divisions: [2, 3, 3], order, triangles: tri, grading: g, ..Default::default() }).unwrap()));
-            out.push((format!("hollow cylinder {tag}"), hollow_cylinder(&AnnulusParams { circumferential_divisions: 8, angle: 270.0, axial_divisions: 2, order, triangles: tri, ..Default::default() }).unwrap()));
-            out.push((format!("solid cylinder {tag}"), solid_cylinder(&CircleParams { divisions: 8, axial_divisions: 2, order, triangles: tri, ..Default::default() }).unwrap()));
-            let sec = rectangle(&RectangleParams { origin: [1.0, 0.0], divisions: [2, 2], order, triangles: tri, ..Default::default() }).unwrap();
+            out.push((
+                format!("block {tag}"),
+                block(&BlockParams { divisions: [2, 3, 3], order, triangles: tri, grading: g, ..Default::default() }).unwrap(),
+            ));
+            out.push((
+                format!("hollow cylinder {tag}"),
+                hollow_cylinder(&AnnulusParams {
+                    circumferential_divisions: 8,
+                    angle: 270.0,
+                    axial_divisions: 2,
+                    order,
+                    triangles: tri,
+                    ..Default::default()
+                })
+                .unwrap(),
+            ));
+            out.push((
+                format!("solid cylinder {tag}"),
+                solid_cylinder(&CircleParams { divisions: 8, axial_divisions: 2, order, triangles: tri, ..Default::default() }).unwrap(),
+            ));
+            let sec =
+                rectangle(&RectangleParams { origin: [1.0, 0.0], divisions: [2, 2], order, triangles: tri, ..Default::default() }).unwrap();
             out.push((format!("sweep 120 {tag}"), sweep(&sec, 120.0, 3).unwrap()));
             out.push((format!("extrude {tag}"), extrude(&sec, 2.0, 2).unwrap()));
         }
@@ -116,9 +158,23 @@ fn annulus_and_hollow_cylinder_converge_to_exact_measure() {
 #[test]
 fn block_and_rectangle_measures_are_exact() {
     for order in ORDERS {
-        let r = rectangle(&RectangleParams { size: [2.0, 3.0], divisions: [3, 5], order, grading: Some(Grading { toward: Face::Left, ratio: 4.0 }), ..Default::default() }).unwrap();
+        let r = rectangle(&RectangleParams {
+            size: [2.0, 3.0],
+            divisions: [3, 5],
+            order,
+            grading: Some(Grading { toward: Face::Left, ratio: 4.0 }),
+            ..Default::default()
+        })
+        .unwrap();
         assert!((measure(&r) - 6.0).abs() < 1e-12);
-        let b = block(&BlockParams { size: [2.0, 3.0, 0.5], divisions: [2, 3, 4], order, grading: Some(Grading { toward: Face::Top, ratio: 4.0 }), ..Default::default() }).unwrap();
+        let b = block(&BlockParams {
+            size: [2.0, 3.0, 0.5],
+            divisions: [2, 3, 4],
+            order,
+            grading: Some(Grading { toward: Face::Top, ratio: 4.0 }),
+            ..Default::default()
+        })
+        .unwrap();
         assert!((measure(&b) - 3.0).abs() < 1e-12);
     }
 }
@@ -173,7 +229,13 @@ fn side_normals_point_outward() {
             for local in 0..kind.sides().len() {
                 let s = Side { element: e, local: local as u8 };
                 let sn = mesh.side_nodes(s);
-                let corners = if kind.dimension() == 2 { 2 } else if matches!(sn.len(), 3 | 6) { 3 } else { 4 };
+                let corners = if kind.dimension() == 2 {
+                    2
+                } else if matches!(sn.len(), 3 | 6) {
+                    3
+                } else {
+                    4
+                };
                 let cs = centroid(&mesh, &sn[..corners]);
                 let n = mesh.side_normal(s);
                 let dot: f64 = (0..3).map(|k| n[k] * (cs[k] - ce[k])).sum();
@@ -181,8 +243,19 @@ fn side_normals_point_outward() {
             }
         }
     }
-    for k in [ElementKind::Quad4, ElementKind::Quad8, ElementKind::Quad9, ElementKind::Tri3, ElementKind::Tri6,
-              ElementKind::Hex8, ElementKind::Hex20, ElementKind::Hex27, ElementKind::Wedge6, ElementKind::Tet4, ElementKind::Tet10] {
+    for k in [
+        ElementKind::Quad4,
+        ElementKind::Quad8,
+        ElementKind::Quad9,
+        ElementKind::Tri3,
+        ElementKind::Tri6,
+        ElementKind::Hex8,
+        ElementKind::Hex20,
+        ElementKind::Hex27,
+        ElementKind::Wedge6,
+        ElementKind::Tet4,
+        ElementKind::Tet10,
+    ] {
         assert!(kinds.contains(&k), "{k} not covered");
     }
 }
@@ -215,7 +288,9 @@ fn natural_sets_sit_on_their_boundaries() {
         assert!(c.nodes[n][0] >= 20.0 + 1.75 * (PI / 4.0).cos() - 1e-12);
     }
     let b = block(&BlockParams { divisions: [2, 3, 4], ..Default::default() }).unwrap();
-    for (name, count, axis, value) in [("left", 12, 0, 0.0), ("right", 12, 0, 1.0), ("front", 8, 1, 0.0), ("back", 8, 1, 1.0), ("bottom", 6, 2, 0.0), ("top", 6, 2, 1.0)] {
+    for (name, count, axis, value) in
+        [("left", 12, 0, 0.0), ("right", 12, 0, 1.0), ("front", 8, 1, 0.0), ("back", 8, 1, 1.0), ("bottom", 6, 2, 0.0), ("top", 6, 2, 1.0)]
+    {
         assert_eq!(b.side_sets[name].len(), count, "{name}");
         for &s in &b.side_sets[name] {
             assert!(b.side_nodes(s).iter().all(|&n| (b.nodes[n][axis] - value).abs() < 1e-12), "{name}");
@@ -284,28 +359,69 @@ fn random_generator_parameters_give_positive_meshes_or_errors() {
         let (result, exact): (Result<Mesh, _>, Option<f64>) = match case % 5 {
             0 => {
                 let size = [rng.range(-0.5, 5.0), rng.range(0.01, 5.0)];
-                let p = RectangleParams { size, divisions: [rng.int(0, 6), rng.int(1, 6)], order, triangles: tri, grading, ..Default::default() };
+                let p = RectangleParams {
+                    size,
+                    divisions: [rng.int(0, 6), rng.int(1, 6)],
+                    order,
+                    triangles: tri,
+                    grading,
+                    ..Default::default()
+                };
                 (rectangle(&p), Some(size[0] * size[1]))
             }
             1 => {
                 let size = [rng.range(0.1, 3.0), rng.range(0.1, 3.0), rng.range(0.1, 3.0)];
-                let p = BlockParams { size, divisions: [rng.int(1, 3), rng.int(1, 3), rng.int(1, 3)], order, triangles: tri, tetrahedra: rng.int(0, 2) == 0, grading, ..Default::default() };
+                let p = BlockParams {
+                    size,
+                    divisions: [rng.int(1, 3), rng.int(1, 3), rng.int(1, 3)],
+                    order,
+                    triangles: tri,
+                    tetrahedra: rng.int(0, 2) == 0,
+                    grading,
+                    ..Default::default()
+                };
                 (block(&p), Some(size[0] * size[1] * size[2]))
             }
             2 => {
                 let (ri, ro, angle) = (rng.range(0.05, 2.0), rng.range(0.05, 3.0), rng.range(-10.0, 370.0));
-                let p = AnnulusParams { inner_radius: ri, outer_radius: ro, angle, start_angle: rng.range(-180.0, 180.0), radial_divisions: rng.int(1, 3), circumferential_divisions: rng.int(1, 24), order, triangles: tri, ..Default::default() };
+                let p = AnnulusParams {
+                    inner_radius: ri,
+                    outer_radius: ro,
+                    angle,
+                    start_angle: rng.range(-180.0, 180.0),
+                    radial_divisions: rng.int(1, 3),
+                    circumferential_divisions: rng.int(1, 24),
+                    order,
+                    triangles: tri,
+                    ..Default::default()
+                };
                 let fine = angle / p.circumferential_divisions as f64 <= 30.0;
                 (annulus(&p), fine.then(|| 0.5 * (ro * ro - ri * ri) * angle.to_radians()))
             }
             3 => {
                 let r = rng.range(0.01, 10.0);
-                let p = CircleParams { center: [rng.range(-5.0, 5.0), rng.range(-5.0, 5.0)], radius: r, divisions: 4 * rng.int(1, 8) + rng.int(0, 4) / 4, radial_divisions: Some(rng.int(1, 4)), order, triangles: tri, ..Default::default() };
+                let p = CircleParams {
+                    center: [rng.range(-5.0, 5.0), rng.range(-5.0, 5.0)],
+                    radius: r,
+                    divisions: 4 * rng.int(1, 8) + rng.int(0, 4) / 4,
+                    radial_divisions: Some(rng.int(1, 4)),
+                    order,
+                    triangles: tri,
+                    ..Default::default()
+                };
                 (cord(&p), (p.divisions >= 12).then_some(std::f64::consts::PI * r * r))
             }
             _ => {
                 let (x0, w, h, angle) = (rng.range(-0.5, 3.0), rng.range(0.1, 2.0), rng.range(0.1, 2.0), rng.range(1.0, 360.0));
-                let sec = rectangle(&RectangleParams { origin: [x0, 0.0], size: [w, h], divisions: [rng.int(1, 2), rng.int(1, 2)], order, triangles: tri && order == Order::Linear, ..Default::default() }).unwrap();
+                let sec = rectangle(&RectangleParams {
+                    origin: [x0, 0.0],
+                    size: [w, h],
+                    divisions: [rng.int(1, 2), rng.int(1, 2)],
+                    order,
+                    triangles: tri && order == Order::Linear,
+                    ..Default::default()
+                })
+                .unwrap();
                 let v = std::f64::consts::PI * ((x0 + w).powi(2) - x0 * x0) * h * angle / 360.0;
                 let n = rng.int(1, 12);
                 (sweep(&sec, angle, n), (angle / n as f64 <= 30.0).then_some(v))
@@ -331,7 +447,8 @@ fn random_generator_parameters_give_positive_meshes_or_errors() {
 #[test]
 fn caps_of_extrusions_and_sweeps_face_outward() {
     for (order, tri) in [(Order::Linear, false), (Order::Linear, true), (Order::Quadratic, false), (Order::QuadraticFull, false)] {
-        let sec = rectangle(&RectangleParams { origin: [1.0, 0.0], divisions: [2, 3], order, triangles: tri, ..Default::default() }).unwrap();
+        let sec =
+            rectangle(&RectangleParams { origin: [1.0, 0.0], divisions: [2, 3], order, triangles: tri, ..Default::default() }).unwrap();
         let n = sec.element_count();
         let e = extrude(&sec, 2.0, 3).unwrap();
         let s = sweep(&sec, 90.0, 4).unwrap();

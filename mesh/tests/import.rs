@@ -19,7 +19,8 @@ fn vtu_round_trip_keeps_nodes_connectivity_and_sets() {
     let meshes = [
         cord(&CircleParams { divisions: 12, order: Order::Quadratic, ..Default::default() }).unwrap(),
         block(&BlockParams { divisions: [2, 2, 1], order: Order::QuadraticFull, ..Default::default() }).unwrap(),
-        hollow_cylinder(&AnnulusParams { angle: 90.0, circumferential_divisions: 3, order: Order::Quadratic, ..Default::default() }).unwrap(),
+        hollow_cylinder(&AnnulusParams { angle: 90.0, circumferential_divisions: 3, order: Order::Quadratic, ..Default::default() })
+            .unwrap(),
         sweep(&section, 60.0, 2).unwrap(),
     ];
     for (i, mesh) in meshes.iter().enumerate() {
@@ -97,10 +98,32 @@ impl Msh {
     fn write(&self, binary: bool) -> Vec<u8> {
         let mut o: Vec<u8> = Vec::new();
         let t = |o: &mut Vec<u8>, s: &str| o.extend_from_slice(s.as_bytes());
-        let size = |o: &mut Vec<u8>, v: u64| if binary { o.extend_from_slice(&v.to_le_bytes()) } else { o.extend_from_slice(format!("{v} ").as_bytes()) };
-        let int = |o: &mut Vec<u8>, v: i32| if binary { o.extend_from_slice(&v.to_le_bytes()) } else { o.extend_from_slice(format!("{v} ").as_bytes()) };
-        let dbl = |o: &mut Vec<u8>, v: f64| if binary { o.extend_from_slice(&v.to_le_bytes()) } else { o.extend_from_slice(format!("{v} ").as_bytes()) };
-        let nl = |o: &mut Vec<u8>| if !binary { o.push(b'\n') };
+        let size = |o: &mut Vec<u8>, v: u64| {
+            if binary {
+                o.extend_from_slice(&v.to_le_bytes())
+            } else {
+                o.extend_from_slice(format!("{v} ").as_bytes())
+            }
+        };
+        let int = |o: &mut Vec<u8>, v: i32| {
+            if binary {
+                o.extend_from_slice(&v.to_le_bytes())
+            } else {
+                o.extend_from_slice(format!("{v} ").as_bytes())
+            }
+        };
+        let dbl = |o: &mut Vec<u8>, v: f64| {
+            if binary {
+                o.extend_from_slice(&v.to_le_bytes())
+            } else {
+                o.extend_from_slice(format!("{v} ").as_bytes())
+            }
+        };
+        let nl = |o: &mut Vec<u8>| {
+            if !binary {
+                o.push(b'\n')
+            }
+        };
         t(&mut o, &format!("$MeshFormat\n4.1 {} 8\n", binary as i32));
         if binary {
             o.extend_from_slice(&1i32.to_le_bytes());
@@ -403,7 +426,14 @@ fn vtu_side_masks_restore_the_same_faces() {
 /// by vtkio from our model, reads back to the same mesh with its sets.
 #[test]
 fn legacy_vtk_round_trip_binary_and_ascii() {
-    let mesh = hollow_cylinder(&AnnulusParams { angle: 120.0, circumferential_divisions: 4, axial_divisions: 2, order: Order::Quadratic, ..Default::default() }).unwrap();
+    let mesh = hollow_cylinder(&AnnulusParams {
+        angle: 120.0,
+        circumferential_divisions: 4,
+        axial_divisions: 2,
+        order: Order::Quadratic,
+        ..Default::default()
+    })
+    .unwrap();
     let mut vtk = olli_mesh::export::to_vtk(&mesh, Default::default());
     vtk.version = vtkio::model::Version::new_legacy(4, 2);
     vtk.byte_order = vtkio::model::ByteOrder::BigEndian; // the legacy standard

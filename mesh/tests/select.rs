@@ -66,7 +66,8 @@ fn combined_selections_follow_set_algebra() {
 /// Circle and cylinder selections recover the generators' curved sets.
 #[test]
 fn curved_selections_match_generated_sets() {
-    let c = cord(&CircleParams { center: [20.0, 1.75], diameter: Some(3.5), divisions: 24, order: Order::Quadratic, ..Default::default() }).unwrap();
+    let c = cord(&CircleParams { center: [20.0, 1.75], diameter: Some(3.5), divisions: 24, order: Order::Quadratic, ..Default::default() })
+        .unwrap();
     let tol = default_tolerance(&c);
     let circle = Selection::Circle { center: v(&[20.0, 1.75]), radius: 1.75 };
     assert_eq!(select_nodes(&c, &circle, tol).unwrap(), c.node_sets["surface"]);
@@ -91,10 +92,7 @@ fn selections_read_from_toml() {
     struct Doc {
         sides: Selection,
     }
-    let doc: Doc = toml::from_str(
-        r#"sides = { difference = [{ set = "bottom" }, { box = { min = [-1, -1], max = [1, 2] } }] }"#,
-    )
-    .unwrap();
+    let doc: Doc = toml::from_str(r#"sides = { difference = [{ set = "bottom" }, { box = { min = [-1, -1], max = [1, 2] } }] }"#).unwrap();
     let m = strip();
     assert_eq!(select_sides(&m, &doc.sides, 1e-9).unwrap().len(), 2);
     assert!(toml::from_str::<Doc>(r#"sides = { plane = { point = [0], normal = [0, 1] } }"#).is_err());
@@ -108,7 +106,9 @@ fn summary_prints_counts_per_kind_and_set() {
     let lines: Vec<&str> = text.lines().collect();
     assert_eq!(lines[0], "nodes: 15");
     assert_eq!(lines[1], "elements: 8");
-    for want in ["quad4: 8", "element set all: 8", "node set bottom: 5", "side set left: 2", "inverted elements: 0", "min jacobian ratio: 1.0000"] {
+    for want in
+        ["quad4: 8", "element set all: 8", "node set bottom: 5", "side set left: 2", "inverted elements: 0", "min jacobian ratio: 1.0000"]
+    {
         assert!(lines.contains(&want), "missing `{want}` in\n{text}");
     }
 }
@@ -117,8 +117,12 @@ fn summary_prints_counts_per_kind_and_set() {
 /// an unknown key is reported with its line.
 #[test]
 fn generator_specs_from_toml() {
-    let spec = GeneratorSpec::from_toml("generate = \"cord\"\ncenter = [20.0, 1.75]\ndiameter = 3.5\ndivisions = 16\norder = \"quadratic\"\n").unwrap();
-    let direct = cord(&CircleParams { center: [20.0, 1.75], diameter: Some(3.5), divisions: 16, order: Order::Quadratic, ..Default::default() }).unwrap();
+    let spec =
+        GeneratorSpec::from_toml("generate = \"cord\"\ncenter = [20.0, 1.75]\ndiameter = 3.5\ndivisions = 16\norder = \"quadratic\"\n")
+            .unwrap();
+    let direct =
+        cord(&CircleParams { center: [20.0, 1.75], diameter: Some(3.5), divisions: 16, order: Order::Quadratic, ..Default::default() })
+            .unwrap();
     assert_eq!(generate(&spec).unwrap(), direct);
 
     let spec = GeneratorSpec::from_toml(
@@ -138,7 +142,8 @@ fn generator_specs_from_toml() {
 #[test]
 fn generator_specs_from_options() {
     let a = GeneratorSpec::from_options("cord", &["center=[20.0, 1.75]", "diameter=3.5", "divisions=16", "order=quadratic"]).unwrap();
-    let b = GeneratorSpec::from_toml("generate = \"cord\"\ncenter = [20.0, 1.75]\ndiameter = 3.5\ndivisions = 16\norder = \"quadratic\"\n").unwrap();
+    let b = GeneratorSpec::from_toml("generate = \"cord\"\ncenter = [20.0, 1.75]\ndiameter = 3.5\ndivisions = 16\norder = \"quadratic\"\n")
+        .unwrap();
     assert_eq!(a, b);
     let g = GeneratorSpec::from_options("rectangle", &["grading={ toward = \"top\", ratio = 3 }", "divisions=[2, 6]"]).unwrap();
     assert_eq!(generate(&g).unwrap().element_count(), 12);

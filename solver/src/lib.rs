@@ -43,5 +43,8 @@ pub mod shape;
 
 pub use driver::{solve, Event, Observer, Quiet};
 pub use error::SolveError;
-pub use model::{Analysis, Force, Formulation, IncrementControls, Model, Motion, OutputSettings, Pressure, Ramp, Region, RigidBody, RigidMotion, Stage, Support};
+pub use model::{
+    Analysis, Force, Formulation, IncrementControls, Model, Motion, OutputSettings, Pressure, Ramp, Region, RigidBody, RigidMotion, Stage,
+    Support,
+};
 pub use results::{IncrementResult, NodalFields, PointFields, Solution, SolveStats, Termination};

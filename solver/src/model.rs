@@ -263,10 +263,7 @@ pub struct OutputSettings {
 
 impl Default for OutputSettings {
     fn default() -> Self {
-        OutputSettings {
-            point_fields: true,
-            nodal_fields: true,
-        }
+        OutputSettings { point_fields: true, nodal_fields: true }
     }
 }
 
@@ -290,12 +287,7 @@ impl Model {
         Model {
             mesh,
             analysis,
-            regions: vec![Region {
-                name: "all".into(),
-                elements,
-                material,
-                formulation,
-            }],
+            regions: vec![Region { name: "all".into(), elements, material, formulation }],
             stages: Vec::new(),
             rigid: Vec::new(),
             linear: LinearSettings::default(),

@@ -13,13 +13,5 @@ pub const LINE2: [f64; 2] = [-G2, G2];
 pub const SQUARE4: [[f64; 2]; 4] = [[-G2, -G2], [G2, -G2], [G2, G2], [-G2, G2]];
 
 /// 2×2×2 points on the reference cube, weight 1 each.
-pub const CUBE8: [[f64; 3]; 8] = [
-    [-G2, -G2, -G2],
-    [G2, -G2, -G2],
-    [G2, G2, -G2],
-    [-G2, G2, -G2],
-    [-G2, -G2, G2],
-    [G2, -G2, G2],
-    [G2, G2, G2],
-    [-G2, G2, G2],
-];
+pub const CUBE8: [[f64; 3]; 8] =
+    [[-G2, -G2, -G2], [G2, -G2, -G2], [G2, G2, -G2], [-G2, G2, -G2], [-G2, -G2, G2], [G2, -G2, G2], [G2, G2, G2], [-G2, G2, G2]];

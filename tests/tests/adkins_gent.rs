@@ -23,11 +23,7 @@ fn adkins_gent_long_bush_axial_stiffness() {
     model.stages.push(Stage {
         name: "push".into(),
         controls: one_increment(),
-        supports: vec![
-            support("s0", [true, true, false]),
-            support("t0", [true, false, false]),
-            support("t1", [true, false, false]),
-        ],
+        supports: vec![support("s0", [true, true, false]), support("t0", [true, false, false]), support("t1", [true, false, false])],
         motions: vec![Motion { set: "s1".into(), displacement: [Some(0.0), Some(w), None] }],
         ..Default::default()
     });
@@ -36,7 +32,11 @@ fn adkins_gent_long_bush_axial_stiffness() {
     let last = sol.last().unwrap();
     let k = last.reactions["s1"][1] / w;
     let want = 2.0 * PI * l * g / (b / a).ln();
-    eprintln!("bush axial stiffness {k:.6e} vs 2πLG/ln(b/a) = {want:.6e} (rel {:.2e}); per radian {:.6e}", rel(k, want), last.reaction_per_radian("s1").unwrap()[1] / w);
+    eprintln!(
+        "bush axial stiffness {k:.6e} vs 2πLG/ln(b/a) = {want:.6e} (rel {:.2e}); per radian {:.6e}",
+        rel(k, want),
+        last.reaction_per_radian("s1").unwrap()[1] / w
+    );
     // 24 linear elements across the wall represent w(r) ∝ ln r with an
     // O(h²) energy error ≈ 0.1 %; REFERENCES.md §4 asks 0.5 %.
     assert!(rel(k, want) < 5e-3);

@@ -146,7 +146,12 @@ fn newton_quadratic_with_contact_active() {
     // clockwise so the rubber is on its outside.
     model.rigid.push(RigidBody::new(
         "roller",
-        Shape::Profile(vec![olli_solver::contact::Piece2::Arc { center: [2.0, 5.0], radius: 3.0, start: 1.0 - std::f64::consts::FRAC_PI_2, end: -1.0 - std::f64::consts::FRAC_PI_2 }]),
+        Shape::Profile(vec![olli_solver::contact::Piece2::Arc {
+            center: [2.0, 5.0],
+            radius: 3.0,
+            start: 1.0 - std::f64::consts::FRAC_PI_2,
+            end: -1.0 - std::f64::consts::FRAC_PI_2,
+        }]),
         "t1",
     ));
     model.stages.push(Stage {

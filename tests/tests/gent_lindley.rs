@@ -36,10 +36,7 @@ fn bonded(set_bottom: &str, set_top: &str, dim: usize, h: f64) -> (Vec<Support>,
     if dim == 2 {
         top[2] = None;
     }
-    (
-        vec![Support { set: set_bottom.into(), components: [true, true, dim == 3] }],
-        vec![Motion { set: set_top.into(), displacement: top }],
-    )
+    (vec![Support { set: set_bottom.into(), components: [true, true, dim == 3] }], vec![Motion { set: set_top.into(), displacement: top }])
 }
 
 /// Disc of radius R, thickness h (S = 2R / 4h) in 3-D: a quarter disc with

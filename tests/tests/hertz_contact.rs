@@ -26,7 +26,11 @@ fn geometric(n: usize, total: f64, first: f64) -> Vec<f64> {
     let (mut lo, mut hi) = (1.0, 2.0);
     for _ in 0..200 {
         let m = 0.5 * (lo + hi);
-        if sum(m) < total { lo = m } else { hi = m }
+        if sum(m) < total {
+            lo = m
+        } else {
+            hi = m
+        }
     }
     let q = 0.5 * (lo + hi);
     let mut x = vec![0.0];
@@ -114,7 +118,10 @@ fn hertz_line_contact_half_width_and_peak_pressure_converge() {
         let a = (4.0 * r.load * radius / (std::f64::consts::PI * e_star)).sqrt();
         let p0 = 2.0 * r.load / (std::f64::consts::PI * a);
         let (ea, ep) = ((r.half_width - a).abs() / a, (r.peak_pressure - p0).abs() / p0);
-        println!("edge {edge}: P {:.5} a {:.5} (Hertz {a:.5}, err {ea:.4}) p0 {:.5} (Hertz {p0:.5}, err {ep:.4}) its {:?}", r.load, r.half_width, r.peak_pressure, r.iterations);
+        println!(
+            "edge {edge}: P {:.5} a {:.5} (Hertz {a:.5}, err {ea:.4}) p0 {:.5} (Hertz {p0:.5}, err {ep:.4}) its {:?}",
+            r.load, r.half_width, r.peak_pressure, r.iterations
+        );
         errors.push((ea, ep));
     }
     // Hertz is a small-strain, a ≪ R solution; here a/R ≈ 0.05 and the
@@ -224,7 +231,16 @@ fn hertz_rigid_sphere_on_a_3d_block() {
             for i in 0..n {
                 let e = mesh.add_element(
                     ElementKind::Hex8,
-                    &[id(i, j, k), id(i + 1, j, k), id(i + 1, j + 1, k), id(i, j + 1, k), id(i, j, k + 1), id(i + 1, j, k + 1), id(i + 1, j + 1, k + 1), id(i, j + 1, k + 1)],
+                    &[
+                        id(i, j, k),
+                        id(i + 1, j, k),
+                        id(i + 1, j + 1, k),
+                        id(i, j + 1, k),
+                        id(i, j, k + 1),
+                        id(i + 1, j, k + 1),
+                        id(i + 1, j + 1, k + 1),
+                        id(i, j + 1, k + 1),
+                    ],
                 );
                 if k == n - 1 {
                     top.push(Side { element: e, local: 1 });
@@ -274,9 +290,13 @@ fn hertz_rigid_sphere_on_a_3d_block() {
     let mesh = &model.mesh;
     // Along the x axis (y = 0, z = 0): the last touching node and the next one.
     let on_axis = |n: usize| mesh.nodes[n][1] == 0.0 && mesh.nodes[n][2] == 0.0;
-    let last_touching = (0..mesh.node_count()).filter(|&n| on_axis(n) && fields.pressure[n] > 0.0).map(|n| mesh.nodes[n][0]).fold(0.0, f64::max);
+    let last_touching =
+        (0..mesh.node_count()).filter(|&n| on_axis(n) && fields.pressure[n] > 0.0).map(|n| mesh.nodes[n][0]).fold(0.0, f64::max);
     let next = g.iter().copied().find(|&x| x > last_touching + 1e-12).unwrap();
-    println!("sphere: P {load:.4} p0 {peak:.4} (Hertz {p0:.4}) a in [{last_touching:.3}, {next:.3}] (Hertz {a:.3}), {} elements", model.mesh.element_count());
+    println!(
+        "sphere: P {load:.4} p0 {peak:.4} (Hertz {p0:.4}) a in [{last_touching:.3}, {next:.3}] (Hertz {a:.3}), {} elements",
+        model.mesh.element_count()
+    );
     assert!((peak - p0).abs() / p0 < 0.05, "peak pressure {peak} vs {p0}");
     // The rounded pressure law lets a node within 1e-3 h of the sphere carry a
     // trace of pressure, so the last touching node may sit a hair past a.

@@ -35,10 +35,7 @@ fn plane_strain_inner_u(form: Formulation) -> f64 {
     model.stages.push(Stage {
         name: "pressure".into(),
         controls: one_increment(),
-        supports: vec![
-            support("t0", [false, true, false]),
-            support("t1", [true, false, false]),
-        ],
+        supports: vec![support("t0", [false, true, false]), support("t1", [true, false, false])],
         pressures: vec![Pressure { set: "s0".into(), value: P }],
         ..Default::default()
     });
@@ -56,10 +53,7 @@ fn axisymmetric_inner_u(form: Formulation) -> (f64, f64) {
     model.stages.push(Stage {
         name: "pressure".into(),
         controls: one_increment(),
-        supports: vec![
-            support("t0", [false, true, false]),
-            support("t1", [false, true, false]),
-        ],
+        supports: vec![support("t0", [false, true, false]), support("t1", [false, true, false])],
         pressures: vec![Pressure { set: "s0".into(), value: P }],
         ..Default::default()
     });

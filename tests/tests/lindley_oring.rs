@@ -24,8 +24,8 @@
 //! a free-body relation is carried over to plane strain; the axisymmetric
 //! ring check uses E itself).
 
-use olli_mesh::{generate, GeneratorSpec};
 use olli_mesh::generate::CircleParams;
+use olli_mesh::{generate, GeneratorSpec};
 use olli_solver::contact::Shape;
 use olli_solver::model::{RigidBody, RigidMotion};
 use olli_solver::{solve, Analysis, Formulation, IncrementControls, Model, Quiet, Stage, Support};
@@ -42,7 +42,9 @@ fn squeeze(analysis: Analysis, center: [f64; 2], divisions: usize) -> Vec<(f64, 
     let mut mesh = generate(&spec).unwrap();
     let tol = 1e-9 * D_CORD;
     let on_h: Vec<usize> = (0..mesh.node_count()).filter(|&n| (mesh.nodes[n][1] - center[1]).abs() < tol).collect();
-    let on_v: Vec<usize> = (0..mesh.node_count()).filter(|&n| (mesh.nodes[n][0] - center[0]).abs() < tol && (mesh.nodes[n][1] - center[1]).abs() < tol).collect();
+    let on_v: Vec<usize> = (0..mesh.node_count())
+        .filter(|&n| (mesh.nodes[n][0] - center[0]).abs() < tol && (mesh.nodes[n][1] - center[1]).abs() < tol)
+        .collect();
     assert!(on_h.len() > 2 && on_v.len() == 1, "O-grid has nodes on its symmetry lines");
     mesh.node_sets.insert("mid_plane".into(), on_h);
     mesh.node_sets.insert("mid_line".into(), on_v);
@@ -124,7 +126,7 @@ fn lindley_oring_axisymmetric_ring_force() {
 // so agree with Lindley's relation as the ring check above does.
 #[test]
 fn lindley_oring_3d_sector_matches_the_axisymmetric_ring() {
-    use olli_solver::{Support as S};
+    use olli_solver::Support as S;
     let mu = 1.0;
     let c = 0.15;
     let section = GeneratorSpec::Cord(CircleParams { center: [20.0, 0.0], diameter: Some(D_CORD), divisions: 16, ..Default::default() });

@@ -86,7 +86,11 @@ fn a_run_that_fails_part_way_keeps_its_converged_increments() {
         ..Default::default()
     });
     let sol = solve(&model, &mut Quiet).unwrap();
-    assert!(matches!(&sol.termination, Termination::Stopped(SolveError::IncrementTooSmall { stage, .. }) if stage == "shear"), "{:?}", sol.termination);
+    assert!(
+        matches!(&sol.termination, Termination::Stopped(SolveError::IncrementTooSmall { stage, .. }) if stage == "shear"),
+        "{:?}",
+        sol.termination
+    );
     assert!(!sol.increments.is_empty());
     assert!(sol.increments.iter().all(|r| r.stage == 0));
     assert!((sol.last().unwrap().load_factor - 1.0).abs() < 1e-12);

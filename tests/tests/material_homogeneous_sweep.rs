@@ -13,12 +13,7 @@ use olli_solver::material::{registry, MaterialError, VolumetricForm};
 // (the lateral stress of each returned state is zero; general mechanics).
 #[test]
 fn compressible_sweep_from_strong_compression_returns_every_point() {
-    let m = registry::material(
-        "mooney-rivlin",
-        &[("c10", 0.3), ("c01", 0.1), ("poisson_ratio", 0.3)],
-        VolumetricForm::SimoTaylor,
-    )
-    .unwrap();
+    let m = registry::material("mooney-rivlin", &[("c10", 0.3), ("c01", 0.1), ("poisson_ratio", 0.3)], VolumetricForm::SimoTaylor).unwrap();
     let stretches: Vec<f64> = (0..80).map(|i| 0.1 + 0.1 * i as f64).collect();
     for mode in [Mode::Uniaxial, Mode::Equibiaxial, Mode::Planar] {
         let (points, errors) = sweep(&m, mode, &stretches, &Settings::default());
@@ -48,10 +43,7 @@ fn eight_chain_sweep_stops_at_locking_on_both_sides() {
     let (points, errors) = sweep(&m, Mode::Uniaxial, &stretches, &Settings::default());
     assert_eq!(errors.len(), 2, "{errors:?}");
     for e in &errors {
-        assert!(
-            matches!(e, HomogeneousError::Material { source: MaterialError::ChainLocking { .. }, .. }),
-            "{e}"
-        );
+        assert!(matches!(e, HomogeneousError::Material { source: MaterialError::ChainLocking { .. }, .. }), "{e}");
     }
     assert!(points.iter().all(|p| p.nominal_stress.is_finite()));
     // Incompressible uniaxial chain stretch √((λ² + 2/λ)/3) is 2.58 at λ = 0.1,

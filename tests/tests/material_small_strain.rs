@@ -88,12 +88,8 @@ fn young_modulus_is_three_mu_when_incompressible() {
 #[test]
 fn compressible_young_modulus_and_poisson_ratio_follow_hooke() {
     for nu in [0.0, 0.3, 0.45] {
-        let m = registry::material(
-            "mooney-rivlin",
-            &[("c10", 0.3), ("c01", 0.1), ("poisson_ratio", nu)],
-            VolumetricForm::SimoTaylor,
-        )
-        .unwrap();
+        let m =
+            registry::material("mooney-rivlin", &[("c10", 0.3), ("c01", 0.1), ("poisson_ratio", nu)], VolumetricForm::SimoTaylor).unwrap();
         let (e, nu_measured) = measured_young_and_poisson(&m);
         let mu = 0.8;
         assert!(rel(e, 2.0 * mu * (1.0 + nu), 1.0) < 1e-6, "ν = {nu}: E = {e}");

@@ -62,7 +62,11 @@ fn closed_form_loss(mode: Mode, end: f64) -> Option<f64> {
             for _ in 0..100 {
                 let m = 0.5 * (a + b);
                 let (i1, i2) = invariants(mode, m);
-                if yeoh_margin(i1, i2) > 0.0 { a = m } else { b = m }
+                if yeoh_margin(i1, i2) > 0.0 {
+                    a = m
+                } else {
+                    b = m
+                }
             }
             return Some(b);
         }
@@ -171,7 +175,11 @@ fn mooney_rivlin_negative_c01_unstable_in_equibiaxial_tension() {
     assert!(dsigma(a) > 0.0 && dsigma(b) < 0.0);
     for _ in 0..100 {
         let mid = 0.5 * (a + b);
-        if dsigma(mid) > 0.0 { a = mid } else { b = mid }
+        if dsigma(mid) > 0.0 {
+            a = mid
+        } else {
+            b = mid
+        }
     }
     // κ = 10⁶ μ may shift the numeric loss by O(μ/κ) relative.
     assert!(got > 1.0 && got <= a * (1.0 + 1e-5), "loss at {got}, stress peak at {a}");

@@ -93,10 +93,7 @@ fn eight_chain_reports_locking_instead_of_nan() {
     let a = uniaxial_stretch_for_chain_stretch(2.0 * 1.001);
     let f = Matrix3::from_diagonal(&nalgebra::Vector3::new(a, 1.0 / a.sqrt(), 1.0 / a.sqrt()));
     let err = m.response(&(f.transpose() * f)).unwrap_err();
-    assert!(
-        matches!(err, olli_solver::material::MaterialError::ChainLocking { .. }),
-        "{err}"
-    );
+    assert!(matches!(err, olli_solver::material::MaterialError::ChainLocking { .. }), "{err}");
 }
 
 /// Largest relative errors (stress, tangent) of `isochoric_response` by

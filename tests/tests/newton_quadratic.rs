@@ -14,7 +14,13 @@ fn newton_quadratic_large_strain_block() {
     model.output.point_fields = false;
     model.stages.push(Stage {
         name: "stretch and shear".into(),
-        controls: IncrementControls { first: 1.0, force_tolerance: 1e-11, energy_tolerance: 1e-24, displacement_tolerance: 1e-14, ..Default::default() },
+        controls: IncrementControls {
+            first: 1.0,
+            force_tolerance: 1e-11,
+            energy_tolerance: 1e-24,
+            displacement_tolerance: 1e-14,
+            ..Default::default()
+        },
         supports: vec![Support { set: "z0".into(), components: [true, true, true] }],
         motions: vec![Motion { set: "z1".into(), displacement: [Some(0.3), Some(0.0), Some(0.4)] }],
         ..Default::default()

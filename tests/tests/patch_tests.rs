@@ -25,7 +25,13 @@ const KAPPA: f64 = 500.0;
 
 /// Solves the Dirichlet patch for deformation gradient `f` and returns the
 /// worst interior-node displacement error and the Cauchy stresses of all points.
-fn dirichlet_patch(mut mesh: olli_mesh::Mesh, boundary: &[&str], analysis: Analysis, formulation: Formulation, f: Matrix3<f64>) -> (f64, Vec<Matrix3<f64>>) {
+fn dirichlet_patch(
+    mut mesh: olli_mesh::Mesh,
+    boundary: &[&str],
+    analysis: Analysis,
+    formulation: Formulation,
+    f: Matrix3<f64>,
+) -> (f64, Vec<Matrix3<f64>>) {
     let bnd = union_of_sets(&mesh, boundary);
     let dim = mesh.dimension;
     let map = move |x: [f64; 3]| {
@@ -35,7 +41,12 @@ fn dirichlet_patch(mut mesh: olli_mesh::Mesh, boundary: &[&str], analysis: Analy
     };
     let motions = pin_nodes(&mut mesh, &bnd, map);
     let mut model = Model::single_region(mesh, analysis, neo_hookean(MU, KAPPA), formulation);
-    model.stages.push(Stage { name: "patch".into(), motions, controls: IncrementControls { first: 0.25, ..Default::default() }, ..Default::default() });
+    model.stages.push(Stage {
+        name: "patch".into(),
+        motions,
+        controls: IncrementControls { first: 0.25, ..Default::default() },
+        ..Default::default()
+    });
     let sol = solve(&model, &mut Quiet).unwrap();
     assert!(sol.completed(), "{:?}", sol.termination);
     let last = sol.last().unwrap();

@@ -43,10 +43,7 @@ fn tube_inflation_axisymmetric_pressure_vs_inner_stretch() {
     let mesh = quad_grid(n, 1, 0.0, |s, t| [A + (B - A) * s.powf(1.5), H * t]);
     let mut model = Model::single_region(mesh, Analysis::Axisymmetric, neo_hookean(MU, KAPPA), Formulation::Mixed);
     model.output.point_fields = false;
-    let ends = [
-        support("t0", [false, true, false]),
-        support("t1", [false, true, false]),
-    ];
+    let ends = [support("t0", [false, true, false]), support("t1", [false, true, false])];
     let stretches = [1.2, 2.0, 4.0];
     for (k, la) in stretches.iter().enumerate() {
         model.stages.push(Stage {
@@ -93,10 +90,7 @@ fn tube_inflation_plane_strain_follower_pressure() {
     model.stages.push(Stage {
         name: "inflate".into(),
         controls: IncrementControls { first: 0.2, ..Default::default() },
-        supports: vec![
-            support("t0", [false, true, false]),
-            support("t1", [true, false, false]),
-        ],
+        supports: vec![support("t0", [false, true, false]), support("t1", [true, false, false])],
         pressures: vec![Pressure { set: "s0".into(), value: p }],
         ..Default::default()
     });

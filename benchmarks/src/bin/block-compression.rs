@@ -86,7 +86,14 @@ fn main() {
         }
     };
     let setup = t_mesh.elapsed().as_secs_f64();
-    println!("divisions={}x{}x{} elements={} nodes={} ordering={ordering}", divisions[0], divisions[1], divisions[2], model.mesh.element_count(), model.mesh.node_count());
+    println!(
+        "divisions={}x{}x{} elements={} nodes={} ordering={ordering}",
+        divisions[0],
+        divisions[1],
+        divisions[2],
+        model.mesh.element_count(),
+        model.mesh.node_count()
+    );
     let t = Instant::now();
     let mut per_increment = Vec::new();
     let mut observer = |e: &Event| match e {
@@ -102,7 +109,9 @@ fn main() {
             );
         }
         Event::Cutback { load_factor, step, reason, .. } => println!("cutback at {load_factor:.3} to step {step:.4}: {reason}"),
-        Event::LinearFallback { iteration, factor, .. } => println!("  iteration {iteration}: tangent not positive definite, used {factor:?}"),
+        Event::LinearFallback { iteration, factor, .. } => {
+            println!("  iteration {iteration}: tangent not positive definite, used {factor:?}")
+        }
         _ => {}
     };
     let sol = match solve(&model, &mut observer) {
@@ -118,10 +127,19 @@ fn main() {
     let iters = s.newton_iterations.max(1) as f64;
     let bare = l.numeric_time / l.numeric_count.max(1) as f64;
     println!("termination={:?}", sol.termination);
-    println!("increments={} newton_iterations={} mean_per_increment={:.2} cutbacks={}", s.increments, s.newton_iterations, s.newton_iterations as f64 / s.increments.max(1) as f64, s.cutbacks);
+    println!(
+        "increments={} newton_iterations={} mean_per_increment={:.2} cutbacks={}",
+        s.increments,
+        s.newton_iterations,
+        s.newton_iterations as f64 / s.increments.max(1) as f64,
+        s.cutbacks
+    );
     println!("nnz_matrix_lower={} nnz_factor={} factor_flops={:.3e}", l.nnz_matrix, l.nnz_factor, l.factor_flops);
     println!("time_setup_s={setup:.3} time_pattern_s={:.3} time_total_s={total:.3}", s.pattern_time);
-    println!("time_assembly_s={:.3} assemblies={} time_symbolic_s={:.3} time_numeric_s={:.3} numeric_factorizations={} time_solve_s={:.3}", s.assembly_time, s.assemblies, l.symbolic_time, l.numeric_time, l.numeric_count, l.solve_time);
+    println!(
+        "time_assembly_s={:.3} assemblies={} time_symbolic_s={:.3} time_numeric_s={:.3} numeric_factorizations={} time_solve_s={:.3}",
+        s.assembly_time, s.assemblies, l.symbolic_time, l.numeric_time, l.numeric_count, l.solve_time
+    );
     println!("ldlt_fallbacks={} lu_fallbacks={}", l.ldlt_fallbacks, l.lu_fallbacks);
     println!(
         "ordering_used={} factor_entries_amd={} factor_entries_nd={}",

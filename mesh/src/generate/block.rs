@@ -1,8 +1,8 @@
 //! Block: a rectangular rubber pad or a test specimen in 3-D.
 
 use super::extrude::extrude_named;
-use super::tets::split_hexes;
 use super::rectangle::graded_params;
+use super::tets::split_hexes;
 use super::{add_patch, check_divisions, check_positive, finish, node_params, Face, Grading, Order};
 use crate::error::MeshError;
 use crate::model::Mesh;

@@ -58,10 +58,17 @@ pub fn sweep(section: &Mesh, angle: f64, divisions: usize) -> Result<Mesh, MeshE
     let caps = if full { None } else { Some(("start", "end")) };
     // Sweeping turns the section's counter-clockwise normal (−y at angle 0)
     // against the sweep direction (+y), so elements take layers in reverse.
-    let mesh = build(section, &ts, steps, true, |p, t| {
-        let phi = a * t;
-        [p[0] * phi.cos(), p[0] * phi.sin(), p[1]]
-    }, caps)?;
+    let mesh = build(
+        section,
+        &ts,
+        steps,
+        true,
+        |p, t| {
+            let phi = a * t;
+            [p[0] * phi.cos(), p[0] * phi.sin(), p[1]]
+        },
+        caps,
+    )?;
     Ok(finish(mesh, size))
 }
 
@@ -75,9 +82,7 @@ fn section_steps(section: &Mesh) -> Result<usize, MeshError> {
         let s = match k {
             ElementKind::Quad4 | ElementKind::Tri3 => 1,
             ElementKind::Quad8 | ElementKind::Quad9 => 2,
-            other => {
-                return Err(MeshError::param("section", format!("cannot extrude {other} elements (no 3-D counterpart)")))
-            }
+            other => return Err(MeshError::param("section", format!("cannot extrude {other} elements (no 3-D counterpart)"))),
         };
         if steps.is_some_and(|x| x != s) {
             return Err(MeshError::param("section", "mixes linear and quadratic elements"));
@@ -191,12 +196,8 @@ fn build(
         if section.side_sets.contains_key(name) {
             continue;
         }
-        let mut out: Vec<usize> = nodes
-            .iter()
-            .flat_map(|&n| (0..nl).map(move |l| n * nl + l))
-            .map(|k| ids[k])
-            .filter(|&i| i != usize::MAX)
-            .collect();
+        let mut out: Vec<usize> =
+            nodes.iter().flat_map(|&n| (0..nl).map(move |l| n * nl + l)).map(|k| ids[k]).filter(|&i| i != usize::MAX).collect();
         out.sort_unstable();
         mesh.node_sets.insert(name.clone(), out);
     }

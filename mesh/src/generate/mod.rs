@@ -28,8 +28,7 @@ use crate::error::MeshError;
 use crate::model::{Mesh, Side};
 
 /// Polynomial order of generated elements.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
-#[derive(serde::Deserialize, serde::Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Deserialize, serde::Serialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum Order {
     /// quad4 / tri3 / hex8 / wedge6.
@@ -44,13 +43,16 @@ pub enum Order {
 impl Order {
     /// Nodes per element edge minus one: 1 for linear, 2 for quadratic.
     pub(crate) fn steps(self) -> usize {
-        if self == Order::Linear { 1 } else { 2 }
+        if self == Order::Linear {
+            1
+        } else {
+            2
+        }
     }
 }
 
 /// One face of a rectangle or block, for grading.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-#[derive(serde::Deserialize, serde::Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Deserialize, serde::Serialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum Face {
     Left,
@@ -62,8 +64,7 @@ pub enum Face {
 }
 
 /// Geometric grading of element sizes toward one face.
-#[derive(Debug, Clone, Copy, PartialEq)]
-#[derive(serde::Deserialize, serde::Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, serde::Deserialize, serde::Serialize)]
 pub struct Grading {
     /// The face at which elements are smallest.
     pub toward: Face,
@@ -132,12 +133,7 @@ pub(crate) fn add_patch(
     for ey in 0..ny {
         for ex in 0..nx {
             let (i, j) = (ex * s, ey * s);
-            let c = [
-                node(mesh, i, j),
-                node(mesh, i + s, j),
-                node(mesh, i + s, j + s),
-                node(mesh, i, j + s),
-            ];
+            let c = [node(mesh, i, j), node(mesh, i + s, j), node(mesh, i + s, j + s), node(mesh, i, j + s)];
             let mid = |mesh: &mut Mesh, node: &mut dyn FnMut(&mut Mesh, usize, usize) -> usize| {
                 [node(mesh, i + 1, j), node(mesh, i + 2, j + 1), node(mesh, i + 1, j + 2), node(mesh, i, j + 1)]
             };
@@ -145,10 +141,7 @@ pub(crate) fn add_patch(
             let mut sides = [(0usize, 0u8); 4];
             if triangles {
                 let (a, b) = if s == 1 {
-                    (
-                        mesh.add_element(ElementKind::Tri3, &[c[0], c[1], c[2]]),
-                        mesh.add_element(ElementKind::Tri3, &[c[0], c[2], c[3]]),
-                    )
+                    (mesh.add_element(ElementKind::Tri3, &[c[0], c[1], c[2]]), mesh.add_element(ElementKind::Tri3, &[c[0], c[2], c[3]]))
                 } else {
                     let m = mid(mesh, &mut node);
                     let centre = node(mesh, i + 1, j + 1);

@@ -24,14 +24,7 @@ pub struct RectangleParams {
 
 impl Default for RectangleParams {
     fn default() -> Self {
-        RectangleParams {
-            origin: [0.0, 0.0],
-            size: [1.0, 1.0],
-            divisions: [4, 4],
-            order: Order::Linear,
-            triangles: false,
-            grading: None,
-        }
+        RectangleParams { origin: [0.0, 0.0], size: [1.0, 1.0], divisions: [4, 4], order: Order::Linear, triangles: false, grading: None }
     }
 }
 
@@ -56,10 +49,7 @@ pub(crate) fn graded_params(
             _ => return Err(MeshError::param("grading.toward", format!("{:?} is not a face of this shape", g.toward))),
         }
     }
-    Ok((
-        node_params(divisions[0], steps, rx.0, rx.1),
-        node_params(divisions[1], steps, ry.0, ry.1),
-    ))
+    Ok((node_params(divisions[0], steps, rx.0, rx.1), node_params(divisions[1], steps, ry.0, ry.1)))
 }
 
 /// Structured rectangle with side and node sets `bottom`, `right`, `top`, `left`.

@@ -15,11 +15,7 @@ use crate::shape::reference_nodes;
 /// Local hex corners of the six tets, positively oriented.
 fn kuhn_tets() -> Vec<[usize; 4]> {
     let refs = reference_nodes(ElementKind::Hex8);
-    let corner = |bits: [i32; 3]| {
-        refs.iter()
-            .position(|r| (0..3).all(|k| (r[k] > 0.0) == (bits[k] == 1)))
-            .unwrap_or(0)
-    };
+    let corner = |bits: [i32; 3]| refs.iter().position(|r| (0..3).all(|k| (r[k] > 0.0) == (bits[k] == 1))).unwrap_or(0);
     let mut out = Vec::new();
     for (a, b) in [(0, 1), (0, 2), (1, 0), (1, 2), (2, 0), (2, 1)] {
         let mut p1 = [0; 3];

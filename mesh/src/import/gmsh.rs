@@ -29,8 +29,7 @@ fn volume_kind(t: G) -> Option<(ElementKind, &'static [usize])> {
     const TET10: [usize; 10] = [0, 1, 2, 3, 4, 5, 6, 7, 9, 8];
     // Gmsh's prism base faces into the element, VTK's wedge base faces out.
     const PRI6: [usize; 6] = [0, 2, 1, 3, 5, 4];
-    const HEX27: [usize; 27] =
-        [0, 1, 2, 3, 4, 5, 6, 7, 8, 11, 13, 9, 16, 18, 19, 17, 10, 12, 14, 15, 22, 23, 21, 24, 20, 25, 26];
+    const HEX27: [usize; 27] = [0, 1, 2, 3, 4, 5, 6, 7, 8, 11, 13, 9, 16, 18, 19, 17, 10, 12, 14, 15, 22, 23, 21, 24, 20, 25, 26];
     Some(match t {
         G::Tri3 => (ElementKind::Tri3, &ID[..3]),
         G::Tri6 => (ElementKind::Tri6, &ID[..6]),
@@ -83,9 +82,8 @@ pub(crate) fn read(path: &Path, bytes: &[u8]) -> Result<Imported, MeshError> {
     }
     let (coords, node_of) = read_nodes(path, bytes, nodes)?;
     let groups = Groups::new(&msh, bytes);
-    let lookup = |tag: u64, element: u64| {
-        node_of.get(&tag).copied().ok_or_else(|| err(format!("element {element} refers to missing node {tag}")))
-    };
+    let lookup =
+        |tag: u64, element: u64| node_of.get(&tag).copied().ok_or_else(|| err(format!("element {element} refers to missing node {tag}")));
     let mut mesh = Mesh::new(dimension);
     mesh.nodes = coords;
 
@@ -156,12 +154,8 @@ fn parse(path: &Path, bytes: &[u8]) -> Result<Msh, MeshError> {
     let parsed = super::guard(path, || {
         mshio::parse_msh_bytes(bytes).map_err(|e| {
             // The innermost MSH-level error is where the reader stopped.
-            let offset = e
-                .begin_msh_errors()
-                .next()
-                .or(e.backtrace.first())
-                .map(|(rest, _)| bytes.len().saturating_sub(rest.len()))
-                .unwrap_or(0);
+            let offset =
+                e.begin_msh_errors().next().or(e.backtrace.first()).map(|(rest, _)| bytes.len().saturating_sub(rest.len())).unwrap_or(0);
             // The version sits on the line after `$MeshFormat`.
             let offset = match e.first_msh_error() {
                 Some(mshio::error::MshParserErrorKind::UnsupportedMshVersion) => find(bytes, b"\n").map_or(0, |i| i + 1),
@@ -182,11 +176,7 @@ fn parse(path: &Path, bytes: &[u8]) -> Result<Msh, MeshError> {
 type NodeTable = (Vec<[f64; 3]>, HashMap<u64, usize>);
 
 /// Reads the node blocks into a [`NodeTable`].
-fn read_nodes(
-    path: &Path,
-    bytes: &[u8],
-    nodes: &mshio::Nodes<u64, i32, f64>,
-) -> Result<NodeTable, MeshError> {
+fn read_nodes(path: &Path, bytes: &[u8], nodes: &mshio::Nodes<u64, i32, f64>) -> Result<NodeTable, MeshError> {
     let err = |msg: String| MeshError::parse(path, Location::Unknown, msg);
     let total: usize = nodes.node_blocks.iter().map(|b| b.nodes.len()).sum();
     let file_tags = scan_node_tags(bytes, is_ascii_format(bytes)).filter(|t| t.len() == total);
@@ -243,12 +233,7 @@ impl Groups {
     fn names_of(&self, dim: i32, entity: i32) -> Vec<String> {
         let tags = self.by_entity.get(&(dim, entity)).map(Vec::as_slice).unwrap_or(&[]);
         tags.iter()
-            .map(|&t| {
-                self.names
-                    .get(&(dim, t.saturating_abs()))
-                    .cloned()
-                    .unwrap_or_else(|| format!("physical_{dim}_{}", t.unsigned_abs()))
-            })
+            .map(|&t| self.names.get(&(dim, t.saturating_abs())).cloned().unwrap_or_else(|| format!("physical_{dim}_{}", t.unsigned_abs())))
             .collect()
     }
 }

@@ -72,8 +72,11 @@ fn finish(path: &Path, imported: &mut Imported) -> Result<(), MeshError> {
         let (lo, hi) = mesh.bounding_box();
         let size = (hi[0] - lo[0]).max(hi[1] - lo[1]);
         if let Some(n) = mesh.nodes.iter().position(|x| x[2].abs() > 1e-9 * size.max(1e-300)) {
-            return Err(MeshError::parse(path, Location::Unknown,
-                format!("2-D elements must lie in the x–y plane (z = 0); node {n} has z = {}", mesh.nodes[n][2])));
+            return Err(MeshError::parse(
+                path,
+                Location::Unknown,
+                format!("2-D elements must lie in the x–y plane (z = 0); node {n} has z = {}", mesh.nodes[n][2]),
+            ));
         }
         let flipped = reorient_clockwise_2d(mesh);
         if !flipped.is_empty() {

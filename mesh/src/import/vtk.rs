@@ -31,9 +31,7 @@ fn kind_of(t: CellType) -> Result<Option<ElementKind>, ()> {
         CellType::Hexahedron => ElementKind::Hex8,
         CellType::QuadraticHexahedron => ElementKind::Hex20,
         CellType::TriquadraticHexahedron => ElementKind::Hex27,
-        CellType::Vertex | CellType::PolyVertex | CellType::Line | CellType::PolyLine | CellType::QuadraticEdge => {
-            return Ok(None)
-        }
+        CellType::Vertex | CellType::PolyVertex | CellType::Line | CellType::PolyLine | CellType::QuadraticEdge => return Ok(None),
         _ => return Err(()),
     }))
 }
@@ -43,13 +41,7 @@ pub(crate) fn read(path: &Path, bytes: &[u8], xml: bool) -> Result<Imported, Mes
     if !xml {
         check_legacy_counts(path, bytes)?;
     }
-    let parsed = super::guard(path, || {
-        if xml {
-            Vtk::parse_xml(bytes)
-        } else {
-            Vtk::parse_legacy_be(bytes)
-        }
-    })?;
+    let parsed = super::guard(path, || if xml { Vtk::parse_xml(bytes) } else { Vtk::parse_legacy_be(bytes) })?;
     let vtk = match parsed {
         Ok(v) => v,
         Err(e) => {
@@ -195,7 +187,11 @@ fn read_sets(path: &Path, mesh: &mut Mesh, point: &[Attribute], cell: &[Attribut
                     }
                     let n_sides = mesh.kinds[e].sides().len();
                     if mask < 0 || mask >= 1 << n_sides {
-                        return Err(MeshError::parse(path, Location::Cell(c), format!("side mask {mask} of {name} names a side the cell lacks")));
+                        return Err(MeshError::parse(
+                            path,
+                            Location::Cell(c),
+                            format!("side mask {mask} of {name} names a side the cell lacks"),
+                        ));
                     }
                     out.extend((0..n_sides).filter(|k| mask & (1 << k) != 0).map(|k| Side { element: e, local: k as u8 }));
                 }
@@ -316,8 +312,11 @@ fn check_legacy_counts(path: &Path, bytes: &[u8]) -> Result<(), MeshError> {
         let digits: Vec<u8> = rest.iter().take_while(|b| b.is_ascii_digit()).copied().collect();
         let n: u128 = std::str::from_utf8(&digits).ok().and_then(|s| s.parse().ok()).unwrap_or(0);
         if n > bytes.len() as u128 {
-            return Err(MeshError::parse(path, Location::Line(line_of(bytes, i)),
-                format!("{} count {n} is larger than the file could hold", String::from_utf8_lossy(key).trim())));
+            return Err(MeshError::parse(
+                path,
+                Location::Line(line_of(bytes, i)),
+                format!("{} count {n} is larger than the file could hold", String::from_utf8_lossy(key).trim()),
+            ));
         }
     }
     Ok(())

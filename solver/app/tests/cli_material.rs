@@ -24,10 +24,7 @@ fn stderr(o: &Output) -> String {
 
 #[test]
 fn file_input_writes_csv_with_expected_columns() {
-    let toml = write_toml(
-        "nh.toml",
-        "[material]\nmodel = \"neo-hookean\"\nshear_modulus = 0.8\nbulk_modulus = 8e6\n",
-    );
+    let toml = write_toml("nh.toml", "[material]\nmodel = \"neo-hookean\"\nshear_modulus = 0.8\nbulk_modulus = 8e6\n");
     let csv = temp_path("nh.csv");
     let out = olli(&[toml.to_str().unwrap(), "--stretch", "0.5:3:6", "--csv", csv.to_str().unwrap()]);
     assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
@@ -56,8 +53,18 @@ fn file_input_writes_csv_with_expected_columns() {
 #[test]
 fn options_input_runs_one_mode() {
     let out = olli(&[
-        "--model", "eight-chain", "--param", "shear_modulus=0.6", "--param", "locking_stretch=5",
-        "--param", "bulk_modulus=1000", "--mode", "uniaxial", "--stretch", "1:2:3",
+        "--model",
+        "eight-chain",
+        "--param",
+        "shear_modulus=0.6",
+        "--param",
+        "locking_stretch=5",
+        "--param",
+        "bulk_modulus=1000",
+        "--mode",
+        "uniaxial",
+        "--stretch",
+        "1:2:3",
     ]);
     assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
     let text = String::from_utf8_lossy(&out.stdout);
@@ -82,16 +89,32 @@ fn rejects(name: &str, table: &str, expected: &[&str]) {
 #[test]
 fn bad_parameters_exit_2_naming_file_and_parameter() {
     rejects("neg-mu.toml", "[material]\nmodel = \"neo-hookean\"\nshear_modulus = -1.0\nbulk_modulus = 100\n", &["shear_modulus", ":3:"]);
-    rejects("lock.toml", "[material]\nmodel = \"eight-chain\"\nshear_modulus = 1\nlocking_stretch = 1.0\nbulk_modulus = 100\n", &["locking_stretch", ":4:"]);
+    rejects(
+        "lock.toml",
+        "[material]\nmodel = \"eight-chain\"\nshear_modulus = 1\nlocking_stretch = 1.0\nbulk_modulus = 100\n",
+        &["locking_stretch", ":4:"],
+    );
     rejects("kappa.toml", "[material]\nmodel = \"yeoh\"\nc10 = 0.5\nc20 = 0\nc30 = 0\nbulk_modulus = 0\n", &["bulk_modulus"]);
-    rejects("model.toml", "[material]\nmodel = \"neo-hooke\"\nshear_modulus = 1\nbulk_modulus = 100\n", &["neo-hooke", "did you mean `neo-hookean`"]);
+    rejects(
+        "model.toml",
+        "[material]\nmodel = \"neo-hooke\"\nshear_modulus = 1\nbulk_modulus = 100\n",
+        &["neo-hooke", "did you mean `neo-hookean`"],
+    );
     rejects("missing.toml", "[material]\nmodel = \"eight-chain\"\nshear_modulus = 1\nbulk_modulus = 100\n", &["locking_stretch"]);
     rejects("extra.toml", "[material]\nmodel = \"neo-hookean\"\nshear_modulus = 1\nc20 = 0.1\nbulk_modulus = 100\n", &["c20", ":4:"]);
-    rejects("typo.toml", "[material]\nmodel = \"mooney-rivlin\"\nc10 = 0.3\nc01 = 0.1\nbulk_modulos = 100\n", &["bulk_modulos", "did you mean `bulk_modulus`", ":5:"]);
+    rejects(
+        "typo.toml",
+        "[material]\nmodel = \"mooney-rivlin\"\nc10 = 0.3\nc01 = 0.1\nbulk_modulos = 100\n",
+        &["bulk_modulos", "did you mean `bulk_modulus`", ":5:"],
+    );
     rejects("mr-sum.toml", "[material]\nmodel = \"mooney-rivlin\"\nc10 = 0.1\nc01 = -0.2\nbulk_modulus = 100\n", &["c10 + c01"]);
     rejects("syntax.toml", "[material]\nmodel = \"yeoh\nc10 = 0.5\n", &["line 2"]);
     rejects("table.toml", "[materials]\nmodel = \"yeoh\"\n", &["did you mean `material`"]);
-    rejects("type.toml", "[material]\nmodel = \"neo-hookean\"\nshear_modulus = \"soft\"\nbulk_modulus = 100\n", &["shear_modulus", "number"]);
+    rejects(
+        "type.toml",
+        "[material]\nmodel = \"neo-hookean\"\nshear_modulus = \"soft\"\nbulk_modulus = 100\n",
+        &["shear_modulus", "number"],
+    );
 }
 
 #[test]

@@ -106,10 +106,7 @@ fn arrays(path: &Path) -> (usize, usize, Arrays, Arrays) {
 /// The frame files a `.pvd` collection lists, in order.
 fn pvd_files(dir: &Path) -> Vec<String> {
     let pvd = std::fs::read_to_string(dir.join("job.pvd")).unwrap();
-    pvd.lines()
-        .filter_map(|l| l.split("file=\"").nth(1))
-        .map(|f| f.trim_end_matches("\"/>").to_string())
-        .collect()
+    pvd.lines().filter_map(|l| l.split("file=\"").nth(1)).map(|f| f.trim_end_matches("\"/>").to_string()).collect()
 }
 
 #[test]
@@ -119,10 +116,7 @@ fn run_writes_history_summary_and_readable_frames() {
     assert_eq!(out.status.code(), Some(0), "{}", text(&out));
     let history = std::fs::read_to_string(s.out().join("history.csv")).unwrap();
     let header = history.lines().next().unwrap();
-    assert_eq!(
-        header,
-        "stage,increment,load_factor,reaction_right_r,reaction_right_z,reaction_pin_r,reaction_pin_z,newton_iterations"
-    );
+    assert_eq!(header, "stage,increment,load_factor,reaction_right_r,reaction_right_z,reaction_pin_r,reaction_pin_z,newton_iterations");
     let rows: Vec<Vec<&str>> = history.lines().skip(1).map(|l| l.split(',').collect()).collect();
     assert!(rows.len() >= 4, "at least 1/max_increment = 4 increments");
     let last = rows.last().unwrap();
@@ -217,8 +211,14 @@ fn rejects(job_text: &str, want: &[&str]) {
 
 #[test]
 fn unknown_key_is_located_with_a_suggestion() {
-    rejects(&BUSH.replace("shear_modulus = 0.5", "shear_modulas = 0.5"), &["job.toml:17:1", "shear_modulas", "did you mean `shear_modulus`?"]);
-    rejects(&BUSH.replace("[[stage]]\nname = \"push\"", "[[stage]]\nname = \"push\"\nfirst_incremnt = 0.2"), &["first_incremnt", "did you mean `first_increment`?"]);
+    rejects(
+        &BUSH.replace("shear_modulus = 0.5", "shear_modulas = 0.5"),
+        &["job.toml:17:1", "shear_modulas", "did you mean `shear_modulus`?"],
+    );
+    rejects(
+        &BUSH.replace("[[stage]]\nname = \"push\"", "[[stage]]\nname = \"push\"\nfirst_incremnt = 0.2"),
+        &["first_incremnt", "did you mean `first_increment`?"],
+    );
 }
 
 #[test]
@@ -248,10 +248,8 @@ fn stage_without_loads_is_rejected() {
 
 #[test]
 fn unreadable_mesh_file_is_reported() {
-    let job = BUSH.replace(
-        "generate = \"rectangle\"\norigin = [10.0, 0.0]\nsize = [15.0, 40.0]\ndivisions = [4, 8]",
-        "file = \"missing.msh\"",
-    );
+    let job =
+        BUSH.replace("generate = \"rectangle\"\norigin = [10.0, 0.0]\nsize = [15.0, 40.0]\ndivisions = [4, 8]", "file = \"missing.msh\"");
     rejects(&job, &["[mesh]", "missing.msh", "cannot read"]);
 }
 

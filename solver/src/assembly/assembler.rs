@@ -184,12 +184,23 @@ mod tests {
                 for i in 0..n {
                     mesh.add_element(
                         ElementKind::Hex8,
-                        &[id(i, j, k), id(i + 1, j, k), id(i + 1, j + 1, k), id(i, j + 1, k), id(i, j, k + 1), id(i + 1, j, k + 1), id(i + 1, j + 1, k + 1), id(i, j + 1, k + 1)],
+                        &[
+                            id(i, j, k),
+                            id(i + 1, j, k),
+                            id(i + 1, j + 1, k),
+                            id(i, j + 1, k),
+                            id(i, j, k + 1),
+                            id(i + 1, j, k + 1),
+                            id(i + 1, j + 1, k + 1),
+                            id(i, j + 1, k + 1),
+                        ],
                     );
                 }
             }
         }
-        let mat = Arc::new(registry::material("neo-hookean", &[("shear_modulus", 1.0), ("bulk_modulus", 100.0)], VolumetricForm::Quadratic).unwrap());
+        let mat = Arc::new(
+            registry::material("neo-hookean", &[("shear_modulus", 1.0), ("bulk_modulus", 100.0)], VolumetricForm::Quadratic).unwrap(),
+        );
         let model = Model::single_region(mesh, Analysis::Solid3d, mat, Formulation::Mixed);
         let disc = Discretization::new(&model).unwrap();
         let ndof = model.mesh.node_count() * 3;
@@ -203,7 +214,8 @@ mod tests {
             asm.serial = serial;
             let mut f = vec![0.0; ndof];
             let mut k = vec![0.0; pattern.nnz()];
-            asm.assemble(&disc, &dofs, &pattern, &u, Outputs { internal: &mut f, tangent: Some(&mut k), predictor: None, mixed: None }).unwrap();
+            asm.assemble(&disc, &dofs, &pattern, &u, Outputs { internal: &mut f, tangent: Some(&mut k), predictor: None, mixed: None })
+                .unwrap();
             (f, k)
         };
         let (fs, ks) = run(true);

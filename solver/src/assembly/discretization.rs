@@ -81,12 +81,7 @@ impl<'m> Discretization<'m> {
 
     pub fn context(&self, e: usize) -> ElementContext<'m> {
         let region = &self.model.regions[self.region_of[e]];
-        ElementContext {
-            shape: self.shapes[e],
-            analysis: self.model.analysis,
-            formulation: region.formulation,
-            material: &region.material,
-        }
+        ElementContext { shape: self.shapes[e], analysis: self.model.analysis, formulation: region.formulation, material: &region.material }
     }
 
     /// Reference positions and displacements of element `e`'s nodes into fixed arrays.

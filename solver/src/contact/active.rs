@@ -101,9 +101,7 @@ impl ActiveContacts {
         let mut bodies = Vec::new();
         for def in &model.rigid {
             let bad = |reason: String| SolveError::BadContact { body: def.name.clone(), reason };
-            let sides = mesh.side_sets.get(&def.sides).ok_or_else(|| {
-                bad(format!("no side set named `{}`", def.sides))
-            })?;
+            let sides = mesh.side_sets.get(&def.sides).ok_or_else(|| bad(format!("no side set named `{}`", def.sides)))?;
             if sides.is_empty() {
                 return Err(bad(format!("side set `{}` is empty", def.sides)));
             }
@@ -111,10 +109,7 @@ impl ActiveContacts {
                 return Err(bad(format!("friction coefficient {} must be ≥ 0", def.friction)));
             }
             // The stiffest neighbouring material sets the default penalty.
-            let mu = sides
-                .iter()
-                .map(|s| model.regions[disc.region_of[s.element]].material.shear_modulus())
-                .fold(0.0, f64::max);
+            let mu = sides.iter().map(|s| model.regions[disc.region_of[s.element]].material.shear_modulus()).fold(0.0, f64::max);
             if let Some(p) = def.normal_penalty {
                 if !(p > 0.0 && p.is_finite()) {
                     return Err(bad(format!("normal penalty {p} must be positive")));

@@ -151,14 +151,7 @@ pub fn evaluate(
     } else {
         status = Status::Slip;
     }
-    NodeResponse {
-        status,
-        pressure: p,
-        shear,
-        force: (n * p + shear) * area,
-        stiffness,
-        slip,
-    }
+    NodeResponse { status, pressure: p, shear, force: (n * p + shear) * area, stiffness, slip }
 }
 
 #[cfg(test)]
@@ -190,10 +183,8 @@ mod tests {
     // no published value): normal on flat and curved surfaces, stick and slip.
     #[test]
     fn contact_tangent_matches_finite_differences() {
-        let plane = RigidSurface {
-            shape: Shape::Plane { point: [0.0, 0.0, 0.0], normal: [0.0, 0.0, 1.0] },
-            placement: Placement::default(),
-        };
+        let plane =
+            RigidSurface { shape: Shape::Plane { point: [0.0, 0.0, 0.0], normal: [0.0, 0.0, 1.0] }, placement: Placement::default() };
         let shaft = RigidSurface {
             shape: Shape::Cylinder { point: [0.0, 0.0, 0.0], axis: [0.0, 0.0, 1.0], radius: 1.0, rubber_outside: true },
             placement: Placement::default(),
@@ -219,10 +210,8 @@ mod tests {
     // shear traction equals μ times the pressure.
     #[test]
     fn slip_traction_is_friction_times_pressure() {
-        let plane = RigidSurface {
-            shape: Shape::Plane { point: [0.0, 0.0, 0.0], normal: [0.0, 0.0, 1.0] },
-            placement: Placement::default(),
-        };
+        let plane =
+            RigidSurface { shape: Shape::Plane { point: [0.0, 0.0, 0.0], normal: [0.0, 0.0, 1.0] }, placement: Placement::default() };
         let params = ContactParameters { normal_penalty: 100.0, tangential_penalty: 80.0, friction: 0.4, smoothing: 0.0 };
         let x = Vector3::new(1.0, 0.0, -0.02);
         let r = evaluate(&plane.project(&x).unwrap(), &x, 1.0, &params, &NodeState::default(), Some(Vector3::zeros()));

@@ -34,12 +34,7 @@ pub enum Piece2 {
     Segment { a: [f64; 2], b: [f64; 2] },
     /// Arc of a circle from angle `start` to `end` (radians, counter-clockwise
     /// when `end > start`); the rubber is on the left of the travel direction.
-    Arc {
-        center: [f64; 2],
-        radius: f64,
-        start: f64,
-        end: f64,
-    },
+    Arc { center: [f64; 2], radius: f64, start: f64, end: f64 },
 }
 
 /// The geometry of a rigid surface in its own (unmoved) frame.
@@ -53,18 +48,9 @@ pub enum Shape {
     Plane { point: [f64; 3], normal: [f64; 3] },
     /// A circular cylinder in 3-D: axis through `point` along `axis`. With
     /// `rubber_outside` the rubber is outside it (a shaft), otherwise inside (a bore).
-    Cylinder {
-        point: [f64; 3],
-        axis: [f64; 3],
-        radius: f64,
-        rubber_outside: bool,
-    },
+    Cylinder { point: [f64; 3], axis: [f64; 3], radius: f64, rubber_outside: bool },
     /// A sphere in 3-D, rubber outside or inside.
-    Sphere {
-        center: [f64; 3],
-        radius: f64,
-        rubber_outside: bool,
-    },
+    Sphere { center: [f64; 3], radius: f64, rubber_outside: bool },
 }
 
 /// Rigid motion of a surface at some load factor: `x ↦ R (x − c) + c + t`.
@@ -77,11 +63,7 @@ pub struct Placement {
 
 impl Default for Placement {
     fn default() -> Self {
-        Placement {
-            translation: Vector3::zeros(),
-            rotation: Rotation3::identity(),
-            center: Vector3::zeros(),
-        }
+        Placement { translation: Vector3::zeros(), rotation: Rotation3::identity(), center: Vector3::zeros() }
     }
 }
 
@@ -94,11 +76,7 @@ impl Placement {
         } else {
             Rotation3::from_axis_angle(&Unit::new_normalize(axis), angle)
         };
-        Placement {
-            translation: t,
-            rotation,
-            center,
-        }
+        Placement { translation: t, rotation, center }
     }
 
     /// A point of the surface's own frame, moved: `R (x − c) + c + t`.
@@ -134,12 +112,7 @@ fn v2(a: [f64; 2]) -> Vector3<f64> {
 /// Projection onto a flat piece (normal constant).
 fn flat(x: &Vector3<f64>, point: Vector3<f64>, normal: Vector3<f64>) -> Projection {
     let gap = (x - point).dot(&normal);
-    Projection {
-        gap,
-        normal,
-        normal_derivative: Matrix3::zeros(),
-        point: x - normal * gap,
-    }
+    Projection { gap, normal, normal_derivative: Matrix3::zeros(), point: x - normal * gap }
 }
 
 /// Projection onto a point-like feature (a sharp corner or a circle/sphere
@@ -157,12 +130,7 @@ fn radial(x: &Vector3<f64>, q: Vector3<f64>, radius: f64, sign: f64, projector: 
     let normal = e * sign;
     // ∂e/∂x = (P − e⊗e)/d, with P the projector (e lies in its range).
     let de = (projector - e * e.transpose()) / d;
-    Some(Projection {
-        gap: sign * (d - radius),
-        normal,
-        normal_derivative: de * sign,
-        point: q + e * radius + (x - q - r),
-    })
+    Some(Projection { gap: sign * (d - radius), normal, normal_derivative: de * sign, point: q + e * radius + (x - q - r) })
 }
 
 fn planar() -> Matrix3<f64> {
@@ -264,13 +232,9 @@ impl Shape {
                 let proj = Matrix3::identity() - a * a.transpose();
                 radial(x, v3(*point), *radius, if *rubber_outside { 1.0 } else { -1.0 }, proj)
             }
-            Shape::Sphere { center, radius, rubber_outside } => radial(
-                x,
-                v3(*center),
-                *radius,
-                if *rubber_outside { 1.0 } else { -1.0 },
-                Matrix3::identity(),
-            ),
+            Shape::Sphere { center, radius, rubber_outside } => {
+                radial(x, v3(*center), *radius, if *rubber_outside { 1.0 } else { -1.0 }, Matrix3::identity())
+            }
         }
     }
 }
@@ -406,15 +370,7 @@ mod tests {
     }
 
     fn surface(shape: Shape) -> RigidSurface {
-        RigidSurface {
-            shape,
-            placement: Placement::new(
-                Vector3::new(0.3, -0.2, 0.0),
-                Vector3::z(),
-                0.4,
-                Vector3::new(1.0, 1.0, 0.0),
-            ),
-        }
+        RigidSurface { shape, placement: Placement::new(Vector3::new(0.3, -0.2, 0.0), Vector3::z(), 0.4, Vector3::new(1.0, 1.0, 0.0)) }
     }
 
     // The gap is the Euclidean distance to the surface (elementary geometry);
@@ -425,7 +381,10 @@ mod tests {
         let cases = [
             (Shape::Line { point: [0.0, 0.0], direction: [1.0, 0.0] }, Vector3::new(0.7, 0.5, 0.0)),
             (Shape::Plane { point: [0.0, 0.0, 1.0], normal: [0.0, 0.0, 2.0] }, Vector3::new(0.1, 0.2, 0.8)),
-            (Shape::Cylinder { point: [0.0, 0.0, 0.0], axis: [0.0, 0.0, 1.0], radius: 1.0, rubber_outside: true }, Vector3::new(1.5, 0.4, 3.0)),
+            (
+                Shape::Cylinder { point: [0.0, 0.0, 0.0], axis: [0.0, 0.0, 1.0], radius: 1.0, rubber_outside: true },
+                Vector3::new(1.5, 0.4, 3.0),
+            ),
             (Shape::Sphere { center: [0.0, 0.0, 0.0], radius: 2.0, rubber_outside: false }, Vector3::new(0.5, 0.4, 1.1)),
             (circle_in_profile, Vector3::new(0.5, 0.9, 0.0)),
         ];
@@ -466,7 +425,10 @@ mod tests {
         let fixed = groove.facing(inside);
         assert!((fixed.project_local(&v3(inside)).unwrap().gap - 1.0).abs() < 1e-12);
         let bore = Shape::Cylinder { point: [0.0; 3], axis: [0.0, 0.0, 1.0], radius: 5.0, rubber_outside: true };
-        assert_eq!(bore.facing([4.0, 0.0, 0.0]), Shape::Cylinder { point: [0.0; 3], axis: [0.0, 0.0, 1.0], radius: 5.0, rubber_outside: false });
+        assert_eq!(
+            bore.facing([4.0, 0.0, 0.0]),
+            Shape::Cylinder { point: [0.0; 3], axis: [0.0, 0.0, 1.0], radius: 5.0, rubber_outside: false }
+        );
     }
 
     #[test]

@@ -89,7 +89,19 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
                     ctx.last_converged.copy_from_slice(&u);
                     ctx.contacts.commit();
                     let result = increment_result(
-                        &disc, &ctx, &u, si, &stage.name, count, t, step, iterations, residuals, energy, share, &report_sets,
+                        &disc,
+                        &ctx,
+                        &u,
+                        si,
+                        &stage.name,
+                        count,
+                        t,
+                        step,
+                        iterations,
+                        residuals,
+                        energy,
+                        share,
+                        &report_sets,
                     );
                     let result = match result {
                         Ok(r) => r,
@@ -220,11 +232,7 @@ fn increment_result(
     } else {
         None
     };
-    let nodal = if model.output.nodal_fields {
-        points.as_ref().map(|p| nodal_average(disc, p))
-    } else {
-        None
-    };
+    let nodal = if model.output.nodal_fields { points.as_ref().map(|p| nodal_average(disc, p)) } else { None };
     Ok(IncrementResult {
         stage,
         stage_name: stage_name.to_string(),
@@ -263,7 +271,8 @@ fn nodal_average(disc: &Discretization, p: &PointFields) -> NodalFields {
         let mut mean = [0.0; 10];
         for s in pts {
             let c = &s.cauchy;
-            let v = [c[(0, 0)], c[(1, 1)], c[(2, 2)], c[(0, 1)], c[(1, 2)], c[(0, 2)], s.pressure, s.j, s.max_log_strain(), s.energy_density];
+            let v =
+                [c[(0, 0)], c[(1, 1)], c[(2, 2)], c[(0, 1)], c[(1, 2)], c[(0, 2)], s.pressure, s.j, s.max_log_strain(), s.energy_density];
             for k in 0..10 {
                 mean[k] += v[k] * s.volume / vol;
             }

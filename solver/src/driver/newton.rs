@@ -88,7 +88,11 @@ pub fn force_unit(disc: &Discretization) -> f64 {
         crate::element::Analysis::PlaneStrain { thickness } => mu * l * thickness,
         crate::element::Analysis::Axisymmetric => mu * l * std::f64::consts::TAU * hi[0].abs().max(l),
     };
-    if unit.is_finite() && unit > 0.0 { unit } else { 1.0 }
+    if unit.is_finite() && unit > 0.0 {
+        unit
+    } else {
+        1.0
+    }
 }
 
 impl<'a> NewtonContext<'a> {
@@ -192,8 +196,8 @@ impl<'a> NewtonContext<'a> {
             let dtheta = fixed + s * free;
             let vol = &ctx.material.volumetric;
             let m = |err| SolveError::from_element(e, ElementError::Material(err));
-            let dp = vol.pressure_derivative(base.dilatation).map_err(m)? * dtheta + vol.pressure(base.dilatation).map_err(m)?
-                - base.pressure;
+            let dp =
+                vol.pressure_derivative(base.dilatation).map_err(m)? * dtheta + vol.pressure(base.dilatation).map_err(m)? - base.pressure;
             let st = &mut self.states[e];
             st.dilatation = base.dilatation + dtheta;
             st.pressure = base.pressure + dp;
@@ -373,13 +377,7 @@ impl<'a> NewtonContext<'a> {
     }
 
     fn free_residual_norm(&self) -> f64 {
-        self.residual
-            .iter()
-            .zip(&self.dofs.eq)
-            .filter(|(_, q)| **q != NONE)
-            .map(|(r, _)| r * r)
-            .sum::<f64>()
-            .sqrt()
+        self.residual.iter().zip(&self.dofs.eq).filter(|(_, q)| **q != NONE).map(|(r, _)| r * r).sum::<f64>().sqrt()
     }
 
     /// Solves one increment ending at stage fraction `t`, updating `u`.
@@ -556,11 +554,6 @@ impl<'a> NewtonContext<'a> {
 
     /// du·r over the free dofs with the current residual.
     fn dofs_dot_du(&self) -> f64 {
-        self.residual
-            .iter()
-            .zip(&self.dofs.eq)
-            .filter(|(_, q)| **q != NONE)
-            .map(|(r, q)| r * self.du[*q])
-            .sum()
+        self.residual.iter().zip(&self.dofs.eq).filter(|(_, q)| **q != NONE).map(|(r, q)| r * self.du[*q]).sum()
     }
 }

@@ -8,15 +8,40 @@ use crate::results::IncrementResult;
 /// One progress event.
 #[derive(Debug)]
 pub enum Event<'a> {
-    StageStart { stage: usize, name: &'a str, equations: usize },
-    IncrementStart { stage: usize, increment: usize, load_factor: f64, step: f64 },
+    StageStart {
+        stage: usize,
+        name: &'a str,
+        equations: usize,
+    },
+    IncrementStart {
+        stage: usize,
+        increment: usize,
+        load_factor: f64,
+        step: f64,
+    },
     /// After each Newton correction: the out-of-balance force at the updated
     /// state (absolute and relative to the force scale), the line-search step
     /// length taken, and the factorization used.
-    Iteration { iteration: usize, residual: f64, relative: f64, line_search: f64, factor: FactorKind },
+    Iteration {
+        iteration: usize,
+        residual: f64,
+        relative: f64,
+        line_search: f64,
+        factor: FactorKind,
+    },
     /// The tangent was not positive definite; `factor` says what was used instead.
-    LinearFallback { stage: usize, increment: usize, iteration: usize, factor: FactorKind },
-    Cutback { stage: usize, load_factor: f64, step: f64, reason: &'a SolveError },
+    LinearFallback {
+        stage: usize,
+        increment: usize,
+        iteration: usize,
+        factor: FactorKind,
+    },
+    Cutback {
+        stage: usize,
+        load_factor: f64,
+        step: f64,
+        reason: &'a SolveError,
+    },
     Converged(&'a IncrementResult),
 }
 

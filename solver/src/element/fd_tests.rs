@@ -7,22 +7,15 @@ use crate::material::{registry, Material, VolumetricForm};
 
 fn material() -> Material {
     // Near-incompressible (κ/μ = 100) so the volumetric terms dominate, as in rubber.
-    registry::material("neo-hookean", &[("shear_modulus", 0.7), ("bulk_modulus", 70.0)], VolumetricForm::Logarithmic)
-        .unwrap()
+    registry::material("neo-hookean", &[("shear_modulus", 0.7), ("bulk_modulus", 70.0)], VolumetricForm::Logarithmic).unwrap()
 }
 
 /// A distorted element: reference nodes perturbed by a fixed pattern, and a
 /// large displacement field (stretches up to ~1.3, shear ~0.2).
 fn distorted(shape: Shape) -> (Vec<[f64; 3]>, Vec<[f64; 3]>) {
     let base: Vec<[f64; 3]> = match shape {
-        Shape::Hex8 => crate::shape::hex8::NODES
-            .iter()
-            .map(|p| [1.0 + 0.5 * p[0], 2.0 + 0.6 * p[1], 0.4 * p[2]])
-            .collect(),
-        Shape::Quad4 => crate::shape::quad4::NODES
-            .iter()
-            .map(|p| [1.5 + 0.5 * p[0], 0.7 * p[1], 0.0])
-            .collect(),
+        Shape::Hex8 => crate::shape::hex8::NODES.iter().map(|p| [1.0 + 0.5 * p[0], 2.0 + 0.6 * p[1], 0.4 * p[2]]).collect(),
+        Shape::Quad4 => crate::shape::quad4::NODES.iter().map(|p| [1.5 + 0.5 * p[0], 0.7 * p[1], 0.0]).collect(),
     };
     let dim = shape.dimension();
     let x: Vec<[f64; 3]> = base
@@ -113,7 +106,12 @@ fn quad4_plane_strain_tangents_match_finite_differences() {
 #[test]
 fn inverted_point_is_reported() {
     let mat = material();
-    let ctx = ElementContext { shape: Shape::Quad4, analysis: Analysis::PlaneStrain { thickness: 1.0 }, formulation: Formulation::Mixed, material: &mat };
+    let ctx = ElementContext {
+        shape: Shape::Quad4,
+        analysis: Analysis::PlaneStrain { thickness: 1.0 },
+        formulation: Formulation::Mixed,
+        material: &mat,
+    };
     let (x, _) = distorted(Shape::Quad4);
     // Fold node 2 through node 0: the element turns inside out.
     let mut u = vec![[0.0; 3]; 4];

@@ -56,12 +56,7 @@ pub struct PointGeometry {
 }
 
 /// Geometry of Gauss point `point` of an element with reference node positions `x`.
-pub fn point_geometry(
-    shape: Shape,
-    analysis: Analysis,
-    x: &[[f64; 3]],
-    point: usize,
-) -> Result<PointGeometry, ElementError> {
+pub fn point_geometry(shape: Shape, analysis: Analysis, x: &[[f64; 3]], point: usize) -> Result<PointGeometry, ElementError> {
     let mut out = PointGeometry::default();
     match shape {
         Shape::Hex8 => {

@@ -221,10 +221,8 @@ impl MixedState {
     /// Linearised changes (dθ, dp) for an element displacement change `du`
     /// (only the first `nd` entries used).
     pub fn increments(&self, du: &[f64], material: &crate::material::Material) -> Result<(f64, f64), MaterialError> {
-        let dtheta = self.volume_ratio - self.dilatation
-            + self.dvolume_du.iter().zip(du).map(|(a, b)| a * b).sum::<f64>();
-        let dp = material.volumetric.pressure_derivative(self.dilatation)? * dtheta
-            + material.volumetric.pressure(self.dilatation)?
+        let dtheta = self.volume_ratio - self.dilatation + self.dvolume_du.iter().zip(du).map(|(a, b)| a * b).sum::<f64>();
+        let dp = material.volumetric.pressure_derivative(self.dilatation)? * dtheta + material.volumetric.pressure(self.dilatation)?
             - self.pressure;
         Ok((dtheta, dp))
     }
@@ -380,12 +378,7 @@ pub struct PointState {
 }
 
 /// Per-point results of one element into `out` (length ≥ `shape.points()`).
-pub fn point_states(
-    ctx: &ElementContext,
-    x: &[[f64; 3]],
-    u: &[[f64; 3]],
-    out: &mut [PointState],
-) -> Result<(), ElementError> {
+pub fn point_states(ctx: &ElementContext, x: &[[f64; 3]], u: &[[f64; 3]], out: &mut [PointState]) -> Result<(), ElementError> {
     match ctx.shape {
         Shape::Hex8 => states::<24>(ctx, x, u, 3, out),
         Shape::Quad4 => states::<8>(ctx, x, u, 2, out),

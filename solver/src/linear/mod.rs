@@ -16,8 +16,7 @@ use faer::dyn_stack::{MemBuffer, MemStack};
 use faer::linalg::cholesky::ldlt::factor::LdltRegularization;
 use faer::linalg::cholesky::llt::factor::LltRegularization;
 use faer::sparse::linalg::cholesky::{
-    factorize_symbolic_cholesky, CholeskySymbolicParams, LdltRef, LltRef, SymbolicCholesky, SymbolicCholeskyRaw,
-    SymmetricOrdering,
+    factorize_symbolic_cholesky, CholeskySymbolicParams, LdltRef, LltRef, SymbolicCholesky, SymbolicCholeskyRaw, SymmetricOrdering,
 };
 use faer::sparse::linalg::solvers::{Lu, SymbolicLu};
 use faer::sparse::{Pair, SparseColMat, SparseColMatRef, SymbolicSparseColMat};
@@ -131,11 +130,7 @@ impl LinearSolver {
                 None => SymmetricOrdering::Amd,
                 Some(p) => {
                     if p.len() != pattern.n {
-                        return Err(SolveError::Linear(format!(
-                            "custom ordering has {} entries for {} equations",
-                            p.len(),
-                            pattern.n
-                        )));
+                        return Err(SolveError::Linear(format!("custom ordering has {} entries for {} equations", p.len(), pattern.n)));
                     }
                     let mut inv = vec![0usize; p.len()];
                     for (k, &i) in p.iter().enumerate() {
@@ -279,11 +274,11 @@ impl LinearSolver {
                 }
             }
             let n = m.nrows();
-            let (symbolic_full, argsort) = SymbolicSparseColMat::try_new_from_indices(n, n, &pairs)
-                .map_err(|e| SolveError::Linear(format!("LU pattern: {e:?}")))?;
-            let symbolic_lu = SymbolicLu::try_new(symbolic_full.as_ref())
-                .map_err(|e| SolveError::Linear(format!("symbolic LU: {e:?}")))?;
-            self.lu = Some(LuFallback { symbolic_full, argsort, values: vec![0.0; source.len()], source, first, symbolic_lu, factor: None });
+            let (symbolic_full, argsort) =
+                SymbolicSparseColMat::try_new_from_indices(n, n, &pairs).map_err(|e| SolveError::Linear(format!("LU pattern: {e:?}")))?;
+            let symbolic_lu = SymbolicLu::try_new(symbolic_full.as_ref()).map_err(|e| SolveError::Linear(format!("symbolic LU: {e:?}")))?;
+            self.lu =
+                Some(LuFallback { symbolic_full, argsort, values: vec![0.0; source.len()], source, first, symbolic_lu, factor: None });
         }
         let lu = self.lu.as_mut().expect("built above");
         for (v, &s) in lu.values.iter_mut().zip(&lu.source) {

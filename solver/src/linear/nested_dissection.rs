@@ -79,9 +79,8 @@ fn dissect(vertices: &[usize], adj: &[Vec<usize>], local: &mut [usize], out: &mu
         xadj.push(adjncy.len() as metis::Idx);
     }
     let mut part = vec![0 as metis::Idx; vertices.len()];
-    let split = metis::Graph::new(1, 2, &xadj, &adjncy)
-        .map_err(|e| SolveError::Linear(format!("METIS graph: {e:?}")))?
-        .part_recursive(&mut part);
+    let split =
+        metis::Graph::new(1, 2, &xadj, &adjncy).map_err(|e| SolveError::Linear(format!("METIS graph: {e:?}")))?.part_recursive(&mut part);
     let boundary = |side: metis::Idx, part: &[metis::Idx]| -> Vec<bool> {
         vertices
             .iter()

@@ -77,12 +77,7 @@ impl EightChain {
         let network_modulus = 3.0 * shear_modulus / (locking_stretch * beta0);
         let n = locking_stretch * locking_stretch;
         let offset = network_modulus * n * (y0 * beta0 + log_beta_over_sinh(beta0));
-        Ok(EightChain {
-            shear_modulus,
-            locking_stretch,
-            network_modulus,
-            offset,
-        })
+        Ok(EightChain { shear_modulus, locking_stretch, network_modulus, offset })
     }
 
     /// Network modulus μ_r (stress units).
@@ -102,10 +97,7 @@ impl IsochoricEnergy for EightChain {
         let i1b = if i1b.is_nan() { f64::INFINITY } else { i1b.max(3.0) };
         let lam = (i1b / 3.0).sqrt();
         let sqrt_n = self.locking_stretch;
-        let locked = MaterialError::ChainLocking {
-            chain_stretch: lam,
-            locking_stretch: sqrt_n,
-        };
+        let locked = MaterialError::ChainLocking { chain_stretch: lam, locking_stretch: sqrt_n };
         if lam.is_nan() || lam >= sqrt_n {
             return Err(locked);
         }
@@ -116,12 +108,7 @@ impl IsochoricEnergy for EightChain {
         let dbeta = 1.0 / (sqrt_n * langevin_derivative(beta));
         let w1 = mu_r * sqrt_n * beta / (6.0 * lam);
         let w11 = mu_r * sqrt_n / (36.0 * lam) * (dbeta / lam - beta / (lam * lam));
-        Ok(InvariantDerivatives {
-            w,
-            w1,
-            w11,
-            ..Default::default()
-        })
+        Ok(InvariantDerivatives { w, w1, w11, ..Default::default() })
     }
 
     fn shear_modulus(&self) -> f64 {
@@ -147,7 +134,16 @@ mod tests {
             let h = (i1_end - 3.0) / n as f64;
             let w1 = |i: usize| m.derivatives(3.0 + h * i as f64, 3.0).unwrap().w1;
             let simpson: f64 = (0..=n)
-                .map(|i| w1(i) * if i == 0 || i == n { 1.0 } else if i % 2 == 1 { 4.0 } else { 2.0 })
+                .map(|i| {
+                    w1(i)
+                        * if i == 0 || i == n {
+                            1.0
+                        } else if i % 2 == 1 {
+                            4.0
+                        } else {
+                            2.0
+                        }
+                })
                 .sum::<f64>()
                 * h
                 / 3.0;

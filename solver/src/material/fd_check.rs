@@ -67,10 +67,7 @@ mod tests {
     #[test]
     fn neo_hookean_stress_and_tangent_match_finite_differences() {
         for form in [VolumetricForm::Quadratic, VolumetricForm::Logarithmic, VolumetricForm::SimoTaylor] {
-            let m = Material::new(
-                Box::new(NeoHookean::new(0.8).unwrap()),
-                VolumetricLaw::new(form, 50.0).unwrap(),
-            );
+            let m = Material::new(Box::new(NeoHookean::new(0.8).unwrap()), VolumetricLaw::new(form, 50.0).unwrap());
             for seed in 1..20 {
                 let f = random_deformation(seed, 0.35);
                 let c = f.transpose() * f;

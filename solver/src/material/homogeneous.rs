@@ -38,13 +38,7 @@ pub enum Mode {
 
 impl Mode {
     /// Every mode, in report order.
-    pub const ALL: [Mode; 5] = [
-        Mode::Uniaxial,
-        Mode::Equibiaxial,
-        Mode::Planar,
-        Mode::SimpleShear,
-        Mode::Volumetric,
-    ];
+    pub const ALL: [Mode; 5] = [Mode::Uniaxial, Mode::Equibiaxial, Mode::Planar, Mode::SimpleShear, Mode::Volumetric];
 
     /// Name on the command line and in CSV files.
     pub fn name(self) -> &'static str {
@@ -90,10 +84,7 @@ pub struct Settings {
 
 impl Default for Settings {
     fn default() -> Self {
-        Settings {
-            tolerance: 1e-12,
-            max_iterations: 60,
-        }
+        Settings { tolerance: 1e-12, max_iterations: 60 }
     }
 }
 
@@ -131,12 +122,7 @@ pub enum HomogeneousError {
         source: MaterialError,
     },
     #[error("{mode} at stretch {stretch}: lateral stretch not converged (stress residual {residual:.3e} after {iterations} iterations)")]
-    NotConverged {
-        mode: &'static str,
-        stretch: f64,
-        residual: f64,
-        iterations: usize,
-    },
+    NotConverged { mode: &'static str, stretch: f64, residual: f64, iterations: usize },
     #[error("{mode}: stretch {stretch} must be positive and finite")]
     BadStretch { mode: &'static str, stretch: f64 },
 }
@@ -219,32 +205,17 @@ fn solve_lateral(material: &Material, mode: Mode, stretch: f64, t0: f64, setting
             return Ok(u.exp());
         }
     }
-    Err(HomogeneousError::NotConverged {
-        mode: name,
-        stretch,
-        residual,
-        iterations: settings.max_iterations,
-    })
+    Err(HomogeneousError::NotConverged { mode: name, stretch, residual, iterations: settings.max_iterations })
 }
 
 /// The response of `material` in `mode` at `stretch`. `guess` is a start for
 /// the lateral stretch (`None`: the incompressible value).
-pub fn point(
-    material: &Material,
-    mode: Mode,
-    stretch: f64,
-    guess: Option<f64>,
-    settings: &Settings,
-) -> Result<Point, HomogeneousError> {
+pub fn point(material: &Material, mode: Mode, stretch: f64, guess: Option<f64>, settings: &Settings) -> Result<Point, HomogeneousError> {
     let name = mode.name();
     if !(stretch.is_finite() && stretch > 0.0) {
         return Err(HomogeneousError::BadStretch { mode: name, stretch });
     }
-    let wrap = |source| HomogeneousError::Material {
-        mode: name,
-        stretch,
-        source,
-    };
+    let wrap = |source| HomogeneousError::Material { mode: name, stretch, source };
     if mode == Mode::SimpleShear {
         let gamma = stretch - 1.0 / stretch;
         let mut f = Matrix3::identity();
@@ -263,14 +234,8 @@ pub fn point(
             deformation_gradient: f,
         });
     }
-    let t0 = guess
-        .filter(|g| g.is_finite() && *g > 0.0)
-        .unwrap_or_else(|| incompressible_lateral(mode, stretch));
-    let t = if mode.has_lateral_unknown() {
-        solve_lateral(material, mode, stretch, t0, settings)?
-    } else {
-        1.0
-    };
+    let t0 = guess.filter(|g| g.is_finite() && *g > 0.0).unwrap_or_else(|| incompressible_lateral(mode, stretch));
+    let t = if mode.has_lateral_unknown() { solve_lateral(material, mode, stretch, t0, settings)? } else { 1.0 };
     let l = mode.diagonal(stretch, t);
     let r = material.response(&diag_c(l)).map_err(wrap)?;
     let j = l[0] * l[1] * l[2];
@@ -293,12 +258,7 @@ pub fn point(
 /// compressed or stretched state is reached by continuation. Each side stops
 /// at its first failure (e.g. an eight-chain material reaching its locking
 /// stretch): the points computed before it are returned with the error.
-pub fn sweep(
-    material: &Material,
-    mode: Mode,
-    stretches: &[f64],
-    settings: &Settings,
-) -> (Vec<Point>, Vec<HomogeneousError>) {
+pub fn sweep(material: &Material, mode: Mode, stretches: &[f64], settings: &Settings) -> (Vec<Point>, Vec<HomogeneousError>) {
     let mut order: Vec<usize> = (0..stretches.len()).collect();
     order.sort_by(|&a, &b| stretches[a].total_cmp(&stretches[b]));
     let split = order.partition_point(|&i| stretches[i] < 1.0);

@@ -49,34 +49,19 @@ impl Kinematics {
     pub fn new(c: &Matrix3<f64>) -> Result<Self, MaterialError> {
         let det = c.determinant();
         if !(det > 0.0 && det.is_finite()) {
-            return Err(MaterialError::NonPositiveVolume {
-                j: det.max(0.0).sqrt(),
-            });
+            return Err(MaterialError::NonPositiveVolume { j: det.max(0.0).sqrt() });
         }
         let j = det.sqrt();
-        let c_inv = c
-            .try_inverse()
-            .ok_or(MaterialError::NonPositiveVolume { j })?;
+        let c_inv = c.try_inverse().ok_or(MaterialError::NonPositiveVolume { j })?;
         let i1 = c.trace();
         let i2 = 0.5 * (i1 * i1 - (c * c).trace());
         let j23 = j.powf(-2.0 / 3.0);
-        Ok(Kinematics {
-            c: *c,
-            c_inv,
-            j,
-            i1,
-            i2,
-            i1_bar: j23 * i1,
-            i2_bar: j23 * j23 * i2,
-        })
+        Ok(Kinematics { c: *c, c_inv, j, i1, i2, i1_bar: j23 * i1, i2_bar: j23 * j23 * i2 })
     }
 }
 
 /// Isochoric energy, S_iso and D_iso of a model at the given kinematics.
-pub fn isochoric_response(
-    model: &dyn IsochoricEnergy,
-    kin: &Kinematics,
-) -> Result<Response, MaterialError> {
+pub fn isochoric_response(model: &dyn IsochoricEnergy, kin: &Kinematics) -> Result<Response, MaterialError> {
     let d = model.derivatives(kin.i1_bar, kin.i2_bar)?;
     let id = Matrix3::identity();
     let ci = &kin.c_inv;
@@ -85,10 +70,7 @@ pub fn isochoric_response(
     let a1 = id * j23 - ci * (kin.i1_bar / 3.0);
     let stress_1 = a1 * (2.0 * d.w1);
     let mut tangent = outer(&a1, &a1) * (4.0 * d.w11)
-        + (outer_sym(&id, ci) * (-j23 / 3.0)
-            + outer(ci, ci) * (kin.i1_bar / 9.0)
-            + odot(ci) * (kin.i1_bar / 3.0))
-            * (4.0 * d.w1);
+        + (outer_sym(&id, ci) * (-j23 / 3.0) + outer(ci, ci) * (kin.i1_bar / 9.0) + odot(ci) * (kin.i1_bar / 3.0)) * (4.0 * d.w1);
     let stress = if d.w2 != 0.0 || d.w22 != 0.0 || d.w12 != 0.0 {
         let b = id * kin.i1 - kin.c;
         let a2 = b * j43 - ci * (2.0 / 3.0 * kin.i2_bar);
@@ -102,9 +84,5 @@ pub fn isochoric_response(
     } else {
         stress_1
     };
-    Ok(Response {
-        energy: d.w,
-        stress,
-        tangent,
-    })
+    Ok(Response { energy: d.w, stress, tangent })
 }

@@ -69,11 +69,7 @@ pub fn langevin_derivative(x: f64) -> f64 {
     if a < SERIES_LIMIT {
         let x2 = x * x;
         // d/dx Σ c_n x^(2n−1) = Σ (2n−1) c_n x^(2n−2)
-        SERIES
-            .iter()
-            .enumerate()
-            .rev()
-            .fold(0.0, |acc, (n, &c)| acc * x2 + (2 * n + 1) as f64 * c)
+        SERIES.iter().enumerate().rev().fold(0.0, |acc, (n, &c)| acc * x2 + (2 * n + 1) as f64 * c)
     } else if a > ASYMPTOTIC_X {
         1.0 / (x * x)
     } else {

@@ -80,10 +80,7 @@ pub struct Material {
 
 impl Material {
     pub fn new(isochoric: Box<dyn IsochoricEnergy>, volumetric: VolumetricLaw) -> Self {
-        Material {
-            isochoric,
-            volumetric,
-        }
+        Material { isochoric, volumetric }
     }
 
     /// Small-strain shear modulus μ.

@@ -23,11 +23,7 @@ impl MooneyRivlin {
     pub fn new(c10: f64, c01: f64) -> Result<Self, MaterialError> {
         for (name, value) in [("c10", c10), ("c01", c01)] {
             if !value.is_finite() {
-                return Err(MaterialError::InvalidParameter {
-                    name,
-                    value,
-                    reason: "must be finite",
-                });
+                return Err(MaterialError::InvalidParameter { name, value, reason: "must be finite" });
             }
         }
         if c10 + c01 <= 0.0 {
@@ -48,12 +44,7 @@ impl IsochoricEnergy for MooneyRivlin {
     }
 
     fn derivatives(&self, i1b: f64, i2b: f64) -> Result<InvariantDerivatives, MaterialError> {
-        Ok(InvariantDerivatives {
-            w: self.c10 * (i1b - 3.0) + self.c01 * (i2b - 3.0),
-            w1: self.c10,
-            w2: self.c01,
-            ..Default::default()
-        })
+        Ok(InvariantDerivatives { w: self.c10 * (i1b - 3.0) + self.c01 * (i2b - 3.0), w1: self.c10, w2: self.c01, ..Default::default() })
     }
 
     fn shear_modulus(&self) -> f64 {

@@ -4,7 +4,7 @@
 //! shear modulus (μ = 2 C10).
 
 use super::error::MaterialError;
-use super::{IsochoricEnergy, InvariantDerivatives};
+use super::{InvariantDerivatives, IsochoricEnergy};
 
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct NeoHookean {
@@ -32,11 +32,7 @@ impl IsochoricEnergy for NeoHookean {
 
     fn derivatives(&self, i1b: f64, _i2b: f64) -> Result<InvariantDerivatives, MaterialError> {
         let c10 = 0.5 * self.shear_modulus;
-        Ok(InvariantDerivatives {
-            w: c10 * (i1b - 3.0),
-            w1: c10,
-            ..Default::default()
-        })
+        Ok(InvariantDerivatives { w: c10 * (i1b - 3.0), w1: c10, ..Default::default() })
     }
 
     fn shear_modulus(&self) -> f64 {

@@ -30,16 +30,7 @@ pub const MODEL_NAMES: &[&str] = &["neo-hookean", "mooney-rivlin", "yeoh", "eigh
 pub const VOLUMETRIC_KEYS: &[&str] = &["bulk_modulus", "poisson_ratio"];
 
 /// Every constant name any model takes, volumetric ones included.
-pub const ALL_CONSTANTS: &[&str] = &[
-    "shear_modulus",
-    "c10",
-    "c01",
-    "c20",
-    "c30",
-    "locking_stretch",
-    "bulk_modulus",
-    "poisson_ratio",
-];
+pub const ALL_CONSTANTS: &[&str] = &["shear_modulus", "c10", "c01", "c20", "c30", "locking_stretch", "bulk_modulus", "poisson_ratio"];
 
 /// Named constants of one material table, in input order.
 pub type Constants<'a> = &'a [(&'a str, f64)];
@@ -79,10 +70,7 @@ fn reject_extra(model: &'static str, constants: Constants) -> Result<(), Materia
 
 /// The isochoric model `name` with its constants (volumetric keys are ignored here).
 pub fn isochoric_model(name: &str, constants: Constants) -> Result<Box<dyn IsochoricEnergy>, MaterialError> {
-    let model: &'static str = MODEL_NAMES
-        .iter()
-        .find(|m| **m == name)
-        .ok_or_else(|| MaterialError::UnknownModel(name.to_string()))?;
+    let model: &'static str = MODEL_NAMES.iter().find(|m| **m == name).ok_or_else(|| MaterialError::UnknownModel(name.to_string()))?;
     reject_extra(model, constants)?;
     let take = |key| take(model, constants, key);
     Ok(match model {
@@ -90,13 +78,7 @@ pub fn isochoric_model(name: &str, constants: Constants) -> Result<Box<dyn Isoch
             let mu = match (find(model, constants, "shear_modulus")?, find(model, constants, "c10")?) {
                 (Some(mu), None) => mu,
                 (None, Some(c10)) => 2.0 * c10,
-                (Some(_), Some(_)) => {
-                    return Err(MaterialError::ConflictingParameters {
-                        model,
-                        name: "shear_modulus",
-                        other: "c10",
-                    })
-                }
+                (Some(_), Some(_)) => return Err(MaterialError::ConflictingParameters { model, name: "shear_modulus", other: "c10" }),
                 (None, None) => return Err(MaterialError::MissingParameter { model, name: "shear_modulus" }),
             };
             Box::new(NeoHookean::new(mu)?)
@@ -118,13 +100,7 @@ pub fn material(name: &str, constants: Constants, form: VolumetricForm) -> Resul
     let kappa = match (bulk, poisson) {
         (Some(k), None) => k,
         (None, Some(nu)) => VolumetricLaw::bulk_modulus_from_poisson(iso.shear_modulus(), nu)?,
-        (Some(_), Some(_)) => {
-            return Err(MaterialError::ConflictingParameters {
-                model,
-                name: "bulk_modulus",
-                other: "poisson_ratio",
-            })
-        }
+        (Some(_), Some(_)) => return Err(MaterialError::ConflictingParameters { model, name: "bulk_modulus", other: "poisson_ratio" }),
         (None, None) => return Err(MaterialError::MissingParameter { model, name: "bulk_modulus" }),
     };
     Ok(Material::new(iso, VolumetricLaw::new(form, kappa)?))

@@ -68,13 +68,7 @@ impl ModeStability {
 
 /// Margin at `stretch` and the lateral stretch found there, starting the
 /// lateral solve from `from = (stretch, lateral)` of a nearby solved point.
-fn margin_at(
-    material: &Material,
-    mode: Mode,
-    stretch: f64,
-    from: (f64, f64),
-    settings: &Settings,
-) -> Result<(f64, f64), HomogeneousError> {
+fn margin_at(material: &Material, mode: Mode, stretch: f64, from: (f64, f64), settings: &Settings) -> Result<(f64, f64), HomogeneousError> {
     let guess = from.1 * homogeneous::incompressible_lateral(mode, stretch) / homogeneous::incompressible_lateral(mode, from.0);
     let p = homogeneous::point(material, mode, stretch, Some(guess), settings)?;
     let m = drucker_margin(material, p.principal_stretches).map_err(|source| HomogeneousError::Material {
@@ -88,12 +82,7 @@ fn margin_at(
 /// Walks from λ = 1 through `stretches` (one side of 1, ordered outward) and
 /// bisects the first sign change of the margin. Returns the loss stretch,
 /// the last stretch checked and the error that stopped the walk.
-fn walk(
-    material: &Material,
-    mode: Mode,
-    stretches: &[f64],
-    settings: &Settings,
-) -> (Option<f64>, f64, Option<HomogeneousError>) {
+fn walk(material: &Material, mode: Mode, stretches: &[f64], settings: &Settings) -> (Option<f64>, f64, Option<HomogeneousError>) {
     // Last stable (stretch, lateral stretch), starting at the reference state.
     let mut stable = (1.0, 1.0);
     for &s in stretches {
@@ -124,11 +113,5 @@ pub fn check_mode(material: &Material, mode: Mode, stretches: &[f64], settings: 
     down.sort_by(|a, b| b.total_cmp(a));
     let (lost_t, hi, stop_t) = walk(material, mode, &up, settings);
     let (lost_c, lo, stop_c) = walk(material, mode, &down, settings);
-    ModeStability {
-        mode,
-        lost_in_tension: lost_t,
-        lost_in_compression: lost_c,
-        checked: (lo, hi),
-        stopped: stop_t.or(stop_c),
-    }
+    ModeStability { mode, lost_in_tension: lost_t, lost_in_compression: lost_c, checked: (lo, hi), stopped: stop_t.or(stop_c) }
 }

@@ -29,9 +29,7 @@ impl VolumetricForm {
 
     /// Parses a name from a material table.
     pub fn from_name(name: &str) -> Option<Self> {
-        [Self::Quadratic, Self::Logarithmic, Self::SimoTaylor]
-            .into_iter()
-            .find(|f| f.name() == name)
+        [Self::Quadratic, Self::Logarithmic, Self::SimoTaylor].into_iter().find(|f| f.name() == name)
     }
 }
 

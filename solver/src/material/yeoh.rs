@@ -25,11 +25,7 @@ impl Yeoh {
     pub fn new(c10: f64, c20: f64, c30: f64) -> Result<Self, MaterialError> {
         for (name, value) in [("c20", c20), ("c30", c30)] {
             if !value.is_finite() {
-                return Err(MaterialError::InvalidParameter {
-                    name,
-                    value,
-                    reason: "must be finite",
-                });
+                return Err(MaterialError::InvalidParameter { name, value, reason: "must be finite" });
             }
         }
         if !(c10.is_finite() && c10 > 0.0) {

@@ -83,10 +83,7 @@ impl Job {
 
     /// The `history.csv` value columns: `reaction_<set>_<component>`.
     pub fn reaction_columns(&self) -> Vec<String> {
-        self.reaction_sets
-            .iter()
-            .flat_map(|s| self.components().iter().map(move |c| format!("reaction_{s}_{c}")))
-            .collect()
+        self.reaction_sets.iter().flat_map(|s| self.components().iter().map(move |c| format!("reaction_{s}_{c}"))).collect()
     }
 
     /// The rigid-surface columns of `history.csv`: `rigid_<name>_<component>`
@@ -250,7 +247,10 @@ impl Builder<'_> {
         let form = match &t.volumetric {
             None => VolumetricForm::Quadratic,
             Some(v) => VolumetricForm::from_name(v.get_ref()).ok_or_else(|| {
-                self.err(v.span(), format!("material `{name}`: unknown volumetric law `{}` (known: quadratic, logarithmic, simo-taylor)", v.get_ref()))
+                self.err(
+                    v.span(),
+                    format!("material `{name}`: unknown volumetric law `{}` (known: quadratic, logarithmic, simo-taylor)", v.get_ref()),
+                )
             })?,
         };
         let given = t.constants();
@@ -265,7 +265,9 @@ impl Builder<'_> {
 
     fn regions(&self, file: &JobFile, mesh: &Mesh, materials: &mut [JobMaterial]) -> Result<Vec<Region>, InputError> {
         if file.region.is_empty() {
-            return Err(self.err(0..0, "no [[region]]: assign a material to the elements with `[[region]] elements = \"all\", material = \"...\"`"));
+            return Err(
+                self.err(0..0, "no [[region]]: assign a material to the elements with `[[region]] elements = \"all\", material = \"...\"`")
+            );
         }
         let mut out = Vec::new();
         for r in &file.region {

@@ -98,11 +98,7 @@ pub fn check(job: &Job) -> CheckReport {
             let s = check_mode(mat, mode, &stretches, &settings);
             if let Some(l) = s.lost_in_tension.or(s.lost_in_compression) {
                 unstable.push((mode, l));
-                warnings.push(format!(
-                    "material `{}` loses Drucker stability in {} at stretch {l:.3}",
-                    m.name,
-                    mode.name()
-                ));
+                warnings.push(format!("material `{}` loses Drucker stability in {} at stretch {l:.3}", m.name, mode.name()));
             }
         }
         if m.used_by.is_empty() {

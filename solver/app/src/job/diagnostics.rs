@@ -29,11 +29,7 @@ impl std::error::Error for InputError {}
 impl InputError {
     /// An error at byte range `span` of `source` (or without position).
     pub fn at(file: &Path, source: &str, span: Option<Range<usize>>, message: impl Into<String>) -> Self {
-        InputError {
-            file: file.to_path_buf(),
-            position: span.map(|s| line_column(source, s.start)),
-            message: message.into(),
-        }
+        InputError { file: file.to_path_buf(), position: span.map(|s| line_column(source, s.start)), message: message.into() }
     }
 
     /// Converts a `toml` deserialisation error, adding a spelling suggestion

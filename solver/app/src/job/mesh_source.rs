@@ -14,19 +14,13 @@ use super::schema::SelectSpec;
 
 /// Builds the mesh a `[mesh]` table describes; `file` paths are relative to `job_dir`.
 /// Returns the mesh and the importer's notes.
-pub fn mesh_from_table(
-    job: &Path,
-    source: &str,
-    table: &Spanned<toml::Table>,
-) -> Result<(Mesh, Vec<String>), InputError> {
+pub fn mesh_from_table(job: &Path, source: &str, table: &Spanned<toml::Table>) -> Result<(Mesh, Vec<String>), InputError> {
     let span = Some(table.span());
     let t = table.get_ref();
     let err = |message: String| InputError::at(job, source, span.clone(), message);
     if let Some(file) = t.get("file") {
         if let Some(extra) = t.keys().find(|k| *k != "file") {
-            return Err(err(format!(
-                "[mesh]: `{extra}` cannot be combined with `file` (a mesh is either imported or generated)"
-            )));
+            return Err(err(format!("[mesh]: `{extra}` cannot be combined with `file` (a mesh is either imported or generated)")));
         }
         let file = file.as_str().ok_or_else(|| err("[mesh]: `file` must be a string (a path)".into()))?;
         let dir = job.parent().unwrap_or(Path::new("."));
@@ -116,8 +110,7 @@ pub fn apply_selections(job: &Path, source: &str, mesh: &mut Mesh, selects: &[Sp
             for n in select_nodes(mesh, sel, tol).map_err(mesh_err)? {
                 chosen[n] = true;
             }
-            let elements: Vec<usize> =
-                (0..mesh.element_count()).filter(|&e| mesh.element_nodes(e).iter().all(|&n| chosen[n])).collect();
+            let elements: Vec<usize> = (0..mesh.element_count()).filter(|&e| mesh.element_nodes(e).iter().all(|&n| chosen[n])).collect();
             let n = elements.len();
             mesh.element_sets.insert(spec.name.clone(), elements);
             n
@@ -135,13 +128,7 @@ fn set_exists(mesh: &Mesh, name: &str) -> bool {
 
 /// Every set name of the mesh (node, side and element sets), sorted without repeats.
 pub fn all_set_names(mesh: &Mesh) -> Vec<String> {
-    let mut names: Vec<String> = mesh
-        .node_sets
-        .keys()
-        .chain(mesh.side_sets.keys())
-        .chain(mesh.element_sets.keys())
-        .cloned()
-        .collect();
+    let mut names: Vec<String> = mesh.node_sets.keys().chain(mesh.side_sets.keys()).chain(mesh.element_sets.keys()).cloned().collect();
     names.sort();
     names.dedup();
     names

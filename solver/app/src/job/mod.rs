@@ -9,8 +9,8 @@ pub mod build;
 pub mod check;
 pub mod diagnostics;
 pub mod mesh_source;
-pub mod schema;
 mod rigid;
+pub mod schema;
 mod stages;
 
 pub use build::{load, load_str, Job, JobMaterial, OutputPlan, FIELD_NAMES};

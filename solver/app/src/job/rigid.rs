@@ -69,7 +69,11 @@ impl Builder<'_> {
                 if v.axis.iter().all(|&d| d == 0.0) {
                     return Err(bad(c.span(), "cylinder axis must be non-zero".into()));
                 }
-                shapes.push((c.span(), "cylinder", RigidShape::Cylinder { point: v.point, axis: v.axis, radius: v.radius, rubber_outside: true }));
+                shapes.push((
+                    c.span(),
+                    "cylinder",
+                    RigidShape::Cylinder { point: v.point, axis: v.axis, radius: v.radius, rubber_outside: true },
+                ));
             }
             if let Some(c) = &spec.sphere {
                 let v = c.get_ref();
@@ -81,16 +85,26 @@ impl Builder<'_> {
             let (span, key, shape) = match shapes.len() {
                 1 => shapes.pop().expect("one shape"),
                 0 => return Err(bad(r.span(), "give its shape: line, polyline or arc (2-D); plane, cylinder or sphere (3-D)".into())),
-                _ => return Err(bad(r.span(), format!("give one shape, not {}", shapes.iter().map(|s| s.1).collect::<Vec<_>>().join(" and ")))),
+                _ => {
+                    return Err(bad(
+                        r.span(),
+                        format!("give one shape, not {}", shapes.iter().map(|s| s.1).collect::<Vec<_>>().join(" and ")),
+                    ))
+                }
             };
             let three_d = matches!(key, "plane" | "cylinder" | "sphere");
             if three_d != solid {
-                return Err(bad(span, format!("`{key}` is a {} shape; this is a {} analysis", if three_d { "3-D" } else { "2-D" }, kind.name())));
+                return Err(bad(
+                    span,
+                    format!("`{key}` is a {} shape; this is a {} analysis", if three_d { "3-D" } else { "2-D" }, kind.name()),
+                ));
             }
             // The rubber side: the given point, or the centroid of the touching nodes.
             let point = match &spec.rubber_point {
                 Some(p) if p.len() == if solid { 3 } else { 2 } => [p[0], p[1], if solid { p[2] } else { 0.0 }],
-                Some(p) => return Err(bad(r.span(), format!("`rubber_point` needs {} coordinates, got {}", if solid { 3 } else { 2 }, p.len()))),
+                Some(p) => {
+                    return Err(bad(r.span(), format!("`rubber_point` needs {} coordinates, got {}", if solid { 3 } else { 2 }, p.len())))
+                }
                 None => {
                     let nodes = mesh.side_set_nodes(sides).unwrap_or_default();
                     let mut c = [0.0; 3];
@@ -139,7 +153,13 @@ impl Builder<'_> {
 
     /// Rigid-surface positions per stage: each stage that moves or turns a
     /// surface gets its full position (translation and rotation so far).
-    pub(super) fn rigid_motions(&self, file: &JobFile, kind: AnalysisKind, stages: &mut [Stage], loaded: &mut [bool]) -> Result<(), InputError> {
+    pub(super) fn rigid_motions(
+        &self,
+        file: &JobFile,
+        kind: AnalysisKind,
+        stages: &mut [Stage],
+        loaded: &mut [bool],
+    ) -> Result<(), InputError> {
         let dim = kind.components().len();
         for r in &file.rigid {
             let spec = r.get_ref();
@@ -148,7 +168,10 @@ impl Builder<'_> {
             let stage_names: Vec<&str> = stages.iter().map(|s| s.name.as_str()).collect();
             if let Some(m) = &spec.moves {
                 for (stage, v) in m.get_ref() {
-                    let i = stage_names.iter().position(|n| n == stage).ok_or_else(|| self.unknown_name(m.span(), "move", "stage", stage, &stage_names))?;
+                    let i = stage_names
+                        .iter()
+                        .position(|n| n == stage)
+                        .ok_or_else(|| self.unknown_name(m.span(), "move", "stage", stage, &stage_names))?;
                     if v.len() != dim || v.iter().any(|x| !x.is_finite()) {
                         return Err(self.err(m.span(), format!("rigid `{name}`: move in stage `{stage}` needs {dim} finite components")));
                     }
@@ -159,7 +182,10 @@ impl Builder<'_> {
             }
             if let Some(m) = &spec.rotate {
                 for (stage, deg) in m.get_ref() {
-                    let i = stage_names.iter().position(|n| n == stage).ok_or_else(|| self.unknown_name(m.span(), "rotate", "stage", stage, &stage_names))?;
+                    let i = stage_names
+                        .iter()
+                        .position(|n| n == stage)
+                        .ok_or_else(|| self.unknown_name(m.span(), "rotate", "stage", stage, &stage_names))?;
                     if !deg.is_finite() {
                         return Err(self.err(m.span(), format!("rigid `{name}`: rotation in stage `{stage}` must be finite")));
                     }

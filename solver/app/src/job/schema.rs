@@ -264,11 +264,7 @@ pub struct OutputSpec {
 
 impl Default for OutputSpec {
     fn default() -> Self {
-        OutputSpec {
-            folder: None,
-            every: one(),
-            fields: None,
-        }
+        OutputSpec { folder: None, every: one(), fields: None }
     }
 }
 

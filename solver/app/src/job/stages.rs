@@ -24,7 +24,9 @@ impl Builder<'_> {
         for (k, v) in map.get_ref() {
             let Some(i) = names.iter().position(|n| n == k) else {
                 let hint = nearest(k, names.iter().copied()).map(|n| format!("; did you mean `{n}`?")).unwrap_or_default();
-                return Err(self.err(map.span(), format!("unknown component `{k}` for {} analysis (use {}){hint}", kind.name(), names.join(", "))));
+                return Err(
+                    self.err(map.span(), format!("unknown component `{k}` for {} analysis (use {}){hint}", kind.name(), names.join(", ")))
+                );
             };
             if !v.is_finite() {
                 return Err(self.err(map.span(), format!("component `{k}` must be a finite number")));
@@ -107,7 +109,10 @@ impl Builder<'_> {
             for c in spec.fix.get_ref() {
                 let Some(i) = names.iter().position(|n| n == c) else {
                     let hint = nearest(c, names.iter().copied()).map(|n| format!("; did you mean `{n}`?")).unwrap_or_default();
-                    return Err(self.err(spec.fix.span(), format!("unknown component `{c}` for {} analysis (use {}){hint}", kind.name(), names.join(", "))));
+                    return Err(self.err(
+                        spec.fix.span(),
+                        format!("unknown component `{c}` for {} analysis (use {}){hint}", kind.name(), names.join(", ")),
+                    ));
                 };
                 components[i] = true;
             }

@@ -9,9 +9,7 @@ use std::path::Path;
 /// complete new one, never a partial write.
 pub fn write_atomic(path: &Path, bytes: &[u8]) -> io::Result<()> {
     let dir = path.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
-    let name = path
-        .file_name()
-        .ok_or_else(|| io::Error::new(io::ErrorKind::InvalidInput, "path has no file name"))?;
+    let name = path.file_name().ok_or_else(|| io::Error::new(io::ErrorKind::InvalidInput, "path has no file name"))?;
     let tmp = dir.join(format!(".{}.{}.tmp", name.to_string_lossy(), std::process::id()));
     let result = (|| {
         let mut f = fs::File::create(&tmp)?;
@@ -37,9 +35,7 @@ mod tests {
         write_atomic(&target, b"first, longer content\n").unwrap();
         write_atomic(&target, b"second\n").unwrap();
         assert_eq!(fs::read(&target).unwrap(), b"second\n");
-        let leftovers = fs::read_dir(&dir).unwrap().filter(|e| {
-            e.as_ref().unwrap().file_name().to_string_lossy().ends_with(".tmp")
-        });
+        let leftovers = fs::read_dir(&dir).unwrap().filter(|e| e.as_ref().unwrap().file_name().to_string_lossy().ends_with(".tmp"));
         assert_eq!(leftovers.count(), 0);
         fs::remove_dir_all(&dir).unwrap();
     }

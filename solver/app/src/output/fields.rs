@@ -44,7 +44,11 @@ impl Peak {
 
     /// Replaces the empty-mesh sentinel so JSON never holds infinities.
     fn finite(self) -> Self {
-        if self.value.is_finite() { self } else { Peak { value: 0.0, at: [0.0; 3] } }
+        if self.value.is_finite() {
+            self
+        } else {
+            Peak { value: 0.0, at: [0.0; 3] }
+        }
     }
 }
 
@@ -117,10 +121,8 @@ struct ElementResult {
 pub fn frame(disc: &Discretization, u: &[f64], prescribed: &[bool], wanted: &[String]) -> Result<Frame, SolveError> {
     let mesh = disc.mesh();
     let dim = disc.dim;
-    let per: Vec<Result<(ElementResult, [f64; MAX_DOFS]), SolveError>> = (0..mesh.element_count())
-        .into_par_iter()
-        .map(|e| element_result(disc, e, u))
-        .collect();
+    let per: Vec<Result<(ElementResult, [f64; MAX_DOFS]), SolveError>> =
+        (0..mesh.element_count()).into_par_iter().map(|e| element_result(disc, e, u)).collect();
     let nn = mesh.node_count();
     let ne = mesh.element_count();
     let mut cell = vec![[0.0; MEANS]; ne];

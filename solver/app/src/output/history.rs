@@ -27,22 +27,13 @@ struct Row {
 
 impl History {
     pub fn new(columns: Vec<String>) -> Self {
-        History {
-            columns,
-            rows: Vec::new(),
-        }
+        History { columns, rows: Vec::new() }
     }
 
     /// Appends a row; `values` follow `columns`.
     pub fn push(&mut self, stage: &str, increment: usize, load_factor: f64, values: Vec<f64>, iterations: usize) {
         debug_assert_eq!(values.len(), self.columns.len());
-        self.rows.push(Row {
-            stage: stage.to_string(),
-            increment,
-            load_factor,
-            values,
-            iterations,
-        });
+        self.rows.push(Row { stage: stage.to_string(), increment, load_factor, values, iterations });
     }
 
     pub fn len(&self) -> usize {

@@ -18,12 +18,7 @@ pub fn pvd_text(entries: &[PvdEntry]) -> String {
         "<?xml version=\"1.0\"?>\n<VTKFile type=\"Collection\" version=\"0.1\" byte_order=\"LittleEndian\">\n  <Collection>\n",
     );
     for e in entries {
-        let _ = writeln!(
-            s,
-            "    <DataSet timestep=\"{}\" group=\"\" part=\"0\" file=\"{}\"/>",
-            e.time,
-            xml_escape(&e.file)
-        );
+        let _ = writeln!(s, "    <DataSet timestep=\"{}\" group=\"\" part=\"0\" file=\"{}\"/>", e.time, xml_escape(&e.file));
     }
     s.push_str("  </Collection>\n</VTKFile>\n");
     s

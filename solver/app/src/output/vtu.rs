@@ -23,11 +23,7 @@ pub struct Field {
 
 impl Field {
     pub fn new(name: impl Into<String>, components: usize, values: Vec<f64>) -> Self {
-        Field {
-            name: name.into(),
-            components,
-            values,
-        }
+        Field { name: name.into(), components, values }
     }
 }
 
@@ -42,18 +38,10 @@ fn attribute(f: Field) -> Attribute {
 
 /// Writes `mesh` with the given arrays to `path` atomically (the arrays move
 /// into the file model rather than being copied).
-pub fn write_vtu(
-    path: &Path,
-    title: &str,
-    mesh: &Mesh,
-    point_fields: Vec<Field>,
-    cell_fields: Vec<Field>,
-) -> std::io::Result<()> {
+pub fn write_vtu(path: &Path, title: &str, mesh: &Mesh, point_fields: Vec<Field>, cell_fields: Vec<Field>) -> std::io::Result<()> {
     // The mesh crate's grid with exactly the chosen result arrays.
-    let extra = Attributes {
-        point: point_fields.into_iter().map(attribute).collect(),
-        cell: cell_fields.into_iter().map(attribute).collect(),
-    };
+    let extra =
+        Attributes { point: point_fields.into_iter().map(attribute).collect(), cell: cell_fields.into_iter().map(attribute).collect() };
     let mut vtk = olli_mesh::export::grid(mesh, extra);
     vtk.title = if title.is_empty() { "olli".into() } else { title.into() };
     let mut bytes = Vec::new();

@@ -17,10 +17,10 @@ use super::history::History;
 use super::pvd::{pvd_text, PvdEntry};
 use super::summary::{units, Files, IncrementRef, RunSummary};
 use super::vtu::{write_vtu, Field};
+use crate::job::Job;
 use olli_solver::assembly::Discretization;
 use olli_solver::driver::{Event, Observer};
 use olli_solver::error::SolveError;
-use crate::job::Job;
 use olli_solver::results::{IncrementResult, Solution, Termination};
 
 /// Names of the files in the output folder.

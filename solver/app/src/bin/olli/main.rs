@@ -12,11 +12,7 @@ use std::process::ExitCode;
 use clap::{Parser, Subcommand};
 
 #[derive(Parser)]
-#[command(
-    name = "olli",
-    version,
-    about = "Large-strain finite-element analysis of rubber seals, mounts and bushings"
-)]
+#[command(name = "olli", version, about = "Large-strain finite-element analysis of rubber seals, mounts and bushings")]
 struct Cli {
     #[command(subcommand)]
     command: Command,

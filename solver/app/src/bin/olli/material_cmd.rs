@@ -20,7 +20,9 @@ use olli_solver::material::stability::check_mode;
 use spec::MaterialSpec;
 
 #[derive(clap::Args)]
-#[command(after_help = "Examples:\n  olli material examples/materials/soft-nr.toml --mode uniaxial --stretch 0.5:3:26 --csv nr.csv\n  olli material --model eight-chain --param shear_modulus=0.6 --param locking_stretch=5 --param bulk_modulus=1000")]
+#[command(
+    after_help = "Examples:\n  olli material examples/materials/soft-nr.toml --mode uniaxial --stretch 0.5:3:26 --csv nr.csv\n  olli material --model eight-chain --param shear_modulus=0.6 --param locking_stretch=5 --param bulk_modulus=1000"
+)]
 pub struct Args {
     /// TOML file holding one `[material]` table (keys: model, shear_modulus, c10, c01, c20, c30,
     /// locking_stretch, bulk_modulus or poisson_ratio, volumetric).
@@ -58,10 +60,7 @@ pub struct StretchError {
 
 /// The stretches of `MIN:MAX:N`.
 fn parse_stretch(text: &str) -> Result<Vec<f64>, StretchError> {
-    let bad = |reason| StretchError {
-        text: text.to_string(),
-        reason,
-    };
+    let bad = |reason| StretchError { text: text.to_string(), reason };
     let parts: Vec<&str> = text.split(':').collect();
     let [min, max, n] = parts[..] else {
         return Err(bad("expected MIN:MAX:N, e.g. 0.5:3:26"));
@@ -114,12 +113,7 @@ pub fn run(args: Args) -> ExitCode {
     for mode in modes {
         let (points, stops) = sweep(&material, mode, &stretches, &settings);
         let stability = check_mode(&material, mode, &stretches, &settings);
-        results.push(output::ModeResult {
-            mode,
-            points,
-            stops,
-            stability,
-        });
+        results.push(output::ModeResult { mode, points, stops, stability });
     }
     output::print_report(&spec, &material, &results);
     if let Some(path) = &args.csv {

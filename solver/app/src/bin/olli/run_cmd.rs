@@ -182,7 +182,11 @@ pub fn run(args: Args) -> ExitCode {
     match writer.finish(&solution) {
         Ok(summary) => {
             print_summary(&summary, &folder, job.components());
-            if solution.completed() { ExitCode::SUCCESS } else { ExitCode::from(1) }
+            if solution.completed() {
+                ExitCode::SUCCESS
+            } else {
+                ExitCode::from(1)
+            }
         }
         Err(e) => {
             eprintln!("error: {}: cannot write results: {e}", folder.display());

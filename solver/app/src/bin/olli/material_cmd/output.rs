@@ -102,7 +102,8 @@ pub fn print_report(spec: &MaterialSpec, material: &Material, results: &[ModeRes
 }
 
 /// CSV columns, in order.
-pub const CSV_HEADER: &str = "mode,stretch,amount_of_shear,nominal_stress,true_stress,lateral_stretch_2,lateral_stretch_3,volume_ratio,drucker_stable";
+pub const CSV_HEADER: &str =
+    "mode,stretch,amount_of_shear,nominal_stress,true_stress,lateral_stretch_2,lateral_stretch_3,volume_ratio,drucker_stable";
 
 fn csv_text(material: &Material, results: &[ModeResult]) -> String {
     let mut out = String::from(CSV_HEADER);

@@ -37,18 +37,9 @@ pub enum SpecError {
     #[error("{path}: {message}")]
     Syntax { path: String, message: String },
     #[error("{at}: unknown key `{key}` in {table}{hint}")]
-    UnknownKey {
-        at: String,
-        key: String,
-        table: &'static str,
-        hint: String,
-    },
+    UnknownKey { at: String, key: String, table: &'static str, hint: String },
     #[error("{at}: key `{key}` must be {expected}")]
-    WrongType {
-        at: String,
-        key: String,
-        expected: &'static str,
-    },
+    WrongType { at: String, key: String, expected: &'static str },
     #[error("{path}: no [material] table (write the model and its constants under `[material]`)")]
     NoMaterialTable { path: String },
     #[error("{at}: no `model` key (one of: {known})", known = MODEL_NAMES.join(", "))]
@@ -81,10 +72,7 @@ impl MaterialSpec {
     /// Reads the `[material]` table of the TOML file at `path`.
     pub fn from_file(path: &std::path::Path) -> Result<Self, SpecError> {
         let shown = path.display().to_string();
-        let text = std::fs::read_to_string(path).map_err(|e| SpecError::Read {
-            path: shown.clone(),
-            message: e.to_string(),
-        })?;
+        let text = std::fs::read_to_string(path).map_err(|e| SpecError::Read { path: shown.clone(), message: e.to_string() })?;
         Self::from_toml(&text, &shown)
     }
 
@@ -94,10 +82,8 @@ impl MaterialSpec {
             let (l, c) = line_column(text, span.start);
             format!("{path}:{l}:{c}")
         };
-        let root = DeTable::parse(text).map_err(|e| SpecError::Syntax {
-            path: path.to_string(),
-            message: e.to_string().trim_end().to_string(),
-        })?;
+        let root = DeTable::parse(text)
+            .map_err(|e| SpecError::Syntax { path: path.to_string(), message: e.to_string().trim_end().to_string() })?;
         // Keys come sorted by name; report problems in file order.
         let mut top: Vec<_> = root.get_ref().iter().collect();
         top.sort_by_key(|(k, _)| k.span().start);
@@ -113,13 +99,7 @@ impl MaterialSpec {
             }
             match value.get_ref() {
                 DeValue::Table(t) => table = Some((t, key.span())),
-                _ => {
-                    return Err(SpecError::WrongType {
-                        at: at(key.span()),
-                        key: "material".into(),
-                        expected: "a table ([material])",
-                    })
-                }
+                _ => return Err(SpecError::WrongType { at: at(key.span()), key: "material".into(), expected: "a table ([material])" }),
             }
         }
         let (table, table_span) = table.ok_or_else(|| SpecError::NoMaterialTable { path: path.to_string() })?;
@@ -135,21 +115,13 @@ impl MaterialSpec {
             let here = at(key.span());
             let text_value = |expected| match value.get_ref() {
                 DeValue::String(s) => Ok(s.to_string()),
-                _ => Err(SpecError::WrongType {
-                    at: here.clone(),
-                    key: name.to_string(),
-                    expected,
-                }),
+                _ => Err(SpecError::WrongType { at: here.clone(), key: name.to_string(), expected }),
             };
             match name {
                 "model" => {
                     let m = text_value("a string: the model name")?;
                     if !MODEL_NAMES.contains(&m.as_str()) {
-                        return Err(SpecError::UnknownModel {
-                            at: here,
-                            hint: did_you_mean(&m, MODEL_NAMES),
-                            name: m,
-                        });
+                        return Err(SpecError::UnknownModel { at: here, hint: did_you_mean(&m, MODEL_NAMES), name: m });
                     }
                     origins.push(("model", here));
                     model = Some(m);
@@ -173,30 +145,19 @@ impl MaterialSpec {
                         });
                     };
                     let number = match value.get_ref() {
-                        DeValue::Integer(i) => i64::from_str_radix(&i.as_str().replace('_', ""), i.radix())
-                            .ok()
-                            .map(|v| v as f64),
+                        DeValue::Integer(i) => i64::from_str_radix(&i.as_str().replace('_', ""), i.radix()).ok().map(|v| v as f64),
                         DeValue::Float(f) => f.as_str().replace('_', "").parse::<f64>().ok(),
                         _ => None,
                     };
-                    let number = number.ok_or_else(|| SpecError::WrongType {
-                        at: here.clone(),
-                        key: name.to_string(),
-                        expected: "a number",
-                    })?;
+                    let number =
+                        number.ok_or_else(|| SpecError::WrongType { at: here.clone(), key: name.to_string(), expected: "a number" })?;
                     constants.push((constant, number));
                     origins.push((constant, here));
                 }
             }
         }
         let model = model.ok_or_else(|| SpecError::MissingModel { at: at(table_span) })?;
-        Ok(MaterialSpec {
-            model,
-            constants,
-            volumetric,
-            origins,
-            source: path.to_string(),
-        })
+        Ok(MaterialSpec { model, constants, volumetric, origins, source: path.to_string() })
     }
 
     /// A material from `--model NAME --param KEY=VALUE ...`.
@@ -216,9 +177,7 @@ impl MaterialSpec {
         let mut constants = Vec::new();
         let mut origins = vec![("model", format!("option --model {model}"))];
         for text in params {
-            let (name, value) = text
-                .split_once('=')
-                .ok_or_else(|| SpecError::BadParam { text: text.clone() })?;
+            let (name, value) = text.split_once('=').ok_or_else(|| SpecError::BadParam { text: text.clone() })?;
             let name = name.trim();
             let constant = known_constant(name).ok_or_else(|| SpecError::UnknownKey {
                 at: "option --param".into(),
@@ -226,20 +185,11 @@ impl MaterialSpec {
                 table: "the material parameters",
                 hint: did_you_mean(name, ALL_CONSTANTS),
             })?;
-            let value: f64 = value
-                .trim()
-                .parse()
-                .map_err(|_| SpecError::BadParam { text: text.clone() })?;
+            let value: f64 = value.trim().parse().map_err(|_| SpecError::BadParam { text: text.clone() })?;
             constants.push((constant, value));
             origins.push((constant, format!("option --param {text}")));
         }
-        Ok(MaterialSpec {
-            model: model.to_string(),
-            constants,
-            volumetric,
-            origins,
-            source: "options".into(),
-        })
+        Ok(MaterialSpec { model: model.to_string(), constants, volumetric, origins, source: "options".into() })
     }
 
     /// Builds the material; a bad constant is reported where it was given.
