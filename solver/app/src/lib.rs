@@ -9,3 +9,4 @@
 pub mod job;
 pub mod output;
 pub mod plot;
+pub mod report;

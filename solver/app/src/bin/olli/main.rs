@@ -5,6 +5,7 @@
 mod check_cmd;
 mod material_cmd;
 mod mesh_cmd;
+mod plot_cmd;
 mod run_cmd;
 
 use std::process::ExitCode;
@@ -28,6 +29,8 @@ enum Command {
     Run(run_cmd::Args),
     /// Check a job file and its mesh without solving.
     Check(check_cmd::Args),
+    /// Draw pictures of a run (force–travel, stiffness, contact pressure, contours) and its report page.
+    Plot(plot_cmd::Args),
 }
 
 fn main() -> ExitCode {
@@ -37,5 +40,6 @@ fn main() -> ExitCode {
         Command::Mesh(args) => mesh_cmd::run(args),
         Command::Run(args) => run_cmd::run(args),
         Command::Check(args) => check_cmd::run(args),
+        Command::Plot(args) => plot_cmd::run(args),
     }
 }
