@@ -105,8 +105,8 @@ fn latin_hypercube(parameters: &[Parameter], samples: usize, seed: u64) -> Vec<V
     (0..samples).map(|j| columns.iter().map(|c| c[j].clone()).collect()).collect()
 }
 
-/// The value at cumulative probability `u` of a parameter's levels; integer
-/// keys get the nearest integer.
+/// The value at cumulative probability `u` of a parameter's levels, to six
+/// significant digits; integer keys get the nearest integer.
 fn quantile(p: &Parameter, u: f64) -> ParamValue {
     let x = match &p.levels {
         Levels::List(values) => return values[((u * values.len() as f64) as usize).min(values.len() - 1)].clone(),
@@ -115,7 +115,8 @@ fn quantile(p: &Parameter, u: f64) -> ParamValue {
     };
     match p.base {
         ParamValue::Integer(_) => ParamValue::Integer(x.round() as i64),
-        _ => ParamValue::Float(x),
+        // Six significant digits: plenty for a design value, and readable in the job and the table.
+        _ => ParamValue::Float(format!("{x:.5e}").parse().expect("a formatted float parses")),
     }
 }
 
