@@ -33,6 +33,9 @@ pub use rule::{Domain, Rule};
 /// Largest node count of any shape (hex27).
 pub const MAX_NODES: usize = 27;
 
+/// Largest node count of any side (a quad9 face).
+pub const MAX_SIDE_NODES: usize = 9;
+
 /// Every shape the solver knows: elements and the sides of elements.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 pub enum ShapeKind {
@@ -146,6 +149,13 @@ impl ShapeKind {
             ShapeKind::Line3 => "line3",
             other => other.element_kind().map_or("", ElementKind::name),
         }
+    }
+
+    /// The side shape with `nodes` nodes of an element of dimension
+    /// `element_dimension`: edges (line2, line3) in 2-D, faces (tri3, quad4,
+    /// tri6, quad8, quad9) in 3-D.
+    pub fn side_with_nodes(element_dimension: usize, nodes: usize) -> Option<ShapeKind> {
+        ShapeKind::ALL.into_iter().find(|k| k.dimension() + 1 == element_dimension && k.nodes() == nodes)
     }
 
     /// Number of nodes.
