@@ -162,8 +162,11 @@ mod tests {
     use super::*;
     use crate::shape::ShapeKind;
 
+    /// Basis, point positions, basis values and volume weights.
+    type Points = (PressureBasis, Vec<[f64; 3]>, Vec<Vector4<f64>>, Vec<f64>);
+
     /// Points, weights and basis values of a distorted quad9 (2-D) under its rule.
-    fn quad9_points() -> (PressureBasis, Vec<[f64; 3]>, Vec<Vector4<f64>>, Vec<f64>) {
+    fn quad9_points() -> Points {
         let shape = ShapeKind::Quad9;
         let def = shape.def();
         let x: Vec<[f64; 3]> =
