@@ -432,8 +432,9 @@ impl<'a> NewtonContext<'a> {
 
     /// Condenses the insert unknowns out of the Newton step: `du` (solved
     /// with the inserts held) is corrected, the insert step kept in `dq` and
-    /// its bonded-dof direction in `bonded_direction`. Returns `dq·g`.
-    fn couple_inserts(&mut self) -> Result<f64, SolveError> {
+    /// its bonded-dof direction in `bonded_direction`. The prescribed change
+    /// `dup` belongs to the first iteration only. Returns `dq·g`.
+    fn couple_inserts(&mut self, first: bool) -> Result<f64, SolveError> {
         let m = self.insert_residual.len();
         self.dq.clear();
         self.bonded_direction.fill(0.0);
@@ -445,7 +446,9 @@ impl<'a> NewtonContext<'a> {
         let (j, w) = self.insert_vectors.split_at(m * ndof);
         let (kj, kw) = self.insert_products.split_at(m * ndof);
         let linear = &mut *self.linear;
-        self.dq = condense(&self.dofs.eq, w, kj, kw, &self.insert_residual, &h, &self.dup, &mut self.du, |x| linear.solve(x))?;
+        let none = vec![0.0; if first { 0 } else { ndof }];
+        let dup = if first { &self.dup } else { &none };
+        self.dq = condense(&self.dofs.eq, w, kj, kw, &self.insert_residual, &h, dup, &mut self.du, |x| linear.solve(x))?;
         for (k, dq) in self.dq.iter().enumerate() {
             for (b, jk) in self.bonded_direction.iter_mut().zip(&j[k * ndof..(k + 1) * ndof]) {
                 *b += jk * dq;
@@ -543,7 +546,7 @@ impl<'a> NewtonContext<'a> {
             }
             self.du.copy_from_slice(&self.rhs);
             self.linear.solve(&mut self.du)?;
-            let insert_work = self.couple_inserts()?;
+            let insert_work = self.couple_inserts(iterations == 0)?;
             self.inserts.save_base();
             iterations += 1;
             self.state_directions(iterations == 1)?;
