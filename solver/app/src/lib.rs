@@ -8,4 +8,5 @@
 
 pub mod job;
 pub mod output;
+pub mod plot;
 pub mod sweep;
