@@ -34,4 +34,8 @@ fn mount_example_forces_match_its_note() {
     let history = std::fs::read_to_string(scratch.0.join("history.csv")).unwrap();
     assert_eq!(history.lines().count(), 1 + solution.increments.len());
     assert!(history.starts_with("stage,increment,load_factor,reaction_bottom_x,"));
+    // Its pictures (issue 13): each drawn at its size and not blank, the report
+    // page well formed with every image present.
+    let pictures = olli_verification::pictures::check_report(Some(&job), &scratch.0);
+    assert_eq!(olli_verification::pictures::names(&pictures), ["force.png", "stiffness.png", "section_1.png", "section_2.png"]);
 }

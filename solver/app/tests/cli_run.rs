@@ -1,6 +1,8 @@
 //! `olli run` and `olli check` as scripts use them: exit codes, the files
 //! written (and not written), `history.csv` columns, `summary.json`, `.vtu`
-//! arrays read back with vtkio, and the message of every kind of bad input.
+//! arrays read back with vtkio, and the message of every kind of bad input;
+//! `olli plot` and `olli run --plots`: the pictures and `index.html`, SVG
+//! text holding the curves and labels, a folder without results.
 
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
@@ -331,4 +333,81 @@ fn a_step_ramp_applies_the_whole_motion_in_the_first_increment() {
 fn unknown_ramp_is_located_with_a_suggestion() {
     let job = BUSH.replace("displacement = { r = 0.0, z = 0.5 }", "displacement = { r = 0.0, z = 0.5 }\nramp = \"stpe\"");
     rejects(&job, &["unknown ramp `stpe`", "did you mean `step`?"]);
+}
+
+/// For the pictures: a small plane-strain block (invented numbers) pressed by a rigid plate:
+/// a reaction, a rigid surface with contact, two stages.
+const BLOCK: &str = r#"
+title = "test block"
+analysis = "plane-strain"
+
+[mesh]
+generate = "rectangle"
+size = [2.0, 1.0]
+divisions = [4, 2]
+
+[materials.soft]
+model = "neo-hookean"
+shear_modulus = 0.5
+bulk_modulus = 500.0
+
+[[region]]
+elements = "all"
+material = "soft"
+
+[[support]]
+nodes = "bottom"
+fix = ["x", "y"]
+
+[[rigid]]
+name = "plate"
+touches = "top"
+line = { point = [-1.0, 1.0], direction = [-1.0, 0.0] }
+move = { press = [0.0, -0.1], hold = [0.0, -0.1] }
+
+[[stage]]
+name = "press"
+first_increment = 0.25
+
+[[stage]]
+name = "hold"
+"#;
+
+#[test]
+fn run_with_plots_then_plot_as_svg() {
+    let s = Scratch::new("plots-svg");
+    let job = s.job(BLOCK);
+    let out = s.out();
+    let run = olli(&["run", job.to_str().unwrap(), "--output", out.to_str().unwrap(), "--quiet", "--plots"]);
+    assert_eq!(run.status.code(), Some(0), "{}", text(&run));
+    for file in ["force.png", "stiffness.png", "section_1.png", "contact_plate_1.png", "section_2.png", "index.html"] {
+        assert!(out.join(file).is_file(), "{file} missing: {}", text(&run));
+    }
+    let png = std::fs::read(out.join("force.png")).unwrap();
+    assert_eq!(&png[..8], b"\x89PNG\r\n\x1a\n");
+
+    let svg_dir = s.0.join("svg");
+    let plot = olli(&["plot", out.to_str().unwrap(), "--output", svg_dir.to_str().unwrap(), "--format", "svg", "--field", "von-mises"]);
+    assert_eq!(plot.status.code(), Some(0), "{}", text(&plot));
+    let force = std::fs::read_to_string(svg_dir.join("force.svg")).unwrap();
+    // The reaction's y force and the plate's y force (x components are zero: no friction).
+    // Curves are drawn 2 px wide, once along the data and once as a legend sample.
+    assert_eq!(force.matches("stroke-width=\"2\" points=").count(), 2 * 2, "two force curves");
+    for label in ["reaction bottom, y", "rigid plate, y", "end of `press`", "force [F]", "test block"] {
+        assert!(force.contains(label), "force.svg lacks `{label}`");
+    }
+    let section = std::fs::read_to_string(svg_dir.join("section_2.svg")).unwrap();
+    assert!(section.contains("von Mises stress") && section.contains("rigid `plate`") && section.contains("undeformed"));
+    let html = std::fs::read_to_string(svg_dir.join("index.html")).unwrap();
+    assert!(html.contains("<img src=\"force.svg\""));
+}
+
+#[test]
+fn plot_of_a_folder_without_results_is_bad_input() {
+    let s = Scratch::new("plot-empty");
+    let out = olli(&["plot", s.0.to_str().unwrap()]);
+    assert_eq!(out.status.code(), Some(2));
+    let msg = text(&out);
+    assert!(msg.contains("history.csv") && msg.contains("cannot read"), "{msg}");
+    assert!(!s.0.join("index.html").exists(), "nothing written");
 }

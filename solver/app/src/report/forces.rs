@@ -3,32 +3,55 @@
 //! against the applied travel when the history has an `applied_*` travel
 //! column, else against the cumulative load factor; stage ends are marked.
 
-use super::results::{RunResults, Table};
+use super::results::RunResults;
 use crate::plot::{Axis, LineChart, Series};
 
-/// Component names that end a force column.
+/// Component names that end a force or travel column.
 const COMPONENTS: [&str; 4] = ["x", "y", "z", "r"];
 
-/// The force columns of the history: `reaction_*`, `rigid_*` and `insert_*`
-/// columns ending in a component.
-pub fn force_columns(table: &Table) -> Vec<&str> {
-    table
-        .columns
-        .iter()
-        .filter(|c| ["reaction_", "rigid_", "insert_"].iter().any(|p| c.starts_with(p)))
-        .filter(|c| c.rsplit_once('_').is_some_and(|(_, comp)| COMPONENTS.contains(&comp)))
-        .map(String::as_str)
-        .collect()
+/// The part of `column` after `prefix` ends in `_<component>` with nothing
+/// but a name before it.
+fn ends_in_component(column: &str) -> bool {
+    column.rsplit_once('_').is_some_and(|(_, comp)| COMPONENTS.contains(&comp))
 }
 
-/// The horizontal axis: the `applied_*` column with the largest range whose
-/// dimension is a length (or unknown), else the cumulative load factor.
+/// Whether a column is a force: by its dimension in the summary's `units`
+/// when known, else by name (`reaction_<set>_<c>`, `rigid_<name>_<c>`,
+/// `insert_<name>_force_<c>`).
+fn is_force(r: &RunResults, column: &str) -> bool {
+    if !["reaction_", "rigid_", "insert_"].iter().any(|p| column.starts_with(p)) || !ends_in_component(column) {
+        return false;
+    }
+    match r.dimension(column) {
+        Some(d) => d == "force",
+        None => !column.starts_with("insert_") || column.rsplit('_').nth(1) == Some("force"),
+    }
+}
+
+/// Whether a column is an applied travel: `applied_<set>_<c>` or an
+/// insert's displacement `insert_<name>_<c>`, of dimension length when the
+/// summary says.
+fn is_travel(r: &RunResults, column: &str) -> bool {
+    let by_name = column.starts_with("applied_")
+        || (column.starts_with("insert_")
+            && ends_in_component(column)
+            && !["force", "moment"].iter().any(|k| column.rsplit('_').nth(1) == Some(k)));
+    by_name && r.dimension(column).is_none_or(|d| d == "length")
+}
+
+/// The force columns of the history (reactions, rigid surfaces, inserts).
+pub fn force_columns(r: &RunResults) -> Vec<&str> {
+    r.history.columns.iter().filter(|c| is_force(r, c)).map(String::as_str).collect()
+}
+
+/// The horizontal axis: the applied travel with the largest range, else the
+/// cumulative load factor.
 fn abscissa(r: &RunResults) -> (Axis, Vec<f64>, bool) {
     let t = &r.history;
     let travel = t
         .columns
         .iter()
-        .filter(|c| c.starts_with("applied_") && r.dimension(c).is_none_or(|d| d == "length"))
+        .filter(|c| is_travel(r, c))
         .filter_map(|c| {
             let v = t.column(c)?;
             let (lo, hi) = v.iter().filter(|x| x.is_finite()).fold((0.0f64, 0.0f64), |(a, b), &x| (a.min(x), b.max(x)));
@@ -55,8 +78,10 @@ fn series_name(column: &str) -> String {
 /// The force–travel chart and the tangent-stiffness chart (none without a force column).
 pub fn force_charts(r: &RunResults) -> Vec<(String, LineChart)> {
     let t = &r.history;
-    let forces: Vec<&str> =
-        force_columns(t).into_iter().filter(|c| t.column(c).is_some_and(|v| v.iter().any(|x| x.is_finite() && x.abs() > 0.0))).collect();
+    let largest = |c: &str| t.column(c).map_or(0.0, |v| v.iter().filter(|x| x.is_finite()).fold(0.0f64, |m, x| m.max(x.abs())));
+    let scale = force_columns(r).into_iter().map(largest).fold(0.0f64, f64::max);
+    // Components that stay at round-off (a total that equilibrium makes zero) are left out.
+    let forces: Vec<&str> = force_columns(r).into_iter().filter(|c| largest(c) > 1e-9 * scale).collect();
     if forces.is_empty() || t.is_empty() {
         return Vec::new();
     }
@@ -99,6 +124,7 @@ pub fn force_charts(r: &RunResults) -> Vec<(String, LineChart)> {
 
 #[cfg(test)]
 mod tests {
+    use super::super::results::Table;
     use super::*;
     use std::path::Path;
 
@@ -123,12 +149,24 @@ mod tests {
         assert_eq!(k.series[0].points, [(0.5, 3.0), (1.5, 9.0)], "the hold stage (no travel) has no slope");
     }
 
+    /// Insert columns: the displacement is a travel, the force a force, the moment neither.
+    #[test]
+    fn insert_columns_split_into_travel_and_force() {
+        let text =
+            "stage,increment,load_factor,insert_pin_x,insert_pin_force_x,insert_pin_moment_z,newton_iterations\na,1,1.0,0.5,10.0,3.0,1\n";
+        let r = results(text);
+        assert_eq!(force_columns(&r), ["insert_pin_force_x"]);
+        let charts = force_charts(&r);
+        assert_eq!(charts[0].1.series[0].points, [(0.0, 0.0), (0.5, 10.0)]);
+        assert!(charts[0].1.x.quantity.contains("insert pin x"));
+    }
+
     #[test]
     fn without_a_travel_column_the_load_factor_is_the_abscissa() {
-        let text = "stage,increment,load_factor,reaction_top_x,reaction_top_y,newton_iterations\na,1,1.0,0.0,2.0,1\nb,1,0.5,0.0,3.0,1\n";
+        let text = "stage,increment,load_factor,reaction_top_x,reaction_top_y,newton_iterations\na,1,1.0,1e-14,2.0,1\nb,1,0.5,0.0,3.0,1\n";
         let charts = force_charts(&results(text));
         let (_, force) = &charts[0];
-        assert_eq!(force.series.len(), 1, "the all-zero x component is left out");
+        assert_eq!(force.series.len(), 1, "the round-off x component is left out");
         assert_eq!(force.series[0].points, [(0.0, 0.0), (1.0, 2.0), (1.5, 3.0)]);
         assert!(force.x.quantity.starts_with("load factor"));
     }

@@ -64,7 +64,7 @@ pub fn summary_rows(r: &RunResults) -> Vec<[String; 3]> {
     }
     let t = &r.history;
     if let Some(last) = t.len().checked_sub(1) {
-        for c in force_columns(t) {
+        for c in force_columns(r) {
             let v = t.column(c).map(|v| v[last]).unwrap_or(f64::NAN);
             rows.push([c.to_string(), number(v), "force at the last converged increment".into()]);
         }
