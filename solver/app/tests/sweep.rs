@@ -82,6 +82,12 @@ range = { from = 0.4, to = 0.8, count = 3 }
     assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
     let rows = table(&s.0.join("out/sweep.csv"));
     assert_eq!(rows.len(), 9);
+    // A picture of each result against each parameter, except results that
+    // do not change (the prescribed travel is the peak displacement).
+    let picture = std::fs::read(s.0.join("out/plots/reactions.pin.z-vs-mesh.size.1.png")).unwrap();
+    assert_eq!(&picture[..8], b"\x89PNG\r\n\x1a\n");
+    assert!(s.0.join("out/plots/reactions.pin.z-vs-materials.bush-nr50.shear_modulus.png").exists());
+    assert!(!s.0.join("out/plots/peaks.displacement-vs-mesh.size.1.png").exists());
     let force = |l: f64, g: f64| {
         let row = rows.iter().find(|r| number(r, "mesh.size.1") == l && number(r, "materials.bush-nr50.shear_modulus") == g).unwrap();
         assert_eq!(row["status"], "converged");
