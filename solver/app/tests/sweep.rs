@@ -283,3 +283,25 @@ fn bad_sweep_input_names_the_parameter_exits_2_and_writes_nothing() {
     assert_eq!(out.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&out.stderr).contains(".sweep.toml"));
 }
+
+#[test]
+fn a_variant_that_stops_is_recorded_and_the_others_go_on() {
+    let s = Scratch::new("stops");
+    write_bush(&s.0, 0.5);
+    let job = std::fs::read_to_string(s.0.join("bush.toml")).unwrap();
+    // One Newton iteration per increment never reaches the tolerance: that variant cuts back and stops.
+    let job = job.replace("name = \"push\"\n", "name = \"push\"\nmax_iterations = 15\nmin_increment = 0.01\n");
+    std::fs::write(s.0.join("bush.toml"), job).unwrap();
+    std::fs::write(
+        s.0.join("bush.sweep.toml"),
+        "base = \"bush.toml\"\n[[parameter]]\nkey = \"stage.push.max_iterations\"\nvalues = [15, 1, 10]\n",
+    )
+    .unwrap();
+    let out = olli(&["sweep", "bush.sweep.toml", "--output", "out"], &s.0);
+    assert_eq!(out.status.code(), Some(1), "{}", String::from_utf8_lossy(&out.stderr));
+    let rows = table(&s.0.join("out/sweep.csv"));
+    let status: Vec<&str> = rows.iter().map(|r| r["status"].as_str()).collect();
+    assert_eq!(status, ["converged", "stopped", "converged"]);
+    assert!(!rows[1]["reason"].is_empty() && rows[0]["reason"].is_empty(), "{:?}", rows[1]);
+    assert!(String::from_utf8_lossy(&out.stdout).contains("v02 stopped"), "{}", String::from_utf8_lossy(&out.stdout));
+}
