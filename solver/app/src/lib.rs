@@ -10,4 +10,5 @@
 
 pub mod job;
 pub mod output;
+pub mod plot;
 pub mod stability_text;

@@ -189,6 +189,7 @@ impl Builder<'_> {
             regions,
             stages,
             rigid,
+            inserts: Vec::new(),
             linear: LinearSettings::default(),
             // Frames are computed by the result writer for the increments it
             // saves, so the solver keeps no per-increment fields.
