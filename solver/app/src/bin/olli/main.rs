@@ -3,6 +3,7 @@
 //! stopped without converging, 2 bad input.
 
 mod check_cmd;
+mod fit_cmd;
 mod material_cmd;
 mod mesh_cmd;
 mod run_cmd;
@@ -28,6 +29,8 @@ enum Command {
     Run(run_cmd::Args),
     /// Check a job file and its mesh without solving.
     Check(check_cmd::Args),
+    /// Fit material models to test curves (CSV), compare them and write the best as a material table.
+    Fit(fit_cmd::Args),
 }
 
 fn main() -> ExitCode {
@@ -37,5 +40,6 @@ fn main() -> ExitCode {
         Command::Mesh(args) => mesh_cmd::run(args),
         Command::Run(args) => run_cmd::run(args),
         Command::Check(args) => check_cmd::run(args),
+        Command::Fit(args) => fit_cmd::run(args),
     }
 }
