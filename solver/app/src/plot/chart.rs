@@ -57,17 +57,26 @@ pub struct Series {
     pub name: String,
     pub points: Vec<(f64, f64)>,
     pub style: SeriesStyle,
+    /// Series with the same group share one colour (measured points and the
+    /// fitted curve of one test); `None`: a colour of its own.
+    pub group: Option<usize>,
 }
 
 impl Series {
     /// A line series.
     pub fn line(name: impl Into<String>, points: Vec<(f64, f64)>) -> Self {
-        Series { name: name.into(), points, style: SeriesStyle::Line }
+        Series { name: name.into(), points, style: SeriesStyle::Line, group: None }
     }
 
     /// A series of dots.
     pub fn points(name: impl Into<String>, points: Vec<(f64, f64)>) -> Self {
-        Series { name: name.into(), points, style: SeriesStyle::Points }
+        Series { name: name.into(), points, style: SeriesStyle::Points, group: None }
+    }
+
+    /// The same series in colour group `group` (see [`Series::group`]).
+    pub fn in_group(mut self, group: usize) -> Self {
+        self.group = Some(group);
+        self
     }
 
     fn finite(&self) -> impl Iterator<Item = (f64, f64)> + Clone + '_ {
@@ -206,9 +215,22 @@ impl Figure for LineChart {
             let at = chart.backend_coord(&(x0, m.at));
             root.draw(&Text::new(m.label.clone(), (at.0 + 6, at.1 - 16), small.clone()))?;
         }
-        let count = self.series.len();
-        for (i, s) in self.series.iter().enumerate() {
-            let color = self.colors.series(i, count);
+        // One colour slot per group (in order of first appearance) and per ungrouped series.
+        let mut slots: Vec<Option<usize>> = Vec::new();
+        let slot_of: Vec<usize> = self
+            .series
+            .iter()
+            .map(|s| match s.group.and_then(|g| slots.iter().position(|&k| k == Some(g))) {
+                Some(k) => k,
+                None => {
+                    slots.push(s.group);
+                    slots.len() - 1
+                }
+            })
+            .collect();
+        let count = slots.len();
+        for (s, &slot) in self.series.iter().zip(&slot_of) {
+            let color = self.colors.series(slot, count);
             let line = color.stroke_width(2);
             let dot = color.filled();
             let drawn = match s.style {

@@ -3,6 +3,7 @@
 //! stopped without converging, 2 bad input.
 
 mod check_cmd;
+mod fit_cmd;
 mod material_cmd;
 mod mesh_cmd;
 mod plot_cmd;
@@ -34,6 +35,8 @@ enum Command {
     Plot(plot_cmd::Args),
     /// Run many variants of one job (a `*.sweep.toml`), here or as a batch array, and collect `sweep.csv`.
     Sweep(sweep_cmd::Args),
+    /// Fit material models to test curves (CSV), compare them and write the best as a material table.
+    Fit(fit_cmd::Args),
 }
 
 fn main() -> ExitCode {
@@ -45,5 +48,6 @@ fn main() -> ExitCode {
         Command::Check(args) => check_cmd::run(args),
         Command::Plot(args) => plot_cmd::run(args),
         Command::Sweep(args) => sweep_cmd::run(args),
+        Command::Fit(args) => fit_cmd::run(args),
     }
 }
