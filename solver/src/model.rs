@@ -320,6 +320,9 @@ pub struct Model {
     pub rigid: Vec<RigidBody>,
     /// Rigid inserts bonded to the rubber.
     pub inserts: Vec<Insert>,
+    /// Sets whose reaction moment is reported, with the point it is taken
+    /// about (length units; 2-D: the moment about the out-of-plane axis).
+    pub moment_points: std::collections::BTreeMap<String, [f64; 3]>,
     pub linear: LinearSettings,
     pub output: OutputSettings,
 }
@@ -335,6 +338,7 @@ impl Model {
             stages: Vec::new(),
             rigid: Vec::new(),
             inserts: Vec::new(),
+            moment_points: Default::default(),
             linear: LinearSettings::default(),
             output: OutputSettings::default(),
         }

@@ -64,6 +64,9 @@ pub struct IncrementResult {
     /// Reaction force (internal minus external force) summed over each
     /// named set; axisymmetric: over the full 2π.
     pub reactions: BTreeMap<String, [f64; 3]>,
+    /// Moment of the reactions of each set in [`crate::Model::moment_points`]
+    /// about its point, at the deformed node positions.
+    pub reaction_moments: BTreeMap<String, [f64; 3]>,
     /// Linear solves of this increment.
     pub newton_iterations: usize,
     /// Out-of-balance force relative to the force scale after each Newton

@@ -44,6 +44,7 @@ fn adkins_gent_bush_torsion_with_a_pin_insert() {
     model.output.point_fields = false;
     model.output.nodal_fields = false;
     model.inserts.push(pin([false; 6]));
+    model.moment_points.insert("outer".into(), [0.0, 0.0, 0.1]);
     model.stages.push(Stage {
         name: "twist".into(),
         controls: one_increment(),
@@ -62,6 +63,11 @@ fn adkins_gent_bush_torsion_with_a_pin_insert() {
     assert!((ins.rotation[2] - theta).abs() < 1e-14);
     // 16 linear elements across the wall, 48 around: O(h²) ≈ 0.3 %.
     assert!(rel(torque, want) < 5e-3);
+    // The sleeve's reaction moment about a point on the axis (`moment_about`)
+    // balances the torque the pin applies: both equal the rubber's moment on the pin.
+    let sleeve = last.reaction_moments["outer"];
+    eprintln!("sleeve reaction moment {sleeve:?}");
+    assert!(rel(sleeve[2], ins.moment[2]) < 1e-8);
 }
 
 /// A rubber block 1 × 1 × 0.5 (hex8, mixed, G = 1, κ = 100) bonded below to

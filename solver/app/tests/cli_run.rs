@@ -457,6 +457,10 @@ fn bad_insert_input_is_located() {
     );
     rejects(&bush_with_insert(&PIN_INSERT.replace("push = {", "pushh = {")), &["job.toml:", "no stage named `pushh`"]);
     rejects(
+        &BUSH.replace("fix = [\"r\", \"z\"]", "fix = [\"r\", \"z\"]\nmoment_about = [0.0, 0.0]"),
+        &["job.toml:", "`moment_about`: an axisymmetric reaction has no moment"],
+    );
+    rejects(
         &bush_with_insert(&format!("{PIN_INSERT}\n[[insert]]\nname = \"pin2\"\nnodes = \"bottom\"\nreference = [0.0, 0.0]\n")),
         &["job.toml:", "node 0 is also bonded to insert `pin`"],
     );

@@ -248,6 +248,7 @@ fn increment_result(
         step,
         displacement,
         reactions,
+        reaction_moments: reaction_moments(disc, &ctx.residual, u, report_sets),
         newton_iterations: iterations,
         residual_history,
         strain_energy,
@@ -259,6 +260,36 @@ fn increment_result(
         points: if model.output.point_fields { points } else { None },
         nodal,
     })
+}
+
+/// Σ (x_i − p) × r_i over the nodes of each set with a moment point, at the
+/// deformed positions x_i = X_i + u_i.
+fn reaction_moments(
+    disc: &Discretization,
+    residual: &[f64],
+    u: &[f64],
+    report_sets: &std::collections::BTreeMap<String, Vec<usize>>,
+) -> std::collections::BTreeMap<String, [f64; 3]> {
+    let dim = disc.dim;
+    let mesh = disc.mesh();
+    disc.model
+        .moment_points
+        .iter()
+        .filter_map(|(name, p)| {
+            let nodes = report_sets.get(name)?;
+            let mut m = [0.0; 3];
+            for &n in nodes {
+                let (mut arm, mut r) = ([0.0; 3], [0.0; 3]);
+                for i in 0..dim {
+                    arm[i] = mesh.nodes[n][i] + u[n * dim + i] - p[i];
+                    r[i] = residual[n * dim + i];
+                }
+                let c = crate::insert::rotation::cross(arm, r);
+                (0..3).for_each(|i| m[i] += c[i]);
+            }
+            Some((name.clone(), m))
+        })
+        .collect()
 }
 
 /// Volume-weighted average, at each node, of the points of the elements around it.

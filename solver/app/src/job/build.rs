@@ -3,6 +3,7 @@
 //! values, and assigns every load to its stage. Every error points at the
 //! table or key at fault in the job file.
 
+use std::collections::BTreeMap;
 use std::ops::Range;
 use std::path::{Path, PathBuf};
 use std::sync::Arc;
@@ -89,6 +90,25 @@ impl Job {
         self.reaction_sets.iter().flat_map(|s| self.components().iter().map(move |c| format!("reaction_{s}_{c}"))).collect()
     }
 
+    /// Components of a reaction moment: x, y, z in 3-D, z in plane strain.
+    pub fn moment_components(&self) -> &'static [&'static str] {
+        match self.kind {
+            AnalysisKind::Solid => &["x", "y", "z"],
+            AnalysisKind::PlaneStrain => &["z"],
+            AnalysisKind::Axisymmetric => &[],
+        }
+    }
+
+    /// The reaction-moment columns: `reaction_<set>_moment_<component>` for
+    /// each set with `moment_about`, in reaction-set order.
+    pub fn moment_columns(&self) -> Vec<String> {
+        self.reaction_sets
+            .iter()
+            .filter(|s| self.model.moment_points.contains_key(*s))
+            .flat_map(|s| self.moment_components().iter().map(move |c| format!("reaction_{s}_moment_{c}")))
+            .collect()
+    }
+
     /// The rigid-surface columns of `history.csv`: `rigid_<name>_<component>`
     /// (force of the rubber on the surface), `rigid_<name>_contact_width`,
     /// `rigid_<name>_peak_pressure`.
@@ -112,6 +132,7 @@ impl Job {
     /// Every value column of `history.csv`, in order.
     pub fn history_columns(&self) -> Vec<String> {
         let mut c = self.reaction_columns();
+        c.extend(self.moment_columns());
         c.extend(self.rigid_columns());
         c.extend(self.insert_columns().into_iter().map(|(n, _)| n));
         c
@@ -203,6 +224,7 @@ impl Builder<'_> {
             stages,
             rigid,
             inserts,
+            moment_points: self.moment_points(&file, kind)?,
             linear: LinearSettings::default(),
             // Frames are computed by the result writer for the increments it
             // saves, so the solver keeps no per-increment fields.
@@ -327,6 +349,36 @@ impl Builder<'_> {
         let names = all_set_names(mesh);
         let known: Vec<&str> = names.iter().map(String::as_str).collect();
         Err(self.unknown_name(name.span(), key, "set", name.get_ref(), &known))
+    }
+
+    /// `moment_about` of supports and motions, by set (one point per set).
+    fn moment_points(&self, file: &JobFile, kind: AnalysisKind) -> Result<BTreeMap<String, [f64; 3]>, InputError> {
+        let mut out: BTreeMap<String, [f64; 3]> = BTreeMap::new();
+        let given = file
+            .support
+            .iter()
+            .map(|s| (&s.get_ref().nodes, &s.get_ref().moment_about))
+            .chain(file.motion.iter().map(|m| (&m.get_ref().nodes, &m.get_ref().moment_about)));
+        let dim = kind.components().len();
+        for (set, point) in given {
+            let Some(point) = point else { continue };
+            if kind == AnalysisKind::Axisymmetric {
+                return Err(
+                    self.err(point.span(), "`moment_about`: an axisymmetric reaction has no moment; use a 3-D or plane-strain analysis")
+                );
+            }
+            let v = point.get_ref();
+            if v.len() != dim || v.iter().any(|x| !x.is_finite()) {
+                return Err(self.err(point.span(), format!("`moment_about`: give {dim} finite coordinates")));
+            }
+            let mut p = [0.0; 3];
+            p[..dim].copy_from_slice(v);
+            if out.get(set.get_ref()).is_some_and(|old| *old != p) {
+                return Err(self.err(point.span(), format!("`moment_about`: set `{}` already has another point", set.get_ref())));
+            }
+            out.insert(set.get_ref().clone(), p);
+        }
+        Ok(out)
     }
 
     fn reaction_sets(&self, file: &JobFile) -> Vec<String> {

@@ -192,6 +192,8 @@ pub struct SupportSpec {
     pub nodes: Spanned<String>,
     /// Components: `"x"`, `"y"`, `"z"` (axisymmetric: `"r"`, `"z"`).
     pub fix: Spanned<Vec<String>>,
+    /// Report the moment of the reaction about this point (3-D, plane strain).
+    pub moment_about: Option<Spanned<Vec<f64>>>,
 }
 
 /// Displacement components reached at the end of `stage`, ramped linearly
@@ -204,6 +206,8 @@ pub struct MotionSpec {
     pub stage: Option<Spanned<String>>,
     /// Component → displacement (length units), e.g. `{ x = 0.0, z = -2.0 }`.
     pub displacement: Spanned<BTreeMap<String, f64>>,
+    /// Report the moment of the reaction about this point (3-D, plane strain).
+    pub moment_about: Option<Spanned<Vec<f64>>>,
     /// How the load changes over its stage: `"linear"` (default), `"step"`
     /// (all at once), or a table `[[t, fraction], ...]` of stage fraction t.
     pub ramp: Option<Spanned<RampSpec>>,

@@ -91,7 +91,9 @@ pub fn units(columns: &[String]) -> BTreeMap<String, String> {
     .map(|(k, v)| (k.to_string(), v.to_string()))
     .collect();
     for c in columns {
-        let dimension = if c.ends_with("_contact_width") {
+        let dimension = if c.contains("_moment_") {
+            "force·length"
+        } else if c.ends_with("_contact_width") {
             "length"
         } else if c.ends_with("_peak_pressure") {
             "stress (force/length²)"

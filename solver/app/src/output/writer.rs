@@ -113,6 +113,11 @@ impl<'m> ResultWriter<'m> {
                 f.into_iter().take(dim)
             })
             .collect();
+        for s in self.job.reaction_sets.iter().filter(|s| self.job.model.moment_points.contains_key(*s)) {
+            let m = r.reaction_moments.get(s).copied().unwrap_or([0.0; 3]);
+            let all = ["x", "y", "z"];
+            values.extend(self.job.moment_components().iter().map(|c| m[all.iter().position(|a| a == c).unwrap_or(2)]));
+        }
         for name in &self.job.rigid_names {
             match r.contact.iter().find(|c| &c.name == name) {
                 Some(c) => {
