@@ -13,3 +13,4 @@ pub mod job;
 pub mod output;
 pub mod plot;
 pub mod stability_text;
+pub mod sweep;

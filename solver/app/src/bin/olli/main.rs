@@ -7,6 +7,7 @@ mod fit_cmd;
 mod material_cmd;
 mod mesh_cmd;
 mod run_cmd;
+mod sweep_cmd;
 
 use std::process::ExitCode;
 
@@ -31,6 +32,8 @@ enum Command {
     Check(check_cmd::Args),
     /// Fit material models to test curves (CSV), compare them and write the best as a material table.
     Fit(fit_cmd::Args),
+    /// Run many variants of one job (a `*.sweep.toml`), here or as a batch array, and collect `sweep.csv`.
+    Sweep(sweep_cmd::Args),
 }
 
 fn main() -> ExitCode {
@@ -41,5 +44,6 @@ fn main() -> ExitCode {
         Command::Run(args) => run_cmd::run(args),
         Command::Check(args) => check_cmd::run(args),
         Command::Fit(args) => fit_cmd::run(args),
+        Command::Sweep(args) => sweep_cmd::run(args),
     }
 }
