@@ -12,5 +12,6 @@ pub mod fit_data;
 pub mod job;
 pub mod output;
 pub mod plot;
+pub mod report;
 pub mod stability_text;
 pub mod sweep;

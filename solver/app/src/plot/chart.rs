@@ -14,7 +14,7 @@
 use plotters::coord::Shift;
 use plotters::prelude::*;
 
-use super::{number, ColorMap, Figure, PlotError, FONT};
+use super::{ColorMap, Figure, PlotError, FONT};
 
 /// An axis: the quantity and its unit, written `quantity [unit]`.
 #[derive(Debug, Clone, PartialEq)]
@@ -197,22 +197,12 @@ impl Figure for LineChart {
         let [(x0, x1), (y0, y1)] = self.ranges()?;
         root.fill(&WHITE)?;
         let mut chart = ChartBuilder::on(root)
-            .caption(&self.title, (FONT, 20))
+            .caption(&self.title, (FONT, super::title_size(root, &self.title)))
             .margin(14)
             .x_label_area_size(50)
             .y_label_area_size(80)
             .build_cartesian_2d(x0..x1, y0..y1)?;
-        chart
-            .configure_mesh()
-            .x_desc(self.x.label())
-            .y_desc(self.y.label())
-            .label_style((FONT, 14))
-            .axis_desc_style((FONT, 16))
-            .x_label_formatter(&|v| number(*v))
-            .y_label_formatter(&|v| number(*v))
-            .light_line_style(RGBColor(238, 238, 238))
-            .bold_line_style(RGBColor(210, 210, 210))
-            .draw()?;
+        super::draw_axes(&mut chart, &self.x, &self.y, true)?;
         let dashed = GREY.stroke_width(1);
         let small = (FONT, 13).into_font().color(&GREY);
         for m in self.vertical.iter().filter(|m| m.at.is_finite()) {
