@@ -27,14 +27,16 @@ pub enum Concern {
     Within,
 }
 
-/// The losses of `s` as `(stretch, "tension" | "compression")`.
+/// The losses of `s` as `(stretch, side)`: "tension" or "compression"
+/// (simple shear: "forward shear" or "reverse shear").
 fn losses(s: &ModeStability) -> Vec<(f64, &'static str)> {
+    let shear = s.mode == olli_solver::material::homogeneous::Mode::SimpleShear;
     let mut out = Vec::new();
     if let Some(l) = s.lost_in_compression {
-        out.push((l, "compression"));
+        out.push((l, if shear { "reverse shear" } else { "compression" }));
     }
     if let Some(l) = s.lost_in_tension {
-        out.push((l, "tension"));
+        out.push((l, if shear { "forward shear" } else { "tension" }));
     }
     out
 }
