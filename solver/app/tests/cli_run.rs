@@ -116,20 +116,30 @@ fn run_writes_history_summary_and_readable_frames() {
     assert_eq!(out.status.code(), Some(0), "{}", text(&out));
     let history = std::fs::read_to_string(s.out().join("history.csv")).unwrap();
     let header = history.lines().next().unwrap();
-    assert_eq!(header, "stage,increment,load_factor,reaction_right_r,reaction_right_z,reaction_pin_r,reaction_pin_z,newton_iterations");
+    assert_eq!(
+        header,
+        "stage,increment,load_factor,applied_pin_r,applied_pin_z,reaction_right_r,reaction_right_z,reaction_pin_r,reaction_pin_z,newton_iterations"
+    );
     let rows: Vec<Vec<&str>> = history.lines().skip(1).map(|l| l.split(',').collect()).collect();
     assert!(rows.len() >= 4, "at least 1/max_increment = 4 increments");
     let last = rows.last().unwrap();
     assert_eq!(last[2].parse::<f64>().unwrap(), 1.0);
     // Equilibrium: what the pin takes, the sleeve gives back (axial, full 2π).
-    let (pin, sleeve): (f64, f64) = (last[6].parse().unwrap(), last[4].parse().unwrap());
+    let (pin, sleeve): (f64, f64) = (last[8].parse().unwrap(), last[6].parse().unwrap());
     assert!(pin > 0.0 && (pin + sleeve).abs() < 1e-6 * pin, "pin {pin}, sleeve {sleeve}");
+    // The applied travel follows the linear ramp: 0.5 mm × load factor at every row.
+    for row in &rows {
+        let (t, travel): (f64, f64) = (row[2].parse().unwrap(), row[4].parse().unwrap());
+        assert!((travel - 0.5 * t).abs() < 1e-12, "travel {travel} at load factor {t}");
+    }
 
     let summary: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(s.out().join("summary.json")).unwrap()).unwrap();
     assert_eq!(summary["status"], "converged");
     let pin_json = summary["reactions"]["pin"]["z"].as_f64().unwrap();
     assert!((pin_json - pin).abs() < 1e-9 * pin, "summary {pin_json} vs history {pin}");
     assert_eq!(summary["units"]["reaction_pin_z"], "force");
+    assert_eq!(summary["units"]["applied_pin_z"], "length");
+    assert_eq!(summary["applied"]["applied_pin_z"], 0.5);
     assert!(summary["peaks"]["displacement"]["value"].as_f64().unwrap() >= 0.5 - 1e-12);
     assert!(s.out().join("olli.log").exists());
 

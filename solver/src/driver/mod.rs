@@ -25,6 +25,7 @@ use crate::contact::active::ActiveContacts;
 use crate::element::{point_states, MixedState, PointState};
 use crate::error::SolveError;
 use crate::linear::{LinearSolver, LinearStats};
+use crate::load::fluid::Fluids;
 use crate::model::Model;
 use crate::results::{IncrementResult, NodalFields, PointFields, Solution, SolveStats, Termination};
 use newton::{IncrementOutcome, NewtonContext};
@@ -39,6 +40,7 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
     }
     let (programs, report_sets) = stages::resolve(&disc)?;
     let mut contacts = ActiveContacts::new(&disc)?;
+    let mut fluids = Fluids::new(&disc)?;
     let dim = disc.dim;
     let ndof = model.mesh.node_count() * dim;
     let mut stats = SolveStats::default();
@@ -62,7 +64,9 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
         observer.event(&Event::StageStart { stage: si, name: &stage.name, equations: dofs.n_free });
         let start: Vec<f64> = u.clone();
         contacts.begin_stage(&stage.rigid_motions, &stage.ramps);
-        let mut ctx = NewtonContext::new(&disc, dofs, pattern, linear, prog, &start, &stage.controls, &stage.name, &mut contacts);
+        fluids.begin_stage(stage);
+        let mut ctx = NewtonContext::new(&disc, dofs, pattern, linear, prog, &start, &stage.controls, &stage.name, &mut contacts)
+            .with_fluids(&mut fluids);
         if stage.controls.carry_pressure {
             if states.is_empty() {
                 states = vec![MixedState::default(); model.mesh.element_count()];
@@ -88,6 +92,10 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
                     let share = ctx.stabilization_share(&u);
                     ctx.last_converged.copy_from_slice(&u);
                     ctx.contacts.commit();
+                    let contact_pressure = ctx.contacts.fields(model.mesh.node_count()).pressure;
+                    if let Some(f) = ctx.fluids.as_deref_mut() {
+                        f.commit(&contact_pressure);
+                    }
                     let result = increment_result(
                         &disc,
                         &ctx,
@@ -248,6 +256,8 @@ fn increment_result(
         axisymmetric: model.analysis == crate::element::Analysis::Axisymmetric,
         contact: ctx.contacts.summaries(),
         contact_fields: if ctx.contacts.is_empty() { None } else { Some(ctx.contacts.fields(mesh.node_count())) },
+        fluids: ctx.fluids.as_deref().map(|f| f.summaries(&mesh.nodes, u, load_factor)).unwrap_or_default(),
+        fluid_pressure: ctx.fluids.as_deref().map(|f| f.nodal_pressure(mesh.node_count(), load_factor)),
         points: if model.output.point_fields { points } else { None },
         nodal,
     })

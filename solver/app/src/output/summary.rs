@@ -50,6 +50,11 @@ pub struct RunSummary {
     /// Each rigid surface at the last converged increment: the force of the
     /// rubber on it by component, `contact_width` and `peak_pressure`.
     pub rigid: BTreeMap<String, BTreeMap<String, f64>>,
+    /// Each fluid at the last converged increment: `pressure` and
+    /// `wetted_length` (2-D) or `wetted_area` (3-D).
+    pub fluids: BTreeMap<String, BTreeMap<String, f64>>,
+    /// The `applied_...` columns at the last converged increment.
+    pub applied: BTreeMap<String, f64>,
     /// Largest force of the stabilisation springs relative to the force
     /// scale over the run (0 without stabilisation); keep it well below 1 %.
     pub stabilization_share: f64,
@@ -70,7 +75,8 @@ impl RunSummary {
     }
 }
 
-/// Dimensions of the `history.csv` columns (`columns`: the reaction and rigid-surface columns).
+/// Dimensions of the `history.csv` columns (`columns`: the applied, reaction,
+/// rigid-surface and fluid columns).
 pub fn units(columns: &[String]) -> BTreeMap<String, String> {
     let mut u: BTreeMap<String, String> = [
         ("stage", "name"),
@@ -86,9 +92,11 @@ pub fn units(columns: &[String]) -> BTreeMap<String, String> {
     .map(|(k, v)| (k.to_string(), v.to_string()))
     .collect();
     for c in columns {
-        let dimension = if c.ends_with("_contact_width") {
+        let dimension = if c.ends_with("_contact_width") || c.ends_with("_wetted_length") {
             "length"
-        } else if c.ends_with("_peak_pressure") {
+        } else if c.ends_with("_wetted_area") {
+            "area (length²)"
+        } else if c.ends_with("_pressure") || c.ends_with("_sealing_margin") {
             "stress (force/length²)"
         } else {
             "force"
