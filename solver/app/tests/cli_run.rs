@@ -342,3 +342,38 @@ fn unknown_ramp_is_located_with_a_suggestion() {
     let job = BUSH.replace("displacement = { r = 0.0, z = 0.5 }", "displacement = { r = 0.0, z = 0.5 }\nramp = \"stpe\"");
     rejects(&job, &["unknown ramp `stpe`", "did you mean `step`?"]);
 }
+
+/// The bush with a fluid entering at the outer face (r = 25) in stage `push`.
+fn bush_with_fluid(source: &str, stage: &str) -> String {
+    format!("{BUSH}\n[[fluid]]\nname = \"oil\"\nsides = \"top\"\nsource = {source}\nstage = \"{stage}\"\npressure = 0.1\n")
+}
+
+#[test]
+fn fluid_bad_input_is_located() {
+    // The top side set runs from r = 10 to 25 at z = 40: a point at z = 30 is off it.
+    let job = bush_with_fluid("[20.0, 30.0]", "push");
+    let line = job.lines().position(|l| l.starts_with("source =")).unwrap() + 1;
+    rejects(&job, &[&format!("job.toml:{line}:"), "fluid `oil`: source point (20, 30) is not on side set `top`"]);
+    let job = bush_with_fluid("[20.0, 40.0]", "pump");
+    let line = job.lines().position(|l| l.starts_with("stage = \"pump\"")).unwrap() + 1;
+    rejects(&job, &[&format!("job.toml:{line}:"), "no stage named `pump`", "did you mean `push`?"]);
+    rejects(&bush_with_fluid("[20.0]", "push"), &["`source`: give 2 finite coordinates"]);
+    rejects(&bush_with_fluid("[20.0, 40.0]", "push").replace("sides = \"top\"", "sides = \"pin\""), &["`pin` is not a side set"]);
+}
+
+#[test]
+fn fluid_on_a_valid_source_runs_and_reports_its_columns() {
+    let s = Scratch::new("fluid");
+    let out = run(&s.job(&bush_with_fluid("[20.0, 40.0]", "push")), &s.out());
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out));
+    let history = std::fs::read_to_string(s.out().join("history.csv")).unwrap();
+    let header = history.lines().next().unwrap();
+    assert!(header.ends_with(",fluid_oil_pressure,fluid_oil_wetted_length,newton_iterations"), "{header}");
+    let summary: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(s.out().join("summary.json")).unwrap()).unwrap();
+    assert_eq!(summary["fluids"]["oil"]["pressure"], 0.1);
+    // No contact: the whole top face (15 mm, squeezed a little) is wetted.
+    let wetted = summary["fluids"]["oil"]["wetted_length"].as_f64().unwrap();
+    assert!((wetted - 15.0).abs() < 0.05, "{wetted}");
+    let (_, _, point, _) = arrays(&s.out().join("job_0001.vtu"));
+    assert!(point.iter().any(|(name, _)| name == "fluid_pressure"), "{point:?}");
+}

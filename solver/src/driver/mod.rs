@@ -24,6 +24,7 @@ use crate::assembly::{Discretization, DofMap, Pattern};
 use crate::contact::active::ActiveContacts;
 use crate::element::{point_states, MixedState, PointState};
 use crate::error::SolveError;
+use crate::insert::Inserts;
 use crate::linear::{LinearSolver, LinearStats};
 use crate::load::fluid::Fluids;
 use crate::model::Model;
@@ -41,6 +42,7 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
     let (programs, report_sets) = stages::resolve(&disc)?;
     let mut contacts = ActiveContacts::new(&disc)?;
     let mut fluids = Fluids::new(&disc)?;
+    let mut inserts = Inserts::new(&disc)?;
     let dim = disc.dim;
     let ndof = model.mesh.node_count() * dim;
     let mut stats = SolveStats::default();
@@ -65,7 +67,9 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
         let start: Vec<f64> = u.clone();
         contacts.begin_stage(&stage.rigid_motions, &stage.ramps);
         fluids.begin_stage(stage);
+        inserts.begin_stage(stage);
         let mut ctx = NewtonContext::new(&disc, dofs, pattern, linear, prog, &start, &stage.controls, &stage.name, &mut contacts)
+            .with_inserts(std::mem::take(&mut inserts))
             .with_fluids(&mut fluids);
         if stage.controls.carry_pressure {
             if states.is_empty() {
@@ -96,6 +100,7 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
                     if let Some(f) = ctx.fluids.as_deref_mut() {
                         f.commit(&contact_pressure);
                     }
+                    ctx.inserts.commit();
                     let result = increment_result(
                         &disc,
                         &ctx,
@@ -147,6 +152,7 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
                 }
             }
         }
+        inserts = std::mem::take(&mut ctx.inserts);
     }
     Ok(finish(increments, Termination::Completed, stats, system))
 }
@@ -255,6 +261,7 @@ fn increment_result(
         stabilization_share,
         axisymmetric: model.analysis == crate::element::Analysis::Axisymmetric,
         contact: ctx.contacts.summaries(),
+        inserts: ctx.inserts.results(),
         contact_fields: if ctx.contacts.is_empty() { None } else { Some(ctx.contacts.fields(mesh.node_count())) },
         fluids: ctx.fluids.as_deref().map(|f| f.summaries(&mesh.nodes, u, load_factor)).unwrap_or_default(),
         fluid_pressure: ctx.fluids.as_deref().map(|f| f.nodal_pressure(mesh.node_count(), load_factor)),

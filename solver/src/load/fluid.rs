@@ -518,6 +518,40 @@ mod tests {
         assert_eq!(nb[3], Vec::<usize>::new());
     }
 
+    fn two_squares(source: [f64; 3], interior_only: bool) -> Result<Fluids, SolveError> {
+        use crate::material::{registry, VolumetricForm};
+        use crate::model::{Fluid, Formulation, Model};
+        use olli_mesh::{ElementKind, Mesh};
+        let mut mesh = Mesh::new(2);
+        for p in [[0.0, 0.0], [1.0, 0.0], [2.0, 0.0], [0.0, 1.0], [1.0, 1.0], [2.0, 1.0]] {
+            mesh.add_node([p[0], p[1], 0.0]);
+        }
+        mesh.add_element(ElementKind::Quad4, &[0, 1, 4, 3]);
+        mesh.add_element(ElementKind::Quad4, &[1, 2, 5, 4]);
+        // Side 1 of the first square (nodes 1–4) is shared with the second; side 2 (4–3) is on top.
+        let mut sides = vec![Side { element: 0, local: 1 }];
+        if !interior_only {
+            sides.push(Side { element: 0, local: 2 });
+        }
+        mesh.side_sets.insert("wet".into(), sides);
+        let mat = registry::material("neo-hookean", &[("shear_modulus", 1.0), ("bulk_modulus", 100.0)], VolumetricForm::Quadratic).unwrap();
+        let mut model = Model::single_region(mesh, Analysis::PlaneStrain { thickness: 1.0 }, std::sync::Arc::new(mat), Formulation::Mixed);
+        model.fluids.push(Fluid { name: "oil".into(), sides: "wet".into(), source });
+        let disc = Discretization::new(&model).unwrap();
+        Fluids::new(&disc)
+    }
+
+    #[test]
+    fn a_set_without_free_facets_or_a_source_off_the_set_is_refused() {
+        let e = two_squares([1.0, 0.5, 0.0], true).unwrap_err();
+        assert!(e.to_string().contains("has no free facet"), "{e}");
+        let e = two_squares([0.5, 0.5, 0.0], false).unwrap_err();
+        assert!(e.to_string().contains("source point (0.5, 0.5) is not on side set `wet`"), "{e}");
+        // On the free top side: accepted, and the interior side is left out.
+        let f = two_squares([0.5, 1.0, 0.0], false).unwrap();
+        assert_eq!(f.facet_count(), 1);
+    }
+
     #[test]
     fn distances_to_facets() {
         let seg = [[0.0, 0.0, 0.0], [2.0, 0.0, 0.0]];
