@@ -81,6 +81,9 @@ pub struct Job {
     pub fluid_names: Vec<String>,
     /// The `applied_...` columns of `history.csv`.
     pub applied: Vec<AppliedColumn>,
+    /// Inserts, in file order: their position, force and moment go to
+    /// `history.csv` and the summary.
+    pub insert_names: Vec<String>,
     pub output: OutputPlan,
     /// Remarks of the mesh importer (reoriented elements, ...).
     pub mesh_notes: Vec<String>,
@@ -122,13 +125,19 @@ impl Job {
         self.fluid_names.iter().flat_map(|n| [format!("fluid_{n}_pressure"), format!("fluid_{n}_{measure}")]).collect()
     }
 
+    /// The insert columns of `history.csv` with their units (see [`super::inserts::insert_columns`]).
+    pub fn insert_columns(&self) -> Vec<(String, &'static str)> {
+        self.insert_names.iter().flat_map(|n| super::inserts::insert_columns(self.kind, n)).collect()
+    }
+
     /// Every value column of `history.csv`, in order: applied loads,
-    /// reactions, rigid surfaces, fluids.
+    /// reactions, rigid surfaces, fluids, inserts.
     pub fn history_columns(&self) -> Vec<String> {
         let mut c: Vec<String> = self.applied.iter().map(|a| a.name.clone()).collect();
         c.extend(self.reaction_columns());
         c.extend(self.rigid_columns());
         c.extend(self.fluid_columns());
+        c.extend(self.insert_columns().into_iter().map(|(n, _)| n));
         c
     }
 
@@ -155,6 +164,10 @@ pub fn material_error_key(e: &MaterialError) -> Option<&str> {
 
 /// Reads, parses and checks the job file at `path`.
 pub fn load(path: &Path) -> Result<Job, InputError> {
+    if path.to_string_lossy().ends_with(crate::sweep::SWEEP_SUFFIX) {
+        let message = "this is a sweep file, not a job: run it with `olli sweep`".to_string();
+        return Err(InputError { file: path.to_path_buf(), position: None, message });
+    }
     let source = std::fs::read_to_string(path).map_err(|e| InputError {
         file: path.to_path_buf(),
         position: None,
@@ -209,7 +222,7 @@ impl Builder<'_> {
         let mut materials = self.materials(&file)?;
         let regions = self.regions(&file, &mesh, &mut materials)?;
         let rigid = self.rigid_bodies(&file, &mesh, kind)?;
-        let stages = self.stages(&file, &mesh, kind)?;
+        let (stages, inserts) = self.stages(&file, &mesh, kind)?;
         let fluids = self.fluids(&file, &mesh, kind)?;
         let reaction_sets = self.reaction_sets(&file);
         let output = self.output_plan(&file)?;
@@ -221,7 +234,7 @@ impl Builder<'_> {
             stages,
             rigid,
             fluids,
-            inserts: Vec::new(),
+            inserts,
             linear: LinearSettings::default(),
             // Frames are computed by the result writer for the increments it
             // saves, so the solver keeps no per-increment fields.
@@ -262,6 +275,7 @@ impl Builder<'_> {
             rigid_fluids,
             fluid_names,
             applied: applied_columns(&file, kind),
+            insert_names: file.insert.iter().map(|r| r.get_ref().name.get_ref().clone()).collect(),
             output,
             mesh_notes,
         })

@@ -11,6 +11,7 @@ pub mod build;
 pub mod check;
 pub mod diagnostics;
 mod fluid;
+pub mod inserts;
 pub mod mesh_source;
 mod rigid;
 pub mod schema;

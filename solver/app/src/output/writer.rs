@@ -130,6 +130,11 @@ impl<'m> ResultWriter<'m> {
             values.push(f.map_or(0.0, |f| f.pressure));
             values.push(f.map_or(0.0, |f| f.wetted_measure));
         }
+        for name in &self.job.insert_names {
+            if let Some(ins) = r.inserts.iter().find(|i| &i.name == name) {
+                values.extend(crate::job::inserts::insert_values(self.job.kind, ins));
+            }
+        }
         self.history.push(&r.stage_name, r.increment, r.load_factor, values, r.newton_iterations);
         if r.stabilization_share > 0.01 && self.stabilization_share <= 0.01 {
             let line = format!(
@@ -181,6 +186,7 @@ impl<'m> ResultWriter<'m> {
     /// Dimensions of every column; an applied motion is a travel (length).
     fn units(&self) -> BTreeMap<String, String> {
         let mut u = units(&self.job.history_columns());
+        u.extend(self.job.insert_columns().into_iter().map(|(c, d)| (c, d.to_string())));
         for a in &self.job.applied {
             if let AppliedSource::Travel { .. } = a.source {
                 u.insert(a.name.clone(), "length".into());
@@ -255,6 +261,19 @@ impl<'m> ResultWriter<'m> {
             Some(r) => self.job.applied.iter().map(|a| (a.name.clone(), a.value(&self.job.model, r))).collect(),
             None => BTreeMap::new(),
         };
+        let inserts = match last {
+            Some(r) => r
+                .inserts
+                .iter()
+                .map(|i| {
+                    let cols = crate::job::inserts::insert_columns(self.job.kind, &i.name);
+                    let prefix = format!("insert_{}_", i.name);
+                    let vals = crate::job::inserts::insert_values(self.job.kind, i);
+                    (i.name.clone(), cols.iter().zip(vals).map(|((c, _), v)| (c[prefix.len()..].to_string(), v)).collect())
+                })
+                .collect(),
+            None => BTreeMap::new(),
+        };
         let summary = RunSummary {
             olli_version: env!("CARGO_PKG_VERSION").into(),
             job: self.job.path.display().to_string(),
@@ -269,6 +288,7 @@ impl<'m> ResultWriter<'m> {
             rigid,
             fluids,
             applied,
+            inserts,
             stabilization_share: self.stabilization_share,
             peaks: self.last_peaks,
             increments: solution.increments.len(),
