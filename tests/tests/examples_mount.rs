@@ -33,5 +33,5 @@ fn mount_example_forces_match_its_note() {
     // Written history: one row per converged increment, with every column.
     let history = std::fs::read_to_string(scratch.0.join("history.csv")).unwrap();
     assert_eq!(history.lines().count(), 1 + solution.increments.len());
-    assert!(history.starts_with("stage,increment,load_factor,reaction_bottom_x,"));
+    assert!(history.starts_with("stage,increment,load_factor,applied_top_x,applied_top_y,applied_top_z,reaction_bottom_x,"));
 }
