@@ -11,8 +11,8 @@ pub enum SolveError {
     UnknownSet { stage: String, name: String },
     #[error("stage `{stage}`: pressure needs a side set, `{name}` is not one")]
     NotASideSet { stage: String, name: String },
-    #[error("element {element} ({kind}) is not supported in {analysis} analysis")]
-    UnsupportedElement { element: usize, kind: String, analysis: &'static str },
+    #[error("element {element} ({kind}) is not supported in {analysis} analysis: {hint}")]
+    UnsupportedElement { element: usize, kind: String, analysis: &'static str, hint: &'static str },
     #[error("element {element} belongs to no material region")]
     MissingRegion { element: usize },
     #[error("element {element} belongs to regions `{first}` and `{second}`")]

@@ -9,11 +9,11 @@ use rayon::prelude::*;
 use super::discretization::Discretization;
 use super::dofs::{DofMap, NONE};
 use super::pattern::{Pattern, SKIP};
-use crate::element::{element_with_state_into, ElementError, MixedState, MAX_DOFS};
+use crate::element::{element_with_state_into, ElementError, MixedState};
 use crate::error::SolveError;
+use crate::shape::MAX_NODES;
 
 const CHUNK: usize = 1024;
-const KSTRIDE: usize = MAX_DOFS * MAX_DOFS;
 
 /// Reusable buffers of the element loop.
 #[derive(Debug)]
@@ -55,8 +55,8 @@ pub struct Outputs<'a> {
 impl Assembler {
     pub fn new() -> Self {
         Assembler {
-            kbuf: vec![0.0; CHUNK * KSTRIDE],
-            fbuf: vec![0.0; CHUNK * MAX_DOFS],
+            kbuf: Vec::new(),
+            fbuf: Vec::new(),
             status: vec![Ok(0.0); CHUNK],
             unused_states: vec![MixedState::default(); CHUNK],
             serial: false,
@@ -86,6 +86,14 @@ impl Assembler {
         let ne = mesh.element_count();
         let dim = dofs.dim;
         let mut energy = 0.0;
+        // Buffers strided by the largest element of this mesh, so a mesh of
+        // linear elements keeps the small stride.
+        let fstride = disc.max_dofs;
+        let kstride = fstride * fstride;
+        if self.kbuf.len() < CHUNK * kstride {
+            self.kbuf.resize(CHUNK * kstride, 0.0);
+            self.fbuf.resize(CHUNK * fstride, 0.0);
+        }
         let mut start = 0;
         while start < ne {
             let end = (start + CHUNK).min(ne);
@@ -94,24 +102,24 @@ impl Assembler {
             let carried = mixed.is_some();
             let work = |(i, (((k, f), st), ms)): Slot| {
                 let e = start + i;
-                let (mut x, mut ue) = ([[0.0; 3]; 8], [[0.0; 3]; 8]);
+                let (mut x, mut ue) = ([[0.0; 3]; MAX_NODES], [[0.0; 3]; MAX_NODES]);
                 disc.gather(e, u, &mut x, &mut ue);
                 let ctx = disc.context(e);
                 let state = if carried { Some(ms) } else { None };
                 *st = element_with_state_into(&ctx, &x, &ue, f, if want_k { Some(k) } else { None }, state);
             };
-            let kb = &mut self.kbuf[..count * KSTRIDE];
-            let fb = &mut self.fbuf[..count * MAX_DOFS];
+            let kb = &mut self.kbuf[..count * kstride];
+            let fb = &mut self.fbuf[..count * fstride];
             let sb = &mut self.status[..count];
             let ms: &mut [MixedState] = match mixed.as_deref_mut() {
                 Some(m) => &mut m[start..end],
                 None => &mut self.unused_states[..count],
             };
             if self.serial {
-                kb.chunks_mut(KSTRIDE).zip(fb.chunks_mut(MAX_DOFS)).zip(sb.iter_mut()).zip(ms.iter_mut()).enumerate().for_each(work);
+                kb.chunks_mut(kstride).zip(fb.chunks_mut(fstride)).zip(sb.iter_mut()).zip(ms.iter_mut()).enumerate().for_each(work);
             } else {
-                kb.par_chunks_mut(KSTRIDE)
-                    .zip(fb.par_chunks_mut(MAX_DOFS))
+                kb.par_chunks_mut(kstride)
+                    .zip(fb.par_chunks_mut(fstride))
                     .zip(sb.par_iter_mut())
                     .zip(ms.par_iter_mut())
                     .enumerate()
@@ -125,12 +133,12 @@ impl Assembler {
                 }
                 let nodes = mesh.element_nodes(e);
                 let nd = nodes.len() * dim;
-                let f = &self.fbuf[i * MAX_DOFS..i * MAX_DOFS + nd];
+                let f = &self.fbuf[i * fstride..i * fstride + nd];
                 let gdof = |r: usize| nodes[r / dim] * dim + r % dim;
                 for r in 0..nd {
                     internal[gdof(r)] += f[r];
                 }
-                let k = &self.kbuf[i * KSTRIDE..i * KSTRIDE + nd * nd];
+                let k = &self.kbuf[i * kstride..i * kstride + nd * nd];
                 if let Some(vals) = tangent.as_deref_mut() {
                     let map = &pattern.scatter[pattern.scatter_offset[e]..pattern.scatter_offset[e + 1]];
                     for (s, v) in map.iter().zip(k) {

@@ -1,18 +1,34 @@
 //! The element table resolved from a model: shape and region of every
-//! element, with checks that each element has a supported kind and exactly
-//! one region.
+//! element (kinds may be mixed in one mesh), with checks that each element
+//! has a supported kind and exactly one region.
 
 use olli_mesh::{ElementKind, Mesh};
 
 use crate::element::{Analysis, ElementContext, Shape};
 use crate::error::SolveError;
 use crate::model::Model;
+use crate::shape::{ShapeKind, MAX_NODES};
 
 pub fn analysis_name(a: Analysis) -> &'static str {
     match a {
         Analysis::Solid3d => "3-D solid",
         Analysis::Axisymmetric => "axisymmetric",
         Analysis::PlaneStrain { .. } => "plane strain",
+    }
+}
+
+/// What to use instead of an element kind the solver refuses.
+fn element_hint(kind: ElementKind, dim: usize) -> &'static str {
+    match kind {
+        ElementKind::Tri3 => {
+            "linear triangles lock for nearly incompressible rubber; use tri6 (generator option order = \"quadratic\", or a quadratic mesh)"
+        }
+        ElementKind::Tet4 => {
+            "linear tetrahedra lock for nearly incompressible rubber; use tet10 (generator option order = \"quadratic\", or a quadratic mesh)"
+        }
+        ElementKind::Wedge6 => "wedges are not supported; use hexahedra or tetrahedra (tet10)",
+        _ if kind.dimension() != dim => "the element's dimension does not match the analysis",
+        _ => "",
     }
 }
 
@@ -23,19 +39,21 @@ pub struct Discretization<'m> {
     pub shapes: Vec<Shape>,
     pub region_of: Vec<usize>,
     pub dim: usize,
+    /// Largest element degree-of-freedom count in the mesh (sizes buffers).
+    pub max_dofs: usize,
 }
 
 impl<'m> Discretization<'m> {
     pub fn new(model: &'m Model) -> Result<Self, SolveError> {
         let mesh: &Mesh = &model.mesh;
-        let (dim, want) = match model.analysis {
-            Analysis::Solid3d => (3, ElementKind::Hex8),
-            Analysis::Axisymmetric => (2, ElementKind::Quad4),
+        let dim = match model.analysis {
+            Analysis::Solid3d => 3,
+            Analysis::Axisymmetric => 2,
             Analysis::PlaneStrain { thickness } => {
                 if !(thickness > 0.0 && thickness.is_finite()) {
                     return Err(SolveError::BadThickness(thickness));
                 }
-                (2, ElementKind::Quad4)
+                2
             }
         };
         if mesh.dimension != dim {
@@ -44,15 +62,18 @@ impl<'m> Discretization<'m> {
         let n = mesh.element_count();
         let mut shapes = Vec::with_capacity(n);
         for (e, &k) in mesh.kinds.iter().enumerate() {
-            if k != want {
+            let shape = ShapeKind::of_element(k).filter(|s| s.dimension() == dim && !matches!(s, ShapeKind::Tri3 | ShapeKind::Tet4));
+            let Some(shape) = shape else {
                 return Err(SolveError::UnsupportedElement {
                     element: e,
                     kind: k.name().to_string(),
                     analysis: analysis_name(model.analysis),
+                    hint: element_hint(k, dim),
                 });
-            }
-            shapes.push(if dim == 3 { Shape::Hex8 } else { Shape::Quad4 });
+            };
+            shapes.push(shape);
         }
+        let max_dofs = shapes.iter().map(|s| s.dofs()).max().unwrap_or(0);
         let mut region_of = vec![usize::MAX; n];
         for (r, region) in model.regions.iter().enumerate() {
             for &e in &region.elements {
@@ -72,7 +93,7 @@ impl<'m> Discretization<'m> {
         if let Some(e) = region_of.iter().position(|&r| r == usize::MAX) {
             return Err(SolveError::MissingRegion { element: e });
         }
-        Ok(Discretization { model, shapes, region_of, dim })
+        Ok(Discretization { model, shapes, region_of, dim, max_dofs })
     }
 
     pub fn mesh(&self) -> &'m Mesh {
@@ -85,7 +106,7 @@ impl<'m> Discretization<'m> {
     }
 
     /// Reference positions and displacements of element `e`'s nodes into fixed arrays.
-    pub fn gather(&self, e: usize, u: &[f64], x: &mut [[f64; 3]; 8], ue: &mut [[f64; 3]; 8]) {
+    pub fn gather(&self, e: usize, u: &[f64], x: &mut [[f64; 3]; MAX_NODES], ue: &mut [[f64; 3]; MAX_NODES]) {
         let mesh = self.mesh();
         for (a, &n) in mesh.element_nodes(e).iter().enumerate() {
             x[a] = mesh.nodes[n];

@@ -29,6 +29,7 @@ use crate::linear::{LinearSolver, LinearStats};
 use crate::load::fluid::Fluids;
 use crate::model::Model;
 use crate::results::{IncrementResult, NodalFields, PointFields, Solution, SolveStats, Termination};
+use crate::shape::MAX_NODES;
 use newton::{IncrementOutcome, NewtonContext};
 
 /// Solves a model. Input errors (unknown sets, unsupported elements, missing
@@ -229,7 +230,7 @@ fn increment_result(
         let per: Vec<Result<Vec<PointState>, SolveError>> = (0..mesh.element_count())
             .into_par_iter()
             .map(|e| {
-                let (mut x, mut ue) = ([[0.0; 3]; 8], [[0.0; 3]; 8]);
+                let (mut x, mut ue) = ([[0.0; 3]; MAX_NODES], [[0.0; 3]; MAX_NODES]);
                 disc.gather(e, u, &mut x, &mut ue);
                 let ctx = disc.context(e);
                 let mut out = vec![PointState::default(); ctx.shape.points()];

@@ -30,6 +30,7 @@ use crate::load::fluid::Fluids;
 use crate::load::pressure::{pressure_side_into, MAX_SIDE_DOFS};
 use crate::model::IncrementControls;
 use crate::results::SolveStats;
+use crate::shape::MAX_SIDE_NODES;
 
 /// Result of one increment attempt.
 #[derive(Debug)]
@@ -368,15 +369,15 @@ impl<'a> NewtonContext<'a> {
                 continue;
             }
             for &side in &prog.sides {
-                // Side nodes without allocating (corner nodes of quad faces / edges).
+                // Side nodes without allocating (all nodes of the side, in the side shape's order).
                 let local = mesh.kinds[side.element].sides()[side.local as usize];
                 let enodes = mesh.element_nodes(side.element);
-                let nn = if dim == 3 { 4 } else { 2 };
-                let mut nodes = [0usize; 4];
+                let nn = local.len();
+                let mut nodes = [0usize; MAX_SIDE_NODES];
                 for a in 0..nn {
                     nodes[a] = enodes[local[a]];
                 }
-                let (mut x, mut us) = ([[0.0; 3]; 4], [[0.0; 3]; 4]);
+                let (mut x, mut us) = ([[0.0; 3]; MAX_SIDE_NODES], [[0.0; 3]; MAX_SIDE_NODES]);
                 for a in 0..nn {
                     x[a] = mesh.nodes[nodes[a]];
                     for i in 0..dim {

@@ -13,9 +13,10 @@ fn material() -> Material {
 /// A distorted element: reference nodes perturbed by a fixed pattern, and a
 /// large displacement field (stretches up to ~1.3, shear ~0.2).
 fn distorted(shape: Shape) -> (Vec<[f64; 3]>, Vec<[f64; 3]>) {
-    let base: Vec<[f64; 3]> = match shape {
-        Shape::Hex8 => crate::shape::hex8::NODES.iter().map(|p| [1.0 + 0.5 * p[0], 2.0 + 0.6 * p[1], 0.4 * p[2]]).collect(),
-        Shape::Quad4 => crate::shape::quad4::NODES.iter().map(|p| [1.5 + 0.5 * p[0], 0.7 * p[1], 0.0]).collect(),
+    let base: Vec<[f64; 3]> = if shape.dimension() == 3 {
+        shape.def().reference_nodes.iter().map(|p| [1.0 + 0.5 * p[0], 2.0 + 0.6 * p[1], 0.4 * p[2]]).collect()
+    } else {
+        shape.def().reference_nodes.iter().map(|p| [1.5 + 0.5 * p[0], 0.7 * p[1], 0.0]).collect()
     };
     let dim = shape.dimension();
     let x: Vec<[f64; 3]> = base
@@ -101,6 +102,37 @@ fn quad4_axisymmetric_tangents_match_finite_differences() {
 fn quad4_plane_strain_tangents_match_finite_differences() {
     check(Shape::Quad4, Analysis::PlaneStrain { thickness: 2.5 }, Formulation::Mixed);
     check(Shape::Quad4, Analysis::PlaneStrain { thickness: 2.5 }, Formulation::Displacement);
+}
+
+/// Every quadratic element, mixed (constant or linear pressure) and
+/// displacement, in each analysis it serves.
+#[test]
+fn quadratic_element_tangents_match_finite_differences() {
+    for shape in [Shape::Tri6, Shape::Quad8, Shape::Quad9] {
+        for analysis in [Analysis::Axisymmetric, Analysis::PlaneStrain { thickness: 2.5 }] {
+            check(shape, analysis, Formulation::Mixed);
+            check(shape, analysis, Formulation::Displacement);
+        }
+    }
+    for shape in [Shape::Tet10, Shape::Hex20, Shape::Hex27] {
+        check(shape, Analysis::Solid3d, Formulation::Mixed);
+        check(shape, Analysis::Solid3d, Formulation::Displacement);
+    }
+}
+
+/// The compile-time point counts of the kernel match the shapes' rules.
+#[test]
+fn kernel_point_counts_match_the_rules() {
+    let mat = material();
+    for shape in crate::shape::ShapeKind::ALL.into_iter().filter(|s| s.dimension() >= 2) {
+        let analysis = if shape.dimension() == 3 { Analysis::Solid3d } else { Analysis::PlaneStrain { thickness: 1.0 } };
+        let ctx = ElementContext { shape, analysis, formulation: Formulation::Mixed, material: &mat };
+        let (x, u) = distorted(shape);
+        let mut out = vec![PointState::default(); MAX_POINTS];
+        point_states(&ctx, &x, &u, &mut out).unwrap();
+        let used = out.iter().filter(|p| p.volume > 0.0).count();
+        assert_eq!(used, shape.points(), "{shape}");
+    }
 }
 
 #[test]

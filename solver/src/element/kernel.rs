@@ -4,13 +4,14 @@
 use nalgebra::{Matrix3, SMatrix, SVector};
 
 use super::geometry::{point_geometry, PointGeometry};
+use super::pressure_space::{Gram, PressureBasis, PressureSpace, MAX_PRESSURES};
 use super::{Analysis, ElementContext, ElementError, Formulation, Shape};
 use crate::material::{Material, MaterialError, Response, Tangent};
 
-/// Largest number of element degrees of freedom (hex8: 8 × 3).
-pub const MAX_DOFS: usize = 24;
-/// Largest number of integration points per element.
-pub const MAX_POINTS: usize = 8;
+/// Largest number of element degrees of freedom (hex27: 27 × 3).
+pub const MAX_DOFS: usize = 81;
+/// Largest number of integration points per element (hex20/hex27: 3 × 3 × 3).
+pub const MAX_POINTS: usize = 27;
 
 type M9 = SMatrix<f64, 9, 9>;
 type V9 = SVector<f64, 9>;
@@ -164,11 +165,11 @@ struct Kin {
 
 /// Pass 1: geometry, F and J at every point; the element's reference volume V
 /// and deformed volume v = ∫ J dV.
-fn kinematics<const ND: usize>(
+fn kinematics<const ND: usize, const NP: usize>(
     ctx: &ElementContext,
     x: &[[f64; 3]],
     u: &SVector<f64, ND>,
-    out: &mut [Kin; MAX_POINTS],
+    out: &mut [Kin; NP],
 ) -> Result<(f64, f64), ElementError> {
     let axi = ctx.analysis == Analysis::Axisymmetric;
     let (mut vol, mut vol_def) = (0.0, 0.0);
@@ -228,7 +229,7 @@ impl MixedState {
     }
 }
 
-fn integrate<const ND: usize>(
+fn integrate<const ND: usize, const NP: usize>(
     ctx: &ElementContext,
     x: &[[f64; 3]],
     u: &SVector<f64, ND>,
@@ -237,8 +238,11 @@ fn integrate<const ND: usize>(
     state: Option<&mut MixedState>,
 ) -> Result<f64, ElementError> {
     let axi = ctx.analysis == Analysis::Axisymmetric;
-    let mut kin = [Kin::default(); MAX_POINTS];
-    let (vol, vol_def) = kinematics::<ND>(ctx, x, u, &mut kin)?;
+    let mut kin = [Kin::default(); NP];
+    let (vol, vol_def) = kinematics::<ND, NP>(ctx, x, u, &mut kin)?;
+    if ctx.formulation == Formulation::Mixed && PressureSpace::of_shape(ctx.shape) == PressureSpace::Linear {
+        return integrate_linear_pressure::<ND, NP>(ctx, x, &kin, force, stiffness);
+    }
     force.fill(0.0);
     if let Some(k) = stiffness.as_deref_mut() {
         k.fill(0.0);
@@ -261,7 +265,7 @@ fn integrate<const ND: usize>(
         (p, mat.volumetric.pressure_derivative(theta).map_err(m)?, theta)
     };
     let mut g = SVector::<f64, ND>::zeros();
-    for (q, k) in kin.iter().take(ctx.shape.points()).enumerate() {
+    for (q, k) in kin.iter().enumerate() {
         let resp = point_response(mat, mixed, k, q)?;
         energy += resp.energy * k.geo.dv;
         let b = BOp { geo: &k.geo, dim: ND / ctx.shape.nodes(), axisymmetric: axi };
@@ -299,6 +303,98 @@ fn integrate<const ND: usize>(
     Ok(energy)
 }
 
+/// The condensed linear discontinuous pressure of one element (see
+/// [`super::pressure_space`]): basis values at the points, the projected
+/// dilatation θ_h and pressure p_h, and `C = M⁻¹ (∫ U''(θ_h) φ φᵀ) M⁻¹`.
+struct LinearPressure<const NP: usize> {
+    phi: [nalgebra::Vector4<f64>; NP],
+    dv: [f64; NP],
+    coefficients: nalgebra::Vector4<f64>,
+    coupling: nalgebra::Matrix4<f64>,
+    /// U(θ_h) at each point.
+    energy_density: [f64; NP],
+}
+
+impl<const NP: usize> LinearPressure<NP> {
+    fn new(ctx: &ElementContext, x: &[[f64; 3]], kin: &[Kin; NP]) -> Result<Self, ElementError> {
+        let dim = ctx.shape.dimension();
+        let nodes = ctx.shape.nodes();
+        let basis = PressureBasis::new(PressureSpace::Linear, dim, &x[..nodes]);
+        let phi: [nalgebra::Vector4<f64>; NP] = std::array::from_fn(|q| {
+            let g = &kin[q].geo;
+            basis.values(std::array::from_fn(|c| (0..nodes).map(|a| g.n[a] * x[a][c]).sum()))
+        });
+        let dv: [f64; NP] = std::array::from_fn(|q| kin[q].geo.dv);
+        let gram = Gram::new(basis.count(), &phi, &dv).map_err(|_| ElementError::BadReference { point: 0, det: 0.0 })?;
+        let theta = gram.project(&phi, &dv, |q| kin[q].j);
+        let vol = &ctx.material.volumetric;
+        let mut first = [0.0; NP];
+        let mut second = [0.0; NP];
+        let mut energy_density = [0.0; NP];
+        for q in 0..NP {
+            let t = theta.dot(&phi[q]);
+            let m = |e| map_material(e, q, t);
+            first[q] = vol.pressure(t).map_err(m)?;
+            second[q] = vol.pressure_derivative(t).map_err(m)?;
+            energy_density[q] = vol.energy(t).map_err(m)?;
+        }
+        let coefficients = gram.project(&phi, &dv, |q| first[q]);
+        let coupling = gram.sandwich(&phi, &dv, |q| second[q]);
+        Ok(LinearPressure { phi, dv, coefficients, coupling, energy_density })
+    }
+
+    fn pressure(&self, q: usize) -> f64 {
+        self.coefficients.dot(&self.phi[q])
+    }
+}
+
+/// The mixed element with a linear discontinuous pressure (quad9, hex27:
+/// Q2/P1, Simo–Taylor–Pister condensation with the projection of
+/// [`super::pressure_space`]); always condensed from u (the carried
+/// three-field state is used by the constant-pressure elements only).
+fn integrate_linear_pressure<const ND: usize, const NP: usize>(
+    ctx: &ElementContext,
+    x: &[[f64; 3]],
+    kin: &[Kin; NP],
+    force: &mut SVector<f64, ND>,
+    mut stiffness: Option<&mut SMatrix<f64, ND, ND>>,
+) -> Result<f64, ElementError> {
+    let axi = ctx.analysis == Analysis::Axisymmetric;
+    let lin = LinearPressure::<NP>::new(ctx, x, kin)?;
+    force.fill(0.0);
+    if let Some(k) = stiffness.as_deref_mut() {
+        k.fill(0.0);
+    }
+    let mut energy: f64 = (0..NP).map(|q| lin.energy_density[q] * lin.dv[q]).sum();
+    let mut g = [SVector::<f64, ND>::zeros(); MAX_PRESSURES];
+    let count = PressureSpace::Linear.count(ctx.shape.dimension());
+    for (q, k) in kin.iter().enumerate() {
+        let resp = point_response(ctx.material, true, k, q)?;
+        energy += resp.energy * k.geo.dv;
+        let b = BOp { geo: &k.geo, dim: ND / ctx.shape.nodes(), axisymmetric: axi };
+        let fi = k.f.try_inverse().ok_or(ElementError::Inverted { point: q, j: k.j })?;
+        let jfit = to9(&(fi.transpose() * k.j));
+        let p = lin.pressure(q);
+        let p9 = to9(&(k.f * resp.stress)) + jfit * p;
+        b.add_transpose(&p9, k.geo.dv, force);
+        for (m, gm) in g.iter_mut().enumerate().take(count) {
+            b.add_transpose(&jfit, lin.phi[q][m] * k.geo.dv, gm);
+        }
+        if let Some(kk) = stiffness.as_deref_mut() {
+            let a = first_elasticity(&k.f, &resp.stress, &resp.tangent) + cofactor_derivative(k.j, &fi) * p;
+            b.add_btab(&a, k.geo.dv, kk);
+        }
+    }
+    if let Some(kk) = stiffness {
+        for m in 0..count {
+            for l in 0..count {
+                kk.ger(lin.coupling[(m, l)], &g[m], &g[l], 1.0);
+            }
+        }
+    }
+    Ok(energy)
+}
+
 /// Internal force (and, if asked, the tangent, column-major ND×ND) of one
 /// element into caller buffers of length `shape.dofs()` and its square.
 /// `x` are the reference node positions and `u` the node displacements, both
@@ -325,13 +421,24 @@ pub fn element_with_state_into(
     stiffness: Option<&mut [f64]>,
     state: Option<&mut MixedState>,
 ) -> Result<f64, ElementError> {
+    // One monomorphised kernel per shape: dofs and integration points are
+    // compile-time sizes, so the linear elements keep their fixed-size loops.
     match ctx.shape {
-        Shape::Hex8 => run::<24>(ctx, x, u, 3, force, stiffness, state),
-        Shape::Quad4 => run::<8>(ctx, x, u, 2, force, stiffness, state),
+        Shape::Hex8 => run::<24, 8>(ctx, x, u, 3, force, stiffness, state),
+        Shape::Quad4 => run::<8, 4>(ctx, x, u, 2, force, stiffness, state),
+        Shape::Tri3 => run::<6, 3>(ctx, x, u, 2, force, stiffness, state),
+        Shape::Tri6 => run::<12, 6>(ctx, x, u, 2, force, stiffness, state),
+        Shape::Quad8 => run::<16, 9>(ctx, x, u, 2, force, stiffness, state),
+        Shape::Quad9 => run::<18, 9>(ctx, x, u, 2, force, stiffness, state),
+        Shape::Tet4 => run::<12, 4>(ctx, x, u, 3, force, stiffness, state),
+        Shape::Tet10 => run::<30, 4>(ctx, x, u, 3, force, stiffness, state),
+        Shape::Hex20 => run::<60, 27>(ctx, x, u, 3, force, stiffness, state),
+        Shape::Hex27 => run::<81, 27>(ctx, x, u, 3, force, stiffness, state),
+        Shape::Line2 | Shape::Line3 => Err(ElementError::NotAnElement { shape: ctx.shape.name() }),
     }
 }
 
-fn run<const ND: usize>(
+fn run<const ND: usize, const NP: usize>(
     ctx: &ElementContext,
     x: &[[f64; 3]],
     u: &[[f64; 3]],
@@ -345,13 +452,13 @@ fn run<const ND: usize>(
     match stiffness {
         Some(kbuf) => {
             let mut k = SMatrix::<f64, ND, ND>::zeros();
-            let e = integrate::<ND>(ctx, x, &uv, &mut f, Some(&mut k), state)?;
+            let e = integrate::<ND, NP>(ctx, x, &uv, &mut f, Some(&mut k), state)?;
             kbuf[..ND * ND].copy_from_slice(k.as_slice());
             force[..ND].copy_from_slice(f.as_slice());
             Ok(e)
         }
         None => {
-            let e = integrate::<ND>(ctx, x, &uv, &mut f, None, state)?;
+            let e = integrate::<ND, NP>(ctx, x, &uv, &mut f, None, state)?;
             force[..ND].copy_from_slice(f.as_slice());
             Ok(e)
         }
@@ -380,12 +487,21 @@ pub struct PointState {
 /// Per-point results of one element into `out` (length ≥ `shape.points()`).
 pub fn point_states(ctx: &ElementContext, x: &[[f64; 3]], u: &[[f64; 3]], out: &mut [PointState]) -> Result<(), ElementError> {
     match ctx.shape {
-        Shape::Hex8 => states::<24>(ctx, x, u, 3, out),
-        Shape::Quad4 => states::<8>(ctx, x, u, 2, out),
+        Shape::Hex8 => states::<24, 8>(ctx, x, u, 3, out),
+        Shape::Quad4 => states::<8, 4>(ctx, x, u, 2, out),
+        Shape::Tri3 => states::<6, 3>(ctx, x, u, 2, out),
+        Shape::Tri6 => states::<12, 6>(ctx, x, u, 2, out),
+        Shape::Quad8 => states::<16, 9>(ctx, x, u, 2, out),
+        Shape::Quad9 => states::<18, 9>(ctx, x, u, 2, out),
+        Shape::Tet4 => states::<12, 4>(ctx, x, u, 3, out),
+        Shape::Tet10 => states::<30, 4>(ctx, x, u, 3, out),
+        Shape::Hex20 => states::<60, 27>(ctx, x, u, 3, out),
+        Shape::Hex27 => states::<81, 27>(ctx, x, u, 3, out),
+        Shape::Line2 | Shape::Line3 => Err(ElementError::NotAnElement { shape: ctx.shape.name() }),
     }
 }
 
-fn states<const ND: usize>(
+fn states<const ND: usize, const NP: usize>(
     ctx: &ElementContext,
     x: &[[f64; 3]],
     u: &[[f64; 3]],
@@ -393,18 +509,26 @@ fn states<const ND: usize>(
     out: &mut [PointState],
 ) -> Result<(), ElementError> {
     let uv = SVector::<f64, ND>::from_fn(|r, _| u[r / dim][r % dim]);
-    let mut kin = [Kin::default(); MAX_POINTS];
-    let (vol, vol_def) = kinematics::<ND>(ctx, x, &uv, &mut kin)?;
+    let mut kin = [Kin::default(); NP];
+    let (vol, vol_def) = kinematics::<ND, NP>(ctx, x, &uv, &mut kin)?;
     let mat = ctx.material;
     let mixed = ctx.formulation == Formulation::Mixed;
     let theta = vol_def / vol;
-    let (p, u_vol) = if mixed {
+    // Pressure and volumetric energy density at each point: one value per
+    // element for the constant pressure, the projected fields for the linear one.
+    let mut point_pressure = [0.0; NP];
+    let mut point_u = [0.0; NP];
+    if mixed && PressureSpace::of_shape(ctx.shape) == PressureSpace::Linear {
+        let lin = LinearPressure::new(ctx, x, &kin)?;
+        point_pressure = std::array::from_fn(|q| lin.pressure(q));
+        point_u = lin.energy_density;
+    } else if mixed {
         let m = |e| map_material(e, 0, theta);
-        (mat.volumetric.pressure(theta).map_err(m)?, mat.volumetric.energy(theta).map_err(m)?)
-    } else {
-        (0.0, 0.0)
-    };
-    for (q, k) in kin.iter().take(ctx.shape.points()).enumerate() {
+        point_pressure = [mat.volumetric.pressure(theta).map_err(m)?; NP];
+        point_u = [mat.volumetric.energy(theta).map_err(m)?; NP];
+    }
+    for (q, k) in kin.iter().enumerate() {
+        let (p, u_vol) = (point_pressure[q], point_u[q]);
         let resp = point_response(mat, mixed, k, q)?;
         let mut sigma = k.f * resp.stress * k.f.transpose() / k.j;
         if mixed {

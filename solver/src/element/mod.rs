@@ -78,6 +78,9 @@ pub enum ElementError {
     /// The reference element itself has a non-positive Jacobian (bad mesh).
     #[error("non-positive reference Jacobian {det:.3e} at integration point {point}")]
     BadReference { point: usize, det: f64 },
+    /// A side shape (line) was passed where an element is needed.
+    #[error("{shape} is a side shape, not an element")]
+    NotAnElement { shape: &'static str },
     /// The constitutive model could not evaluate the state.
     #[error("material: {0}")]
     Material(#[from] MaterialError),

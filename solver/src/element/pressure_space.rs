@@ -26,6 +26,8 @@
 
 use nalgebra::{Matrix4, Vector4};
 
+use crate::shape::ShapeKind;
+
 /// Largest pressure-space dimension (linear in 3-D: 1, X, Y, Z).
 pub const MAX_PRESSURES: usize = 4;
 
@@ -40,6 +42,20 @@ pub enum PressureSpace {
 }
 
 impl PressureSpace {
+    /// The pressure space of the mixed element of `shape`. Linear
+    /// discontinuous for the Lagrange quad9 and hex27 (Q2/P1, textbook
+    /// stable: Boffi, Brezzi & Fortin 2013, §8.6.3); constant for the rest:
+    /// Q1/P0 for quad4 and hex8 (Simo, Taylor & Pister 1985), P2/P0 for tri6
+    /// (stable in 2-D, ibid. §8.4) and tet10, and Q2'/P0 for the serendipity
+    /// quad8 and hex20, which lose stability with a linear pressure (the
+    /// numerical inf-sup tests in `tests/tests/inf_sup.rs` show both).
+    pub fn of_shape(shape: ShapeKind) -> PressureSpace {
+        match shape {
+            ShapeKind::Quad9 | ShapeKind::Hex27 => PressureSpace::Linear,
+            _ => PressureSpace::Constant,
+        }
+    }
+
     /// Number of basis functions in `dim` dimensions.
     pub fn count(self, dim: usize) -> usize {
         match self {

@@ -163,6 +163,16 @@ impl ShapeKind {
         self.def().reference_nodes.len()
     }
 
+    /// Number of integration points of [`ShapeKind::rule`].
+    pub fn points(self) -> usize {
+        self.table().len()
+    }
+
+    /// Degrees of freedom of a displacement element of this shape.
+    pub fn dofs(self) -> usize {
+        self.nodes() * self.dimension()
+    }
+
     /// Dimension of the reference domain (1, 2 or 3).
     pub fn dimension(self) -> usize {
         self.def().domain.dimension()

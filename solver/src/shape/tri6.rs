@@ -15,14 +15,17 @@ pub fn eval_into(xi: [f64; 3], n: &mut [f64], dn: &mut [[f64; 3]]) {
     lagrange::quadratic_simplex(&l[..3], &dl[..3], &[[0, 1], [1, 2], [2, 0]], n, dn);
 }
 
-/// Registry entry. Sides list their end nodes, then the mid-side node (line3 order).
+/// Registry entry. Degree 4 (Dunavant's 6 points) rather than the 2 that
+/// straight-sided elements need: on a curved axisymmetric element the hoop
+/// term N_a·det J is quartic, and the patch test needs it integrated exactly.
+/// Sides list their end nodes, then the mid-side node (line3 order).
 pub const SHAPE: ShapeDef = ShapeDef {
     kind: ShapeKind::Tri6,
     domain: Domain::Triangle,
     corners: 3,
     reference_nodes: REFERENCE_NODES,
     eval: eval_into,
-    degree: 2,
+    degree: 4,
     sides: ElementKind::Tri6.sides(),
     side_kind: Some(ShapeKind::Line3),
     edges: &[&[0, 1, 3], &[1, 2, 4], &[2, 0, 5]],

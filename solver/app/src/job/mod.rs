@@ -9,6 +9,7 @@
 pub mod applied;
 pub mod build;
 pub mod check;
+mod conflicts;
 pub mod diagnostics;
 mod fluid;
 pub mod inserts;

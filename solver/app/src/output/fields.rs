@@ -15,6 +15,7 @@ use super::vtu::Field;
 use olli_solver::assembly::Discretization;
 use olli_solver::element::{element_into, point_states, PointState, MAX_DOFS, MAX_POINTS};
 use olli_solver::error::SolveError;
+use olli_solver::shape::MAX_NODES;
 
 /// Von Mises equivalent stress of a symmetric stress tensor.
 pub fn von_mises(s: &Matrix3<f64>) -> f64 {
@@ -204,7 +205,7 @@ fn merge(into: &mut Peaks, from: &mut Peaks) {
 
 /// Point states, means, peaks and internal force of element `e`.
 fn element_result(disc: &Discretization, e: usize, u: &[f64]) -> Result<(ElementResult, [f64; MAX_DOFS]), SolveError> {
-    let (mut x, mut ue) = ([[0.0; 3]; 8], [[0.0; 3]; 8]);
+    let (mut x, mut ue) = ([[0.0; 3]; MAX_NODES], [[0.0; 3]; MAX_NODES]);
     disc.gather(e, u, &mut x, &mut ue);
     let ctx = disc.context(e);
     let np = ctx.shape.points();
