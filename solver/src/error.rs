@@ -35,6 +35,10 @@ pub enum SolveError {
     IncrementTooSmall { stage: String, load_factor: f64, step: f64, min: f64, reason: String },
     #[error("rigid body `{body}`: {reason}")]
     BadContact { body: String, reason: String },
+    #[error("fluid `{fluid}`: {reason}")]
+    BadFluid { fluid: String, reason: String },
+    #[error("fluid front did not settle within {updates} updates")]
+    FluidFrontNotSettled { updates: usize },
     #[error("contact: penetration {penetration:.3e} still above the tolerance {tolerance:.3e} after {augmentations} augmentations")]
     ContactNotResolved { penetration: f64, tolerance: f64, augmentations: usize },
     #[error("insert `{insert}`: {reason}")]

@@ -54,6 +54,28 @@ pub struct Pressure {
     pub value: f64,
 }
 
+/// A fluid that enters at a source point on the rubber surface and loads,
+/// as a follower pressure, every facet of `sides` it can reach (see
+/// [`crate::load::fluid`]): the facets connected to the source through facets
+/// that are open or pressed against a rigid surface less hard than the fluid.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Fluid {
+    /// Name used in results (`fluid_<name>_...`) and by [`FluidPressure`].
+    pub name: String,
+    /// Side set the fluid may wet.
+    pub sides: String,
+    /// Reference position (length units) of a point on `sides` where the fluid enters.
+    pub source: [f64; 3],
+}
+
+/// Pressure of a [`Fluid`] (stress units) reached at the end of a stage,
+/// ramped like other loads (ramp keyed by the fluid's name).
+#[derive(Debug, Clone, PartialEq)]
+pub struct FluidPressure {
+    pub fluid: String,
+    pub value: f64,
+}
+
 /// A total force on a set (dead load). On a side set it is spread as a
 /// uniform traction over the undeformed sides; on a node set it is split
 /// equally among the nodes. Axisymmetric: the force over the full 2π.
@@ -281,6 +303,8 @@ pub struct Stage {
     pub motions: Vec<Motion>,
     pub pressures: Vec<Pressure>,
     pub forces: Vec<Force>,
+    /// Fluid pressures reached at the end of the stage (others are held).
+    pub fluid_pressures: Vec<FluidPressure>,
     /// Body force per unit reference volume reached at the end of the stage
     /// (`None` holds the previous value).
     pub body_force: Option<[f64; 3]>,
@@ -289,8 +313,8 @@ pub struct Stage {
     /// Bonded inserts driven in this stage (ramped by the insert's name in `ramps`).
     pub inserts: Vec<InsertStage>,
     /// Ramps of the loads of this stage by set name (motions, pressures,
-    /// forces on that set; [`BODY_FORCE_RAMP`] for the body force) or by
-    /// rigid-body name (its motion). Loads not named here ramp linearly.
+    /// forces on that set; [`BODY_FORCE_RAMP`] for the body force), by
+    /// rigid-body name (its motion) or by fluid name (its pressure). Loads not named here ramp linearly.
     pub ramps: std::collections::BTreeMap<String, Ramp>,
 }
 
@@ -318,6 +342,8 @@ pub struct Model {
     pub stages: Vec<Stage>,
     /// Rigid surfaces in contact with the rubber.
     pub rigid: Vec<RigidBody>,
+    /// Fluids that wet the rubber where contact lets them in.
+    pub fluids: Vec<Fluid>,
     /// Rigid inserts bonded to the rubber.
     pub inserts: Vec<Insert>,
     /// Sets whose reaction moment is reported, with the point it is taken
@@ -337,6 +363,7 @@ impl Model {
             regions: vec![Region { name: "all".into(), elements, material, formulation }],
             stages: Vec::new(),
             rigid: Vec::new(),
+            fluids: Vec::new(),
             inserts: Vec::new(),
             moment_points: Default::default(),
             linear: LinearSettings::default(),

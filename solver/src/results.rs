@@ -8,6 +8,7 @@ pub use crate::contact::active::{ContactFields, ContactSummary};
 use crate::element::PointState;
 use crate::error::SolveError;
 use crate::linear::LinearStats;
+pub use crate::load::fluid::FluidSummary;
 
 impl PointState {
     /// Largest principal logarithmic (Hencky) strain ln λ_max.
@@ -86,6 +87,10 @@ pub struct IncrementResult {
     pub contact: Vec<ContactSummary>,
     /// Contact pressure, gap, slip and status at nodes (when the model has rigid bodies).
     pub contact_fields: Option<ContactFields>,
+    /// Per fluid: applied pressure and wetted length (2-D) or area (3-D).
+    pub fluids: Vec<FluidSummary>,
+    /// Fluid pressure at every node of a wetted facet, 0 elsewhere (when the model has fluids).
+    pub fluid_pressure: Option<Vec<f64>>,
 }
 
 impl IncrementResult {

@@ -118,20 +118,30 @@ fn run_writes_history_summary_and_readable_frames() {
     assert_eq!(out.status.code(), Some(0), "{}", text(&out));
     let history = std::fs::read_to_string(s.out().join("history.csv")).unwrap();
     let header = history.lines().next().unwrap();
-    assert_eq!(header, "stage,increment,load_factor,reaction_right_r,reaction_right_z,reaction_pin_r,reaction_pin_z,newton_iterations");
+    assert_eq!(
+        header,
+        "stage,increment,load_factor,applied_pin_r,applied_pin_z,reaction_right_r,reaction_right_z,reaction_pin_r,reaction_pin_z,newton_iterations"
+    );
     let rows: Vec<Vec<&str>> = history.lines().skip(1).map(|l| l.split(',').collect()).collect();
     assert!(rows.len() >= 4, "at least 1/max_increment = 4 increments");
     let last = rows.last().unwrap();
     assert_eq!(last[2].parse::<f64>().unwrap(), 1.0);
     // Equilibrium: what the pin takes, the sleeve gives back (axial, full 2π).
-    let (pin, sleeve): (f64, f64) = (last[6].parse().unwrap(), last[4].parse().unwrap());
+    let (pin, sleeve): (f64, f64) = (last[8].parse().unwrap(), last[6].parse().unwrap());
     assert!(pin > 0.0 && (pin + sleeve).abs() < 1e-6 * pin, "pin {pin}, sleeve {sleeve}");
+    // The applied travel follows the linear ramp: 0.5 mm × load factor at every row.
+    for row in &rows {
+        let (t, travel): (f64, f64) = (row[2].parse().unwrap(), row[4].parse().unwrap());
+        assert!((travel - 0.5 * t).abs() < 1e-12, "travel {travel} at load factor {t}");
+    }
 
     let summary: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(s.out().join("summary.json")).unwrap()).unwrap();
     assert_eq!(summary["status"], "converged");
     let pin_json = summary["reactions"]["pin"]["z"].as_f64().unwrap();
     assert!((pin_json - pin).abs() < 1e-9 * pin, "summary {pin_json} vs history {pin}");
     assert_eq!(summary["units"]["reaction_pin_z"], "force");
+    assert_eq!(summary["units"]["applied_pin_z"], "length");
+    assert_eq!(summary["applied"]["applied_pin_z"], 0.5);
     assert!(summary["peaks"]["displacement"]["value"].as_f64().unwrap() >= 0.5 - 1e-12);
     assert!(s.out().join("olli.log").exists());
 
@@ -335,6 +345,41 @@ fn unknown_ramp_is_located_with_a_suggestion() {
     rejects(&job, &["unknown ramp `stpe`", "did you mean `step`?"]);
 }
 
+/// The bush with a fluid entering at the outer face (r = 25) in stage `push`.
+fn bush_with_fluid(source: &str, stage: &str) -> String {
+    format!("{BUSH}\n[[fluid]]\nname = \"oil\"\nsides = \"top\"\nsource = {source}\nstage = \"{stage}\"\npressure = 0.1\n")
+}
+
+#[test]
+fn fluid_bad_input_is_located() {
+    // The top side set runs from r = 10 to 25 at z = 40: a point at z = 30 is off it.
+    let job = bush_with_fluid("[20.0, 30.0]", "push");
+    let line = job.lines().position(|l| l.starts_with("source =")).unwrap() + 1;
+    rejects(&job, &[&format!("job.toml:{line}:"), "fluid `oil`: source point (20, 30) is not on side set `top`"]);
+    let job = bush_with_fluid("[20.0, 40.0]", "pump");
+    let line = job.lines().position(|l| l.starts_with("stage = \"pump\"")).unwrap() + 1;
+    rejects(&job, &[&format!("job.toml:{line}:"), "no stage named `pump`", "did you mean `push`?"]);
+    rejects(&bush_with_fluid("[20.0]", "push"), &["`source`: give 2 finite coordinates"]);
+    rejects(&bush_with_fluid("[20.0, 40.0]", "push").replace("sides = \"top\"", "sides = \"pin\""), &["`pin` is not a side set"]);
+}
+
+#[test]
+fn fluid_on_a_valid_source_runs_and_reports_its_columns() {
+    let s = Scratch::new("fluid");
+    let out = run(&s.job(&bush_with_fluid("[20.0, 40.0]", "push")), &s.out());
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out));
+    let history = std::fs::read_to_string(s.out().join("history.csv")).unwrap();
+    let header = history.lines().next().unwrap();
+    assert!(header.ends_with(",fluid_oil_pressure,fluid_oil_wetted_length,newton_iterations"), "{header}");
+    let summary: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(s.out().join("summary.json")).unwrap()).unwrap();
+    assert_eq!(summary["fluids"]["oil"]["pressure"], 0.1);
+    // No contact: the whole top face (15 mm, squeezed a little) is wetted.
+    let wetted = summary["fluids"]["oil"]["wetted_length"].as_f64().unwrap();
+    assert!((wetted - 15.0).abs() < 0.05, "{wetted}");
+    let (_, _, point, _) = arrays(&s.out().join("job_0001.vtu"));
+    assert!(point.iter().any(|(name, _)| name == "fluid_pressure"), "{point:?}");
+}
+
 /// For the pictures: a small plane-strain block (invented numbers) pressed by a rigid plate:
 /// a reaction, a rigid surface with contact, two stages.
 const BLOCK: &str = r#"
@@ -440,7 +485,8 @@ fn insert_columns_summary_and_run_summary() {
     let m = Scratch::new("insert-motion");
     assert_eq!(run(&m.job(BUSH), &m.out()).status.code(), Some(0));
     let h = std::fs::read_to_string(m.out().join("history.csv")).unwrap();
-    let pin: f64 = h.lines().last().unwrap().split(',').nth(6).unwrap().parse().unwrap();
+    // Columns: stage, increment, load_factor, applied_pin_r, applied_pin_z, reaction_right_r, _z, reaction_pin_r, _z.
+    let pin: f64 = h.lines().last().unwrap().split(',').nth(8).unwrap().parse().unwrap();
     assert!((pin + force).abs() < 1e-8 * pin, "motion {pin}, insert {force}");
 }
 

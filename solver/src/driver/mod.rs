@@ -26,6 +26,7 @@ use crate::element::{point_states, MixedState, PointState};
 use crate::error::SolveError;
 use crate::insert::Inserts;
 use crate::linear::{LinearSolver, LinearStats};
+use crate::load::fluid::Fluids;
 use crate::model::Model;
 use crate::results::{IncrementResult, NodalFields, PointFields, Solution, SolveStats, Termination};
 use crate::shape::MAX_NODES;
@@ -41,6 +42,7 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
     }
     let (programs, report_sets) = stages::resolve(&disc)?;
     let mut contacts = ActiveContacts::new(&disc)?;
+    let mut fluids = Fluids::new(&disc)?;
     let mut inserts = Inserts::new(&disc)?;
     let dim = disc.dim;
     let ndof = model.mesh.node_count() * dim;
@@ -65,9 +67,11 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
         observer.event(&Event::StageStart { stage: si, name: &stage.name, equations: dofs.n_free });
         let start: Vec<f64> = u.clone();
         contacts.begin_stage(&stage.rigid_motions, &stage.ramps);
+        fluids.begin_stage(stage);
         inserts.begin_stage(stage);
         let mut ctx = NewtonContext::new(&disc, dofs, pattern, linear, prog, &start, &stage.controls, &stage.name, &mut contacts)
-            .with_inserts(std::mem::take(&mut inserts));
+            .with_inserts(std::mem::take(&mut inserts))
+            .with_fluids(&mut fluids);
         if stage.controls.carry_pressure {
             if states.is_empty() {
                 states = vec![MixedState::default(); model.mesh.element_count()];
@@ -93,6 +97,10 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
                     let share = ctx.stabilization_share(&u);
                     ctx.last_converged.copy_from_slice(&u);
                     ctx.contacts.commit();
+                    let contact_pressure = ctx.contacts.fields(model.mesh.node_count()).pressure;
+                    if let Some(f) = ctx.fluids.as_deref_mut() {
+                        f.commit(&contact_pressure);
+                    }
                     ctx.inserts.commit();
                     let result = increment_result(
                         &disc,
@@ -257,6 +265,8 @@ fn increment_result(
         contact: ctx.contacts.summaries(),
         inserts: ctx.inserts.results(),
         contact_fields: if ctx.contacts.is_empty() { None } else { Some(ctx.contacts.fields(mesh.node_count())) },
+        fluids: ctx.fluids.as_deref().map(|f| f.summaries(&mesh.nodes, u, load_factor)).unwrap_or_default(),
+        fluid_pressure: ctx.fluids.as_deref().map(|f| f.nodal_pressure(mesh.node_count(), load_factor)),
         points: if model.output.point_fields { points } else { None },
         nodal,
     })

@@ -26,6 +26,7 @@ use crate::element::{ElementError, Formulation, MixedState};
 use crate::error::SolveError;
 use crate::insert::{condense, Inserts};
 use crate::linear::{FactorKind, LinearSolver};
+use crate::load::fluid::Fluids;
 use crate::load::pressure::{pressure_side_into, MAX_SIDE_DOFS};
 use crate::model::IncrementControls;
 use crate::results::SolveStats;
@@ -63,6 +64,10 @@ pub struct NewtonContext<'a> {
     pub last_converged: Vec<f64>,
     /// Rigid-surface contact (may hold no bodies).
     pub contacts: &'a mut ActiveContacts,
+    /// Fluids whose wetted front follows the contact (none: no fluid).
+    pub fluids: Option<&'a mut Fluids>,
+    /// Skew-symmetric tangent entries of contact and fluid loads, at lower-triangle slots.
+    skew: Vec<(usize, f64)>,
     /// Smallest force scale: 1e-10 × the model's force unit μ·L² (see [`force_unit`]).
     force_floor: f64,
     /// Stabilisation spring per dof (empty when the stage has none).
@@ -151,6 +156,8 @@ impl<'a> NewtonContext<'a> {
                 Vec::new()
             },
             contacts,
+            fluids: None,
+            skew: Vec::new(),
             states: Vec::new(),
             states_base: Vec::new(),
             states_converged: Vec::new(),
@@ -180,6 +187,14 @@ impl<'a> NewtonContext<'a> {
         self.states_base = states.clone();
         self.states = states.clone();
         self.states_converged = states;
+        self
+    }
+
+    /// Loads the wetted facets of these fluids.
+    pub fn with_fluids(mut self, fluids: &'a mut Fluids) -> Self {
+        if !fluids.is_empty() {
+            self.fluids = Some(fluids);
+        }
         self
     }
 
@@ -285,6 +300,18 @@ impl<'a> NewtonContext<'a> {
         self.add_pressures(u, t, want_k, predict);
         if !self.contacts.is_empty() {
             self.contacts.evaluate(
+                &self.disc.mesh().nodes,
+                u,
+                t,
+                self.dofs,
+                self.pattern,
+                &mut self.f_ext,
+                if want_k { Some(&mut self.k) } else { None },
+                if predict { Some((&self.dup, &mut self.rhs)) } else { None },
+            );
+        }
+        if let Some(fluids) = self.fluids.as_deref_mut() {
+            fluids.add_loads(
                 &self.disc.mesh().nodes,
                 u,
                 t,
@@ -493,6 +520,9 @@ impl<'a> NewtonContext<'a> {
         let mut extrapolated = false;
         u.copy_from_slice(&self.last_converged);
         self.states.copy_from_slice(&self.states_converged);
+        if let Some(fluids) = self.fluids.as_deref_mut() {
+            fluids.begin_increment(t);
+        }
         self.inserts.restore();
         if let Some((prev, ratio)) = extrapolation {
             for d in 0..ndof {
@@ -541,7 +571,12 @@ impl<'a> NewtonContext<'a> {
                     relative: res / self.force_scale(),
                 });
             }
-            let kind = self.linear.factor_nonsymmetric(&self.k, &self.contacts.skew)?;
+            self.skew.clear();
+            self.skew.extend_from_slice(&self.contacts.skew);
+            if let Some(fluids) = self.fluids.as_deref() {
+                self.skew.extend_from_slice(&fluids.skew);
+            }
+            let kind = self.linear.factor_nonsymmetric(&self.k, &self.skew)?;
             if !matches!(kind, FactorKind::Cholesky | FactorKind::LuNonsymmetric) {
                 observer.event(&Event::LinearFallback { stage, increment, iteration: iterations + 1, factor: kind });
             }
@@ -562,9 +597,15 @@ impl<'a> NewtonContext<'a> {
             // The line search assumes the Newton direction descends an energy:
             // not so with friction (it dissipates) or an indefinite tangent, so
             // then only full steps are taken (still halved when an element
-            // would invert).
+            // would invert). A fluid's follower load is not conservative
+            // either, but its skew part is small next to the rubber's
+            // stiffness, so its direction still descends.
             // Insert unknowns make the system unsymmetric: full steps too.
-            let line_search = c.line_search && !self.contacts.has_friction() && kind == FactorKind::Cholesky && self.dq.is_empty();
+            let nonconservative_fluid = kind == FactorKind::LuNonsymmetric && self.fluids.is_some() && self.contacts.skew.is_empty();
+            let line_search = c.line_search
+                && !self.contacts.has_friction()
+                && (kind == FactorKind::Cholesky || nonconservative_fluid)
+                && self.dq.is_empty();
             let energy = loop {
                 self.apply(u, s);
                 if !self.inserts.is_empty() {
@@ -621,8 +662,14 @@ impl<'a> NewtonContext<'a> {
             let disp_ok = step2.sqrt() <= c.displacement_tolerance * inc2.max(tot2).sqrt().max(f64::MIN_POSITIVE);
             if rel <= c.force_tolerance && (energy_ok || disp_ok) {
                 if !self.contacts.needs_augmentation() {
-                    self.states_converged.copy_from_slice(&self.states);
-                    return Ok(IncrementOutcome::Converged { iterations, residuals, energy });
+                    if !self.fluid_front_moved(u, t, stats)? {
+                        self.states_converged.copy_from_slice(&self.states);
+                        return Ok(IncrementOutcome::Converged { iterations, residuals, energy });
+                    }
+                    // The wetted set changed: re-balance at the same load.
+                    budget = iterations + c.max_iterations;
+                    first_energy = None;
+                    continue;
                 }
                 // Augmented Lagrangian: move the multipliers toward the contact
                 // pressure and re-balance at the same load.
@@ -638,6 +685,23 @@ impl<'a> NewtonContext<'a> {
                 self.evaluate(u, t, true, false, stats)?;
             }
         }
+    }
+
+    /// After an equilibrium: finds the fluids' front from the current contact
+    /// pressures; if it moved, re-evaluates the residual and tangent with the
+    /// new wetted set and returns true.
+    fn fluid_front_moved(&mut self, u: &[f64], t: f64, stats: &mut SolveStats) -> Result<bool, SolveError> {
+        let Some(fluids) = self.fluids.as_deref_mut() else { return Ok(false) };
+        let contact = self.contacts.fields(self.disc.mesh().node_count()).pressure;
+        if !fluids.update_front(&contact, t) {
+            return Ok(false);
+        }
+        if fluids.updates() > crate::load::fluid::FREE_UPDATES + fluids.facet_count() {
+            return Err(SolveError::FluidFrontNotSettled { updates: fluids.updates() });
+        }
+        self.dup.fill(0.0);
+        self.evaluate(u, t, true, false, stats)?;
+        Ok(true)
     }
 
     /// `u = base + s·du` on the free dofs.

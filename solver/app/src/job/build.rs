@@ -11,6 +11,7 @@ use std::sync::Arc;
 use olli_mesh::Mesh;
 use toml::Spanned;
 
+use super::applied::{applied_columns, AppliedColumn};
 use super::diagnostics::{nearest, InputError};
 use super::mesh_source::{all_set_names, apply_selections, mesh_from_table};
 use super::schema::{AnalysisKind, FormulationKind, JobFile, MaterialTable};
@@ -18,6 +19,7 @@ use olli_solver::assembly::Discretization;
 use olli_solver::linear::LinearSettings;
 use olli_solver::material::{Material, MaterialError, VolumetricForm};
 use olli_solver::model::{Analysis, Formulation, Model, OutputSettings, Region};
+use olli_solver::results::IncrementResult;
 
 /// Names of the arrays a `.vtu` frame can hold (`[output] fields`).
 pub const FIELD_NAMES: &[&str] = &[
@@ -32,6 +34,7 @@ pub const FIELD_NAMES: &[&str] = &[
     "volume_ratio",
     "element_pressure",
     "contact",
+    "fluid_pressure",
 ];
 
 /// One material of the job, built.
@@ -71,6 +74,14 @@ pub struct Job {
     /// Rigid surfaces, in file order: their forces, contact width and peak
     /// pressure go to `history.csv` and the summary.
     pub rigid_names: Vec<String>,
+    /// For each rigid surface (same order), the fluids whose side set shares
+    /// nodes with the side set it touches: the fluids its seal holds back.
+    pub rigid_fluids: Vec<Vec<String>>,
+    /// Fluids, in file order: their pressure and wetted length or area go
+    /// to `history.csv` and the summary.
+    pub fluid_names: Vec<String>,
+    /// The `applied_...` columns of `history.csv`.
+    pub applied: Vec<AppliedColumn>,
     /// Inserts, in file order: their position, force and moment go to
     /// `history.csv` and the summary.
     pub insert_names: Vec<String>,
@@ -111,7 +122,7 @@ impl Job {
 
     /// The rigid-surface columns of `history.csv`: `rigid_<name>_<component>`
     /// (force of the rubber on the surface), `rigid_<name>_contact_width`,
-    /// `rigid_<name>_peak_pressure`.
+    /// `rigid_<name>_peak_pressure`, and with fluids `rigid_<name>_sealing_margin`.
     pub fn rigid_columns(&self) -> Vec<String> {
         self.rigid_names
             .iter()
@@ -119,9 +130,19 @@ impl Job {
                 let mut c: Vec<String> = self.components().iter().map(|c| format!("rigid_{n}_{c}")).collect();
                 c.push(format!("rigid_{n}_contact_width"));
                 c.push(format!("rigid_{n}_peak_pressure"));
+                if !self.fluid_names.is_empty() {
+                    c.push(format!("rigid_{n}_sealing_margin"));
+                }
                 c
             })
             .collect()
+    }
+
+    /// The fluid columns: `fluid_<name>_pressure` and
+    /// `fluid_<name>_wetted_length` (2-D) or `fluid_<name>_wetted_area` (3-D).
+    pub fn fluid_columns(&self) -> Vec<String> {
+        let measure = if self.kind == AnalysisKind::Solid { "wetted_area" } else { "wetted_length" };
+        self.fluid_names.iter().flat_map(|n| [format!("fluid_{n}_pressure"), format!("fluid_{n}_{measure}")]).collect()
     }
 
     /// The insert columns of `history.csv` with their units (see [`super::inserts::insert_columns`]).
@@ -129,13 +150,22 @@ impl Job {
         self.insert_names.iter().flat_map(|n| super::inserts::insert_columns(self.kind, n)).collect()
     }
 
-    /// Every value column of `history.csv`, in order.
+    /// Every value column of `history.csv`, in order: applied loads,
+    /// reactions, rigid surfaces, fluids, inserts.
     pub fn history_columns(&self) -> Vec<String> {
-        let mut c = self.reaction_columns();
+        let mut c: Vec<String> = self.applied.iter().map(|a| a.name.clone()).collect();
+        c.extend(self.reaction_columns());
         c.extend(self.moment_columns());
         c.extend(self.rigid_columns());
+        c.extend(self.fluid_columns());
         c.extend(self.insert_columns().into_iter().map(|(n, _)| n));
         c
+    }
+
+    /// The fluid pressure a rigid surface's seal holds back at increment `r`:
+    /// the largest pressure of the fluids reaching its side set (0 if none).
+    pub fn sealed_pressure(&self, rigid: usize, r: &IncrementResult) -> f64 {
+        self.rigid_fluids[rigid].iter().filter_map(|n| r.fluids.iter().find(|f| &f.name == n)).map(|f| f.pressure).fold(0.0, f64::max)
     }
 }
 
@@ -214,6 +244,7 @@ impl Builder<'_> {
         let regions = self.regions(&file, &mesh, &mut materials)?;
         let rigid = self.rigid_bodies(&file, &mesh, kind)?;
         let (stages, inserts) = self.stages(&file, &mesh, kind)?;
+        let fluids = self.fluids(&file, &mesh, kind)?;
         let reaction_sets = self.reaction_sets(&file);
         let output = self.output_plan(&file)?;
 
@@ -223,6 +254,7 @@ impl Builder<'_> {
             regions,
             stages,
             rigid,
+            fluids,
             inserts,
             moment_points: self.moment_points(&file, kind)?,
             linear: LinearSettings::default(),
@@ -233,7 +265,22 @@ impl Builder<'_> {
         // Element kinds, region cover and set kinds, checked by the solver's own tables.
         let disc = Discretization::new(&model).map_err(|e| self.err(file.mesh.span(), e.to_string()))?;
         olli_solver::driver::stages::resolve(&disc).map_err(|e| self.err(0..0, e.to_string()))?;
+        self.check_fluids(&file, &disc)?;
         drop(disc);
+        let fluid_names: Vec<String> = model.fluids.iter().map(|f| f.name.clone()).collect();
+        let rigid_fluids = model
+            .rigid
+            .iter()
+            .map(|b| {
+                let touched = model.mesh.side_set_nodes(&b.sides).unwrap_or_default();
+                model
+                    .fluids
+                    .iter()
+                    .filter(|f| model.mesh.side_set_nodes(&f.sides).unwrap_or_default().iter().any(|n| touched.binary_search(n).is_ok()))
+                    .map(|f| f.name.clone())
+                    .collect()
+            })
+            .collect();
         let title = if file.title.is_empty() {
             self.path.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_default()
         } else {
@@ -247,6 +294,9 @@ impl Builder<'_> {
             materials,
             reaction_sets,
             rigid_names: file.rigid.iter().map(|r| r.get_ref().name.get_ref().clone()).collect(),
+            rigid_fluids,
+            fluid_names,
+            applied: applied_columns(&file, kind),
             insert_names: file.insert.iter().map(|r| r.get_ref().name.get_ref().clone()).collect(),
             output,
             mesh_notes,
@@ -379,6 +429,21 @@ impl Builder<'_> {
             out.insert(set.get_ref().clone(), p);
         }
         Ok(out)
+    }
+
+    /// Checks that `name` (under key `sides`) is a side set; `acts` says what
+    /// needs one ("a pressure acts on").
+    pub(super) fn side_set(&self, mesh: &Mesh, name: &Spanned<String>, acts: &str) -> Result<(), InputError> {
+        let set = name.get_ref();
+        if mesh.side_sets.contains_key(set) {
+            return Ok(());
+        }
+        let known: Vec<&str> = mesh.side_sets.keys().map(String::as_str).collect();
+        let mut e = self.unknown_name(name.span(), "sides", "side set", set, &known);
+        if mesh.nodes_of_set(set).is_some() {
+            e.message = format!("`sides`: `{set}` is not a side set: {acts} sides (edges or faces)");
+        }
+        Err(e)
     }
 
     fn reaction_sets(&self, file: &JobFile) -> Vec<String> {

@@ -1,14 +1,17 @@
 //! Job files: olli's TOML description of one analysis, read and checked here
 //! at the edge of the program ([`schema`] describes the file, [`build`] and
 //! its stage part check it and turn it into a solver model, [`mesh_source`]
-//! makes the mesh and the selected sets, `rigid` the contact surfaces), and
+//! makes the mesh and the selected sets, `rigid` the contact surfaces, `fluid`
+//! the fluids that wet the rubber), and
 //! [`check`] reports on a job
 //! without solving it.
 
+pub mod applied;
 pub mod build;
 pub mod check;
 mod conflicts;
 pub mod diagnostics;
+mod fluid;
 pub mod inserts;
 pub mod mesh_source;
 mod rigid;

@@ -42,6 +42,9 @@ pub struct JobFile {
     /// Follower pressures on side sets.
     #[serde(default)]
     pub pressure: Vec<Spanned<PressureSpec>>,
+    /// Fluids that wet the rubber wherever contact lets them in.
+    #[serde(default)]
+    pub fluid: Vec<Spanned<FluidSpec>>,
     /// Total forces on sets.
     #[serde(default)]
     pub force: Vec<Spanned<ForceSpec>>,
@@ -217,11 +220,33 @@ pub struct MotionSpec {
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct PressureSpec {
+    /// Name of the `applied_<name>_pressure` column (default: the side set's name).
+    pub name: Option<Spanned<String>>,
     pub sides: Spanned<String>,
     pub stage: Option<Spanned<String>>,
     pub value: f64,
     /// How the load changes over its stage: `"linear"` (default), `"step"`
     /// (all at once), or a table `[[t, fraction], ...]` of stage fraction t.
+    pub ramp: Option<Spanned<RampSpec>>,
+}
+
+/// A fluid entering at `source` and wetting the facets of `sides` that it can
+/// reach (facets open or pressed less hard than the fluid), with the pressure
+/// (stress units) reached at the end of `stage`.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct FluidSpec {
+    /// Name of the fluid: columns `fluid_<name>_...`; tables of one name in
+    /// several stages are one fluid.
+    pub name: Spanned<String>,
+    /// Side set the fluid may wet.
+    pub sides: Spanned<String>,
+    /// A point on `sides` (reference position) where the fluid enters.
+    pub source: Spanned<Vec<f64>>,
+    pub stage: Option<Spanned<String>>,
+    /// Pressure reached at the end of the stage.
+    pub pressure: Spanned<f64>,
+    /// How the pressure changes over its stage (as for loads).
     pub ramp: Option<Spanned<RampSpec>>,
 }
 

@@ -135,16 +135,26 @@ impl Builder<'_> {
             let spec = p.get_ref();
             let i = self.stage_index(&file.stage, &spec.stage)?;
             let name = spec.sides.get_ref();
-            if !mesh.side_sets.contains_key(name) {
-                let known: Vec<&str> = mesh.side_sets.keys().map(String::as_str).collect();
-                let mut e = self.unknown_name(spec.sides.span(), "sides", "side set", name, &known);
-                if mesh.nodes_of_set(name).is_some() {
-                    e.message = format!("`sides`: `{name}` is not a side set: a pressure acts on sides (edges or faces)");
-                }
-                return Err(e);
-            }
+            self.side_set(mesh, &spec.sides, "a pressure acts on")?;
             if !spec.value.is_finite() {
                 return Err(self.err(p.span(), "pressure `value` must be a finite number"));
+            }
+            if let Some(label) = &spec.name {
+                let other = file
+                    .pressure
+                    .iter()
+                    .map(|q| q.get_ref())
+                    .find(|q| q.name.as_ref().is_some_and(|n| n.get_ref() == label.get_ref()) && q.sides.get_ref() != name);
+                if let Some(o) = other {
+                    return Err(self.err(
+                        label.span(),
+                        format!(
+                            "`name`: pressure `{}` is also used on side set `{}`; one name, one side set",
+                            label.get_ref(),
+                            o.sides.get_ref()
+                        ),
+                    ));
+                }
             }
             self.set_ramp(&mut stages[i], name, &spec.ramp)?;
             stages[i].pressures.push(Pressure { set: name.clone(), value: spec.value });
@@ -170,13 +180,14 @@ impl Builder<'_> {
             loaded[i] = true;
         }
         self.rigid_motions(file, kind, &mut stages, &mut loaded)?;
+        self.fluid_pressures(file, &mut stages, &mut loaded)?;
         let inserts = self.inserts(file, mesh, kind, &mut stages, &mut loaded)?;
         self.check_conflicts(file, mesh, kind, &stages, &inserts)?;
         if let Some(i) = loaded.iter().position(|&l| !l) {
             let name = &stages[i].name;
             return Err(self.err(
                 file.stage[i].span(),
-                format!("stage `{name}` has no loads: give it a [[motion]], [[pressure]], [[force]] or [[body_force]] with `stage = \"{name}\"`, or move a [[rigid]] surface or an [[insert]] in it"),
+                format!("stage `{name}` has no loads: give it a [[motion]], [[pressure]], [[fluid]], [[force]] or [[body_force]] with `stage = \"{name}\"`, or move a [[rigid]] surface or an [[insert]] in it"),
             ));
         }
         Ok((stages, inserts))

@@ -50,6 +50,11 @@ pub struct RunSummary {
     /// Each rigid surface at the last converged increment: the force of the
     /// rubber on it by component, `contact_width` and `peak_pressure`.
     pub rigid: BTreeMap<String, BTreeMap<String, f64>>,
+    /// Each fluid at the last converged increment: `pressure` and
+    /// `wetted_length` (2-D) or `wetted_area` (3-D).
+    pub fluids: BTreeMap<String, BTreeMap<String, f64>>,
+    /// The `applied_...` columns at the last converged increment.
+    pub applied: BTreeMap<String, f64>,
     /// Each insert at the last converged increment, keyed as its
     /// `history.csv` columns without the `insert_<name>_` prefix: position
     /// (`x` ... `rz`, rotations in degrees), `force_<c>` and `moment_<c>` of
@@ -75,7 +80,8 @@ impl RunSummary {
     }
 }
 
-/// Dimensions of the `history.csv` columns (`columns`: the reaction and rigid-surface columns).
+/// Dimensions of the `history.csv` columns (`columns`: the applied, reaction,
+/// rigid-surface and fluid columns).
 pub fn units(columns: &[String]) -> BTreeMap<String, String> {
     let mut u: BTreeMap<String, String> = [
         ("stage", "name"),
@@ -93,9 +99,11 @@ pub fn units(columns: &[String]) -> BTreeMap<String, String> {
     for c in columns {
         let dimension = if c.contains("_moment_") {
             "force·length"
-        } else if c.ends_with("_contact_width") {
+        } else if c.ends_with("_contact_width") || c.ends_with("_wetted_length") {
             "length"
-        } else if c.ends_with("_peak_pressure") {
+        } else if c.ends_with("_wetted_area") {
+            "area (length²)"
+        } else if c.ends_with("_pressure") || c.ends_with("_sealing_margin") {
             "stress (force/length²)"
         } else {
             "force"

@@ -17,6 +17,7 @@ use super::history::History;
 use super::pvd::{pvd_text, PvdEntry};
 use super::summary::{units, Files, IncrementRef, RunSummary};
 use super::vtu::{write_vtu, Field};
+use crate::job::applied::AppliedSource;
 use crate::job::Job;
 use olli_solver::assembly::Discretization;
 use olli_solver::driver::{Event, Observer};
@@ -104,29 +105,35 @@ impl<'m> ResultWriter<'m> {
 
     fn converged(&mut self, r: &IncrementResult) {
         let dim = self.disc.dim;
-        let mut values: Vec<f64> = self
-            .job
-            .reaction_sets
-            .iter()
-            .flat_map(|s| {
-                let f = r.reactions.get(s).copied().unwrap_or([0.0; 3]);
-                f.into_iter().take(dim)
-            })
-            .collect();
-        for s in self.job.reaction_sets.iter().filter(|s| self.job.model.moment_points.contains_key(*s)) {
+        let job = self.job;
+        let mut values: Vec<f64> = job.applied.iter().map(|a| a.value(&job.model, r)).collect();
+        values.extend(job.reaction_sets.iter().flat_map(|s| {
+            let f = r.reactions.get(s).copied().unwrap_or([0.0; 3]);
+            f.into_iter().take(dim)
+        }));
+        for s in job.reaction_sets.iter().filter(|s| job.model.moment_points.contains_key(*s)) {
             let m = r.reaction_moments.get(s).copied().unwrap_or([0.0; 3]);
             let all = ["x", "y", "z"];
-            values.extend(self.job.moment_components().iter().map(|c| m[all.iter().position(|a| a == c).unwrap_or(2)]));
+            values.extend(job.moment_components().iter().map(|c| m[all.iter().position(|a| a == c).unwrap_or(2)]));
         }
-        for name in &self.job.rigid_names {
+        let with_fluids = !job.fluid_names.is_empty();
+        for (i, name) in job.rigid_names.iter().enumerate() {
             match r.contact.iter().find(|c| &c.name == name) {
                 Some(c) => {
                     values.extend(c.force.into_iter().take(dim));
                     values.push(c.contact_width);
                     values.push(c.peak_pressure);
+                    if with_fluids {
+                        values.push(c.peak_pressure - job.sealed_pressure(i, r));
+                    }
                 }
-                None => values.extend(std::iter::repeat_n(0.0, dim + 2)),
+                None => values.extend(std::iter::repeat_n(0.0, dim + 2 + usize::from(with_fluids))),
             }
+        }
+        for name in &job.fluid_names {
+            let f = r.fluids.iter().find(|f| &f.name == name);
+            values.push(f.map_or(0.0, |f| f.pressure));
+            values.push(f.map_or(0.0, |f| f.wetted_measure));
         }
         for name in &self.job.insert_names {
             if let Some(ins) = r.inserts.iter().find(|i| &i.name == name) {
@@ -164,7 +171,12 @@ impl<'m> ResultWriter<'m> {
             f.point.push(Field::new("contact_pressure", 1, c.pressure.clone()));
             f.point.push(Field::new("contact_gap", 1, c.gap.clone()));
             f.point.push(Field::new("contact_slip", 1, c.slip.clone()));
-            f.point.push(Field::new("contact_status", 1, c.status.iter().map(|&s| s as f64).collect()));
+            // Two 0/1 arrays instead of a coded status: a viewer colours them without a legend.
+            f.point.push(Field::new("contact_closed", 1, c.status.iter().map(|&s| f64::from(u8::from(s != 0))).collect()));
+            f.point.push(Field::new("contact_stuck", 1, c.status.iter().map(|&s| f64::from(u8::from(s == 1))).collect()));
+        }
+        if let Some(p) = r.fluid_pressure.as_ref().filter(|_| self.job.output.fields.iter().any(|w| w == "fluid_pressure")) {
+            f.point.push(Field::new("fluid_pressure", 1, p.clone()));
         }
         let name = format!("{}_{:04}.vtu", self.stem, self.frames.len() + 1);
         let title = format!("{}: stage {} increment {increment} load factor {load_factor}", self.job.title, stage + 1);
@@ -174,6 +186,18 @@ impl<'m> ResultWriter<'m> {
         self.last_frame = Some((stage, increment));
         self.last_peaks = Some(f.peaks);
         Ok(())
+    }
+
+    /// Dimensions of every column; an applied motion is a travel (length).
+    fn units(&self) -> BTreeMap<String, String> {
+        let mut u = units(&self.job.history_columns());
+        u.extend(self.job.insert_columns().into_iter().map(|(c, d)| (c, d.to_string())));
+        for a in &self.job.applied {
+            if let AppliedSource::Travel { .. } = a.source {
+                u.insert(a.name.clone(), "length".into());
+            }
+        }
+        u
     }
 
     /// Writes the last frame if it was skipped, `summary.json` and the log.
@@ -221,9 +245,25 @@ impl<'m> ResultWriter<'m> {
                     let mut m: BTreeMap<String, f64> = components.iter().enumerate().map(|(i, k)| (k.to_string(), c.force[i])).collect();
                     m.insert("contact_width".into(), c.contact_width);
                     m.insert("peak_pressure".into(), c.peak_pressure);
+                    if let Some(i) = self.job.rigid_names.iter().position(|n| n == &c.name).filter(|_| !self.job.fluid_names.is_empty()) {
+                        m.insert("sealing_margin".into(), c.peak_pressure - self.job.sealed_pressure(i, r));
+                    }
                     (c.name.clone(), m)
                 })
                 .collect(),
+            None => BTreeMap::new(),
+        };
+        let measure = if self.job.kind == crate::job::schema::AnalysisKind::Solid { "wetted_area" } else { "wetted_length" };
+        let fluids = match last {
+            Some(r) => r
+                .fluids
+                .iter()
+                .map(|f| (f.name.clone(), BTreeMap::from([("pressure".to_string(), f.pressure), (measure.to_string(), f.wetted_measure)])))
+                .collect(),
+            None => BTreeMap::new(),
+        };
+        let applied = match last {
+            Some(r) => self.job.applied.iter().map(|a| (a.name.clone(), a.value(&self.job.model, r))).collect(),
             None => BTreeMap::new(),
         };
         let inserts = match last {
@@ -251,6 +291,8 @@ impl<'m> ResultWriter<'m> {
             last_increment: last.map(|r| IncrementRef { stage: r.stage_name.clone(), increment: r.increment, load_factor: r.load_factor }),
             reactions,
             rigid,
+            fluids,
+            applied,
             inserts,
             stabilization_share: self.stabilization_share,
             peaks: self.last_peaks,
@@ -264,11 +306,7 @@ impl<'m> ResultWriter<'m> {
                 log: LOG_FILE.into(),
                 frames: self.frames.len(),
             },
-            units: {
-                let mut u = units(&self.job.history_columns());
-                u.extend(self.job.insert_columns().into_iter().map(|(c, d)| (c, d.to_string())));
-                u
-            },
+            units: self.units(),
         };
         let end = match &summary.reason {
             None => format!("converged: {} increments, {} Newton iterations", summary.increments, summary.newton_iterations),

@@ -1,0 +1,565 @@
+//! Fluid pressure that penetrates between the rubber and the metal.
+//!
+//! A fluid enters at a source facet of its side set and wets every facet it
+//! can reach from there through facets of the set that share a corner (2-D)
+//! or an edge (3-D). A facet lets the fluid in unless one of its corners is
+//! pressed against a rigid surface at least as hard as the fluid pressure:
+//! the pressure-penetration criterion of seal engineering, "the interface is
+//! tight where the contact pressure exceeds the pressure of the fluid to be
+//! sealed" (Müller & Nau 1998, *Fluid Sealing Technology: Principles and
+//! Applications*, Marcel Dekker, ch. on static seals; from memory). Wetted
+//! facets carry the fluid pressure as a follower load on their current
+//! position, with its full (non-symmetric) load stiffness.
+//!
+//! The wetted set is discrete, so it is updated between equilibrium solves,
+//! not inside the Newton iteration: each increment starts from the front
+//! found with the last converged contact pressures and the increment's fluid
+//! pressure; after every equilibrium the front is found again from the
+//! current contact pressures, and the increment is re-balanced at the same
+//! load while it changes. The first [`FREE_UPDATES`] updates may wet and dry
+//! facets; later ones only add facets, so the sequence stops after at most
+//! as many further updates as the set has facets (a front that would
+//! oscillate between two sets settles on their union).
+
+use olli_mesh::{select::boundary_sides, Side};
+
+use super::pressure::{pressure_side_into, MAX_SIDE_DOFS};
+use crate::assembly::dofs::{DofMap, NONE};
+use crate::assembly::{Discretization, Pattern};
+use crate::element::Analysis;
+use crate::error::SolveError;
+use crate::model::{Ramp, Stage};
+
+/// Front updates per increment that may also dry facets; later updates only wet.
+pub const FREE_UPDATES: usize = 4;
+
+/// One fluid during the run.
+#[derive(Debug, Clone)]
+struct FluidFront {
+    name: String,
+    /// Corner nodes of each facet (2 in 2-D, 4 in 3-D).
+    facets: Vec<[usize; 4]>,
+    /// Facets sharing a corner (2-D) or an edge (3-D) with each facet.
+    neighbours: Vec<Vec<usize>>,
+    /// The facet the fluid enters through.
+    source: usize,
+    /// Pressure at the stage start and end, and its ramp.
+    start: f64,
+    end: f64,
+    ramp: Ramp,
+    wetted: Vec<bool>,
+}
+
+/// Figures of one fluid at a converged increment.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FluidSummary {
+    pub name: String,
+    /// Fluid pressure applied (stress units).
+    pub pressure: f64,
+    /// Wetted length of the section (2-D) or wetted area (3-D), in the
+    /// current configuration.
+    pub wetted_measure: f64,
+    /// Number of wetted facets.
+    pub wetted_facets: usize,
+}
+
+/// Every fluid of a model, with the state of its wetted front.
+#[derive(Debug, Clone, Default)]
+pub struct Fluids {
+    fluids: Vec<FluidFront>,
+    dim: usize,
+    corners: usize,
+    analysis: Option<Analysis>,
+    /// Contact pressure per mesh node at the last converged increment.
+    committed_contact: Vec<f64>,
+    /// Front updates in the current increment.
+    updates: usize,
+    /// Skew-symmetric part of the load stiffness at lower-triangle slots.
+    pub skew: Vec<(usize, f64)>,
+}
+
+impl Fluids {
+    /// Sets up every fluid of the model: its facets, their connectivity and
+    /// the source facet. Errors name the fluid: an unknown side set, a set
+    /// with no facet on the mesh boundary, a source point off the set.
+    pub fn new(disc: &Discretization) -> Result<Self, SolveError> {
+        let model = disc.model;
+        let mesh = disc.mesh();
+        let dim = disc.dim;
+        let corners = if dim == 3 { 4 } else { 2 };
+        let boundary = if model.fluids.is_empty() { Vec::new() } else { boundary_sides(mesh) };
+        let mut fluids = Vec::new();
+        for def in &model.fluids {
+            let bad = |reason: String| SolveError::BadFluid { fluid: def.name.clone(), reason };
+            let sides = mesh.side_sets.get(&def.sides).ok_or_else(|| bad(format!("no side set named `{}`", def.sides)))?;
+            let free: Vec<Side> = sides.iter().copied().filter(|s| boundary.binary_search(s).is_ok()).collect();
+            if free.is_empty() {
+                return Err(bad(format!("side set `{}` has no free facet (no side on the surface of the rubber)", def.sides)));
+            }
+            let facets: Vec<[usize; 4]> = free
+                .iter()
+                .map(|&s| {
+                    let nodes = mesh.side_nodes(s);
+                    let mut f = [usize::MAX; 4];
+                    f[..corners].copy_from_slice(&nodes[..corners]);
+                    f
+                })
+                .collect();
+            let neighbours = neighbours(&facets, corners, mesh.node_count());
+            let (source, distance, size) = facets
+                .iter()
+                .enumerate()
+                .map(|(i, f)| {
+                    let x: Vec<[f64; 3]> = f[..corners].iter().map(|&n| mesh.nodes[n]).collect();
+                    (i, distance_to_facet(&x, def.source), facet_size(&x))
+                })
+                .min_by(|a, b| a.1.total_cmp(&b.1))
+                .expect("at least one facet");
+            // A point on a curved surface may sit off the facets' chords by their sagitta.
+            if !(distance <= 0.25 * size) {
+                let p = def.source;
+                return Err(bad(format!(
+                    "source point ({}) is not on side set `{}`: the nearest facet is {distance:.4} away (allowed {:.4})",
+                    p[..dim].iter().map(|v| format!("{v}")).collect::<Vec<_>>().join(", "),
+                    def.sides,
+                    0.25 * size
+                )));
+            }
+            let n = facets.len();
+            fluids.push(FluidFront {
+                name: def.name.clone(),
+                facets,
+                neighbours,
+                source,
+                start: 0.0,
+                end: 0.0,
+                ramp: Ramp::Linear,
+                wetted: vec![false; n],
+            });
+        }
+        for stage in &model.stages {
+            for p in &stage.fluid_pressures {
+                if !model.fluids.iter().any(|f| f.name == p.fluid) {
+                    return Err(SolveError::BadFluid {
+                        fluid: p.fluid.clone(),
+                        reason: format!("stage `{}` sets the pressure of a fluid that does not exist", stage.name),
+                    });
+                }
+                if !p.value.is_finite() {
+                    return Err(SolveError::BadFluid { fluid: p.fluid.clone(), reason: "pressure must be finite".into() });
+                }
+            }
+        }
+        Ok(Fluids {
+            fluids,
+            dim,
+            corners,
+            analysis: Some(model.analysis),
+            committed_contact: vec![0.0; mesh.node_count()],
+            updates: 0,
+            skew: Vec::new(),
+        })
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.fluids.is_empty()
+    }
+
+    /// Starts a stage: fluids named by it ramp from their pressure at the
+    /// stage start to the stage's value; the others hold theirs.
+    pub fn begin_stage(&mut self, stage: &Stage) {
+        for f in &mut self.fluids {
+            f.start = f.end;
+            if let Some(p) = stage.fluid_pressures.iter().find(|p| p.fluid == f.name) {
+                f.end = p.value;
+            }
+            f.ramp = stage.ramps.get(&f.name).cloned().unwrap_or_default();
+        }
+    }
+
+    /// Pressure of fluid `i` at stage fraction `t`.
+    fn pressure(&self, i: usize, t: f64) -> f64 {
+        let f = &self.fluids[i];
+        f.start + f.ramp.fraction(t) * (f.end - f.start)
+    }
+
+    /// Starts an increment ending at stage fraction `t`: the front found from
+    /// the last converged contact pressures and the increment's fluid pressure.
+    pub fn begin_increment(&mut self, t: f64) {
+        self.updates = 0;
+        for i in 0..self.fluids.len() {
+            let p = self.pressure(i, t);
+            let wet = flood(&self.fluids[i], &self.committed_contact, p, self.corners);
+            self.fluids[i].wetted = wet;
+        }
+    }
+
+    /// Finds the front again from `contact` (contact pressure per mesh node
+    /// at the current equilibrium) and returns whether it moved.
+    pub fn update_front(&mut self, contact: &[f64], t: f64) -> bool {
+        let grow_only = self.updates >= FREE_UPDATES;
+        let mut changed = false;
+        for i in 0..self.fluids.len() {
+            let p = self.pressure(i, t);
+            let wet = flood(&self.fluids[i], contact, p, self.corners);
+            let f = &mut self.fluids[i];
+            for (old, new) in f.wetted.iter_mut().zip(wet) {
+                let next = if grow_only { *old || new } else { new };
+                changed |= next != *old;
+                *old = next;
+            }
+        }
+        if changed {
+            self.updates += 1;
+        }
+        changed
+    }
+
+    /// Front updates so far in the current increment.
+    pub fn updates(&self) -> usize {
+        self.updates
+    }
+
+    /// Facets of all fluids (bounds the number of wetting-only updates).
+    pub fn facet_count(&self) -> usize {
+        self.fluids.iter().map(|f| f.facets.len()).sum()
+    }
+
+    /// Keeps the converged contact pressures for the next increment's first front.
+    pub fn commit(&mut self, contact: &[f64]) {
+        self.committed_contact.copy_from_slice(contact);
+    }
+
+    /// Adds the wetted facets' follower pressure at `u` and stage fraction
+    /// `t` to `f_ext`; with `k`, subtracts the symmetric part of the load
+    /// stiffness from the tangent (lower triangle) and keeps its skew part
+    /// in [`Self::skew`]; with a predictor `(du_p, rhs)`, adds `∂f/∂u_p du_p`
+    /// to `rhs`.
+    #[allow(clippy::too_many_arguments)]
+    pub fn add_loads(
+        &mut self,
+        nodes: &[[f64; 3]],
+        u: &[f64],
+        t: f64,
+        dofs: &DofMap,
+        pattern: &Pattern,
+        f_ext: &mut [f64],
+        mut k: Option<&mut [f64]>,
+        mut predictor: Option<(&[f64], &mut [f64])>,
+    ) {
+        self.skew.clear();
+        let (dim, nn) = (self.dim, self.corners);
+        let Some(analysis) = self.analysis else { return };
+        let nd = nn * dim;
+        let mut fs = [0.0; MAX_SIDE_DOFS];
+        let mut ks = [0.0; MAX_SIDE_DOFS * MAX_SIDE_DOFS];
+        let want_k = k.is_some() || predictor.is_some();
+        for i in 0..self.fluids.len() {
+            let p = self.pressure(i, t);
+            if p == 0.0 {
+                continue;
+            }
+            let f = &self.fluids[i];
+            for (facet, _) in f.facets.iter().zip(&f.wetted).filter(|(_, &w)| w) {
+                let (mut x, mut us) = ([[0.0; 3]; 4], [[0.0; 3]; 4]);
+                for a in 0..nn {
+                    x[a] = nodes[facet[a]];
+                    for c in 0..dim {
+                        us[a][c] = u[facet[a] * dim + c];
+                    }
+                }
+                pressure_side_into(analysis, &x[..nn], &us[..nn], p, &mut fs, if want_k { Some(&mut ks) } else { None });
+                let g = |r: usize| facet[r / dim] * dim + r % dim;
+                for r in 0..nd {
+                    f_ext[g(r)] += fs[r];
+                }
+                if !want_k {
+                    continue;
+                }
+                // The tangent is K_int − ∂f/∂u, ks[c·nd + r] = ∂f_r/∂u_c.
+                for c in 0..nd {
+                    let qc = dofs.eq[g(c)];
+                    for r in 0..nd {
+                        let qr = dofs.eq[g(r)];
+                        if let Some((dup, rhs)) = predictor.as_mut() {
+                            if qr != NONE {
+                                rhs[qr] += ks[c * nd + r] * dup[g(c)];
+                            }
+                        }
+                        let Some(vals) = k.as_deref_mut() else { continue };
+                        if qr == NONE || qc == NONE || qr < qc {
+                            continue;
+                        }
+                        let Some(slot) = pattern.slot(qr, qc) else { continue };
+                        if qr == qc {
+                            vals[slot] -= ks[c * nd + r];
+                            continue;
+                        }
+                        let (krc, kcr) = (ks[c * nd + r], ks[r * nd + c]);
+                        vals[slot] -= 0.5 * (krc + kcr);
+                        let skew = -0.5 * (krc - kcr);
+                        if skew != 0.0 {
+                            self.skew.push((slot, skew));
+                        }
+                    }
+                }
+            }
+        }
+    }
+
+    /// Figures of every fluid at displacement `u` and stage fraction `t`.
+    pub fn summaries(&self, nodes: &[[f64; 3]], u: &[f64], t: f64) -> Vec<FluidSummary> {
+        let (dim, nn) = (self.dim, self.corners);
+        let position = |n: usize| {
+            let mut x = nodes[n];
+            for c in 0..dim {
+                x[c] += u[n * dim + c];
+            }
+            x
+        };
+        self.fluids
+            .iter()
+            .enumerate()
+            .map(|(i, f)| {
+                let mut measure = 0.0;
+                for (facet, _) in f.facets.iter().zip(&f.wetted).filter(|(_, &w)| w) {
+                    let x: Vec<[f64; 3]> = facet[..nn].iter().map(|&n| position(n)).collect();
+                    measure += facet_measure(&x);
+                }
+                FluidSummary {
+                    name: f.name.clone(),
+                    pressure: self.pressure(i, t),
+                    wetted_measure: measure,
+                    wetted_facets: f.wetted.iter().filter(|&&w| w).count(),
+                }
+            })
+            .collect()
+    }
+
+    /// Fluid pressure at every mesh node on a wetted facet (the largest of
+    /// the fluids wetting it), 0 elsewhere.
+    pub fn nodal_pressure(&self, node_count: usize, t: f64) -> Vec<f64> {
+        let mut out = vec![0.0; node_count];
+        for (i, f) in self.fluids.iter().enumerate() {
+            let p = self.pressure(i, t);
+            for (facet, _) in f.facets.iter().zip(&f.wetted).filter(|(_, &w)| w) {
+                for &n in &facet[..self.corners] {
+                    out[n] = f64::max(out[n], p);
+                }
+            }
+        }
+        out
+    }
+}
+
+/// Facets reachable from the source through facets none of whose corners is
+/// pressed (`contact`, per node) at least as hard as the fluid pressure `p`.
+fn flood(f: &FluidFront, contact: &[f64], p: f64, corners: usize) -> Vec<bool> {
+    let mut wet = vec![false; f.facets.len()];
+    let open = |i: usize| p > 0.0 && f.facets[i][..corners].iter().all(|&n| contact[n] < p);
+    if !open(f.source) {
+        return wet;
+    }
+    let mut stack = vec![f.source];
+    wet[f.source] = true;
+    while let Some(i) = stack.pop() {
+        for &j in &f.neighbours[i] {
+            if !wet[j] && open(j) {
+                wet[j] = true;
+                stack.push(j);
+            }
+        }
+    }
+    wet
+}
+
+/// Facets sharing at least `corners − 1` nodes (a corner in 2-D, an edge in 3-D).
+fn neighbours(facets: &[[usize; 4]], corners: usize, node_count: usize) -> Vec<Vec<usize>> {
+    let mut at_node = vec![Vec::new(); node_count];
+    for (i, f) in facets.iter().enumerate() {
+        for &n in &f[..corners] {
+            at_node[n].push(i);
+        }
+    }
+    let need = corners.min(3) - 1;
+    facets
+        .iter()
+        .enumerate()
+        .map(|(i, f)| {
+            let mut out: Vec<usize> = Vec::new();
+            for &n in &f[..corners] {
+                for &j in &at_node[n] {
+                    if j != i && !out.contains(&j) {
+                        let shared = f[..corners].iter().filter(|a| facets[j][..corners].contains(a)).count();
+                        if shared >= need {
+                            out.push(j);
+                        }
+                    }
+                }
+            }
+            out
+        })
+        .collect()
+}
+
+fn sub(a: [f64; 3], b: [f64; 3]) -> [f64; 3] {
+    [a[0] - b[0], a[1] - b[1], a[2] - b[2]]
+}
+
+fn dot(a: [f64; 3], b: [f64; 3]) -> f64 {
+    a[0] * b[0] + a[1] * b[1] + a[2] * b[2]
+}
+
+fn cross(a: [f64; 3], b: [f64; 3]) -> [f64; 3] {
+    [a[1] * b[2] - a[2] * b[1], a[2] * b[0] - a[0] * b[2], a[0] * b[1] - a[1] * b[0]]
+}
+
+/// Length (2 corners) or area (4 corners, as two triangles) of a facet.
+fn facet_measure(x: &[[f64; 3]]) -> f64 {
+    if x.len() == 2 {
+        let d = sub(x[1], x[0]);
+        dot(d, d).sqrt()
+    } else {
+        let n = cross(sub(x[2], x[0]), sub(x[3], x[1]));
+        0.5 * dot(n, n).sqrt()
+    }
+}
+
+/// Size of a facet: its length, or the square root of its area.
+fn facet_size(x: &[[f64; 3]]) -> f64 {
+    let m = facet_measure(x);
+    if x.len() == 2 {
+        m
+    } else {
+        m.sqrt()
+    }
+}
+
+/// Distance from `p` to a facet: to the segment (2 corners) or to the
+/// nearer of the face's two triangles (4 corners).
+fn distance_to_facet(x: &[[f64; 3]], p: [f64; 3]) -> f64 {
+    if x.len() == 2 {
+        let d = sub(x[1], x[0]);
+        let s = (dot(sub(p, x[0]), d) / dot(d, d).max(f64::MIN_POSITIVE)).clamp(0.0, 1.0);
+        let q = [x[0][0] + s * d[0], x[0][1] + s * d[1], x[0][2] + s * d[2]];
+        dot(sub(p, q), sub(p, q)).sqrt()
+    } else {
+        distance_to_triangle(p, x[0], x[1], x[2]).min(distance_to_triangle(p, x[0], x[2], x[3]))
+    }
+}
+
+/// Distance from `p` to triangle `abc` (Ericson 2005, *Real-Time Collision
+/// Detection*, closest point on a triangle by its Voronoi regions).
+fn distance_to_triangle(p: [f64; 3], a: [f64; 3], b: [f64; 3], c: [f64; 3]) -> f64 {
+    let (ab, ac, ap) = (sub(b, a), sub(c, a), sub(p, a));
+    let (d1, d2) = (dot(ab, ap), dot(ac, ap));
+    let at = |q: [f64; 3]| dot(sub(p, q), sub(p, q)).sqrt();
+    let lerp = |o: [f64; 3], d: [f64; 3], s: f64| [o[0] + s * d[0], o[1] + s * d[1], o[2] + s * d[2]];
+    if d1 <= 0.0 && d2 <= 0.0 {
+        return at(a);
+    }
+    let bp = sub(p, b);
+    let (d3, d4) = (dot(ab, bp), dot(ac, bp));
+    if d3 >= 0.0 && d4 <= d3 {
+        return at(b);
+    }
+    let vc = d1 * d4 - d3 * d2;
+    if vc <= 0.0 && d1 >= 0.0 && d3 <= 0.0 {
+        return at(lerp(a, ab, d1 / (d1 - d3)));
+    }
+    let cp = sub(p, c);
+    let (d5, d6) = (dot(ab, cp), dot(ac, cp));
+    if d6 >= 0.0 && d5 <= d6 {
+        return at(c);
+    }
+    let vb = d5 * d2 - d1 * d6;
+    if vb <= 0.0 && d2 >= 0.0 && d6 <= 0.0 {
+        return at(lerp(a, ac, d2 / (d2 - d6)));
+    }
+    let va = d3 * d6 - d5 * d4;
+    if va <= 0.0 && (d4 - d3) >= 0.0 && (d5 - d6) >= 0.0 {
+        return at(lerp(b, sub(c, b), (d4 - d3) / ((d4 - d3) + (d5 - d6))));
+    }
+    let denom = 1.0 / (va + vb + vc);
+    let (v, w) = (vb * denom, vc * denom);
+    at([a[0] + ab[0] * v + ac[0] * w, a[1] + ab[1] * v + ac[1] * w, a[2] + ab[2] * v + ac[2] * w])
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn front(n: usize) -> FluidFront {
+        // A chain of n edges on nodes 0..=n.
+        let facets: Vec<[usize; 4]> = (0..n).map(|i| [i, i + 1, usize::MAX, usize::MAX]).collect();
+        let neighbours = neighbours(&facets, 2, n + 1);
+        FluidFront { name: "f".into(), facets, neighbours, source: 0, start: 0.0, end: 1.0, ramp: Ramp::Linear, wetted: vec![false; n] }
+    }
+
+    #[test]
+    fn flood_stops_at_the_first_corner_pressed_harder_than_the_fluid() {
+        let f = front(6);
+        // Node 3 pressed at 2.0: edges 2 (nodes 2–3) and 3 (3–4) stay dry, and so does all beyond.
+        let contact = [0.0, 0.0, 0.5, 2.0, 0.0, 0.0, 0.0];
+        assert_eq!(flood(&f, &contact, 1.0, 2), [true, true, false, false, false, false]);
+        // Above the contact pressure, the fluid passes.
+        assert_eq!(flood(&f, &contact, 2.5, 2), [true; 6]);
+        // No pressure, no wetting.
+        assert_eq!(flood(&f, &[0.0; 7], 0.0, 2), [false; 6]);
+    }
+
+    #[test]
+    fn quad_faces_connect_through_edges_not_corners() {
+        // Three unit squares in a row plus one touching only at a corner.
+        let facets = [[0, 1, 5, 4], [1, 2, 6, 5], [2, 3, 7, 6], [7, 8, 9, 10]];
+        let nb = neighbours(&facets, 4, 11);
+        assert_eq!(nb[0], [1]);
+        assert_eq!(nb[1], [0, 2]);
+        assert_eq!(nb[3], Vec::<usize>::new());
+    }
+
+    fn two_squares(source: [f64; 3], interior_only: bool) -> Result<Fluids, SolveError> {
+        use crate::material::{registry, VolumetricForm};
+        use crate::model::{Fluid, Formulation, Model};
+        use olli_mesh::{ElementKind, Mesh};
+        let mut mesh = Mesh::new(2);
+        for p in [[0.0, 0.0], [1.0, 0.0], [2.0, 0.0], [0.0, 1.0], [1.0, 1.0], [2.0, 1.0]] {
+            mesh.add_node([p[0], p[1], 0.0]);
+        }
+        mesh.add_element(ElementKind::Quad4, &[0, 1, 4, 3]);
+        mesh.add_element(ElementKind::Quad4, &[1, 2, 5, 4]);
+        // Side 1 of the first square (nodes 1–4) is shared with the second; side 2 (4–3) is on top.
+        let mut sides = vec![Side { element: 0, local: 1 }];
+        if !interior_only {
+            sides.push(Side { element: 0, local: 2 });
+        }
+        mesh.side_sets.insert("wet".into(), sides);
+        let mat = registry::material("neo-hookean", &[("shear_modulus", 1.0), ("bulk_modulus", 100.0)], VolumetricForm::Quadratic).unwrap();
+        let mut model = Model::single_region(mesh, Analysis::PlaneStrain { thickness: 1.0 }, std::sync::Arc::new(mat), Formulation::Mixed);
+        model.fluids.push(Fluid { name: "oil".into(), sides: "wet".into(), source });
+        let disc = Discretization::new(&model).unwrap();
+        Fluids::new(&disc)
+    }
+
+    #[test]
+    fn a_set_without_free_facets_or_a_source_off_the_set_is_refused() {
+        let e = two_squares([1.0, 0.5, 0.0], true).unwrap_err();
+        assert!(e.to_string().contains("has no free facet"), "{e}");
+        let e = two_squares([0.5, 0.5, 0.0], false).unwrap_err();
+        assert!(e.to_string().contains("source point (0.5, 0.5) is not on side set `wet`"), "{e}");
+        // On the free top side: accepted, and the interior side is left out.
+        let f = two_squares([0.5, 1.0, 0.0], false).unwrap();
+        assert_eq!(f.facet_count(), 1);
+    }
+
+    #[test]
+    fn distances_to_facets() {
+        let seg = [[0.0, 0.0, 0.0], [2.0, 0.0, 0.0]];
+        assert!((distance_to_facet(&seg, [1.0, 0.5, 0.0]) - 0.5).abs() < 1e-15);
+        assert!((distance_to_facet(&seg, [3.0, 0.0, 0.0]) - 1.0).abs() < 1e-15);
+        let quad = [[0.0, 0.0, 0.0], [1.0, 0.0, 0.0], [1.0, 1.0, 0.0], [0.0, 1.0, 0.0]];
+        assert!((distance_to_facet(&quad, [0.3, 0.8, 0.2]) - 0.2).abs() < 1e-15);
+        assert!((distance_to_facet(&quad, [2.0, 0.5, 0.0]) - 1.0).abs() < 1e-15);
+        assert!((facet_measure(&quad) - 1.0).abs() < 1e-15);
+    }
+}
