@@ -16,7 +16,7 @@ fn refusal(kind: ElementKind) -> String {
     };
     let mut model = Model::single_region(mesh, analysis, neo_hookean(0.5, 500.0), Formulation::Mixed);
     model.stages.push(Stage { name: "s".into(), ..Default::default() });
-    solve(&model, &mut Quiet).err().expect("refused").to_string()
+    solve(&model, &mut Quiet).expect_err("refused").to_string()
 }
 
 #[test]
@@ -44,7 +44,7 @@ fn mixed_quad8_and_tri6_mesh_runs_a_homogeneous_stretch() {
     let tri_b = [q[1], q[2], q[3], q[5], q[6], diag];
     let mut rebuilt = olli_mesh::Mesh::new(2);
     rebuilt.nodes = mesh.nodes.clone();
-    rebuilt.add_element(ElementKind::Quad8, &mesh.element_nodes(0).to_vec());
+    rebuilt.add_element(ElementKind::Quad8, mesh.element_nodes(0));
     rebuilt.add_element(ElementKind::Tri6, &tri_a);
     rebuilt.add_element(ElementKind::Tri6, &tri_b);
     rebuilt.node_sets = std::mem::take(&mut mesh.node_sets);
