@@ -32,6 +32,31 @@ fn vtu_round_trip_keeps_nodes_connectivity_and_sets() {
     }
 }
 
+/// Result arrays written beside the mesh come back by name with their
+/// component count and values.
+#[test]
+fn vtu_point_arrays_come_back_by_name() {
+    use vtkio::model::{Attribute, Attributes, IOBuffer};
+    let mesh = rectangle(&RectangleParams { divisions: [2, 1], ..Default::default() }).unwrap();
+    let n = mesh.node_count();
+    let strain: Vec<f64> = (0..n).map(|i| 0.1 * i as f64).collect();
+    let displacement: Vec<f64> = (0..3 * n).map(|i| i as f64).collect();
+    let data = Attributes {
+        point: vec![
+            Attribute::scalars("strain", 1).with_data(IOBuffer::F64(strain.clone())),
+            Attribute::vectors("displacement").with_data(IOBuffer::F64(displacement.clone())),
+        ],
+        cell: Vec::new(),
+    };
+    let path = tmp("point_arrays.vtu");
+    olli_mesh::export::write_vtk(olli_mesh::export::grid(&mesh, data), &path).unwrap();
+    let back = import(&path).unwrap();
+    let names: Vec<&str> = back.point_arrays.iter().map(|a| a.name.as_str()).collect();
+    assert_eq!(names, ["strain", "displacement"]);
+    assert_eq!((back.point_arrays[0].components, &back.point_arrays[0].values), (1, &strain));
+    assert_eq!((back.point_arrays[1].components, &back.point_arrays[1].values), (3, &displacement));
+}
+
 /// The hand-written ASCII file (tests/data/two_quads.msh): six nodes listed
 /// out of tag order, one clockwise quad, a point, a line and a surface group.
 #[test]

@@ -4,6 +4,7 @@
 //! material shorthands. The mesh crate's generators will replace these.
 
 pub mod jobs;
+pub mod pictures;
 
 use std::sync::Arc;
 

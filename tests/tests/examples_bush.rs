@@ -35,6 +35,10 @@ fn bush_example_force_matches_its_note() {
     // long-bush formula assumes, so it is softer, by less than 10 %.
     let ag = adkins_gent(40.0, 2.0);
     assert!(f < ag && f > 0.9 * ag, "{f} vs {ag}");
+    // Its pictures (issue 13): each drawn at its size and not blank, the report
+    // page well formed with every image present.
+    let pictures = olli_verification::pictures::check_report(Some(&job), &scratch.0);
+    assert_eq!(olli_verification::pictures::names(&pictures), ["force.png", "stiffness.png", "section_1.png"]);
 }
 
 #[test]

@@ -28,4 +28,11 @@ fn radial_seal_example_results_match_its_note() {
     let per_length = bore["r"] / (2.0 * PI * 21.75);
     eprintln!("radial seal: {per_length:.4} N/mm vs plane-strain Lindley {lindley:.4} N/mm");
     assert!((per_length / lindley - 1.0).abs() < 0.2);
+    // Its pictures (issue 13): each drawn at its size and not blank, the report
+    // page well formed with every image present.
+    let pictures = olli_verification::pictures::check_report(Some(&job), &scratch.0);
+    assert_eq!(
+        olli_verification::pictures::names(&pictures),
+        ["force.png", "stiffness.png", "section_1.png", "contact_gland_1.png", "contact_bore_1.png"]
+    );
 }

@@ -27,6 +27,22 @@ fn seal_example_results_match_its_note() {
     // axial forces, up to the stabilisation springs' share (a few 0.1 %).
     let groove_squeezed = squeezed.contact.iter().find(|c| c.name == "groove").unwrap();
     assert!(rel_diff(-groove_squeezed.force[1], cover.force[1]) < 5e-3);
+    // Its pictures (issue 13): each drawn at its size and not blank, the report
+    // page well formed with every image present.
+    let pictures = olli_verification::pictures::check_report(Some(&job), &scratch.0);
+    assert_eq!(
+        olli_verification::pictures::names(&pictures),
+        [
+            "force.png",
+            "stiffness.png",
+            "section_1.png",
+            "contact_groove_1.png",
+            "contact_cover_1.png",
+            "section_2.png",
+            "contact_groove_2.png",
+            "contact_cover_2.png"
+        ]
+    );
 }
 
 // The stabilisation springs must not steer the answer: with half the factor

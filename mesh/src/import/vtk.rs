@@ -8,9 +8,9 @@
 use std::collections::BTreeMap;
 use std::path::Path;
 
-use vtkio::model::{Attribute, CellType, DataSet, IOBuffer, UnstructuredGridPiece, VertexNumbers, Vtk};
+use vtkio::model::{Attribute, CellType, DataSet, ElementType, IOBuffer, UnstructuredGridPiece, VertexNumbers, Vtk};
 
-use super::{line_of, Imported};
+use super::{line_of, Imported, PointArray};
 use crate::element::ElementKind;
 use crate::error::{Location, MeshError};
 use crate::export::{ELEMENT_SET_PREFIX, NODE_SET_PREFIX, SIDE_SET_PREFIX};
@@ -148,7 +148,37 @@ fn build(path: &Path, piece: UnstructuredGridPiece) -> Result<Imported, MeshErro
         notes.push(format!("{skipped} cells of lower dimension than the mesh were skipped"));
     }
     read_sets(path, &mut mesh, &piece.data.point, &piece.data.cell, &element_of)?;
-    Ok(Imported { mesh, notes })
+    let point_arrays = read_point_arrays(path, &piece.data.point, mesh.nodes.len())?;
+    Ok(Imported { mesh, notes, point_arrays })
+}
+
+/// The numeric point arrays other than sets, checked for length.
+fn read_point_arrays(path: &Path, point: &[Attribute], nodes: usize) -> Result<Vec<PointArray>, MeshError> {
+    let mut arrays = Vec::new();
+    for a in point {
+        let Attribute::DataArray(d) = a else { continue };
+        if d.name.starts_with("set_") {
+            continue;
+        }
+        let Some(values) = to_f64(&d.data) else { continue };
+        let components = match d.elem {
+            ElementType::Scalars { num_comp, .. } | ElementType::Generic(num_comp) => num_comp as usize,
+            ElementType::Vectors | ElementType::Normals => 3,
+            ElementType::TCoords(n) => n as usize,
+            ElementType::Tensors => 9,
+            _ => continue,
+        };
+        if components == 0 || values.len() != components * nodes {
+            let expected = components * nodes;
+            return Err(MeshError::parse(
+                path,
+                Location::Unknown,
+                format!("array {} has {} values; expected {expected}", d.name, values.len()),
+            ));
+        }
+        arrays.push(PointArray { name: d.name.clone(), components, values });
+    }
+    Ok(arrays)
 }
 
 /// Restores sets from our `set_*` arrays; other arrays are ignored.

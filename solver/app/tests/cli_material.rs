@@ -131,3 +131,32 @@ fn bad_options_exit_2() {
         assert!(msg.contains(expected), "{args:?}: {msg}");
     }
 }
+
+#[test]
+fn plots_draw_every_mode_through_the_shared_module() {
+    let dir = temp_path("plots");
+    let out = olli(&[
+        "--model",
+        "neo-hookean",
+        "--param",
+        "shear_modulus=0.5",
+        "--param",
+        "bulk_modulus=1000",
+        "--stretch",
+        "0.6:2.5:12",
+        "--plots",
+        dir.to_str().unwrap(),
+        "--format",
+        "svg",
+    ]);
+    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
+    let modes = std::fs::read_to_string(dir.join("material_modes.svg")).unwrap();
+    for label in ["uniaxial", "equibiaxial", "planar", "simple-shear", "stretch λ", "nominal stress [F/L²]"] {
+        assert!(modes.contains(label), "material_modes.svg lacks `{label}`");
+    }
+    // Four deviatoric curves, each drawn 2 px wide along the data and as a legend sample.
+    assert_eq!(modes.matches("stroke-width=\"2\" points=").count(), 2 * 4);
+    let volumetric = std::fs::read_to_string(dir.join("material_volumetric.svg")).unwrap();
+    assert!(volumetric.contains("volumetric"));
+    let _ = std::fs::remove_dir_all(&dir);
+}

@@ -92,6 +92,16 @@ pub fn estimated_bytes(v: &ManifestVariant) -> u64 {
     50_000_000 + per_unknown * v.unknowns as u64
 }
 
+/// Whether one more variant needing `estimate` bytes may start beside
+/// variants needing `in_use` bytes: fewer than `at_once` run and the memory
+/// fits, or nothing runs at all (one variant always runs).
+pub fn may_start(in_use: &[u64], estimate: u64, at_once: usize, memory: Option<u64>) -> bool {
+    if in_use.is_empty() {
+        return true;
+    }
+    in_use.len() < at_once && memory.is_none_or(|m| in_use.iter().sum::<u64>() + estimate <= m)
+}
+
 struct Running {
     variant: usize,
     child: Child,
@@ -120,9 +130,8 @@ pub fn run(dir: &Path, manifest: &Manifest, settings: &LocalSettings, mut report
     while !pending.is_empty() || !running.is_empty() {
         while let Some(&next) = pending.last() {
             let estimate = estimated_bytes(&manifest.variants[next]).max(measured_peak);
-            let in_use: u64 = running.iter().map(|r| r.estimate.max(r.peak)).sum();
-            let fits = settings.memory.is_none_or(|m| in_use + estimate <= m);
-            if running.len() >= at_once || !(running.is_empty() || fits) {
+            let in_use: Vec<u64> = running.iter().map(|r| r.estimate.max(r.peak)).collect();
+            if !may_start(&in_use, estimate, at_once, settings.memory) {
                 break;
             }
             pending.pop();
@@ -200,6 +209,16 @@ fn kilobytes(text: &str, label: &str) -> Option<u64> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn variants_start_while_cores_and_memory_allow() {
+        let gb = 1_000_000_000;
+        assert!(may_start(&[], 50 * gb, 2, Some(gb)), "one variant always runs");
+        assert!(may_start(&[gb], gb, 2, Some(3 * gb)));
+        assert!(!may_start(&[gb], gb, 1, Some(3 * gb)), "--jobs 1");
+        assert!(!may_start(&[gb, gb], 2 * gb, 4, Some(3 * gb)), "memory full");
+        assert!(may_start(&[gb, gb, gb], 50 * gb, 4, None), "memory unknown");
+    }
 
     #[test]
     fn reads_proc_memory_lines() {

@@ -10,6 +10,7 @@
 //! writes output. Exit codes: 0 success, 2 bad input or unwritable output.
 
 mod output;
+mod plots;
 mod spec;
 
 use std::path::PathBuf;
@@ -50,6 +51,12 @@ pub struct Args {
     /// Write every point of every mode to this CSV file.
     #[arg(long, value_name = "OUT.csv")]
     pub csv: Option<PathBuf>,
+    /// Draw the responses (nominal stress against stretch, stability limits marked) into this folder.
+    #[arg(long, value_name = "DIR")]
+    pub plots: Option<PathBuf>,
+    /// Picture format with `--plots`.
+    #[arg(long, value_enum, default_value = "png", requires = "plots")]
+    pub format: olli_app::plot::Format,
 }
 
 /// Bad `--stretch` text.
@@ -123,6 +130,12 @@ pub fn run(args: Args) -> ExitCode {
             return fail(format_args!("{}: cannot write CSV: {e}", path.display()));
         }
         println!("wrote {}", path.display());
+    }
+    if let Some(dir) = &args.plots {
+        match plots::write_plots(dir, &spec.describe(), &results, args.format) {
+            Ok(files) => files.iter().for_each(|f| println!("wrote {}", dir.join(f).display())),
+            Err(e) => return fail(e),
+        }
     }
     ExitCode::SUCCESS
 }
