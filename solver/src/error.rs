@@ -37,6 +37,8 @@ pub enum SolveError {
     BadContact { body: String, reason: String },
     #[error("contact: penetration {penetration:.3e} still above the tolerance {tolerance:.3e} after {augmentations} augmentations")]
     ContactNotResolved { penetration: f64, tolerance: f64, augmentations: usize },
+    #[error("insert `{insert}`: {reason}")]
+    BadInsert { insert: String, reason: String },
     #[error("linear solve failed: {0}")]
     Linear(String),
     #[error("sparse pattern too large: {0} stored entries exceed the 32-bit scatter map")]

@@ -8,3 +8,4 @@
 
 pub mod job;
 pub mod output;
+pub mod plot;

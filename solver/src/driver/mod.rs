@@ -24,6 +24,7 @@ use crate::assembly::{Discretization, DofMap, Pattern};
 use crate::contact::active::ActiveContacts;
 use crate::element::{point_states, MixedState, PointState};
 use crate::error::SolveError;
+use crate::insert::Inserts;
 use crate::linear::{LinearSolver, LinearStats};
 use crate::model::Model;
 use crate::results::{IncrementResult, NodalFields, PointFields, Solution, SolveStats, Termination};
@@ -39,6 +40,7 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
     }
     let (programs, report_sets) = stages::resolve(&disc)?;
     let mut contacts = ActiveContacts::new(&disc)?;
+    let mut inserts = Inserts::new(&disc)?;
     let dim = disc.dim;
     let ndof = model.mesh.node_count() * dim;
     let mut stats = SolveStats::default();
@@ -62,7 +64,9 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
         observer.event(&Event::StageStart { stage: si, name: &stage.name, equations: dofs.n_free });
         let start: Vec<f64> = u.clone();
         contacts.begin_stage(&stage.rigid_motions, &stage.ramps);
-        let mut ctx = NewtonContext::new(&disc, dofs, pattern, linear, prog, &start, &stage.controls, &stage.name, &mut contacts);
+        inserts.begin_stage(stage);
+        let mut ctx = NewtonContext::new(&disc, dofs, pattern, linear, prog, &start, &stage.controls, &stage.name, &mut contacts)
+            .with_inserts(std::mem::take(&mut inserts));
         if stage.controls.carry_pressure {
             if states.is_empty() {
                 states = vec![MixedState::default(); model.mesh.element_count()];
@@ -88,6 +92,7 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
                     let share = ctx.stabilization_share(&u);
                     ctx.last_converged.copy_from_slice(&u);
                     ctx.contacts.commit();
+                    ctx.inserts.commit();
                     let result = increment_result(
                         &disc,
                         &ctx,
@@ -139,6 +144,7 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
                 }
             }
         }
+        inserts = std::mem::take(&mut ctx.inserts);
     }
     Ok(finish(increments, Termination::Completed, stats, system))
 }
@@ -247,6 +253,7 @@ fn increment_result(
         stabilization_share,
         axisymmetric: model.analysis == crate::element::Analysis::Axisymmetric,
         contact: ctx.contacts.summaries(),
+        inserts: ctx.inserts.results(),
         contact_fields: if ctx.contacts.is_empty() { None } else { Some(ctx.contacts.fields(mesh.node_count())) },
         points: if model.output.point_fields { points } else { None },
         nodal,

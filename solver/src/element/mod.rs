@@ -28,6 +28,7 @@
 
 pub mod geometry;
 pub mod kernel;
+pub mod pressure_space;
 
 pub use geometry::{PointGeometry, Shape};
 pub use kernel::{element_into, element_with_state_into, point_states, MixedState, PointState, MAX_DOFS, MAX_POINTS};

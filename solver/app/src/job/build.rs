@@ -189,6 +189,7 @@ impl Builder<'_> {
             regions,
             stages,
             rigid,
+            inserts: Vec::new(),
             linear: LinearSettings::default(),
             // Frames are computed by the result writer for the increments it
             // saves, so the solver keeps no per-increment fields.
@@ -254,10 +255,10 @@ impl Builder<'_> {
             })?,
         };
         let given = t.constants();
-        let constants: Vec<(&str, f64)> = given.iter().map(|(k, v)| (*k, *v.get_ref())).collect();
+        let constants: Vec<(&str, f64)> = given.iter().map(|(k, v, _)| (*k, *v)).collect();
         olli_solver::material::registry::material(model, &constants, form).map_err(|e| {
             let span = material_error_key(&e)
-                .and_then(|k| given.iter().find(|(n, _)| *n == k).map(|(_, v)| v.span()))
+                .and_then(|k| given.iter().find(|(n, _, _)| *n == k).map(|(_, _, span)| span.clone()))
                 .unwrap_or_else(|| t.model.span());
             self.err(span, format!("material `{name}`: {e}"))
         })
