@@ -332,3 +332,52 @@ fn unknown_ramp_is_located_with_a_suggestion() {
     let job = BUSH.replace("displacement = { r = 0.0, z = 0.5 }", "displacement = { r = 0.0, z = 0.5 }\nramp = \"stpe\"");
     rejects(&job, &["unknown ramp `stpe`", "did you mean `step`?"]);
 }
+
+/// Regression: `[output] folder = "."` deleted a `history.csv`, `summary.json`
+/// or `olli.log` already in the job's folder. Files olli did not write (not
+/// listed in its marker) are never removed or overwritten: `olli check` and
+/// `olli run` refuse with exit 2 and nothing is written.
+#[test]
+fn files_olli_did_not_write_are_never_deleted() {
+    let s = Scratch::new("foreign");
+    let job = s.job(&format!("{BUSH}\n[output]\nfolder = \".\"\n"));
+    let mine = s.0.join("history.csv");
+    std::fs::write(&mine, "my own measurements\n").unwrap();
+    for command in ["check", "run"] {
+        let o = olli(&[command, job.to_str().unwrap()]);
+        assert_eq!(o.status.code(), Some(2), "{command}: {}", text(&o));
+        assert!(text(&o).contains("holds history.csv, which olli did not write"), "{}", text(&o));
+    }
+    assert_eq!(std::fs::read_to_string(&mine).unwrap(), "my own measurements\n");
+    let names: Vec<_> = std::fs::read_dir(&s.0).unwrap().map(|e| e.unwrap().file_name()).collect();
+    assert_eq!(names.len(), 2, "nothing but the job and the user's file: {names:?}");
+}
+
+/// Once olli wrote a folder's results, a second run replaces them and removes
+/// a stale temporary file of its own (a kill mid-write leaves `.<name>.<pid>.tmp`).
+#[test]
+fn a_rerun_replaces_its_own_results_and_removes_stale_temporaries() {
+    let s = Scratch::new("rerun");
+    let job = s.job(BUSH);
+    assert_eq!(run(&job, &s.out()).status.code(), Some(0));
+    let stale = s.out().join(".summary.json.999999.tmp");
+    std::fs::write(&stale, "half a summary").unwrap();
+    let user = s.out().join("notes.txt");
+    std::fs::write(&user, "keep me").unwrap();
+    assert_eq!(run(&job, &s.out()).status.code(), Some(0));
+    assert!(!stale.exists(), "stale temporary file left behind");
+    assert!(user.exists(), "a file olli did not write was removed");
+    assert!(s.out().join("summary.json").exists());
+}
+
+/// Regression: an output folder that is a file was found by `olli run` only,
+/// after `olli check` called the job valid.
+#[test]
+fn an_output_folder_that_is_a_file_fails_olli_check() {
+    let s = Scratch::new("folder-file");
+    std::fs::write(s.0.join("results.txt"), "x").unwrap();
+    let job = s.job(&format!("{BUSH}\n[output]\nfolder = \"results.txt\"\n"));
+    let o = olli(&["check", job.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    assert!(text(&o).contains("results.txt is a file, not a folder"), "{}", text(&o));
+}
