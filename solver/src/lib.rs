@@ -33,6 +33,7 @@ pub mod contact;
 pub mod driver;
 pub mod element;
 pub mod error;
+pub mod fit;
 pub mod insert;
 pub mod linear;
 pub mod load;

@@ -36,6 +36,7 @@ pub mod error;
 pub mod fd_check;
 pub mod gent;
 pub mod homogeneous;
+pub mod incompressible;
 pub mod invariants;
 pub mod langevin;
 pub mod mooney_rivlin;

@@ -8,6 +8,7 @@
 pub mod build;
 pub mod check;
 pub mod diagnostics;
+pub mod inserts;
 pub mod mesh_source;
 mod rigid;
 pub mod schema;

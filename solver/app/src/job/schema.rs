@@ -51,6 +51,9 @@ pub struct JobFile {
     /// Rigid (metal) surfaces the rubber touches.
     #[serde(default)]
     pub rigid: Vec<Spanned<RigidSpec>>,
+    /// Rigid metal parts bonded to node sets.
+    #[serde(default)]
+    pub insert: Vec<Spanned<InsertSpec>>,
     /// Load stages, run in order.
     pub stage: Vec<Spanned<StageSpec>>,
     /// What to write and where.
@@ -399,4 +402,35 @@ pub struct RigidSphere {
 pub enum RampSpec {
     Named(String),
     Table(Vec<[f64; 2]>),
+}
+
+/// Per stage name, components and their values: `{ push = { z = 2.0 } }`.
+pub type StageComponents = Spanned<BTreeMap<String, Spanned<BTreeMap<String, f64>>>>;
+
+/// A rigid metal part (pin, sleeve, plate) bonded to a node set. Per stage
+/// and component it is moved (`move`, `turn`), loaded (`force`, `moment`)
+/// or keeps its earlier state; components never named are held at zero
+/// unless listed in `free`.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct InsertSpec {
+    /// Name used in `history.csv` (`insert_<name>_...`) and the summary.
+    pub name: Spanned<String>,
+    /// Node (or side or element) set bonded to the insert.
+    pub nodes: Spanned<String>,
+    /// Reference point: rotations and moments are about it.
+    pub reference: Spanned<Vec<f64>>,
+    /// Translations (length units) reached at the end of each named stage.
+    #[serde(rename = "move")]
+    pub moves: Option<StageComponents>,
+    /// Rotations (degrees) about the reference point's axes reached at the end of each named stage.
+    pub turn: Option<StageComponents>,
+    /// Applied forces (force units) reached at the end of each named stage; the component moves freely.
+    pub force: Option<StageComponents>,
+    /// Applied moments about the reference point reached at the end of each named stage.
+    pub moment: Option<StageComponents>,
+    /// Components free (unloaded) from the start: `["rx", "ry"]`.
+    pub free: Option<Spanned<Vec<String>>>,
+    /// How each stage's change is spread over the stage (as for loads).
+    pub ramp: Option<Spanned<RampSpec>>,
 }
