@@ -381,3 +381,34 @@ fn an_output_folder_that_is_a_file_fails_olli_check() {
     assert_eq!(o.status.code(), Some(2), "{}", text(&o));
     assert!(text(&o).contains("results.txt is a file, not a folder"), "{}", text(&o));
 }
+
+/// Regression: a killed run left no `summary.json`, so a script could not
+/// tell an interrupted run from a running one. It now exists from the start
+/// with status `running`; here the file is read while `olli run` works on a
+/// job large enough to take a while.
+#[test]
+fn summary_says_running_while_the_run_works() {
+    let s = Scratch::new("running");
+    let job = s.job(&BUSH.replace("divisions = [4, 8]", "divisions = [40, 80]"));
+    let mut child = Command::new(env!("CARGO_BIN_EXE_olli"))
+        .args(["run", job.to_str().unwrap(), "--output", s.out().to_str().unwrap(), "--quiet"])
+        .spawn()
+        .unwrap();
+    let summary = s.out().join("summary.json");
+    let mut seen_running = false;
+    for _ in 0..400 {
+        if let Ok(text) = std::fs::read_to_string(&summary) {
+            let v: serde_json::Value = serde_json::from_str(&text).unwrap();
+            if v["status"] == "running" {
+                seen_running = true;
+                break;
+            }
+        }
+        std::thread::sleep(std::time::Duration::from_millis(5));
+    }
+    let status = child.wait().unwrap();
+    assert!(seen_running, "summary.json never said running");
+    assert_eq!(status.code(), Some(0));
+    let v: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(&summary).unwrap()).unwrap();
+    assert_eq!(v["status"], "converged");
+}

@@ -78,6 +78,14 @@ impl<'m> ResultWriter<'m> {
         };
         w.log_line(&format!("olli {} run of {} ({})", env!("CARGO_PKG_VERSION"), job.path.display(), job.title));
         w.flush(|w| w.write(HISTORY_FILE, w.history.to_csv().as_bytes()));
+        // From the start, a script can tell a running job from a finished one.
+        let running = serde_json::json!({
+            "olli_version": env!("CARGO_PKG_VERSION"),
+            "job": job.path.display().to_string(),
+            "title": job.title,
+            "status": "running",
+        });
+        w.flush(|w| w.write(SUMMARY_FILE, format!("{running:#}\n").as_bytes()));
         Ok(w)
     }
 
