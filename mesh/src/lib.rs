@@ -73,7 +73,7 @@ pub mod summary;
 pub use element::ElementKind;
 pub use error::{Location, MeshError};
 pub use export::write_vtu;
-pub use import::{import, read_mesh, Imported};
+pub use import::{import, read_mesh, Imported, PointArray};
 pub use model::{Mesh, Side};
 pub use spec::{generate, GeneratorSpec};
 pub use summary::{summary, MeshSummary};

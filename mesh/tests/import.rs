@@ -32,6 +32,72 @@ fn vtu_round_trip_keeps_nodes_connectivity_and_sets() {
     }
 }
 
+/// Result arrays written beside the mesh come back by name with their
+/// component count and values.
+#[test]
+fn vtu_point_arrays_come_back_by_name() {
+    use vtkio::model::{Attribute, Attributes, IOBuffer};
+    let mesh = rectangle(&RectangleParams { divisions: [2, 1], ..Default::default() }).unwrap();
+    let n = mesh.node_count();
+    let strain: Vec<f64> = (0..n).map(|i| 0.1 * i as f64).collect();
+    let displacement: Vec<f64> = (0..3 * n).map(|i| i as f64).collect();
+    let data = Attributes {
+        point: vec![
+            Attribute::scalars("strain", 1).with_data(IOBuffer::F64(strain.clone())),
+            Attribute::vectors("displacement").with_data(IOBuffer::F64(displacement.clone())),
+        ],
+        cell: Vec::new(),
+    };
+    let path = tmp("point_arrays.vtu");
+    olli_mesh::export::write_vtk(olli_mesh::export::grid(&mesh, data), &path).unwrap();
+    let back = import(&path).unwrap();
+    let names: Vec<&str> = back.point_arrays.iter().map(|a| a.name.as_str()).collect();
+    assert_eq!(names, ["strain", "displacement"]);
+    assert_eq!((back.point_arrays[0].components, &back.point_arrays[0].values), (1, &strain));
+    assert_eq!((back.point_arrays[1].components, &back.point_arrays[1].values), (3, &displacement));
+}
+
+/// A hand-written ASCII `.vtu` (two unit quads side by side, a node set and a
+/// two-component point array): values separated by spaces and line breaks come
+/// back one by one, with `NumberOfComponents` as the component count; an array
+/// whose length is not components × nodes is refused with its name.
+#[test]
+fn ascii_vtu_values_and_components_are_read_as_written() {
+    let vtu = |pressure: &str| {
+        format!(
+            r#"<?xml version="1.0"?>
+<VTKFile type="UnstructuredGrid" version="1.0" byte_order="LittleEndian">
+<UnstructuredGrid><Piece NumberOfPoints="6" NumberOfCells="2">
+<Points><DataArray type="Float64" NumberOfComponents="3" format="ascii">
+0 0 0  1 0 0  2 0 0
+0 1 0  1 1 0  2 1 0
+</DataArray></Points>
+<Cells>
+<DataArray type="Int64" Name="connectivity" format="ascii">0 1 4 3
+1 2 5 4</DataArray>
+<DataArray type="Int64" Name="offsets" format="ascii">4 8</DataArray>
+<DataArray type="UInt8" Name="types" format="ascii">9 9</DataArray>
+</Cells>
+<PointData>
+<DataArray type="Int32" Name="set_node_left" format="ascii">1 0 0 1 0 0</DataArray>
+<DataArray type="Float64" Name="shift" NumberOfComponents="2" format="ascii">{pressure}</DataArray>
+</PointData>
+</Piece></UnstructuredGrid></VTKFile>
+"#
+        )
+    };
+    let good = import_bytes(Path::new("two_quads.vtu"), vtu("0.5 1\n1.5 2 2.5 3 3.5 4\n4.5 5 5.5 6").as_bytes()).unwrap();
+    assert_eq!(good.mesh.node_count(), 6);
+    assert_eq!(good.mesh.nodes[4], [1.0, 1.0, 0.0]);
+    assert_eq!(good.mesh.node_sets["left"], [0, 3]);
+    assert_eq!(good.point_arrays.len(), 1, "the set array is not a point array");
+    let shift = &good.point_arrays[0];
+    assert_eq!((shift.name.as_str(), shift.components), ("shift", 2));
+    assert_eq!(shift.values, (1..=12).map(|i| 0.5 * i as f64).collect::<Vec<_>>());
+    let err = import_bytes(Path::new("two_quads.vtu"), vtu("1 2 3 4 5 6").as_bytes()).unwrap_err().to_string();
+    assert!(err.contains("shift") && err.contains("6 values") && err.contains("expected 12"), "{err}");
+}
+
 /// The hand-written ASCII file (tests/data/two_quads.msh): six nodes listed
 /// out of tag order, one clockwise quad, a point, a line and a surface group.
 #[test]

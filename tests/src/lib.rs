@@ -278,3 +278,48 @@ pub mod material {
         (a - b).abs() / b.abs().max(floor)
     }
 }
+
+/// The generator options that make elements of `kind`: order, and whether
+/// quads are split into triangles (2-D) or hexes into tetrahedra (3-D).
+fn generator_options(kind: ElementKind) -> (olli_mesh::generate::Order, bool) {
+    use olli_mesh::generate::Order;
+    match kind {
+        ElementKind::Quad4 | ElementKind::Hex8 => (Order::Linear, false),
+        ElementKind::Tri3 | ElementKind::Tet4 => (Order::Linear, true),
+        ElementKind::Quad8 | ElementKind::Hex20 => (Order::Quadratic, false),
+        ElementKind::Tri6 | ElementKind::Tet10 => (Order::Quadratic, true),
+        _ => (Order::QuadraticFull, false),
+    }
+}
+
+/// A 2-D section of `kind` elements (tri3, tri6, quad4, quad8, quad9) from the
+/// mesh crate's rectangle generator on the unit square, `ns × nt` cells
+/// (two triangles per cell), every node then moved to `place(s, t)` —
+/// mid-side nodes too, so a curved map gives curved elements. Sets of the
+/// generator: `bottom` (t = 0), `right` (s = 1), `top` (t = 1), `left` (s = 0).
+pub fn generated_section(kind: ElementKind, ns: usize, nt: usize, place: impl Fn(f64, f64) -> [f64; 2]) -> Mesh {
+    use olli_mesh::generate::{rectangle, RectangleParams};
+    let (order, triangles) = generator_options(kind);
+    let mut mesh = rectangle(&RectangleParams { divisions: [ns, nt], order, triangles, ..Default::default() }).unwrap();
+    assert!(mesh.kinds.iter().all(|&k| k == kind), "the generator made {:?}, not {kind}", mesh.kinds[0]);
+    for x in &mut mesh.nodes {
+        let p = place(x[0], x[1]);
+        *x = [p[0], p[1], 0.0];
+    }
+    mesh
+}
+
+/// A 3-D block of `kind` elements (tet4, tet10, hex8, hex20, hex27) from the
+/// mesh crate's block generator on the unit cube, `n` cells (six tetrahedra
+/// per cell), every node then moved to `place(X)`. Sets: `left`, `right`
+/// (x = 0, 1), `front`, `back` (y = 0, 1), `bottom`, `top` (z = 0, 1).
+pub fn generated_block(kind: ElementKind, n: [usize; 3], place: impl Fn([f64; 3]) -> [f64; 3]) -> Mesh {
+    use olli_mesh::generate::{block, BlockParams};
+    let (order, tetrahedra) = generator_options(kind);
+    let mut mesh = block(&BlockParams { divisions: n, order, tetrahedra, ..Default::default() }).unwrap();
+    assert!(mesh.kinds.iter().all(|&k| k == kind), "the generator made {:?}, not {kind}", mesh.kinds[0]);
+    for x in &mut mesh.nodes {
+        *x = place(*x);
+    }
+    mesh
+}

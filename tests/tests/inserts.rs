@@ -215,3 +215,53 @@ fn insert_equals_the_same_motion_node_by_node() {
     assert!(rel(-ins.moment[2], torque) < 1e-8);
     assert!(rel(-ins.force[0], b.reactions.iter().filter(|(k, _)| k.starts_with("pin")).map(|(_, r)| r[0]).sum::<f64>()).is_finite());
 }
+
+/// Torsion of a solid Mooney–Rivlin cylinder (W = C10(I1 − 3) + C01(I2 − 3),
+/// incompressible) held at its length, twist ψ per unit length, radius a:
+/// torque T = π ψ a⁴ (C10 + C01) and axial force N = −(π/2) ψ² a⁴ (C10 + 2 C01)
+/// (compressive: the Poynting effect) — Rivlin 1949, "Large elastic
+/// deformations of isotropic materials VI. Further results in the theory of
+/// torsion, shear and flexure", Phil. Trans. R. Soc. A 242:173–195 (from
+/// memory; re-derived from σ = −pI + 2W1 B − 2W2 B⁻¹ with σ_rr(a) = 0). The
+/// exact field keeps plane sections plane and radii straight, so a short
+/// slice with both ends bonded to rigid plates carries it exactly; the top
+/// plate is an insert turned about the axis with its axial position held.
+#[test]
+fn rivlin_torsion_of_a_mooney_rivlin_cylinder_torque_and_poynting_force() {
+    use olli_mesh::generate::{solid_cylinder, CircleParams};
+    use olli_solver::material::{registry, VolumetricForm};
+    let (a, h, c10, c01) = (1.0, 0.5, 0.3, 0.2);
+    let psi = 0.4;
+    let p = CircleParams { radius: a, divisions: 24, radial_divisions: Some(6), height: h, axial_divisions: 6, ..Default::default() };
+    let mesh = solid_cylinder(&p).unwrap();
+    let mat =
+        registry::material("mooney-rivlin", &[("c10", c10), ("c01", c01), ("bulk_modulus", 5000.0)], VolumetricForm::Quadratic).unwrap();
+    let mut model = Model::single_region(mesh, Analysis::Solid3d, std::sync::Arc::new(mat), Formulation::Mixed);
+    model.output.point_fields = false;
+    model.output.nodal_fields = false;
+    model.inserts.push(Insert { name: "top".into(), set: "top".into(), reference: [0.0, 0.0, h], free: [false; 6] });
+    model.stages.push(Stage {
+        name: "twist".into(),
+        controls: IncrementControls { first: 0.5, ..Default::default() },
+        supports: vec![support("bottom", [true; 3])],
+        inserts: vec![turn("top", [None, None, None, None, None, Some(InsertDrive::Move(psi * h))])],
+        ..Default::default()
+    });
+    let sol = solve(&model, &mut Quiet).unwrap();
+    assert!(sol.completed(), "{:?}", sol.termination);
+    let ins = &sol.last().unwrap().inserts[0];
+    let torque = -ins.moment[2];
+    let axial = ins.force[2];
+    let want_t = PI * psi * a.powi(4) * (c10 + c01);
+    let want_n = 0.5 * PI * psi * psi * a.powi(4) * (c10 + 2.0 * c01);
+    eprintln!(
+        "torque {torque:.6e} vs {want_t:.6e} (rel {:.2e}); rubber's axial push on the plate {axial:.6e} vs {want_n:.6e} (rel {:.2e})",
+        rel(torque, want_t),
+        rel(axial, want_n)
+    );
+    // The torque's error is the mesh's O(h²): 2.2 % with 24 divisions around,
+    // 1.3 % with 32 (ratio (32/24)² as expected; measured on this branch).
+    // The axial force came within 0.33 % (0.23 % with 32).
+    assert!(rel(torque, want_t) < 3e-2);
+    assert!(rel(axial, want_n) < 5e-3);
+}

@@ -142,7 +142,7 @@ pub(crate) fn read(path: &Path, bytes: &[u8]) -> Result<Imported, MeshError> {
     if unmatched > 0 {
         notes.push(format!("{unmatched} boundary elements in physical groups match no element side and were left out"));
     }
-    Ok(Imported { mesh, notes })
+    Ok(Imported { mesh, notes, point_arrays: Vec::new() })
 }
 
 /// Parses the file, turning a format error into one with a line (ASCII) or byte offset.

@@ -24,6 +24,17 @@ pub struct Imported {
     pub mesh: Mesh,
     /// Human-readable remarks (reoriented elements, skipped cells, ...).
     pub notes: Vec<String>,
+    /// Numeric point arrays of a VTK file other than the `set_*` arrays
+    /// (result fields such as `displacement`), in file order; empty for Gmsh.
+    pub point_arrays: Vec<PointArray>,
+}
+
+/// A named array with `components` values per node, in node order.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PointArray {
+    pub name: String,
+    pub components: usize,
+    pub values: Vec<f64>,
 }
 
 /// Reads a mesh file, choosing the format by extension (`.vtu`, `.vtk`, `.msh`).

@@ -9,9 +9,10 @@
 use std::collections::BTreeMap;
 use std::path::Path;
 
-use vtkio::model::{Attribute, CellType, DataSet, VertexNumbers, Vtk};
+use vtkio::model::{Attribute, CellType, DataSet, ElementType, VertexNumbers, Vtk};
 
-use super::{line_of, vtu_format, Imported};
+use super::vtu_format::{self, NamedArray};
+use super::{line_of, Imported, PointArray};
 use crate::element::ElementKind;
 use crate::error::{Location, MeshError};
 use crate::export::{ELEMENT_SET_PREFIX, NODE_SET_PREFIX, SIDE_SET_PREFIX};
@@ -57,13 +58,12 @@ fn read_xml(path: &Path, bytes: &[u8]) -> Result<Grid, MeshError> {
         let location = if multi_line { Location::Line(line_of(bytes, e.offset)) } else { Location::Offset(e.offset) };
         MeshError::parse(path, location, e.message)
     })?;
-    let array = |a: vtu_format::NamedArray| (a.name, a.values);
     Ok(Grid {
         points: piece.points,
         cells: Cells::Xml { connectivity: piece.connectivity, offsets: piece.offsets },
         types: piece.types,
-        point_data: piece.point_data.into_iter().map(array).collect(),
-        cell_data: piece.cell_data.into_iter().map(array).collect(),
+        point_data: piece.point_data,
+        cell_data: piece.cell_data,
     })
 }
 
@@ -94,10 +94,14 @@ fn read_legacy(path: &Path, bytes: &[u8]) -> Result<Grid, MeshError> {
             offsets: offsets.into_iter().map(|v| v as f64).collect(),
         },
     };
-    let arrays = |list: &[Attribute]| -> Vec<(String, Vec<f64>)> {
+    let arrays = |list: &[Attribute]| -> Vec<NamedArray> {
         list.iter()
             .filter_map(|a| match a {
-                Attribute::DataArray(d) => Some((d.name.clone(), d.data.cast_into::<f64>().unwrap_or_default())),
+                Attribute::DataArray(d) => Some(NamedArray {
+                    name: d.name.clone(),
+                    components: legacy_components(&d.elem),
+                    values: d.data.cast_into::<f64>().unwrap_or_default(),
+                }),
                 _ => None,
             })
             .collect()
@@ -111,13 +115,24 @@ fn read_legacy(path: &Path, bytes: &[u8]) -> Result<Grid, MeshError> {
     })
 }
 
+/// Values per point or cell of a legacy attribute, by its kind.
+fn legacy_components(elem: &ElementType) -> usize {
+    match *elem {
+        ElementType::Scalars { num_comp, .. } | ElementType::Generic(num_comp) | ElementType::ColorScalars(num_comp) => num_comp as usize,
+        ElementType::Vectors | ElementType::Normals => 3,
+        ElementType::TCoords(n) => n as usize,
+        ElementType::Tensors => 9,
+        ElementType::LookupTable => 4,
+    }
+}
+
 /// An unstructured grid as plain arrays, from either reader.
 struct Grid {
     points: Vec<f64>,
     cells: Cells,
     types: Vec<f64>,
-    point_data: Vec<(String, Vec<f64>)>,
-    cell_data: Vec<(String, Vec<f64>)>,
+    point_data: Vec<NamedArray>,
+    cell_data: Vec<NamedArray>,
 }
 
 /// Cell node lists: legacy (count then nodes per cell) or XML (connectivity and end offsets).
@@ -226,15 +241,34 @@ fn build(path: &Path, grid: Grid) -> Result<Imported, MeshError> {
         notes.push(format!("{skipped} cells of lower dimension than the mesh were skipped"));
     }
     read_sets(path, &mut mesh, &grid.point_data, &grid.cell_data, &element_of)?;
-    Ok(Imported { mesh, notes })
+    let point_arrays = read_point_arrays(path, grid.point_data, mesh.nodes.len())?;
+    Ok(Imported { mesh, notes, point_arrays })
 }
 
-/// A named data array's values.
-type NamedValues = (String, Vec<f64>);
+/// The point arrays other than sets, checked for length (components × nodes).
+fn read_point_arrays(path: &Path, point: Vec<NamedArray>, nodes: usize) -> Result<Vec<PointArray>, MeshError> {
+    let mut arrays = Vec::new();
+    for NamedArray { name, components, values } in point {
+        if name.starts_with("set_") {
+            continue;
+        }
+        let expected = components.checked_mul(nodes);
+        if components == 0 || expected != Some(values.len()) {
+            let expected = expected.map_or_else(|| "more than memory can hold".to_string(), |e| e.to_string());
+            return Err(MeshError::parse(
+                path,
+                Location::Unknown,
+                format!("array {name} has {} values; expected {expected} ({components} per node × {nodes} nodes)", values.len()),
+            ));
+        }
+        arrays.push(PointArray { name, components, values });
+    }
+    Ok(arrays)
+}
 
 /// Restores sets from our `set_*` arrays; other arrays are ignored.
-fn read_sets(path: &Path, mesh: &mut Mesh, point: &[NamedValues], cell: &[NamedValues], element_of: &[usize]) -> Result<(), MeshError> {
-    let values = |(name, data): &NamedValues, len: usize| -> Result<Option<(String, Vec<i64>)>, MeshError> {
+fn read_sets(path: &Path, mesh: &mut Mesh, point: &[NamedArray], cell: &[NamedArray], element_of: &[usize]) -> Result<(), MeshError> {
+    let values = |NamedArray { name, values: data, .. }: &NamedArray, len: usize| -> Result<Option<(String, Vec<i64>)>, MeshError> {
         if !name.starts_with("set_") {
             return Ok(None);
         }

@@ -24,6 +24,8 @@ use crate::memory;
 #[derive(Debug, Default)]
 pub(crate) struct NamedArray {
     pub name: String,
+    /// Values per point or cell (`NumberOfComponents`, 1 when absent).
+    pub components: usize,
     pub values: Vec<f64>,
 }
 
@@ -56,6 +58,7 @@ struct Encoding {
 #[derive(Default)]
 struct RawArray {
     name: String,
+    components: usize,
     scalar: String,
     format: String,
     offset: Option<usize>,
@@ -122,7 +125,9 @@ pub(crate) fn parse(bytes: &[u8]) -> Result<VtuPiece, FormatError> {
             }
             Event::Text(t) => {
                 if let Some(a) = current.as_mut() {
-                    a.text.extend(t.iter().filter(|b| !b.is_ascii_whitespace()).copied().chain([b' ']));
+                    // Keep the separators: ascii values are split on whitespace later.
+                    a.text.extend_from_slice(&t);
+                    a.text.push(b' ');
                 }
             }
             Event::End(e) => match e.name().as_ref() {
@@ -158,8 +163,8 @@ pub(crate) fn parse(bytes: &[u8]) -> Result<VtuPiece, FormatError> {
                 "types" => piece.types = values,
                 _ => {}
             },
-            Section::PointData => piece.point_data.push(NamedArray { name: raw.name, values }),
-            Section::CellData => piece.cell_data.push(NamedArray { name: raw.name, values }),
+            Section::PointData => piece.point_data.push(NamedArray { name: raw.name, components: raw.components, values }),
+            Section::CellData => piece.cell_data.push(NamedArray { name: raw.name, components: raw.components, values }),
             Section::None => {}
         }
     }
@@ -204,7 +209,15 @@ fn data_array(e: &BytesStart, at: usize) -> Result<RawArray, FormatError> {
                 .map_err(|_| FormatError { offset: at, message: format!("DataArray `{name}`: offset `{o}` is not a number") })?,
         ),
     };
+    let components = match attribute(e, b"NumberOfComponents") {
+        None => 1,
+        Some(n) => n.trim().parse().ok().filter(|&n: &usize| n > 0).ok_or_else(|| FormatError {
+            offset: at,
+            message: format!("DataArray `{name}`: NumberOfComponents `{n}` is not a positive whole number"),
+        })?,
+    };
     Ok(RawArray {
+        components,
         scalar: attribute(e, b"type").unwrap_or_default(),
         format: attribute(e, b"format").unwrap_or_else(|| "ascii".into()),
         offset,

@@ -8,8 +8,10 @@
 //! Nothing in `olli-solver` depends on it: a library user who only solves a
 //! `Model` compiles no command-line parser, progress bar or VTK writer.
 
+pub mod fit_data;
 pub mod job;
 pub mod output;
 pub mod plot;
+pub mod report;
 pub mod stability_text;
 pub mod sweep;

@@ -412,3 +412,82 @@ fn summary_says_running_while_the_run_works() {
     let v: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(&summary).unwrap()).unwrap();
     assert_eq!(v["status"], "converged");
 }
+
+/// The bush with its pin as a bonded insert pushed along the axis instead of a motion.
+fn bush_with_insert(insert: &str) -> String {
+    BUSH.replace("[[motion]]\nnodes = \"pin\"\nstage = \"push\"\ndisplacement = { r = 0.0, z = 0.5 }\n", insert)
+}
+
+const PIN_INSERT: &str = "[[insert]]\nname = \"pin\"\nnodes = \"pin\"\nreference = [0.0, 0.0]\nmove = { push = { z = 0.5 } }\n";
+
+#[test]
+fn insert_columns_summary_and_run_summary() {
+    let s = Scratch::new("insert");
+    let out = run(&s.job(&bush_with_insert(PIN_INSERT)), &s.out());
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out));
+    assert!(text(&out).contains("insert pin: z = 0.500000"), "{}", text(&out));
+    let history = std::fs::read_to_string(s.out().join("history.csv")).unwrap();
+    let header = history.lines().next().unwrap();
+    assert_eq!(header, "stage,increment,load_factor,reaction_right_r,reaction_right_z,insert_pin_z,insert_pin_force_z,newton_iterations");
+    let last: Vec<f64> = history.lines().last().unwrap().split(',').skip(1).map(|v| v.parse().unwrap()).collect();
+    // The rubber pulls the pin back with what the sleeve holds (full 2π).
+    let (z, force, sleeve) = (last[4], last[5], last[3]);
+    assert_eq!(z, 0.5);
+    assert!(force < 0.0 && (force - sleeve).abs() < 1e-6 * force.abs(), "pin {force}, sleeve {sleeve}");
+    let summary: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(s.out().join("summary.json")).unwrap()).unwrap();
+    assert!((summary["inserts"]["pin"]["force_z"].as_f64().unwrap() - force).abs() < 1e-9 * force.abs());
+    assert_eq!(summary["units"]["insert_pin_force_z"], "force");
+    // The same push by a motion gives the same force (the insert holds r at zero like the motion).
+    let m = Scratch::new("insert-motion");
+    assert_eq!(run(&m.job(BUSH), &m.out()).status.code(), Some(0));
+    let h = std::fs::read_to_string(m.out().join("history.csv")).unwrap();
+    let pin: f64 = h.lines().last().unwrap().split(',').nth(6).unwrap().parse().unwrap();
+    assert!((pin + force).abs() < 1e-8 * pin, "motion {pin}, insert {force}");
+}
+
+#[test]
+fn bad_insert_input_is_located() {
+    rejects(&bush_with_insert(&PIN_INSERT.replace("z = 0.5", "w = 0.5")), &["job.toml:", "unknown component `w`", "use z"]);
+    rejects(
+        &bush_with_insert(&format!("{PIN_INSERT}turn = {{ push = {{ z = 1.0 }} }}\n")),
+        &["job.toml:", "`turn`: axisymmetric analysis has no rotation components"],
+    );
+    rejects(
+        &bush_with_insert(&format!("{PIN_INSERT}force = {{ push = {{ z = 10.0 }} }}\n")),
+        &["job.toml:", "component `z` is both prescribed and loaded in stage `push`"],
+    );
+    rejects(&bush_with_insert(&PIN_INSERT.replace("push = {", "pushh = {")), &["job.toml:", "no stage named `pushh`"]);
+    rejects(
+        &bush_with_insert(&format!("{PIN_INSERT}\n[[insert]]\nname = \"pin2\"\nnodes = \"bottom\"\nreference = [0.0, 0.0]\n")),
+        &["job.toml:", "node 0 is also bonded to insert `pin`"],
+    );
+}
+
+#[test]
+fn constraints_that_disagree_are_located_and_agreeing_ones_pass() {
+    // A motion of the top edge to z = 0.3 meets the pin's motion (0.5) and the sleeve's support (0) at the corners.
+    let top = "[[motion]]\nnodes = \"top\"\nstage = \"push\"\ndisplacement = { z = 0.3 }\n";
+    rejects(
+        &format!("{BUSH}{top}"),
+        &[
+            "job.toml:38:16",
+            "stage `push`: node",
+            "component `z` is moved to 0.5 by the motion on `pin` but moved to 0.3 by the motion on `top`",
+        ],
+    );
+    let top_only = BUSH.replace("displacement = { r = 0.0, z = 0.5 }", "displacement = { r = 0.0 }");
+    rejects(
+        &format!("{top_only}{top}"),
+        &["job.toml:", "component `z` is held at 0 by the support on `right` but moved to 0.3 by the motion on `top`"],
+    );
+    // The pin's motion and an insert on the pin's corner node.
+    rejects(
+        &format!("{BUSH}\n[[insert]]\nname = \"edge\"\nnodes = \"bottom\"\nreference = [0.0, 0.0]\n"),
+        &["job.toml:", "by the motion on `pin` but held at 0 by insert `edge`"],
+    );
+    // Agreeing: the top edge held at r = 0 by a motion while the sleeve holds r at 0 too.
+    let s = Scratch::new("agree");
+    let agree = "[[motion]]\nnodes = \"top\"\nstage = \"push\"\ndisplacement = { r = 0.0 }\n";
+    let out = olli(&["check", s.job(&format!("{BUSH}{agree}")).to_str().unwrap()]);
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out));
+}

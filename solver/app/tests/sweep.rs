@@ -82,6 +82,12 @@ range = { from = 0.4, to = 0.8, count = 3 }
     assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
     let rows = table(&s.0.join("out/sweep.csv"));
     assert_eq!(rows.len(), 9);
+    // A picture of each result against each parameter, except results that
+    // do not change (the prescribed travel is the peak displacement).
+    let picture = std::fs::read(s.0.join("out/plots/reactions.pin.z-vs-mesh.size.1.png")).unwrap();
+    assert_eq!(&picture[..8], b"\x89PNG\r\n\x1a\n");
+    assert!(s.0.join("out/plots/reactions.pin.z-vs-materials.bush-nr50.shear_modulus.png").exists());
+    assert!(!s.0.join("out/plots/peaks.displacement-vs-mesh.size.1.png").exists());
     let force = |l: f64, g: f64| {
         let row = rows.iter().find(|r| number(r, "mesh.size.1") == l && number(r, "materials.bush-nr50.shear_modulus") == g).unwrap();
         assert_eq!(row["status"], "converged");
@@ -124,9 +130,15 @@ fn write_slow_sweep(dir: &Path, count: usize) {
     std::fs::write(dir.join("bush.sweep.toml"), text).unwrap();
 }
 
+/// The `summary.json` of every variant that finished (a running one has a
+/// summary with status `running` from its start).
 fn summaries(dir: &Path) -> Vec<PathBuf> {
+    let finished = |p: &PathBuf| {
+        let text = std::fs::read_to_string(p).unwrap_or_default();
+        serde_json::from_str::<serde_json::Value>(&text).is_ok_and(|v| v["status"] == "converged" || v["status"] == "stopped")
+    };
     let mut found: Vec<PathBuf> = std::fs::read_dir(dir)
-        .map(|d| d.filter_map(|e| e.ok()).map(|e| e.path().join("summary.json")).filter(|p| p.exists()).collect())
+        .map(|d| d.filter_map(|e| e.ok()).map(|e| e.path().join("summary.json")).filter(finished).collect())
         .unwrap_or_default();
     found.sort();
     found
@@ -276,4 +288,26 @@ fn bad_sweep_input_names_the_parameter_exits_2_and_writes_nothing() {
     let out = olli(&["sweep", "sweep.toml"], &s.0);
     assert_eq!(out.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&out.stderr).contains(".sweep.toml"));
+}
+
+#[test]
+fn a_variant_that_stops_is_recorded_and_the_others_go_on() {
+    let s = Scratch::new("stops");
+    write_bush(&s.0, 0.5);
+    let job = std::fs::read_to_string(s.0.join("bush.toml")).unwrap();
+    // One Newton iteration per increment never reaches the tolerance: that variant cuts back and stops.
+    let job = job.replace("name = \"push\"\n", "name = \"push\"\nmax_iterations = 15\nmin_increment = 0.01\n");
+    std::fs::write(s.0.join("bush.toml"), job).unwrap();
+    std::fs::write(
+        s.0.join("bush.sweep.toml"),
+        "base = \"bush.toml\"\n[[parameter]]\nkey = \"stage.push.max_iterations\"\nvalues = [15, 1, 10]\n",
+    )
+    .unwrap();
+    let out = olli(&["sweep", "bush.sweep.toml", "--output", "out"], &s.0);
+    assert_eq!(out.status.code(), Some(1), "{}", String::from_utf8_lossy(&out.stderr));
+    let rows = table(&s.0.join("out/sweep.csv"));
+    let status: Vec<&str> = rows.iter().map(|r| r["status"].as_str()).collect();
+    assert_eq!(status, ["converged", "stopped", "converged"]);
+    assert!(!rows[1]["reason"].is_empty() && rows[0]["reason"].is_empty(), "{:?}", rows[1]);
+    assert!(String::from_utf8_lossy(&out.stdout).contains("v02 stopped"), "{}", String::from_utf8_lossy(&out.stdout));
 }

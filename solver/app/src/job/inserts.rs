@@ -9,7 +9,7 @@ use olli_mesh::Mesh;
 use super::build::Builder;
 use super::diagnostics::{nearest, InputError};
 use super::schema::{AnalysisKind, JobFile, StageComponents};
-use olli_solver::insert::{InsertResult, COMPONENTS};
+use olli_solver::insert::InsertResult;
 use olli_solver::model::{Insert, InsertDrive, InsertStage, Stage};
 
 /// Job-file names of the translations and rotations an analysis allows,
@@ -25,11 +25,11 @@ fn allowed(kind: AnalysisKind, rotation: bool) -> &'static [(&'static str, usize
     }
 }
 
-/// Names of the components an analysis allows (`x`, `rz`, ...).
-fn component_names(kind: AnalysisKind) -> Vec<&'static str> {
-    let mut v: Vec<(&str, usize)> = allowed(kind, false).to_vec();
-    v.extend(allowed(kind, true).iter().copied());
-    v.iter().map(|&(_, k)| COMPONENTS[k]).collect()
+/// Names of the components an analysis allows in `free` (`x`, `rz`, ...), with their model index.
+fn free_names(kind: AnalysisKind) -> Vec<(String, usize)> {
+    let mut v: Vec<(String, usize)> = allowed(kind, false).iter().map(|&(n, k)| (n.to_string(), k)).collect();
+    v.extend(allowed(kind, true).iter().map(|&(n, k)| (format!("r{n}"), k)));
+    v
 }
 
 /// The `history.csv` columns of one insert with their units, in order:
@@ -38,8 +38,11 @@ fn component_names(kind: AnalysisKind) -> Vec<&'static str> {
 /// the rubber exerts on the insert; moments about its moved reference point).
 pub fn insert_columns(kind: AnalysisKind, name: &str) -> Vec<(String, &'static str)> {
     let mut c: Vec<(String, &'static str)> = Vec::new();
-    for (_, k) in allowed(kind, false).iter().chain(allowed(kind, true)) {
-        c.push((format!("insert_{name}_{}", COMPONENTS[*k]), if *k < 3 { "length" } else { "degree" }));
+    for (n, _) in allowed(kind, false) {
+        c.push((format!("insert_{name}_{n}"), "length"));
+    }
+    for (n, _) in allowed(kind, true) {
+        c.push((format!("insert_{name}_r{n}"), "degree"));
     }
     for (n, _) in allowed(kind, false) {
         c.push((format!("insert_{name}_force_{n}"), "force"));
@@ -94,9 +97,10 @@ impl Builder<'_> {
             reference[..dim].copy_from_slice(r);
             let mut free = [false; 6];
             if let Some(f) = &spec.free {
-                let names = component_names(kind);
+                let names = free_names(kind);
                 for c in f.get_ref() {
-                    let Some(k) = COMPONENTS.iter().position(|n| n == c).filter(|_| names.contains(&c.as_str())) else {
+                    let Some(&(_, k)) = names.iter().find(|(n, _)| n == c) else {
+                        let names: Vec<&str> = names.iter().map(|(n, _)| n.as_str()).collect();
                         let hint = nearest(c, names.iter().copied()).map(|n| format!("; did you mean `{n}`?")).unwrap_or_default();
                         return Err(self.err(
                             f.span(),
@@ -178,7 +182,7 @@ impl Builder<'_> {
                 if let Some(old) = drives[i][k] {
                     let both = matches!(old, InsertDrive::Move(_)) != matches!(drive, InsertDrive::Move(_));
                     let what = if both { "is both prescribed and loaded" } else { "is given twice" };
-                    return Err(self.err(comps.span(), format!("`{key}`: component `{}` {what} in stage `{stage}`", COMPONENTS[k])));
+                    return Err(self.err(comps.span(), format!("`{key}`: component `{c}` {what} in stage `{stage}`")));
                 }
                 drives[i][k] = Some(drive);
             }

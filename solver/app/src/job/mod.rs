@@ -7,6 +7,7 @@
 
 pub mod build;
 pub mod check;
+mod conflicts;
 pub mod diagnostics;
 pub mod inserts;
 pub mod mesh_source;

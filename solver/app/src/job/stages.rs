@@ -15,7 +15,7 @@ use olli_solver::model::{Force, IncrementControls, Insert, Motion, Pressure, Ram
 
 impl Builder<'_> {
     /// Component values `{ x = .., z = .. }` as an array for this analysis.
-    fn components(&self, kind: AnalysisKind, map: &Spanned<BTreeMap<String, f64>>) -> Result<[Option<f64>; 3], InputError> {
+    pub(super) fn components(&self, kind: AnalysisKind, map: &Spanned<BTreeMap<String, f64>>) -> Result<[Option<f64>; 3], InputError> {
         let names = kind.components();
         let mut out = [None; 3];
         if map.get_ref().is_empty() {
@@ -36,7 +36,7 @@ impl Builder<'_> {
         Ok(out)
     }
 
-    fn stage_index(&self, stages: &[Spanned<StageSpec>], name: &Option<Spanned<String>>) -> Result<usize, InputError> {
+    pub(super) fn stage_index(&self, stages: &[Spanned<StageSpec>], name: &Option<Spanned<String>>) -> Result<usize, InputError> {
         let Some(name) = name else { return Ok(0) };
         stages.iter().position(|s| s.get_ref().name.get_ref() == name.get_ref()).ok_or_else(|| {
             let names: Vec<&str> = stages.iter().map(|s| s.get_ref().name.get_ref().as_str()).collect();
@@ -171,6 +171,7 @@ impl Builder<'_> {
         }
         self.rigid_motions(file, kind, &mut stages, &mut loaded)?;
         let inserts = self.inserts(file, mesh, kind, &mut stages, &mut loaded)?;
+        self.check_conflicts(file, mesh, kind, &stages, &inserts)?;
         if let Some(i) = loaded.iter().position(|&l| !l) {
             let name = &stages[i].name;
             return Err(self.err(

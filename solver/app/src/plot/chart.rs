@@ -14,7 +14,7 @@
 use plotters::coord::Shift;
 use plotters::prelude::*;
 
-use super::{number, ColorMap, Figure, PlotError, FONT};
+use super::{ColorMap, Figure, PlotError, FONT};
 
 /// An axis: the quantity and its unit, written `quantity [unit]`.
 #[derive(Debug, Clone, PartialEq)]
@@ -57,17 +57,26 @@ pub struct Series {
     pub name: String,
     pub points: Vec<(f64, f64)>,
     pub style: SeriesStyle,
+    /// Series with the same group share one colour (measured points and the
+    /// fitted curve of one test); `None`: a colour of its own.
+    pub group: Option<usize>,
 }
 
 impl Series {
     /// A line series.
     pub fn line(name: impl Into<String>, points: Vec<(f64, f64)>) -> Self {
-        Series { name: name.into(), points, style: SeriesStyle::Line }
+        Series { name: name.into(), points, style: SeriesStyle::Line, group: None }
     }
 
     /// A series of dots.
     pub fn points(name: impl Into<String>, points: Vec<(f64, f64)>) -> Self {
-        Series { name: name.into(), points, style: SeriesStyle::Points }
+        Series { name: name.into(), points, style: SeriesStyle::Points, group: None }
+    }
+
+    /// The same series in colour group `group` (see [`Series::group`]).
+    pub fn in_group(mut self, group: usize) -> Self {
+        self.group = Some(group);
+        self
     }
 
     fn finite(&self) -> impl Iterator<Item = (f64, f64)> + Clone + '_ {
@@ -188,22 +197,12 @@ impl Figure for LineChart {
         let [(x0, x1), (y0, y1)] = self.ranges()?;
         root.fill(&WHITE)?;
         let mut chart = ChartBuilder::on(root)
-            .caption(&self.title, (FONT, 20))
+            .caption(&self.title, (FONT, super::title_size(root, &self.title)))
             .margin(14)
             .x_label_area_size(50)
             .y_label_area_size(80)
             .build_cartesian_2d(x0..x1, y0..y1)?;
-        chart
-            .configure_mesh()
-            .x_desc(self.x.label())
-            .y_desc(self.y.label())
-            .label_style((FONT, 14))
-            .axis_desc_style((FONT, 16))
-            .x_label_formatter(&|v| number(*v))
-            .y_label_formatter(&|v| number(*v))
-            .light_line_style(RGBColor(238, 238, 238))
-            .bold_line_style(RGBColor(210, 210, 210))
-            .draw()?;
+        super::draw_axes(&mut chart, &self.x, &self.y, true)?;
         let dashed = GREY.stroke_width(1);
         let small = (FONT, 13).into_font().color(&GREY);
         for m in self.vertical.iter().filter(|m| m.at.is_finite()) {
@@ -216,9 +215,22 @@ impl Figure for LineChart {
             let at = chart.backend_coord(&(x0, m.at));
             root.draw(&Text::new(m.label.clone(), (at.0 + 6, at.1 - 16), small.clone()))?;
         }
-        let count = self.series.len();
-        for (i, s) in self.series.iter().enumerate() {
-            let color = self.colors.series(i, count);
+        // One colour slot per group (in order of first appearance) and per ungrouped series.
+        let mut slots: Vec<Option<usize>> = Vec::new();
+        let slot_of: Vec<usize> = self
+            .series
+            .iter()
+            .map(|s| match s.group.and_then(|g| slots.iter().position(|&k| k == Some(g))) {
+                Some(k) => k,
+                None => {
+                    slots.push(s.group);
+                    slots.len() - 1
+                }
+            })
+            .collect();
+        let count = slots.len();
+        for (s, &slot) in self.series.iter().zip(&slot_of) {
+            let color = self.colors.series(slot, count);
             let line = color.stroke_width(2);
             let dot = color.filled();
             let drawn = match s.style {

@@ -3,7 +3,8 @@
 //! `olli material` and `olli fit`.
 //!
 //! The API in two lines: build a [`LineChart`] (title, [`Axis`] with quantity
-//! and unit, named [`Series`], [`Mark`]s for events such as stage ends), then [`write`] it to a file as [`Format::Png`] or
+//! and unit, named [`Series`], [`Mark`]s for events such as stage ends) or a
+//! [`ContourPlot`] (a field over polygons, banded, with a colour bar), then [`write`] it to a file as [`Format::Png`] or
 //! [`Format::Svg`]; [`ColorMap`] gives viridis (default) or cividis.
 //!
 //! Text is drawn with a font shipped in the repository (DejaVu Sans, under
@@ -12,15 +13,18 @@
 
 pub mod chart;
 pub mod colormap;
+pub mod contour;
 
 use std::path::{Path, PathBuf};
 use std::sync::Once;
 
+use plotters::coord::types::RangedCoordf64;
 use plotters::coord::Shift;
 use plotters::prelude::*;
 
 pub use chart::{Axis, Corner, LineChart, Mark, Series, SeriesStyle};
 pub use colormap::ColorMap;
+pub use contour::{ContourPlot, LineKind, Outline};
 
 /// Font family every picture uses; registered by [`register_font`].
 pub const FONT: &str = "sans-serif";
@@ -141,6 +145,37 @@ pub fn write(figure: &impl Figure, path: &Path, format: Format) -> Result<(), Pl
         Format::Svg => render_svg(figure)?.into_bytes(),
     };
     crate::output::write_atomic(path, &bytes).map_err(|source| PlotError::Write { path: path.to_path_buf(), source })
+}
+
+/// The largest title font size (20 down to 11 pixels) at which `text` fits
+/// across `root`; long titles shrink rather than run off the picture.
+pub(crate) fn title_size<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, text: &str) -> u32 {
+    let room = root.dim_in_pixel().0.saturating_sub(24);
+    (11..=20)
+        .rev()
+        .find(|&size| root.estimate_text_size(text, &TextStyle::from((FONT, size).into_font())).is_ok_and(|(w, _)| w <= room))
+        .unwrap_or(11)
+}
+
+/// A chart on two linear f64 axes.
+pub(crate) type Chart2d<'a, DB> = ChartContext<'a, DB, Cartesian2d<RangedCoordf64, RangedCoordf64>>;
+
+/// Draws the axes of `chart` with their labels and tick numbers, and a light grid when `grid`.
+pub(crate) fn draw_axes<DB: DrawingBackend>(chart: &mut Chart2d<'_, DB>, x: &Axis, y: &Axis, grid: bool) -> Result<(), PlotError> {
+    let mut mesh = chart.configure_mesh();
+    mesh.x_desc(x.label())
+        .y_desc(y.label())
+        .label_style((FONT, 14))
+        .axis_desc_style((FONT, 16))
+        .x_label_formatter(&|v| number(*v))
+        .y_label_formatter(&|v| number(*v))
+        .light_line_style(RGBColor(238, 238, 238))
+        .bold_line_style(RGBColor(210, 210, 210));
+    if !grid {
+        mesh.disable_mesh();
+    }
+    mesh.draw()?;
+    Ok(())
 }
 
 /// A number for an axis tick or a label: four significant digits, no

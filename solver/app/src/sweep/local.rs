@@ -6,8 +6,8 @@
 //! exactly as it would alone or as a batch array task (same command, same
 //! files, so the local and the batch table agree), a variant that crashes
 //! or runs out of memory takes no other down, its memory can be measured,
-//! and stopping the sweep leaves each variant either finished (with its
-//! `summary.json`, written last) or to be rerun.
+//! and stopping the sweep leaves each variant either finished (its
+//! `summary.json` says `converged` or `stopped`) or to be rerun.
 //!
 //! Bounds: at most `jobs` variants at once (default: the number of cores),
 //! each with `RAYON_NUM_THREADS` = cores / running variants (at least 1), so
@@ -18,8 +18,9 @@
 //! of a rough figure from the model's size ([`estimated_bytes`]) and the
 //! largest peak measured so far (Linux `VmHWM` of the children).
 //!
-//! Resuming: a variant with a `summary.json` is finished and skipped; any
-//! other is run (a run cut off part-way left no summary). `sweep.log` in the
+//! Resuming: a variant whose `summary.json` says `converged` or `stopped` is
+//! finished and skipped; any other is run (a run cut off part-way left a
+//! summary saying `running` or `interrupted`, or none). `sweep.log` in the
 //! sweep folder records each start and end.
 
 use std::fs::{File, OpenOptions};
@@ -30,7 +31,7 @@ use std::time::{Duration, Instant};
 
 use super::collect::{outcome, Outcome};
 use super::folder::{Manifest, ManifestVariant, ERROR_FILE};
-use crate::output::SUMMARY_FILE;
+use crate::output::summary::run_finished;
 
 /// Share of the memory available at the start that the variants may use together.
 pub const MEMORY_SHARE: f64 = 0.8;
@@ -92,6 +93,16 @@ pub fn estimated_bytes(v: &ManifestVariant) -> u64 {
     50_000_000 + per_unknown * v.unknowns as u64
 }
 
+/// Whether one more variant needing `estimate` bytes may start beside
+/// variants needing `in_use` bytes: fewer than `at_once` run and the memory
+/// fits, or nothing runs at all (one variant always runs).
+pub fn may_start(in_use: &[u64], estimate: u64, at_once: usize, memory: Option<u64>) -> bool {
+    if in_use.is_empty() {
+        return true;
+    }
+    in_use.len() < at_once && memory.is_none_or(|m| in_use.iter().sum::<u64>() + estimate <= m)
+}
+
 struct Running {
     variant: usize,
     child: Child,
@@ -105,7 +116,7 @@ pub fn run(dir: &Path, manifest: &Manifest, settings: &LocalSettings, mut report
     let started = Instant::now();
     let mut pending: Vec<usize> = Vec::new();
     for (i, v) in manifest.variants.iter().enumerate() {
-        if dir.join(&v.name).join(SUMMARY_FILE).exists() {
+        if run_finished(&dir.join(&v.name)) {
             writeln!(log, "{:9.2} s  skip  {} (finished earlier)", 0.0, v.name)?;
         } else {
             pending.push(i);
@@ -120,9 +131,8 @@ pub fn run(dir: &Path, manifest: &Manifest, settings: &LocalSettings, mut report
     while !pending.is_empty() || !running.is_empty() {
         while let Some(&next) = pending.last() {
             let estimate = estimated_bytes(&manifest.variants[next]).max(measured_peak);
-            let in_use: u64 = running.iter().map(|r| r.estimate.max(r.peak)).sum();
-            let fits = settings.memory.is_none_or(|m| in_use + estimate <= m);
-            if running.len() >= at_once || !(running.is_empty() || fits) {
+            let in_use: Vec<u64> = running.iter().map(|r| r.estimate.max(r.peak)).collect();
+            if !may_start(&in_use, estimate, at_once, settings.memory) {
                 break;
             }
             pending.pop();
@@ -200,6 +210,16 @@ fn kilobytes(text: &str, label: &str) -> Option<u64> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn variants_start_while_cores_and_memory_allow() {
+        let gb = 1_000_000_000;
+        assert!(may_start(&[], 50 * gb, 2, Some(gb)), "one variant always runs");
+        assert!(may_start(&[gb], gb, 2, Some(3 * gb)));
+        assert!(!may_start(&[gb], gb, 1, Some(3 * gb)), "--jobs 1");
+        assert!(!may_start(&[gb, gb], 2 * gb, 4, Some(3 * gb)), "memory full");
+        assert!(may_start(&[gb, gb, gb], 50 * gb, 4, None), "memory unknown");
+    }
 
     #[test]
     fn reads_proc_memory_lines() {

@@ -14,6 +14,7 @@ pub mod folder;
 pub mod keypath;
 pub mod local;
 pub mod plan;
+pub mod plots;
 pub mod schema;
 
 pub use collect::{Status, Table, TABLE_FILE};

@@ -3,8 +3,10 @@
 //! stopped without converging, 2 bad input.
 
 mod check_cmd;
+mod fit_cmd;
 mod material_cmd;
 mod mesh_cmd;
+mod plot_cmd;
 mod run_cmd;
 mod sweep_cmd;
 
@@ -29,8 +31,12 @@ enum Command {
     Run(run_cmd::Args),
     /// Check a job file and its mesh without solving.
     Check(check_cmd::Args),
+    /// Draw pictures of a run (force–travel, stiffness, contact pressure, contours) and its report page.
+    Plot(plot_cmd::Args),
     /// Run many variants of one job (a `*.sweep.toml`), here or as a batch array, and collect `sweep.csv`.
     Sweep(sweep_cmd::Args),
+    /// Fit material models to test curves (CSV), compare them and write the best as a material table.
+    Fit(fit_cmd::Args),
 }
 
 fn main() -> ExitCode {
@@ -40,6 +46,8 @@ fn main() -> ExitCode {
         Command::Mesh(args) => mesh_cmd::run(args),
         Command::Run(args) => run_cmd::run(args),
         Command::Check(args) => check_cmd::run(args),
+        Command::Plot(args) => plot_cmd::run(args),
         Command::Sweep(args) => sweep_cmd::run(args),
+        Command::Fit(args) => fit_cmd::run(args),
     }
 }

@@ -28,6 +28,12 @@ pub struct Args {
     /// Print only the final summary.
     #[arg(long, short)]
     pub quiet: bool,
+    /// Draw the pictures and the report page `index.html` into the result folder at the end (as `olli plot`).
+    #[arg(long)]
+    pub plots: bool,
+    /// Picture format with `--plots`.
+    #[arg(long, value_enum, default_value = "png", requires = "plots")]
+    pub format: olli_app::plot::Format,
 }
 
 /// Progress on stderr: a bar on a terminal, one line per increment otherwise.
@@ -191,6 +197,16 @@ pub fn run(args: Args) -> ExitCode {
     match writer.finish(&solution) {
         Ok(summary) => {
             print_summary(&summary, &folder, job.components());
+            if args.plots {
+                let options = olli_app::report::Options { format: args.format, ..Default::default() };
+                match olli_app::report::write_report(&folder, &folder, Some(&job), &options) {
+                    Ok(pictures) => {
+                        println!("pictures: {}, report: {}", pictures.len(), folder.join(olli_app::report::page::PAGE_FILE).display())
+                    }
+                    // The results stand without their pictures: report, keep the run's exit code.
+                    Err(e) => eprintln!("error: pictures: {e}"),
+                }
+            }
             if solution.completed() {
                 ExitCode::SUCCESS
             } else {

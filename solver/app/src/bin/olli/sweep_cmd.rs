@@ -13,6 +13,7 @@ use std::time::Duration;
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use olli_app::sweep::batch::{write_script, SCRIPT_FILE};
 use olli_app::sweep::local::{self, LocalEvent, LocalSettings};
+use olli_app::sweep::plots::{write_plots, PLOTS_FOLDER};
 use olli_app::sweep::{self, write_variants, Manifest, Plan, Status, Table, TABLE_FILE};
 
 #[derive(clap::Args)]
@@ -165,6 +166,11 @@ fn finish(dir: &Path, manifest: &Manifest) -> ExitCode {
         println!("  {} {}{reason}", r.variant, r.outcome.status.name());
     }
     println!("table: {}", dir.join(TABLE_FILE).display());
+    match write_plots(&table, dir) {
+        Ok(files) if !files.is_empty() => println!("plots: {} ({} pictures)", dir.join(PLOTS_FOLDER).display(), files.len()),
+        Ok(_) => {}
+        Err(e) => eprintln!("warning: no plots: {e}"),
+    }
     if table.all_converged() {
         ExitCode::SUCCESS
     } else {

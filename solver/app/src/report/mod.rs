@@ -1,0 +1,148 @@
+//! Pictures of a run and its report page, drawn from the results folder
+//! alone (plus the job, when at hand, for the rigid surfaces and the contact
+//! sets): force–travel and stiffness charts ([`forces`]), contact pressure
+//! along each rigid surface ([`contact`]), contour pictures of the deformed
+//! shape ([`section`]) and `index.html` ([`page`]).
+//!
+//! A run that stopped early has the same files up to its last converged
+//! increment, so it gets the same pictures; a missing column, array or
+//! summary leaves out only what needs it.
+
+pub mod contact;
+pub mod forces;
+pub mod page;
+pub mod results;
+pub mod section;
+
+use std::path::{Path, PathBuf};
+
+use crate::job::Job;
+use crate::plot::{self, ColorMap, Format, PlotError};
+use results::{Frame, RunResults};
+use section::{Field, View};
+
+/// Something that stops the pictures of a run.
+#[derive(Debug, thiserror::Error)]
+pub enum ReportError {
+    #[error("{file}: cannot read: {source}")]
+    Read { file: PathBuf, source: std::io::Error },
+    #[error("{file}, line {line}: {message}")]
+    Parse { file: PathBuf, line: usize, message: String },
+    #[error(transparent)]
+    Mesh(#[from] olli_mesh::MeshError),
+    #[error(transparent)]
+    Plot(#[from] PlotError),
+    #[error("{file}: cannot write: {source}")]
+    Write { file: PathBuf, source: std::io::Error },
+}
+
+/// What to draw and how.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Options {
+    /// Picture format. Default PNG.
+    pub format: Format,
+    /// Field of the contour pictures. Default max principal log strain.
+    pub field: Field,
+    /// Colour map. Default viridis.
+    pub colors: ColorMap,
+    /// View axis of 3-D parts. Default: chosen from the shape and the motion ([`View::choose`]).
+    pub view: Option<View>,
+}
+
+impl Default for Options {
+    fn default() -> Self {
+        Options { format: Format::Png, field: Field::default(), colors: ColorMap::default(), view: None }
+    }
+}
+
+/// A picture written, for the report page.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Picture {
+    /// File name inside the output folder.
+    pub file: String,
+    /// One line saying what it shows.
+    pub caption: String,
+}
+
+/// Stage name and load factor of a `.pvd` time (stage index + load factor).
+pub fn stage_of(time: f64, stages: &[String]) -> (String, f64) {
+    let index = (time - 1e-9).floor().max(0.0);
+    let name = stages.get(index as usize).cloned().unwrap_or_else(|| format!("stage {}", index as usize + 1));
+    (name, time - index)
+}
+
+/// The frames to draw: the last saved frame of each stage (the end of a
+/// stage, or the last converged increment of a stopped one).
+pub fn chosen_frames(r: &RunResults) -> Vec<usize> {
+    let mut chosen: Vec<usize> = Vec::new();
+    for (i, f) in r.frames.iter().enumerate() {
+        let stage = (f.time - 1e-9).floor();
+        match chosen.last() {
+            Some(&j) if (r.frames[j].time - 1e-9).floor() == stage => *chosen.last_mut().unwrap() = i,
+            _ => chosen.push(i),
+        }
+    }
+    chosen
+}
+
+/// Draws every picture of the run in `folder` into `out` (created if
+/// missing); `job` adds the rigid surfaces and the contact-pressure charts.
+pub fn draw_all(folder: &Path, out: &Path, job: Option<&Job>, options: &Options) -> Result<(RunResults, Vec<Picture>), ReportError> {
+    let r = RunResults::read(folder)?;
+    std::fs::create_dir_all(out).map_err(|source| ReportError::Write { file: out.to_path_buf(), source })?;
+    let mut pictures = Vec::new();
+    let mut save = |stem: &str, caption: String, figure: &dyn Fn(&Path) -> Result<(), PlotError>| -> Result<(), ReportError> {
+        let file = options.format.file_name(stem);
+        figure(&out.join(&file))?;
+        pictures.push(Picture { file, caption });
+        Ok(())
+    };
+    for (stem, chart) in forces::force_charts(&r) {
+        let caption = chart.title.clone();
+        save(&stem, caption, &|p| plot::write(&chart, p, options.format))?;
+    }
+    let stages = r.history.stage_names();
+    let title = r.title();
+    let analysis = r.summary_text("analysis").unwrap_or("").to_string();
+    for (k, &i) in chosen_frames(&r).iter().enumerate() {
+        let frame = Frame::read(&r.frames[i].file)?;
+        let (stage, load) = stage_of(r.frames[i].time, &stages);
+        let when = format!("stage `{stage}`, load factor {}", plot::number(load));
+        let rigid = job.map(|j| contact::rigid_outlines(j, &frame.mesh, r.frames[i].time)).unwrap_or_default();
+        let heading = format!("{title}: {when}");
+        if let Some((contour, _)) = section::section_plot(&frame, options.field, &heading, &analysis, options.colors, options.view, &rigid)
+        {
+            let caption = format!("{} on the deformed shape, {when}", options.field.axis().quantity);
+            save(&format!("section_{}", k + 1), caption, &|p| plot::write(&contour, p, options.format))?;
+        }
+        if let Some(job) = job {
+            for (name, chart) in contact::pressure_charts(job, &frame, &r, i, &heading) {
+                let caption = format!("contact pressure along `{name}`, {when}");
+                save(&format!("contact_{name}_{}", k + 1), caption, &|p| plot::write(&chart, p, options.format))?;
+            }
+        }
+    }
+    Ok((r, pictures))
+}
+
+/// Draws every picture ([`draw_all`]) and writes the report page
+/// `index.html` beside them in `out`; returns the pictures written.
+pub fn write_report(folder: &Path, out: &Path, job: Option<&Job>, options: &Options) -> Result<Vec<Picture>, ReportError> {
+    let (results, pictures) = draw_all(folder, out, job, options)?;
+    let path = out.join(page::PAGE_FILE);
+    crate::output::write_atomic(&path, page::html(&results, &pictures).as_bytes())
+        .map_err(|source| ReportError::Write { file: path, source })?;
+    Ok(pictures)
+}
+
+/// The job a results folder came from, when its file (the summary's `job`,
+/// as given to `olli run`, else relative to the folder's parent) can still
+/// be read; `None` otherwise (the pictures then leave out the rigid
+/// surfaces and the contact-pressure charts).
+pub fn find_job(folder: &Path) -> Option<Job> {
+    let summary: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(folder.join(crate::output::SUMMARY_FILE)).ok()?).ok()?;
+    let given = PathBuf::from(summary.get("job")?.as_str()?);
+    let candidates =
+        [Some(given.clone()), folder.parent().map(|p| p.join(&given)), folder.parent().and_then(|p| p.parent()).map(|p| p.join(&given))];
+    candidates.into_iter().flatten().filter(|p| p.is_file()).find_map(|p| crate::job::load(&p).ok())
+}
