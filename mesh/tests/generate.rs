@@ -494,3 +494,31 @@ fn linear_circles_have_exact_polygon_areas() {
         assert!((measure(&r) - (polygon(2.0) - polygon(1.0))).abs() < 1e-12, "ring {n}");
     }
 }
+
+/// Regression: divisions whose product is 10^10 elements aborted on an 80 GB
+/// allocation, and a solid cylinder with 4000 × 4000 divisions asked for
+/// 96 GB; both now refuse before building, saying what was asked and what is free.
+#[test]
+fn divisions_beyond_memory_are_refused_before_allocating() {
+    if olli_mesh::memory::available_bytes().is_none_or(|a| a > 1 << 45) {
+        return; // No memory figure (or > 35 TB free): the check cannot fail here.
+    }
+    let e = block(&BlockParams { divisions: [100_000, 100_000, 1], ..Default::default() }).unwrap_err().to_string();
+    assert!(e.starts_with("invalid `divisions`: divisions 100000 × 100000 × 1 (10000000000 elements) needs about"), "{e}");
+    assert!(e.contains("of memory is available"), "{e}");
+    let e = solid_cylinder(&CircleParams { divisions: 4000, axial_divisions: 4000, ..Default::default() }).unwrap_err().to_string();
+    assert!(e.starts_with("invalid `axial_divisions`: divisions 4000 with 500 radial and 4000 axial"), "{e}");
+}
+
+/// Regression: a NaN in a generator's origin ran, then stopped on a NaN Jacobian.
+#[test]
+fn nan_or_infinite_origins_are_refused() {
+    let e = block(&BlockParams { origin: [0.0, f64::NAN, 0.0], ..Default::default() }).unwrap_err().to_string();
+    assert_eq!(e, "invalid `origin`: must be finite numbers, got [0.0, NaN, 0.0]");
+    let e = rectangle(&RectangleParams { origin: [f64::INFINITY, 0.0], ..Default::default() }).unwrap_err().to_string();
+    assert!(e.starts_with("invalid `origin`"), "{e}");
+    let e = hollow_cylinder(&AnnulusParams { center: [f64::NAN, 0.0], ..Default::default() }).unwrap_err().to_string();
+    assert!(e.starts_with("invalid `center`"), "{e}");
+    let e = cord(&CircleParams { center: [0.0, f64::NEG_INFINITY], ..Default::default() }).unwrap_err().to_string();
+    assert!(e.starts_with("invalid `center`"), "{e}");
+}

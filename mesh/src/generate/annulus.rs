@@ -4,7 +4,7 @@
 use std::f64::consts::PI;
 
 use super::extrude::extrude_named;
-use super::{add_patch, check_divisions, check_positive, finish, node_params, Order};
+use super::{add_patch, check_divisions, check_finite, check_mesh_size, check_positive, finish, node_params, Order};
 use crate::error::MeshError;
 use crate::model::Mesh;
 
@@ -73,6 +73,9 @@ pub fn annulus(p: &AnnulusParams) -> Result<Mesh, MeshError> {
     }
     check_divisions("radial_divisions", p.radial_divisions)?;
     check_divisions("circumferential_divisions", p.circumferential_divisions)?;
+    check_finite("center", &p.center)?;
+    let (nr, nc) = (p.radial_divisions as u128, p.circumferential_divisions as u128);
+    check_mesh_size("circumferential_divisions", &format!("divisions {nr} × {nc}"), nr * nc * (1 + p.triangles as u128), p.order)?;
     if full_circle(p.angle) && p.circumferential_divisions < 3 {
         return Err(MeshError::param("circumferential_divisions", "a closed ring needs at least 3"));
     }
@@ -103,6 +106,8 @@ pub fn annulus(p: &AnnulusParams) -> Result<Mesh, MeshError> {
 pub fn hollow_cylinder(p: &AnnulusParams) -> Result<Mesh, MeshError> {
     check_positive("height", p.height)?;
     check_divisions("axial_divisions", p.axial_divisions)?;
+    let (nr, nc, na) = (p.radial_divisions as u128, p.circumferential_divisions as u128, p.axial_divisions as u128);
+    check_mesh_size("axial_divisions", &format!("divisions {nr} × {nc} × {na}"), nr * nc * na * (1 + p.triangles as u128), p.order)?;
     let section = annulus(p)?;
     let mesh = extrude_named(&section, p.height, p.axial_divisions, ("bottom", "top"))?;
     Ok(finish(mesh, p.outer_radius.max(p.height)))

@@ -3,7 +3,7 @@
 use super::extrude::extrude_named;
 use super::rectangle::graded_params;
 use super::tets::split_hexes;
-use super::{add_patch, check_divisions, check_positive, finish, node_params, Face, Grading, Order};
+use super::{add_patch, check_divisions, check_finite, check_mesh_size, check_positive, finish, node_params, Face, Grading, Order};
 use crate::error::MeshError;
 use crate::model::Mesh;
 
@@ -48,6 +48,16 @@ pub fn block(p: &BlockParams) -> Result<Mesh, MeshError> {
         check_positive(&format!("size[{k}]"), p.size[k])?;
         check_divisions(&format!("divisions[{k}]"), p.divisions[k])?;
     }
+    check_finite("origin", &p.origin)?;
+    let [n0, n1, n2] = p.divisions.map(|n| n as u128);
+    let per_box = if p.tetrahedra {
+        6
+    } else if p.triangles {
+        2
+    } else {
+        1
+    };
+    check_mesh_size("divisions", &format!("divisions {n0} × {n1} × {n2}"), n0 * n1 * n2 * per_box, p.order)?;
     if p.triangles && p.tetrahedra {
         return Err(MeshError::param("tetrahedra", "choose either wedges (triangles) or tetrahedra"));
     }

@@ -11,7 +11,7 @@
 use std::f64::consts::FRAC_PI_4;
 
 use super::extrude::extrude_named;
-use super::{add_patch, check_divisions, check_positive, finish, node_params, Order};
+use super::{add_patch, check_divisions, check_finite, check_mesh_size, check_positive, finish, node_params, Order};
 use crate::error::MeshError;
 use crate::model::{Mesh, Side};
 
@@ -81,6 +81,9 @@ fn ogrid(mesh: &mut Mesh, p: &CircleParams) -> Result<[Vec<Side>; 4], MeshError>
     let n = p.divisions / 4;
     let m = p.radial_divisions.unwrap_or(n.div_ceil(2).max(1));
     check_divisions("radial_divisions", m)?;
+    check_finite("center", &p.center)?;
+    let (nu, mu) = (n as u128, m as u128);
+    check_mesh_size("divisions", &format!("divisions {} with {m} radial", p.divisions), nu * nu + 4 * nu * mu, p.order)?;
     let [cx, cy] = p.center;
     let a = INNER * r;
     // Inner-block boundary, quadrant k, position s in [-1, 1] (counter-clockwise).
@@ -146,6 +149,10 @@ pub fn disc(p: &CircleParams) -> Result<Mesh, MeshError> {
 pub fn solid_cylinder(p: &CircleParams) -> Result<Mesh, MeshError> {
     check_positive("height", p.height)?;
     check_divisions("axial_divisions", p.axial_divisions)?;
+    let n = (p.divisions / 4) as u128;
+    let m = p.radial_divisions.map_or(n.div_ceil(2).max(1), |m| m as u128);
+    let asked = format!("divisions {} with {m} radial and {} axial", p.divisions, p.axial_divisions);
+    check_mesh_size("axial_divisions", &asked, (n * n + 4 * n * m) * p.axial_divisions as u128, p.order)?;
     let section = disc(p)?;
     let mesh = extrude_named(&section, p.height, p.axial_divisions, ("bottom", "top"))?;
     Ok(finish(mesh, p.effective_radius().max(p.height)))

@@ -7,7 +7,7 @@
 
 use std::f64::consts::PI;
 
-use super::{check_divisions, check_positive, finish, node_params};
+use super::{check_divisions, check_mesh_size, check_positive, finish, node_params, Order};
 use crate::element::ElementKind;
 use crate::error::MeshError;
 use crate::model::{Mesh, Side};
@@ -26,6 +26,8 @@ pub(crate) fn extrude_named(section: &Mesh, length: f64, layers: usize, caps: (&
     check_positive("length", length)?;
     check_divisions("layers", layers)?;
     let steps = section_steps(section)?;
+    let elements = section.element_count() as u128 * layers as u128;
+    check_mesh_size("layers", &format!("{} section elements × {layers} layers", section.element_count()), elements, order_of(steps))?;
     let ts = node_params(layers, steps, 1.0, false);
     build(section, &ts, steps, false, |p, t| [p[0], p[1], length * t], Some(caps))
 }
@@ -53,6 +55,13 @@ pub fn sweep(section: &Mesh, angle: f64, divisions: usize) -> Result<Mesh, MeshE
         ));
     }
     let steps = section_steps(section)?;
+    let elements = section.element_count() as u128 * divisions as u128;
+    check_mesh_size(
+        "divisions",
+        &format!("{} section elements × {divisions} divisions", section.element_count()),
+        elements,
+        order_of(steps),
+    )?;
     let ts = node_params(divisions, steps, 1.0, false);
     let a = angle * PI / 180.0;
     let caps = if full { None } else { Some(("start", "end")) };
@@ -202,4 +211,13 @@ fn build(
         mesh.node_sets.insert(name.clone(), out);
     }
     Ok(mesh)
+}
+
+/// The order whose elements have `steps` node steps per edge (for size estimates).
+fn order_of(steps: usize) -> Order {
+    if steps == 1 {
+        Order::Linear
+    } else {
+        Order::QuadraticFull
+    }
 }

@@ -188,6 +188,29 @@ pub(crate) fn check_divisions(key: &str, n: usize) -> Result<(), MeshError> {
     Ok(())
 }
 
+/// Refuses a mesh that would not fit in memory, before any of it is built:
+/// `asked` says what was asked for (e.g. `"divisions 4000 × 4000 × 10"`).
+pub(crate) fn check_mesh_size(key: &str, asked: &str, elements: u128, order: Order) -> Result<(), MeshError> {
+    let nodes_per_element: u128 = match order {
+        Order::Linear => 8,
+        Order::Quadratic => 20,
+        Order::QuadraticFull => 27,
+    };
+    // Per element node: coordinates (24 bytes), merge bookkeeping (about 40)
+    // and its connectivity entry (8); 16 bytes of element bookkeeping.
+    let bytes = elements.saturating_mul(nodes_per_element * 72 + 16);
+    let asked = format!("{asked} ({elements} elements)");
+    crate::memory::check_allocation(&asked, u64::try_from(bytes).unwrap_or(u64::MAX)).map_err(|e| MeshError::param(key, e.to_string()))
+}
+
+/// Checks that every coordinate of a point is finite (not NaN or infinite).
+pub(crate) fn check_finite(key: &str, x: &[f64]) -> Result<(), MeshError> {
+    if x.iter().any(|c| !c.is_finite()) {
+        return Err(MeshError::param(key, format!("must be finite numbers, got {x:?}")));
+    }
+    Ok(())
+}
+
 /// Checks a positive finite length.
 pub(crate) fn check_positive(key: &str, x: f64) -> Result<(), MeshError> {
     if !(x.is_finite() && x > 0.0) {

@@ -1,6 +1,6 @@
 //! Rectangle: the r–z section of a bonded disc mount or a plane-strain strip.
 
-use super::{add_patch, check_divisions, check_positive, finish, node_params, Face, Grading, Order};
+use super::{add_patch, check_divisions, check_finite, check_mesh_size, check_positive, finish, node_params, Face, Grading, Order};
 use crate::error::MeshError;
 use crate::model::Mesh;
 
@@ -58,6 +58,9 @@ pub fn rectangle(p: &RectangleParams) -> Result<Mesh, MeshError> {
     check_positive("size[1]", p.size[1])?;
     check_divisions("divisions[0]", p.divisions[0])?;
     check_divisions("divisions[1]", p.divisions[1])?;
+    check_finite("origin", &p.origin)?;
+    let [n0, n1] = p.divisions.map(|n| n as u128);
+    check_mesh_size("divisions", &format!("divisions {n0} × {n1}"), n0 * n1 * (1 + p.triangles as u128), p.order)?;
     let faces = [Face::Left, Face::Right, Face::Bottom, Face::Top];
     let (us, vs) = graded_params(p.divisions, p.order.steps(), p.grading, faces)?;
     let mut mesh = Mesh::new(2);

@@ -1,54 +1,77 @@
-//! VTK reader: XML unstructured grids (`.vtu`) and legacy files (`.vtk`),
-//! parsed by vtkio. Restores the sets written by [`crate::export`].
+//! VTK reader: XML unstructured grids (`.vtu`, by our own reader in
+//! [`super::vtu_format`]) and legacy files (`.vtk`, by vtkio). Restores the
+//! sets written by [`crate::export`].
 //!
-//! vtkio's errors carry no position, so a file it rejects is scanned again by
-//! a small structural check (XML well-formedness with quick-xml; the section
-//! headers and counts of a legacy file) to name the line or offset at fault.
+//! vtkio's errors carry no position, so a legacy file it rejects is scanned
+//! again by a small structural check (the section headers and counts) to name
+//! the line or offset at fault.
 
 use std::collections::BTreeMap;
 use std::path::Path;
 
-use vtkio::model::{Attribute, CellType, DataSet, ElementType, IOBuffer, UnstructuredGridPiece, VertexNumbers, Vtk};
+use vtkio::model::{Attribute, CellType, DataSet, ElementType, VertexNumbers, Vtk};
 
+use super::vtu_format::{self, NamedArray};
 use super::{line_of, Imported, PointArray};
 use crate::element::ElementKind;
 use crate::error::{Location, MeshError};
 use crate::export::{ELEMENT_SET_PREFIX, NODE_SET_PREFIX, SIDE_SET_PREFIX};
 use crate::model::{Mesh, Side};
 
-/// Element kind of a VTK cell type: `Ok(None)` for lower-dimensional cells
-/// (vertices, lines) that carry no volume, `Err` for unsupported ones.
-fn kind_of(t: CellType) -> Result<Option<ElementKind>, ()> {
-    Ok(Some(match t {
-        CellType::Triangle => ElementKind::Tri3,
-        CellType::QuadraticTriangle => ElementKind::Tri6,
-        CellType::Quad => ElementKind::Quad4,
-        CellType::QuadraticQuad => ElementKind::Quad8,
-        CellType::BiquadraticQuad => ElementKind::Quad9,
-        CellType::Tetra => ElementKind::Tet4,
-        CellType::QuadraticTetra => ElementKind::Tet10,
-        CellType::Wedge => ElementKind::Wedge6,
-        CellType::Hexahedron => ElementKind::Hex8,
-        CellType::QuadraticHexahedron => ElementKind::Hex20,
-        CellType::TriquadraticHexahedron => ElementKind::Hex27,
-        CellType::Vertex | CellType::PolyVertex | CellType::Line | CellType::PolyLine | CellType::QuadraticEdge => return Ok(None),
-        _ => return Err(()),
-    }))
+/// Element kind of a VTK cell type code: `Ok(None)` for lower-dimensional
+/// cells (vertices, lines) that carry no volume, `Err` for unsupported ones.
+fn kind_of(code: u8) -> Result<Option<ElementKind>, ()> {
+    let kinds = [
+        (CellType::Triangle, ElementKind::Tri3),
+        (CellType::QuadraticTriangle, ElementKind::Tri6),
+        (CellType::Quad, ElementKind::Quad4),
+        (CellType::QuadraticQuad, ElementKind::Quad8),
+        (CellType::BiquadraticQuad, ElementKind::Quad9),
+        (CellType::Tetra, ElementKind::Tet4),
+        (CellType::QuadraticTetra, ElementKind::Tet10),
+        (CellType::Wedge, ElementKind::Wedge6),
+        (CellType::Hexahedron, ElementKind::Hex8),
+        (CellType::QuadraticHexahedron, ElementKind::Hex20),
+        (CellType::TriquadraticHexahedron, ElementKind::Hex27),
+    ];
+    let lower = [CellType::Vertex, CellType::PolyVertex, CellType::Line, CellType::PolyLine, CellType::QuadraticEdge];
+    if let Some(&(_, kind)) = kinds.iter().find(|(t, _)| *t as u8 == code) {
+        Ok(Some(kind))
+    } else if lower.iter().any(|&t| t as u8 == code) {
+        Ok(None)
+    } else {
+        Err(())
+    }
 }
 
 /// Reads a `.vtu` (`xml = true`) or legacy `.vtk` file from its bytes.
 pub(crate) fn read(path: &Path, bytes: &[u8], xml: bool) -> Result<Imported, MeshError> {
-    if !xml {
-        check_legacy_counts(path, bytes)?;
-    }
-    let parsed = super::guard(path, || if xml { Vtk::parse_xml(bytes) } else { Vtk::parse_legacy_be(bytes) })?;
-    let vtk = match parsed {
-        Ok(v) => v,
-        Err(e) => {
-            let location = if xml { xml_error_location(bytes) } else { legacy_error_location(bytes) };
-            return Err(MeshError::parse(path, location, format!("not a readable VTK file: {e}")));
-        }
-    };
+    let grid = if xml { read_xml(path, bytes)? } else { read_legacy(path, bytes)? };
+    build(path, grid)
+}
+
+/// A `.vtu` file through our own reader ([`super::vtu_format`]).
+fn read_xml(path: &Path, bytes: &[u8]) -> Result<Grid, MeshError> {
+    let piece = vtu_format::parse(bytes).map_err(|e| {
+        // Files written as one long line (ours are) are better served by an offset.
+        let multi_line = bytes.iter().filter(|&&b| b == b'\n').count() > 1;
+        let location = if multi_line { Location::Line(line_of(bytes, e.offset)) } else { Location::Offset(e.offset) };
+        MeshError::parse(path, location, e.message)
+    })?;
+    Ok(Grid {
+        points: piece.points,
+        cells: Cells::Xml { connectivity: piece.connectivity, offsets: piece.offsets },
+        types: piece.types,
+        point_data: piece.point_data,
+        cell_data: piece.cell_data,
+    })
+}
+
+/// A legacy `.vtk` file through vtkio, its counts checked first.
+fn read_legacy(path: &Path, bytes: &[u8]) -> Result<Grid, MeshError> {
+    check_legacy_counts(path, bytes)?;
+    let parsed = super::guard(path, || Vtk::parse_legacy_be(bytes))?;
+    let vtk = parsed.map_err(|e| MeshError::parse(path, legacy_error_location(bytes), format!("not a readable VTK file: {e}")))?;
     let piece = match vtk.data {
         DataSet::UnstructuredGrid { pieces, .. } => {
             if pieces.len() != 1 {
@@ -63,44 +86,114 @@ pub(crate) fn read(path: &Path, bytes: &[u8], xml: bool) -> Result<Imported, Mes
         }
         _ => return Err(MeshError::parse(path, Location::Unknown, "not an unstructured grid")),
     };
-    build(path, piece)
+    let points = piece.points.cast_into::<f64>().ok_or_else(|| MeshError::parse(path, Location::Unknown, "points are not numbers"))?;
+    let cells = match piece.cells.cell_verts {
+        VertexNumbers::Legacy { num_cells, vertices } => Cells::Legacy { num_cells: num_cells as usize, vertices },
+        VertexNumbers::XML { connectivity, offsets } => Cells::Xml {
+            connectivity: connectivity.into_iter().map(|v| v as f64).collect(),
+            offsets: offsets.into_iter().map(|v| v as f64).collect(),
+        },
+    };
+    let arrays = |list: &[Attribute]| -> Vec<NamedArray> {
+        list.iter()
+            .filter_map(|a| match a {
+                Attribute::DataArray(d) => Some(NamedArray {
+                    name: d.name.clone(),
+                    components: legacy_components(&d.elem),
+                    values: d.data.cast_into::<f64>().unwrap_or_default(),
+                }),
+                _ => None,
+            })
+            .collect()
+    };
+    Ok(Grid {
+        points,
+        types: piece.cells.types.iter().map(|&t| t as u8 as f64).collect(),
+        cells,
+        point_data: arrays(&piece.data.point),
+        cell_data: arrays(&piece.data.cell),
+    })
 }
 
-fn to_f64(buf: &IOBuffer) -> Option<Vec<f64>> {
-    buf.cast_into::<f64>()
+/// Values per point or cell of a legacy attribute, by its kind.
+fn legacy_components(elem: &ElementType) -> usize {
+    match *elem {
+        ElementType::Scalars { num_comp, .. } | ElementType::Generic(num_comp) | ElementType::ColorScalars(num_comp) => num_comp as usize,
+        ElementType::Vectors | ElementType::Normals => 3,
+        ElementType::TCoords(n) => n as usize,
+        ElementType::Tensors => 9,
+        ElementType::LookupTable => 4,
+    }
 }
 
-fn build(path: &Path, piece: UnstructuredGridPiece) -> Result<Imported, MeshError> {
+/// An unstructured grid as plain arrays, from either reader.
+struct Grid {
+    points: Vec<f64>,
+    cells: Cells,
+    types: Vec<f64>,
+    point_data: Vec<NamedArray>,
+    cell_data: Vec<NamedArray>,
+}
+
+/// Cell node lists: legacy (count then nodes per cell) or XML (connectivity and end offsets).
+enum Cells {
+    Legacy { num_cells: usize, vertices: Vec<u32> },
+    Xml { connectivity: Vec<f64>, offsets: Vec<f64> },
+}
+
+/// `" (Pyramid)"` for the VTK cell types olli does not read, from the VTK
+/// file-format document's cell-type table.
+fn cell_type_name(code: f64) -> &'static str {
+    match code as i64 {
+        6 => " (TriangleStrip)",
+        7 => " (Polygon)",
+        8 => " (Pixel)",
+        11 => " (Voxel)",
+        14 => " (Pyramid)",
+        26 => " (QuadraticWedge)",
+        27 => " (QuadraticPyramid)",
+        32 => " (BiquadraticQuadraticWedge)",
+        _ => "",
+    }
+}
+
+/// A value that must be a non-negative whole number (a node index, an offset, a type code).
+fn whole(v: f64) -> Option<u64> {
+    (v >= 0.0 && v.fract() == 0.0 && v < 2f64.powi(53)).then_some(v as u64)
+}
+
+fn build(path: &Path, grid: Grid) -> Result<Imported, MeshError> {
     let perr = |loc: Location, msg: String| MeshError::parse(path, loc, msg);
-    let coords = to_f64(&piece.points).ok_or_else(|| perr(Location::Unknown, "points are not numbers".into()))?;
-    if coords.len() % 3 != 0 || coords.iter().any(|c| !c.is_finite()) {
+    let coords = grid.points;
+    if !coords.len().is_multiple_of(3) || coords.iter().any(|c| !c.is_finite()) {
         return Err(perr(Location::Unknown, "points must be finite x y z triples".into()));
     }
     let npoints = coords.len() / 3;
-    let types = piece.cells.types;
+    let types = grid.types;
     // Cell node lists as (start, end) ranges into one connectivity array.
-    let (conn, ranges) = match piece.cells.cell_verts {
-        VertexNumbers::Legacy { num_cells, vertices } => {
+    let (conn, ranges): (Vec<f64>, Vec<(usize, usize)>) = match grid.cells {
+        Cells::Legacy { num_cells, vertices } => {
             let mut ranges = Vec::with_capacity(types.len());
             let mut conn = Vec::with_capacity(vertices.len());
             let mut i = 0usize;
-            for c in 0..num_cells as usize {
+            for c in 0..num_cells.min(vertices.len()) {
                 let n = *vertices.get(i).ok_or_else(|| perr(Location::Cell(c), "cell list ends early".into()))? as usize;
                 let nodes = vertices.get(i + 1..i + 1 + n).ok_or_else(|| perr(Location::Cell(c), "cell list ends early".into()))?;
                 ranges.push((conn.len(), conn.len() + n));
-                conn.extend(nodes.iter().map(|&v| v as u64));
+                conn.extend(nodes.iter().map(|&v| v as f64));
                 i += 1 + n;
             }
             (conn, ranges)
         }
-        VertexNumbers::XML { connectivity, offsets } => {
-            let offs: &[u64] = if offsets.len() == types.len() + 1 && offsets.first() == Some(&0) { &offsets[1..] } else { &offsets };
+        Cells::Xml { connectivity, offsets } => {
+            let offs: &[f64] = if offsets.len() == types.len() + 1 && offsets.first() == Some(&0.0) { &offsets[1..] } else { &offsets };
             let mut ranges = Vec::with_capacity(offs.len());
             let mut start = 0u64;
             for (c, &end) in offs.iter().enumerate() {
-                if end < start || end > connectivity.len() as u64 {
-                    return Err(perr(Location::Cell(c), format!("offset {end} out of order or beyond the connectivity")));
-                }
+                let end = whole(end).filter(|&e| e >= start && e <= connectivity.len() as u64);
+                let Some(end) = end else {
+                    return Err(perr(Location::Cell(c), format!("offset {} out of order or beyond the connectivity", offs[c])));
+                };
                 ranges.push((start as usize, end as usize));
                 start = end;
             }
@@ -113,9 +206,9 @@ fn build(path: &Path, piece: UnstructuredGridPiece) -> Result<Imported, MeshErro
     let mut kinds = Vec::with_capacity(types.len());
     let mut skipped = 0usize;
     for (c, &t) in types.iter().enumerate() {
-        match kind_of(t) {
+        match whole(t).filter(|&t| t < 256).ok_or(()).and_then(|t| kind_of(t as u8)) {
             Ok(k) => kinds.push(k),
-            Err(()) => return Err(perr(Location::Cell(c), format!("unsupported cell type {t:?}"))),
+            Err(()) => return Err(perr(Location::Cell(c), format!("unsupported cell type {t}{}", cell_type_name(t)))),
         }
     }
     let dimension = kinds.iter().flatten().map(|k| k.dimension()).max().unwrap_or(3);
@@ -136,10 +229,10 @@ fn build(path: &Path, piece: UnstructuredGridPiece) -> Result<Imported, MeshErro
         }
         nodes.clear();
         for &v in &conn[a..b] {
-            if v >= npoints as u64 {
-                return Err(perr(Location::Cell(c), format!("node {v} does not exist ({npoints} points)")));
+            match whole(v).filter(|&v| v < npoints as u64) {
+                Some(v) => nodes.push(v as usize),
+                None => return Err(perr(Location::Cell(c), format!("node {v} does not exist ({npoints} points)"))),
             }
-            nodes.push(v as usize);
         }
         element_of[c] = mesh.add_element(kind, &nodes);
     }
@@ -147,52 +240,43 @@ fn build(path: &Path, piece: UnstructuredGridPiece) -> Result<Imported, MeshErro
     if skipped > 0 {
         notes.push(format!("{skipped} cells of lower dimension than the mesh were skipped"));
     }
-    read_sets(path, &mut mesh, &piece.data.point, &piece.data.cell, &element_of)?;
-    let point_arrays = read_point_arrays(path, &piece.data.point, mesh.nodes.len())?;
+    read_sets(path, &mut mesh, &grid.point_data, &grid.cell_data, &element_of)?;
+    let point_arrays = read_point_arrays(path, grid.point_data, mesh.nodes.len())?;
     Ok(Imported { mesh, notes, point_arrays })
 }
 
-/// The numeric point arrays other than sets, checked for length.
-fn read_point_arrays(path: &Path, point: &[Attribute], nodes: usize) -> Result<Vec<PointArray>, MeshError> {
+/// The point arrays other than sets, checked for length (components × nodes).
+fn read_point_arrays(path: &Path, point: Vec<NamedArray>, nodes: usize) -> Result<Vec<PointArray>, MeshError> {
     let mut arrays = Vec::new();
-    for a in point {
-        let Attribute::DataArray(d) = a else { continue };
-        if d.name.starts_with("set_") {
+    for NamedArray { name, components, values } in point {
+        if name.starts_with("set_") {
             continue;
         }
-        let Some(values) = to_f64(&d.data) else { continue };
-        let components = match d.elem {
-            ElementType::Scalars { num_comp, .. } | ElementType::Generic(num_comp) => num_comp as usize,
-            ElementType::Vectors | ElementType::Normals => 3,
-            ElementType::TCoords(n) => n as usize,
-            ElementType::Tensors => 9,
-            _ => continue,
-        };
-        if components == 0 || values.len() != components * nodes {
-            let expected = components * nodes;
+        let expected = components.checked_mul(nodes);
+        if components == 0 || expected != Some(values.len()) {
+            let expected = expected.map_or_else(|| "more than memory can hold".to_string(), |e| e.to_string());
             return Err(MeshError::parse(
                 path,
                 Location::Unknown,
-                format!("array {} has {} values; expected {expected}", d.name, values.len()),
+                format!("array {name} has {} values; expected {expected} ({components} per node × {nodes} nodes)", values.len()),
             ));
         }
-        arrays.push(PointArray { name: d.name.clone(), components, values });
+        arrays.push(PointArray { name, components, values });
     }
     Ok(arrays)
 }
 
 /// Restores sets from our `set_*` arrays; other arrays are ignored.
-fn read_sets(path: &Path, mesh: &mut Mesh, point: &[Attribute], cell: &[Attribute], element_of: &[usize]) -> Result<(), MeshError> {
-    let values = |a: &Attribute, len: usize| -> Result<Option<(String, Vec<i64>)>, MeshError> {
-        let Attribute::DataArray(d) = a else { return Ok(None) };
-        if !d.name.starts_with("set_") {
+fn read_sets(path: &Path, mesh: &mut Mesh, point: &[NamedArray], cell: &[NamedArray], element_of: &[usize]) -> Result<(), MeshError> {
+    let values = |NamedArray { name, values: data, .. }: &NamedArray, len: usize| -> Result<Option<(String, Vec<i64>)>, MeshError> {
+        if !name.starts_with("set_") {
             return Ok(None);
         }
-        let v: Vec<i64> = d.data.cast_into::<i64>().unwrap_or_default();
-        if v.len() != len {
-            return Err(MeshError::parse(path, Location::Unknown, format!("array {} has {} values; expected {len}", d.name, v.len())));
+        if data.len() != len {
+            return Err(MeshError::parse(path, Location::Unknown, format!("array {name} has {} values; expected {len}", data.len())));
         }
-        Ok(Some((d.name.clone(), v)))
+        let v = data.iter().map(|&x| if x.is_finite() { x as i64 } else { 0 }).collect();
+        Ok(Some((name.clone(), v)))
     };
     for a in point {
         if let Some((name, v)) = values(a, mesh.nodes.len())? {
@@ -230,25 +314,6 @@ fn read_sets(path: &Path, mesh: &mut Mesh, point: &[Attribute], cell: &[Attribut
     }
     mesh.side_sets.extend(sides);
     Ok(())
-}
-
-/// Position of the first XML syntax error, found by quick-xml: a line, or
-/// a byte offset for single-line files.
-fn xml_error_location(bytes: &[u8]) -> Location {
-    let mut reader = quick_xml::Reader::from_reader(bytes);
-    let mut buf = Vec::new();
-    loop {
-        match reader.read_event_into(&mut buf) {
-            Ok(quick_xml::events::Event::Eof) => return Location::Unknown,
-            Ok(_) => buf.clear(),
-            Err(_) => {
-                let at = reader.error_position() as usize;
-                // Files written as one long line (ours are) are better served by an offset.
-                let multi_line = bytes.iter().filter(|&&b| b == b'\n').count() > 1;
-                return if multi_line { Location::Line(line_of(bytes, at)) } else { Location::Offset(at) };
-            }
-        }
-    }
 }
 
 /// Walks the legacy header and the POINTS / CELLS / CELL_TYPES counts of an

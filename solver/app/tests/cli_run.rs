@@ -457,6 +457,86 @@ fn plot_of_a_folder_without_results_is_bad_input() {
     assert!(!s.0.join("index.html").exists(), "nothing written");
 }
 
+/// Regression: `[output] folder = "."` deleted a `history.csv`, `summary.json`
+/// or `olli.log` already in the job's folder. Files olli did not write (not
+/// listed in its marker) are never removed or overwritten: `olli check` and
+/// `olli run` refuse with exit 2 and nothing is written.
+#[test]
+fn files_olli_did_not_write_are_never_deleted() {
+    let s = Scratch::new("foreign");
+    let job = s.job(&format!("{BUSH}\n[output]\nfolder = \".\"\n"));
+    let mine = s.0.join("history.csv");
+    std::fs::write(&mine, "my own measurements\n").unwrap();
+    for command in ["check", "run"] {
+        let o = olli(&[command, job.to_str().unwrap()]);
+        assert_eq!(o.status.code(), Some(2), "{command}: {}", text(&o));
+        assert!(text(&o).contains("holds history.csv, which olli did not write"), "{}", text(&o));
+    }
+    assert_eq!(std::fs::read_to_string(&mine).unwrap(), "my own measurements\n");
+    let names: Vec<_> = std::fs::read_dir(&s.0).unwrap().map(|e| e.unwrap().file_name()).collect();
+    assert_eq!(names.len(), 2, "nothing but the job and the user's file: {names:?}");
+}
+
+/// Once olli wrote a folder's results, a second run replaces them and removes
+/// a stale temporary file of its own (a kill mid-write leaves `.<name>.<pid>.tmp`).
+#[test]
+fn a_rerun_replaces_its_own_results_and_removes_stale_temporaries() {
+    let s = Scratch::new("rerun");
+    let job = s.job(BUSH);
+    assert_eq!(run(&job, &s.out()).status.code(), Some(0));
+    let stale = s.out().join(".summary.json.999999.tmp");
+    std::fs::write(&stale, "half a summary").unwrap();
+    let user = s.out().join("notes.txt");
+    std::fs::write(&user, "keep me").unwrap();
+    assert_eq!(run(&job, &s.out()).status.code(), Some(0));
+    assert!(!stale.exists(), "stale temporary file left behind");
+    assert!(user.exists(), "a file olli did not write was removed");
+    assert!(s.out().join("summary.json").exists());
+}
+
+/// Regression: an output folder that is a file was found by `olli run` only,
+/// after `olli check` called the job valid.
+#[test]
+fn an_output_folder_that_is_a_file_fails_olli_check() {
+    let s = Scratch::new("folder-file");
+    std::fs::write(s.0.join("results.txt"), "x").unwrap();
+    let job = s.job(&format!("{BUSH}\n[output]\nfolder = \"results.txt\"\n"));
+    let o = olli(&["check", job.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    assert!(text(&o).contains("results.txt is a file, not a folder"), "{}", text(&o));
+}
+
+/// Regression: a killed run left no `summary.json`, so a script could not
+/// tell an interrupted run from a running one. It now exists from the start
+/// with status `running`; here the file is read while `olli run` works on a
+/// job large enough to take a while.
+#[test]
+fn summary_says_running_while_the_run_works() {
+    let s = Scratch::new("running");
+    let job = s.job(&BUSH.replace("divisions = [4, 8]", "divisions = [40, 80]"));
+    let mut child = Command::new(env!("CARGO_BIN_EXE_olli"))
+        .args(["run", job.to_str().unwrap(), "--output", s.out().to_str().unwrap(), "--quiet"])
+        .spawn()
+        .unwrap();
+    let summary = s.out().join("summary.json");
+    let mut seen_running = false;
+    for _ in 0..400 {
+        if let Ok(text) = std::fs::read_to_string(&summary) {
+            let v: serde_json::Value = serde_json::from_str(&text).unwrap();
+            if v["status"] == "running" {
+                seen_running = true;
+                break;
+            }
+        }
+        std::thread::sleep(std::time::Duration::from_millis(5));
+    }
+    let status = child.wait().unwrap();
+    assert!(seen_running, "summary.json never said running");
+    assert_eq!(status.code(), Some(0));
+    let v: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(&summary).unwrap()).unwrap();
+    assert_eq!(v["status"], "converged");
+}
+
 /// The bush with its pin as a bonded insert pushed along the axis instead of a motion.
 fn bush_with_insert(insert: &str) -> String {
     BUSH.replace("[[motion]]\nnodes = \"pin\"\nstage = \"push\"\ndisplacement = { r = 0.0, z = 0.5 }\n", insert)

@@ -130,9 +130,15 @@ fn write_slow_sweep(dir: &Path, count: usize) {
     std::fs::write(dir.join("bush.sweep.toml"), text).unwrap();
 }
 
+/// The `summary.json` of every variant that finished (a running one has a
+/// summary with status `running` from its start).
 fn summaries(dir: &Path) -> Vec<PathBuf> {
+    let finished = |p: &PathBuf| {
+        let text = std::fs::read_to_string(p).unwrap_or_default();
+        serde_json::from_str::<serde_json::Value>(&text).is_ok_and(|v| v["status"] == "converged" || v["status"] == "stopped")
+    };
     let mut found: Vec<PathBuf> = std::fs::read_dir(dir)
-        .map(|d| d.filter_map(|e| e.ok()).map(|e| e.path().join("summary.json")).filter(|p| p.exists()).collect())
+        .map(|d| d.filter_map(|e| e.ok()).map(|e| e.path().join("summary.json")).filter(finished).collect())
         .unwrap_or_default();
     found.sort();
     found

@@ -183,17 +183,17 @@ pub fn material_error_key(e: &MaterialError) -> Option<&str> {
     }
 }
 
+/// The largest job file read: job files are a few kilobytes of TOML, so
+/// anything beyond this is not one (a link to a device, a data file).
+pub const JOB_FILE_LIMIT: u64 = 16 << 20;
+
 /// Reads, parses and checks the job file at `path`.
 pub fn load(path: &Path) -> Result<Job, InputError> {
     if path.to_string_lossy().ends_with(crate::sweep::SWEEP_SUFFIX) {
         let message = "this is a sweep file, not a job: run it with `olli sweep`".to_string();
         return Err(InputError { file: path.to_path_buf(), position: None, message });
     }
-    let source = std::fs::read_to_string(path).map_err(|e| InputError {
-        file: path.to_path_buf(),
-        position: None,
-        message: format!("cannot read the job file: {e}"),
-    })?;
+    let source = InputError::read_text(path, "job file", JOB_FILE_LIMIT)?;
     load_str(path, &source)
 }
 

@@ -35,9 +35,39 @@ impl InputError {
     /// Converts a `toml` deserialisation error, adding a spelling suggestion
     /// for unknown keys and unknown variant names.
     pub fn from_toml(file: &Path, source: &str, err: &toml::de::Error) -> Self {
-        let message = with_suggestion(err.message().trim());
+        let mut message = with_suggestion(err.message().trim());
+        // serde's type errors do not say whose value is wrong: name the key.
+        if message.starts_with("invalid type") || message.starts_with("invalid value") {
+            if let Some(key) = err.span().and_then(|s| key_before(source, s.start)) {
+                message = format!("`{key}`: {message}");
+            }
+        }
         Self::at(file, source, err.span(), message)
     }
+
+    /// Reads a text input file of at most `limit` bytes: a device or a link to
+    /// one is refused, and invalid UTF-8 is reported at its line and column.
+    pub fn read_text(file: &Path, what: &str, limit: u64) -> Result<String, InputError> {
+        let bytes = olli_mesh::memory::read_bounded(file, limit).map_err(|e| InputError {
+            file: file.to_path_buf(),
+            position: None,
+            message: format!("cannot read the {what}: {e}"),
+        })?;
+        String::from_utf8(bytes).map_err(|e| {
+            let at = e.utf8_error().valid_up_to();
+            let text = String::from_utf8_lossy(e.as_bytes());
+            let lossy_offset = String::from_utf8_lossy(&e.as_bytes()[..at]).len();
+            Self::at(file, &text, Some(lossy_offset..lossy_offset), format!("the {what} is not valid UTF-8 text (byte {at})"))
+        })
+    }
+}
+
+/// The key whose value starts at byte `offset` (`key = value`), if any.
+fn key_before(source: &str, offset: usize) -> Option<&str> {
+    let before = source.get(..offset)?.trim_end();
+    let before = before.strip_suffix('=')?.trim_end();
+    let start = before.rfind(|c: char| !(c.is_alphanumeric() || matches!(c, '_' | '-' | '.' | '"'))).map_or(0, |i| i + 1);
+    Some(&before[start..]).filter(|k| !k.is_empty())
 }
 
 /// 1-based (line, column) of byte `offset` in `source`.
@@ -92,6 +122,36 @@ mod tests {
         assert!(m.ends_with("did you mean `shear_modulus`?"), "{m}");
         let m = with_suggestion("unknown field `zzzzzz`, expected one of `model`, `c10`");
         assert!(!m.contains("did you mean"), "{m}");
+    }
+
+    /// Regression: type errors did not name their key.
+    #[test]
+    fn type_errors_name_their_key() {
+        #[derive(serde::Deserialize, Debug)]
+        #[allow(dead_code)]
+        struct T {
+            material: M,
+        }
+        #[derive(serde::Deserialize, Debug)]
+        #[allow(dead_code)]
+        struct M {
+            shear_modulus: f64,
+        }
+        let source = "[material]\nshear_modulus = \"0.55\"\n";
+        let err = toml::from_str::<T>(source).unwrap_err();
+        let e = InputError::from_toml(Path::new("job.toml"), source, &err);
+        assert_eq!(e.to_string(), "job.toml:2:17: `shear_modulus`: invalid type: string \"0.55\", expected f64");
+    }
+
+    /// Regression: invalid UTF-8 was reported without its line.
+    #[test]
+    fn invalid_utf8_names_its_line() {
+        let path = std::env::temp_dir().join(format!("olli_utf8_{}.toml", std::process::id()));
+        std::fs::write(&path, b"[mesh]\nfile = \"a.msh\"\nname = \"caf\xe9\"\n").unwrap();
+        let e = InputError::read_text(&path, "job file", 1 << 20).unwrap_err();
+        std::fs::remove_file(&path).unwrap();
+        assert_eq!(e.position, Some((3, 12)), "{e}");
+        assert!(e.message.contains("not valid UTF-8"), "{e}");
     }
 
     #[test]

@@ -101,6 +101,9 @@ impl Builder<'_> {
             }
             // The rubber side: the given point, or the centroid of the touching nodes.
             let point = match &spec.rubber_point {
+                Some(p) if p.iter().any(|c| !c.is_finite()) => {
+                    return Err(bad(r.span(), format!("`rubber_point` must be finite numbers, got {p:?}")));
+                }
                 Some(p) if p.len() == if solid { 3 } else { 2 } => [p[0], p[1], if solid { p[2] } else { 0.0 }],
                 Some(p) => {
                     return Err(bad(r.span(), format!("`rubber_point` needs {} coordinates, got {}", if solid { 3 } else { 2 }, p.len())))

@@ -49,7 +49,7 @@ impl History {
         let mut s = String::from("stage,increment,load_factor");
         for c in &self.columns {
             s.push(',');
-            s.push_str(c);
+            s.push_str(&csv_text(c));
         }
         s.push_str(",newton_iterations\n");
         for r in &self.rows {
@@ -63,10 +63,30 @@ impl History {
     }
 }
 
+/// A field quoted as RFC 4180 ("Common Format and MIME Type for CSV Files",
+/// Shafranovich 2005) requires: fields holding a comma, quote or line break
+/// are enclosed in quotes, with inner quotes doubled.
 fn csv_text(s: &str) -> String {
-    if s.contains([',', '"', '\n']) {
+    if s.contains([',', '"', '\n', '\r']) {
         format!("\"{}\"", s.replace('"', "\"\""))
     } else {
         s.to_string()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Regression: set names holding a comma, quote or line break broke the header row.
+    #[test]
+    fn column_names_with_commas_quotes_and_newlines_are_quoted() {
+        let mut h = History::new(vec!["reaction_a,b_x".into(), "reaction_say \"hi\"_y".into(), "reaction_two\nlines_z".into()]);
+        h.push("squeeze, then hold", 1, 0.5, vec![1.0, 2.0, 3.0], 4);
+        let csv = h.to_csv();
+        let header =
+            "stage,increment,load_factor,\"reaction_a,b_x\",\"reaction_say \"\"hi\"\"_y\",\"reaction_two\nlines_z\",newton_iterations\n";
+        assert!(csv.starts_with(header), "{csv}");
+        assert!(csv.ends_with("\"squeeze, then hold\",1,5.0000000000e-1,1.0000000000e0,2.0000000000e0,3.0000000000e0,4\n"), "{csv}");
     }
 }

@@ -74,6 +74,17 @@ pub struct RunSummary {
     pub units: BTreeMap<String, String>,
 }
 
+/// Statuses of a run that has ended by itself: its results are final.
+pub const FINISHED_STATUSES: [&str; 2] = ["converged", "stopped"];
+
+/// Whether `folder` holds the `summary.json` of a run that ended by itself
+/// (not `running`, nor `interrupted`, nor unreadable).
+pub fn run_finished(folder: &std::path::Path) -> bool {
+    let text = std::fs::read_to_string(folder.join(super::SUMMARY_FILE)).unwrap_or_default();
+    let status = serde_json::from_str::<serde_json::Value>(&text).ok().and_then(|v| v["status"].as_str().map(str::to_owned));
+    status.is_some_and(|s| FINISHED_STATUSES.contains(&s.as_str()))
+}
+
 impl RunSummary {
     pub fn to_json(&self) -> String {
         serde_json::to_string_pretty(self).expect("plain data serialises") + "\n"

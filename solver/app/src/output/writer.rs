@@ -52,12 +52,15 @@ pub struct ResultWriter<'m> {
 
 impl<'m> ResultWriter<'m> {
     /// Prepares a writer into `folder` (created if missing).
+    /// Nothing is created until the model and the folder have been checked.
     pub fn new(job: &'m Job, folder: &Path) -> io::Result<Self> {
-        std::fs::create_dir_all(folder)?;
         let disc = Discretization::new(&job.model).map_err(io::Error::other)?;
         let (programs, _) = olli_solver::driver::stages::resolve(&disc).map_err(io::Error::other)?;
-        let stem = job.path.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_else(|| "olli".into());
+        let stem = job_stem(job);
+        check_output_folder(folder, &stem).map_err(io::Error::other)?;
+        std::fs::create_dir_all(folder)?;
         remove_previous_results(folder, &stem)?;
+        record(folder, LOG_FILE)?;
         let log = BufWriter::new(File::create(folder.join(LOG_FILE))?);
         let mut w = ResultWriter {
             job,
@@ -76,6 +79,14 @@ impl<'m> ResultWriter<'m> {
         };
         w.log_line(&format!("olli {} run of {} ({})", env!("CARGO_PKG_VERSION"), job.path.display(), job.title));
         w.flush(|w| w.write(HISTORY_FILE, w.history.to_csv().as_bytes()));
+        // From the start, a script can tell a running job from a finished one.
+        let running = serde_json::json!({
+            "olli_version": env!("CARGO_PKG_VERSION"),
+            "job": job.path.display().to_string(),
+            "title": job.title,
+            "status": "running",
+        });
+        w.flush(|w| w.write(SUMMARY_FILE, format!("{running:#}\n").as_bytes()));
         Ok(w)
     }
 
@@ -86,6 +97,7 @@ impl<'m> ResultWriter<'m> {
     }
 
     fn write(&self, name: &str, bytes: &[u8]) -> io::Result<()> {
+        record(&self.folder, name)?;
         write_atomic(&self.folder.join(name), bytes)
     }
 
@@ -180,6 +192,7 @@ impl<'m> ResultWriter<'m> {
         }
         let name = format!("{}_{:04}.vtu", self.stem, self.frames.len() + 1);
         let title = format!("{}: stage {} increment {increment} load factor {load_factor}", self.job.title, stage + 1);
+        record(&self.folder, &name)?;
         write_vtu(&self.folder.join(&name), &title, &self.job.model.mesh, f.point, f.cell)?;
         self.frames.push(PvdEntry { time: stage as f64 + load_factor, file: name });
         self.write(&format!("{}.pvd", self.stem), pvd_text(&self.frames).as_bytes())?;
@@ -325,22 +338,107 @@ impl<'m> ResultWriter<'m> {
     }
 }
 
-/// Removes the files an earlier run of the same job left in `folder`, so a
-/// stale summary or surplus frames never pass for this run's results.
-fn remove_previous_results(folder: &Path, stem: &str) -> io::Result<()> {
-    for entry in std::fs::read_dir(folder)? {
-        let name = entry?.file_name().to_string_lossy().into_owned();
-        let frame = name
-            .strip_prefix(stem)
-            .and_then(|r| r.strip_prefix('_'))
-            .and_then(|r| r.strip_suffix(".vtu"))
-            .is_some_and(|n| !n.is_empty() && n.bytes().all(|b| b.is_ascii_digit()));
-        let ours = [SUMMARY_FILE, HISTORY_FILE, LOG_FILE].contains(&name.as_str()) || name == format!("{stem}.pvd");
-        if frame || ours {
-            std::fs::remove_file(folder.join(&name))?;
+/// The marker file listing every file olli wrote into a result folder, one
+/// name per line: only listed files are ever removed or overwritten.
+pub const MARKER_FILE: &str = ".olli-results";
+
+/// The job file's stem, which names its `.pvd` and frame files.
+pub fn job_stem(job: &Job) -> String {
+    job.path.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_else(|| "olli".into())
+}
+
+/// True for the names of files a run of job `stem` writes.
+fn is_result_name(name: &str, stem: &str) -> bool {
+    let frame = name
+        .strip_prefix(stem)
+        .and_then(|r| r.strip_prefix('_'))
+        .and_then(|r| r.strip_suffix(".vtu"))
+        .is_some_and(|n| !n.is_empty() && n.bytes().all(|b| b.is_ascii_digit()));
+    frame || [SUMMARY_FILE, HISTORY_FILE, LOG_FILE].contains(&name) || name == format!("{stem}.pvd")
+}
+
+/// True for a temporary file of [`write_atomic`] for a listed file (`.<name>.<pid>.tmp`).
+fn is_temporary_of(name: &str, listed: &[String]) -> bool {
+    let Some(inner) = name.strip_prefix('.').and_then(|n| n.strip_suffix(".tmp")) else { return false };
+    let Some((file, pid)) = inner.rsplit_once('.') else { return false };
+    !pid.is_empty() && pid.bytes().all(|b| b.is_ascii_digit()) && listed.iter().any(|l| l == file)
+}
+
+/// Names listed in the folder's marker file (none when it has none).
+fn listed(folder: &Path) -> Vec<String> {
+    std::fs::read_to_string(folder.join(MARKER_FILE)).map(|t| t.lines().map(str::to_string).collect()).unwrap_or_default()
+}
+
+/// Adds `name` to the folder's marker file (once).
+fn record(folder: &Path, name: &str) -> io::Result<()> {
+    if listed(folder).iter().any(|l| l == name) {
+        return Ok(());
+    }
+    let mut marker = std::fs::OpenOptions::new().create(true).append(true).open(folder.join(MARKER_FILE))?;
+    writeln!(marker, "{name}")
+}
+
+/// Checks, before anything is created, that results can go to `folder`: it
+/// is a folder (or can be made one), it is writable, and it holds no file
+/// with a result file's name that olli did not write (such a file would be
+/// overwritten). `olli check` runs this too.
+pub fn check_output_folder(folder: &Path, stem: &str) -> Result<(), String> {
+    let shown = folder.display();
+    // The folder, or its nearest existing ancestor that a run would create it in.
+    let mut existing = folder.to_path_buf();
+    while !existing.exists() {
+        match existing.parent() {
+            Some(p) if !p.as_os_str().is_empty() => existing = p.to_path_buf(),
+            _ => {
+                existing = PathBuf::from(".");
+                break;
+            }
+        }
+    }
+    if !existing.is_dir() {
+        return Err(if existing == folder {
+            format!("output folder {shown} is a file, not a folder")
+        } else {
+            format!("output folder {shown} cannot be created: {} is a file", existing.display())
+        });
+    }
+    let probe = existing.join(format!(".olli-write-test.{}", std::process::id()));
+    match File::create(&probe) {
+        Ok(_) => {
+            let _ = std::fs::remove_file(&probe);
+        }
+        Err(e) => return Err(format!("output folder {shown} cannot be written ({}: {e})", existing.display())),
+    }
+    if existing.as_path() == folder {
+        let ours = listed(folder);
+        let entries = std::fs::read_dir(folder).map_err(|e| format!("output folder {shown} cannot be read: {e}"))?;
+        for entry in entries.flatten() {
+            let name = entry.file_name().to_string_lossy().into_owned();
+            if is_result_name(&name, stem) && !ours.contains(&name) {
+                return Err(format!(
+                    "output folder {shown} holds {name}, which olli did not write (it is not listed in {MARKER_FILE}); \
+                     move it or choose another output folder"
+                ));
+            }
         }
     }
     Ok(())
+}
+
+/// Removes the result files an earlier run wrote into `folder` (only those
+/// listed in its marker file), and their stale temporary files, so a stale
+/// summary or surplus frames never pass for this run's results.
+fn remove_previous_results(folder: &Path, stem: &str) -> io::Result<()> {
+    let ours = listed(folder);
+    for entry in std::fs::read_dir(folder)? {
+        let name = entry?.file_name().to_string_lossy().into_owned();
+        if (is_result_name(&name, stem) && ours.contains(&name)) || is_temporary_of(&name, &ours) {
+            std::fs::remove_file(folder.join(&name))?;
+        }
+    }
+    let kept: Vec<&String> = ours.iter().filter(|n| folder.join(n).exists()).collect();
+    let text: String = kept.iter().map(|n| format!("{n}\n")).collect();
+    std::fs::write(folder.join(MARKER_FILE), text)
 }
 
 impl Observer for ResultWriter<'_> {

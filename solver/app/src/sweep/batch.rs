@@ -1,7 +1,7 @@
 //! `submit.sh`: a Slurm array job with one task per variant. Task `i` reads
 //! line `i` of `variants.txt` and runs `olli run` on that variant's folder,
 //! with the solver's threads set to the task's CPUs. A task whose variant
-//! already has a summary exits at once, so resubmitting the array after an
+//! already has a finished summary (`converged` or `stopped`) exits at once, so resubmitting the array after an
 //! interruption runs only what is missing.
 
 use std::io;
@@ -36,7 +36,7 @@ if [ -z "$variant" ]; then
     echo "array task ${{SLURM_ARRAY_TASK_ID}}: no such line in {VARIANTS_FILE}" >&2
     exit 2
 fi
-if [ -f "$variant/{SUMMARY_FILE}" ]; then
+if grep -Eqs '"status": *"(converged|stopped)"' "$variant/{SUMMARY_FILE}"; then
     echo "variant $variant: finished earlier, skipped"
     exit 0
 fi

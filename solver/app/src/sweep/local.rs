@@ -6,8 +6,8 @@
 //! exactly as it would alone or as a batch array task (same command, same
 //! files, so the local and the batch table agree), a variant that crashes
 //! or runs out of memory takes no other down, its memory can be measured,
-//! and stopping the sweep leaves each variant either finished (with its
-//! `summary.json`, written last) or to be rerun.
+//! and stopping the sweep leaves each variant either finished (its
+//! `summary.json` says `converged` or `stopped`) or to be rerun.
 //!
 //! Bounds: at most `jobs` variants at once (default: the number of cores),
 //! each with `RAYON_NUM_THREADS` = cores / running variants (at least 1), so
@@ -18,8 +18,9 @@
 //! of a rough figure from the model's size ([`estimated_bytes`]) and the
 //! largest peak measured so far (Linux `VmHWM` of the children).
 //!
-//! Resuming: a variant with a `summary.json` is finished and skipped; any
-//! other is run (a run cut off part-way left no summary). `sweep.log` in the
+//! Resuming: a variant whose `summary.json` says `converged` or `stopped` is
+//! finished and skipped; any other is run (a run cut off part-way left a
+//! summary saying `running` or `interrupted`, or none). `sweep.log` in the
 //! sweep folder records each start and end.
 
 use std::fs::{File, OpenOptions};
@@ -30,7 +31,7 @@ use std::time::{Duration, Instant};
 
 use super::collect::{outcome, Outcome};
 use super::folder::{Manifest, ManifestVariant, ERROR_FILE};
-use crate::output::SUMMARY_FILE;
+use crate::output::summary::run_finished;
 
 /// Share of the memory available at the start that the variants may use together.
 pub const MEMORY_SHARE: f64 = 0.8;
@@ -115,7 +116,7 @@ pub fn run(dir: &Path, manifest: &Manifest, settings: &LocalSettings, mut report
     let started = Instant::now();
     let mut pending: Vec<usize> = Vec::new();
     for (i, v) in manifest.variants.iter().enumerate() {
-        if dir.join(&v.name).join(SUMMARY_FILE).exists() {
+        if run_finished(&dir.join(&v.name)) {
             writeln!(log, "{:9.2} s  skip  {} (finished earlier)", 0.0, v.name)?;
         } else {
             pending.push(i);

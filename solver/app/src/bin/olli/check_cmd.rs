@@ -6,6 +6,9 @@ use std::path::PathBuf;
 use std::process::ExitCode;
 
 use olli_app::job::{self, check::check};
+use olli_app::output::writer::{check_output_folder, job_stem};
+
+use crate::run_cmd::output_folder;
 
 #[derive(clap::Args)]
 #[command(after_help = "Example:\n  olli check examples/bush.toml")]
@@ -17,6 +20,11 @@ pub struct Args {
 pub fn run(args: Args) -> ExitCode {
     match job::load(&args.job) {
         Ok(job) => {
+            let folder = output_folder(&job, None);
+            if let Err(e) = check_output_folder(&folder, &job_stem(&job)) {
+                eprintln!("error: {}: {e}", job.path.display());
+                return ExitCode::from(2);
+            }
             print!("{}", check(&job));
             println!("job is valid");
             ExitCode::SUCCESS

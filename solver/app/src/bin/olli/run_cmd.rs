@@ -107,7 +107,7 @@ impl Observer for Progress {
 }
 
 /// The result folder: `--output`, else `[output] folder`, else `results/<stem>` beside the job.
-fn output_folder(job: &Job, given: Option<PathBuf>) -> PathBuf {
+pub fn output_folder(job: &Job, given: Option<PathBuf>) -> PathBuf {
     given.or_else(|| job.output.folder.clone()).unwrap_or_else(|| {
         let dir = job.path.parent().unwrap_or(Path::new("."));
         let stem = job.path.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_else(|| "olli".into());
