@@ -620,3 +620,47 @@ fn constraints_that_disagree_are_located_and_agreeing_ones_pass() {
     let out = olli(&["check", s.job(&format!("{BUSH}{agree}")).to_str().unwrap()]);
     assert_eq!(out.status.code(), Some(0), "{}", text(&out));
 }
+
+/// Regression: a killed run left no word of it (issue 18). SIGTERM ends the
+/// run with exit status 143 (128 + 15, the shell's convention), `summary.json`
+/// says `interrupted` with the last converged increment, and every converged
+/// increment is kept in `history.csv` and the frames.
+#[test]
+fn sigterm_leaves_an_interrupted_summary_and_the_converged_increments() {
+    let s = Scratch::new("sigterm");
+    let slow = BUSH
+        .replace("divisions = [4, 8]", "divisions = [40, 80]")
+        .replace("name = \"push\"\n", "name = \"push\"\nfirst_increment = 0.01\nmax_increment = 0.01\n");
+    let job = s.job(&slow);
+    let mut child = Command::new(env!("CARGO_BIN_EXE_olli"))
+        .args(["run", job.to_str().unwrap(), "--output", s.out().to_str().unwrap(), "--quiet"])
+        .spawn()
+        .unwrap();
+    let summary = s.out().join("summary.json");
+    let read =
+        || -> serde_json::Value { std::fs::read_to_string(&summary).ok().and_then(|t| serde_json::from_str(&t).ok()).unwrap_or_default() };
+    let t0 = std::time::Instant::now();
+    while read()["last_increment"].is_null() {
+        assert!(t0.elapsed() < std::time::Duration::from_secs(30), "no increment converged");
+        assert!(child.try_wait().unwrap().is_none(), "the run ended before its first increment");
+        std::thread::sleep(std::time::Duration::from_millis(5));
+    }
+    assert_eq!(read()["status"], "running");
+    let killed = Command::new("kill").args(["-TERM", &child.id().to_string()]).status().unwrap();
+    assert!(killed.success());
+    let status = child.wait().unwrap();
+    assert_eq!(status.code(), Some(143), "the run ended by itself before the signal; make the job slower");
+    let v = read();
+    assert_eq!(v["status"], "interrupted");
+    let last = v["last_increment"]["load_factor"].as_f64().unwrap();
+    assert!(last > 0.0 && last < 1.0, "{v:#}");
+    let history = std::fs::read_to_string(s.out().join("history.csv")).unwrap();
+    let rows: Vec<&str> = history.lines().skip(1).collect();
+    assert_eq!(v["increments"].as_u64(), Some(rows.len() as u64));
+    let last_row_factor: f64 = rows.last().unwrap().split(',').nth(2).unwrap().parse().unwrap();
+    assert!((last_row_factor - last).abs() <= 1e-12 * last.max(1.0), "{last_row_factor} vs {last}");
+    let frames = std::fs::read_dir(s.out()).unwrap().filter(|e| e.as_ref().unwrap().path().extension().is_some_and(|x| x == "vtu")).count();
+    assert!(frames >= 1, "no frame kept");
+    let log = std::fs::read_to_string(s.out().join("olli.log")).unwrap();
+    assert!(log.contains("interrupted by SIGTERM"), "{log}");
+}

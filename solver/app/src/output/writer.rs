@@ -48,6 +48,8 @@ pub struct ResultWriter<'m> {
     error: Option<String>,
     /// Largest stabilisation share of any converged increment.
     stabilization_share: f64,
+    /// The last converged increment, for the `running` and `interrupted` summaries.
+    last_increment: Option<IncrementRef>,
 }
 
 impl<'m> ResultWriter<'m> {
@@ -76,18 +78,46 @@ impl<'m> ResultWriter<'m> {
             last_peaks: None,
             error: None,
             stabilization_share: 0.0,
+            last_increment: None,
         };
         w.log_line(&format!("olli {} run of {} ({})", env!("CARGO_PKG_VERSION"), job.path.display(), job.title));
         w.flush(|w| w.write(HISTORY_FILE, w.history.to_csv().as_bytes()));
         // From the start, a script can tell a running job from a finished one.
-        let running = serde_json::json!({
-            "olli_version": env!("CARGO_PKG_VERSION"),
-            "job": job.path.display().to_string(),
-            "title": job.title,
-            "status": "running",
-        });
-        w.flush(|w| w.write(SUMMARY_FILE, format!("{running:#}\n").as_bytes()));
+        w.flush(|w| w.write_partial_summary("running"));
         Ok(w)
+    }
+
+    /// `summary.json` of a run that has not ended by itself: its status and
+    /// the last converged increment so far.
+    fn write_partial_summary(&self, status: &str) -> io::Result<()> {
+        let summary = serde_json::json!({
+            "olli_version": env!("CARGO_PKG_VERSION"),
+            "job": self.job.path.display().to_string(),
+            "title": self.job.title,
+            "analysis": self.job.kind.name(),
+            "status": status,
+            "last_increment": self.last_increment,
+            "increments": self.history.len(),
+        });
+        self.write(SUMMARY_FILE, format!("{summary:#}\n").as_bytes())
+    }
+
+    /// Ends a run stopped from outside (SIGINT, SIGTERM): `summary.json` says
+    /// `interrupted` with the last converged increment, whose results are
+    /// all on disk already. Returns the first write failure of the run.
+    pub fn interrupted(&mut self, signal: &str) -> Result<(), String> {
+        let line = match &self.last_increment {
+            Some(r) => {
+                format!("interrupted by {signal} after stage `{}` increment {} (load factor {})", r.stage, r.increment, r.load_factor)
+            }
+            None => format!("interrupted by {signal} before the first converged increment"),
+        };
+        self.log_line(&line);
+        self.flush(|w| {
+            w.write_partial_summary("interrupted")?;
+            w.log.flush()
+        });
+        self.error.clone().map_or(Ok(()), Err)
     }
 
     fn log_line(&mut self, line: &str) {
@@ -168,8 +198,10 @@ impl<'m> ResultWriter<'m> {
         if end_of_stage || r.increment % self.job.output.every == 0 {
             self.flush(|w| w.write_frame(r));
         }
+        self.last_increment = Some(IncrementRef { stage: r.stage_name.clone(), increment: r.increment, load_factor: r.load_factor });
         self.flush(|w| {
             w.write(HISTORY_FILE, w.history.to_csv().as_bytes())?;
+            w.write_partial_summary("running")?;
             w.log.flush()
         });
     }

@@ -3,12 +3,18 @@
 //! increments converge and ends with a summary.
 //!
 //! Exit codes: 0 converged, 1 stopped without converging (converged
-//! increments kept, `summary.json` says why), 2 bad input (nothing written).
+//! increments kept, `summary.json` says why), 2 bad input (nothing written),
+//! 130 / 143 interrupted by SIGINT / SIGTERM (converged increments kept,
+//! `summary.json` says `interrupted`).
 
 use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
+use std::sync::atomic::{AtomicUsize, Ordering};
+use std::sync::Arc;
 use std::time::Duration;
+
+use signal_hook::consts::{SIGINT, SIGTERM};
 
 use indicatif::{ProgressBar, ProgressStyle};
 use olli_app::job::{self, Job};
@@ -181,9 +187,28 @@ pub fn run(args: Args) -> ExitCode {
         }
     };
     let mut progress = Progress::new(args.quiet, job.model.stages.len());
+    // SIGINT or SIGTERM: the run ends at the solver's next event, with every
+    // converged increment on disk and `summary.json` saying `interrupted`.
+    let signal = Arc::new(AtomicUsize::new(0));
+    for sig in [SIGINT, SIGTERM] {
+        if let Err(e) = signal_hook::flag::register_usize(sig, Arc::clone(&signal), sig as usize) {
+            eprintln!("warning: cannot catch signal {sig}: {e}");
+        }
+    }
     let mut both = |e: &Event| {
         writer.event(e);
         progress.event(e);
+        let sig = signal.load(Ordering::Relaxed) as i32;
+        if sig != 0 {
+            progress.finish();
+            let name = if sig == SIGINT { "SIGINT" } else { "SIGTERM" };
+            if let Err(e) = writer.interrupted(name) {
+                eprintln!("error: {}: cannot write results: {e}", folder.display());
+            }
+            eprintln!("interrupted by {name}: the converged increments are kept in {}", folder.display());
+            // The conventional exit status of a process ended by a signal.
+            std::process::exit(128 + sig);
+        }
     };
     let solution = match solve(&job.model, &mut both) {
         Ok(s) => s,
