@@ -8,9 +8,10 @@ use rayon::prelude::*;
 
 use super::discretization::Discretization;
 use super::dofs::{DofMap, NONE};
+use super::error::AssemblyError;
+use super::kernel::{element_with_state_into, KernelError};
 use super::pattern::{Pattern, SKIP};
-use crate::element::{element_with_state_into, ElementError, MixedState, MAX_DOFS};
-use crate::error::SolveError;
+use crate::element::{MixedState, MAX_DOFS};
 
 const CHUNK: usize = 1024;
 const KSTRIDE: usize = MAX_DOFS * MAX_DOFS;
@@ -20,7 +21,7 @@ const KSTRIDE: usize = MAX_DOFS * MAX_DOFS;
 pub struct Assembler {
     kbuf: Vec<f64>,
     fbuf: Vec<f64>,
-    status: Vec<Result<f64, ElementError>>,
+    status: Vec<Result<f64, KernelError>>,
     /// Stand-in states for condensed assembly, so both paths share one loop.
     unused_states: Vec<MixedState>,
     /// Run the element loop on one thread (for the parallel/serial check).
@@ -68,7 +69,7 @@ impl Assembler {
         pattern: &Pattern,
         u: &[f64],
         out: Outputs,
-    ) -> Result<f64, SolveError> {
+    ) -> Result<f64, AssemblyError> {
         let Outputs { internal, mut tangent, mut predictor, mut mixed } = out;
         internal.fill(0.0);
         if let Some(k) = tangent.as_deref_mut() {
@@ -83,7 +84,7 @@ impl Assembler {
         while start < ne {
             let end = (start + CHUNK).min(ne);
             let count = end - start;
-            type Slot<'s> = (usize, (((&'s mut [f64], &'s mut [f64]), &'s mut Result<f64, ElementError>), &'s mut MixedState));
+            type Slot<'s> = (usize, (((&'s mut [f64], &'s mut [f64]), &'s mut Result<f64, KernelError>), &'s mut MixedState));
             let carried = mixed.is_some();
             let work = |(i, (((k, f), st), ms)): Slot| {
                 let e = start + i;
@@ -114,7 +115,7 @@ impl Assembler {
                 let e = start + i;
                 match &self.status[i] {
                     Ok(w) => energy += w,
-                    Err(err) => return Err(SolveError::from_element(e, err.clone())),
+                    Err(err) => return Err(AssemblyError::in_element(e, err.clone())),
                 }
                 let nodes = mesh.element_nodes(e);
                 let nd = nodes.len() * dim;

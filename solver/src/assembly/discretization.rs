@@ -4,8 +4,9 @@
 
 use olli_mesh::{ElementKind, Mesh};
 
-use crate::element::{Analysis, ElementContext, Shape};
-use crate::error::SolveError;
+use super::error::AssemblyError;
+use super::kernel::ElementContext;
+use crate::element::{Analysis, Shape};
 use crate::model::Model;
 
 pub fn analysis_name(a: Analysis) -> &'static str {
@@ -26,26 +27,26 @@ pub struct Discretization<'m> {
 }
 
 impl<'m> Discretization<'m> {
-    pub fn new(model: &'m Model) -> Result<Self, SolveError> {
+    pub fn new(model: &'m Model) -> Result<Self, AssemblyError> {
         let mesh: &Mesh = &model.mesh;
         let (dim, want) = match model.analysis {
             Analysis::Solid3d => (3, ElementKind::Hex8),
             Analysis::Axisymmetric => (2, ElementKind::Quad4),
             Analysis::PlaneStrain { thickness } => {
                 if !(thickness > 0.0 && thickness.is_finite()) {
-                    return Err(SolveError::BadThickness(thickness));
+                    return Err(AssemblyError::BadThickness(thickness));
                 }
                 (2, ElementKind::Quad4)
             }
         };
         if mesh.dimension != dim {
-            return Err(SolveError::DimensionMismatch { mesh: mesh.dimension, analysis: analysis_name(model.analysis) });
+            return Err(AssemblyError::DimensionMismatch { mesh: mesh.dimension, analysis: analysis_name(model.analysis) });
         }
         let n = mesh.element_count();
         let mut shapes = Vec::with_capacity(n);
         for (e, &k) in mesh.kinds.iter().enumerate() {
             if k != want {
-                return Err(SolveError::UnsupportedElement {
+                return Err(AssemblyError::UnsupportedElement {
                     element: e,
                     kind: k.name().to_string(),
                     analysis: analysis_name(model.analysis),
@@ -57,10 +58,10 @@ impl<'m> Discretization<'m> {
         for (r, region) in model.regions.iter().enumerate() {
             for &e in &region.elements {
                 if e >= n {
-                    return Err(SolveError::ElementOutOfRange { region: region.name.clone(), element: e, count: n });
+                    return Err(AssemblyError::ElementOutOfRange { region: region.name.clone(), element: e, count: n });
                 }
                 if region_of[e] != usize::MAX {
-                    return Err(SolveError::OverlappingRegions {
+                    return Err(AssemblyError::OverlappingRegions {
                         element: e,
                         first: model.regions[region_of[e]].name.clone(),
                         second: region.name.clone(),
@@ -70,7 +71,7 @@ impl<'m> Discretization<'m> {
             }
         }
         if let Some(e) = region_of.iter().position(|&r| r == usize::MAX) {
-            return Err(SolveError::MissingRegion { element: e });
+            return Err(AssemblyError::MissingRegion { element: e });
         }
         Ok(Discretization { model, shapes, region_of, dim })
     }

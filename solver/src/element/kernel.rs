@@ -1,11 +1,15 @@
-//! The integration loop shared by every element: `F = I + B u`, stress and
-//! tangent from the material, and the mean-dilatation condensation.
+//! The integration loop shared by every element, in two halves around the
+//! material: [`kinematics`] gives `F = I + B u` and J at every Gauss point;
+//! the caller evaluates the material there ([`PointResponse`], and the
+//! volumetric law of a mixed element, [`VolumetricResponse`]); then
+//! [`integrate_into`] forms `∫ Bᵀ P dV`, `∫ Bᵀ A B dV` and the
+//! mean-dilatation condensation. The element never calls a material: the
+//! assembly kernel ([`crate::assembly::kernel`]) is where they meet.
 
 use nalgebra::{Matrix3, SMatrix, SVector};
 
 use super::geometry::{point_geometry, PointGeometry};
-use super::{Analysis, ElementContext, ElementError, Formulation, Shape};
-use crate::material::{Material, MaterialError, Response, Tangent};
+use super::{Analysis, ElementError, Shape};
 
 /// Largest number of element degrees of freedom (hex8: 8 × 3).
 pub const MAX_DOFS: usize = 24;
@@ -24,7 +28,7 @@ fn to9(m: &Matrix3<f64>) -> V9 {
 
 /// `A_iJkL = δ_ik S_JL + F_iI F_kK D_IJKL`: the first elasticity tensor as a
 /// 9×9 matrix with row index 3i+J and column index 3k+L.
-fn first_elasticity(f: &Matrix3<f64>, s: &Matrix3<f64>, d: &Tangent) -> M9 {
+fn first_elasticity(f: &Matrix3<f64>, s: &Matrix3<f64>, d: &SMatrix<f64, 6, 6>) -> M9 {
     // t[i][J][K][L] = F_iI D_IJKL
     let mut t = [[[[0.0; 3]; 3]; 3]; 3];
     for i in 0..3 {
@@ -74,24 +78,6 @@ struct BOp<'g> {
 }
 
 impl BOp<'_> {
-    /// `F − I = B u` as a 9-vector.
-    fn apply<const ND: usize>(&self, u: &SVector<f64, ND>) -> V9 {
-        let mut f = V9::zeros();
-        for a in 0..ND / self.dim {
-            let g = &self.geo.g[a];
-            for i in 0..self.dim {
-                let ua = u[a * self.dim + i];
-                for jj in 0..3 {
-                    f[3 * i + jj] += ua * g[jj];
-                }
-            }
-            if self.axisymmetric {
-                f[8] += u[a * self.dim] * self.geo.n[a] / self.geo.radius;
-            }
-        }
-        f
-    }
-
     /// `out += s · Bᵀ v`.
     fn add_transpose<const ND: usize>(&self, v: &V9, s: f64, out: &mut SVector<f64, ND>) {
         for a in 0..ND / self.dim {
@@ -138,53 +124,118 @@ impl BOp<'_> {
     }
 }
 
-fn map_material(e: MaterialError, point: usize, j: f64) -> ElementError {
-    match e {
-        MaterialError::NonPositiveVolume { .. } => ElementError::Inverted { point, j },
-        other => ElementError::Material(other),
+/// Constitutive answer at one integration point, as the element needs it:
+/// computed by the caller (the assembly kernel) from the point's
+/// [`PointKinematics`], so the element never sees a material model.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct PointResponse {
+    /// Strain energy density per unit reference volume (mixed elements: the
+    /// isochoric part alone).
+    pub energy: f64,
+    /// Second Piola–Kirchhoff stress S (mixed elements: isochoric part).
+    pub stress: Matrix3<f64>,
+    /// Material tangent 4 ∂²W/∂C∂C in Voigt order xx, yy, zz, xy, yz, xz.
+    pub tangent: SMatrix<f64, 6, 6>,
+}
+
+/// The volumetric law of a mixed element evaluated by the caller at the
+/// element's dilatation θ (see [`ElementKinematics::volume_ratio`] and
+/// [`MixedState::dilatation`]).
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct VolumetricResponse {
+    /// Volumetric energy density U at the current volume ratio v/V.
+    pub energy: f64,
+    /// Element pressure p entering the stress: U'(θ), or the carried unknown.
+    pub pressure: f64,
+    /// U'(θ): the pressure the law gives at the element dilatation.
+    pub law_pressure: f64,
+    /// U''(θ): the volumetric stiffness at the element dilatation.
+    pub stiffness: f64,
+}
+
+/// Deformation of one Gauss point: its reference geometry, the deformation
+/// gradient F and J = det F.
+#[derive(Debug, Clone, Copy, Default)]
+pub struct PointKinematics {
+    geo: PointGeometry,
+    /// Deformation gradient F (3×3; the hoop stretch in F₃₃ for axisymmetry).
+    pub f: Matrix3<f64>,
+    /// Volume ratio J = det F (> 0).
+    pub j: f64,
+}
+
+impl PointKinematics {
+    /// Right Cauchy–Green tensor C = FᵀF, what a material is evaluated at.
+    pub fn right_cauchy_green(&self) -> Matrix3<f64> {
+        self.f.transpose() * self.f
     }
 }
 
-/// The material's response at one Gauss point: the isochoric part alone for
-/// the mixed form (it adds the element pressure itself), the full one
-/// otherwise.
-fn point_response(mat: &Material, mixed: bool, k: &Kin, q: usize) -> Result<Response, ElementError> {
-    let c = k.f.transpose() * k.f;
-    let resp = if mixed { mat.isochoric_response(&c) } else { mat.response(&c) };
-    resp.map_err(|e| map_material(e, q, k.j))
+/// Deformation of every Gauss point of one element, with its reference
+/// volume V and deformed volume v = ∫ J dV.
+#[derive(Debug, Clone, Copy)]
+pub struct ElementKinematics {
+    shape: Shape,
+    analysis: Analysis,
+    points: [PointKinematics; MAX_POINTS],
+    /// Reference volume V (axisymmetric: over 2π; plane strain: times the thickness).
+    pub volume: f64,
+    /// Deformed volume v = ∫ J dV.
+    pub deformed_volume: f64,
 }
 
-/// Deformation state of one Gauss point.
-#[derive(Debug, Clone, Copy, Default)]
-struct Kin {
-    geo: PointGeometry,
-    f: Matrix3<f64>,
-    j: f64,
+impl ElementKinematics {
+    /// The element's integration points.
+    pub fn points(&self) -> &[PointKinematics] {
+        &self.points[..self.shape.points()]
+    }
+
+    /// Mean dilatation v/V.
+    pub fn volume_ratio(&self) -> f64 {
+        self.deformed_volume / self.volume
+    }
+
+    fn dim(&self) -> usize {
+        self.shape.dimension()
+    }
+
+    fn bop<'g>(&self, p: &'g PointKinematics) -> BOp<'g> {
+        BOp { geo: &p.geo, dim: self.dim(), axisymmetric: self.analysis == Analysis::Axisymmetric }
+    }
 }
 
-/// Pass 1: geometry, F and J at every point; the element's reference volume V
-/// and deformed volume v = ∫ J dV.
-fn kinematics<const ND: usize>(
-    ctx: &ElementContext,
-    x: &[[f64; 3]],
-    u: &SVector<f64, ND>,
-    out: &mut [Kin; MAX_POINTS],
-) -> Result<(f64, f64), ElementError> {
-    let axi = ctx.analysis == Analysis::Axisymmetric;
-    let (mut vol, mut vol_def) = (0.0, 0.0);
-    for q in 0..ctx.shape.points() {
-        let geo = point_geometry(ctx.shape, ctx.analysis, x, q)?;
-        let f9 = BOp { geo: &geo, dim: ND / ctx.shape.nodes(), axisymmetric: axi }.apply(u);
-        let f = Matrix3::from_fn(|i, jj| f9[3 * i + jj] + if i == jj { 1.0 } else { 0.0 });
+/// Geometry, F and J at every Gauss point of an element with reference node
+/// positions `x` and displacements `u` (three entries per node, the third
+/// ignored in 2-D). Fails on a bad reference element or an inverted point.
+pub fn kinematics(shape: Shape, analysis: Analysis, x: &[[f64; 3]], u: &[[f64; 3]]) -> Result<ElementKinematics, ElementError> {
+    let axisymmetric = analysis == Analysis::Axisymmetric;
+    let dim = shape.dimension();
+    let mut out =
+        ElementKinematics { shape, analysis, points: [PointKinematics::default(); MAX_POINTS], volume: 0.0, deformed_volume: 0.0 };
+    for q in 0..shape.points() {
+        let geo = point_geometry(shape, analysis, x, q)?;
+        // F = I + B u, written out over the sparse B (see `BOp`).
+        let mut f = Matrix3::<f64>::zeros();
+        for a in 0..shape.nodes() {
+            for i in 0..dim {
+                for jj in 0..3 {
+                    f[(i, jj)] += u[a][i] * geo.g[a][jj];
+                }
+            }
+            if axisymmetric {
+                f[(2, 2)] += u[a][0] * geo.n[a] / geo.radius;
+            }
+        }
+        f += Matrix3::identity();
         let j = f.determinant();
         if !(j > 0.0 && j.is_finite()) {
             return Err(ElementError::Inverted { point: q, j });
         }
-        vol += geo.dv;
-        vol_def += j * geo.dv;
-        out[q] = Kin { geo, f, j };
+        out.volume += geo.dv;
+        out.deformed_volume += j * geo.dv;
+        out.points[q] = PointKinematics { geo, f, j };
     }
-    Ok((vol, vol_def))
+    Ok(out)
 }
 
 /// Element pressure and dilatation carried as Newton unknowns of the
@@ -217,54 +268,75 @@ impl Default for MixedState {
     }
 }
 
-impl MixedState {
-    /// Linearised changes (dθ, dp) for an element displacement change `du`
-    /// (only the first `nd` entries used).
-    pub fn increments(&self, du: &[f64], material: &crate::material::Material) -> Result<(f64, f64), MaterialError> {
-        let dtheta = self.volume_ratio - self.dilatation + self.dvolume_du.iter().zip(du).map(|(a, b)| a * b).sum::<f64>();
-        let dp = material.volumetric.pressure_derivative(self.dilatation)? * dtheta + material.volumetric.pressure(self.dilatation)?
-            - self.pressure;
-        Ok((dtheta, dp))
+/// Internal force (and, if asked, the tangent, column-major, `shape.dofs()`
+/// squared) of one element into caller buffers, from its kinematics and the
+/// constitutive answer at each point (`responses`, one per point). Mixed
+/// elements also take the volumetric law at their dilatation (`volumetric`)
+/// and, in the three-field form, their carried unknowns (`state`, whose
+/// outputs are filled in). Returns the element's strain energy.
+pub fn integrate_into(
+    kin: &ElementKinematics,
+    responses: &[PointResponse],
+    volumetric: Option<&VolumetricResponse>,
+    force: &mut [f64],
+    stiffness: Option<&mut [f64]>,
+    state: Option<&mut MixedState>,
+) -> Result<f64, ElementError> {
+    match kin.shape {
+        Shape::Hex8 => run::<24>(kin, responses, volumetric, force, stiffness, state),
+        Shape::Quad4 => run::<8>(kin, responses, volumetric, force, stiffness, state),
+    }
+}
+
+fn run<const ND: usize>(
+    kin: &ElementKinematics,
+    responses: &[PointResponse],
+    volumetric: Option<&VolumetricResponse>,
+    force: &mut [f64],
+    stiffness: Option<&mut [f64]>,
+    state: Option<&mut MixedState>,
+) -> Result<f64, ElementError> {
+    let mut f = SVector::<f64, ND>::zeros();
+    match stiffness {
+        Some(kbuf) => {
+            let mut k = SMatrix::<f64, ND, ND>::zeros();
+            let e = integrate::<ND>(kin, responses, volumetric, &mut f, Some(&mut k), state)?;
+            kbuf[..ND * ND].copy_from_slice(k.as_slice());
+            force[..ND].copy_from_slice(f.as_slice());
+            Ok(e)
+        }
+        None => {
+            let e = integrate::<ND>(kin, responses, volumetric, &mut f, None, state)?;
+            force[..ND].copy_from_slice(f.as_slice());
+            Ok(e)
+        }
     }
 }
 
 fn integrate<const ND: usize>(
-    ctx: &ElementContext,
-    x: &[[f64; 3]],
-    u: &SVector<f64, ND>,
+    kin: &ElementKinematics,
+    responses: &[PointResponse],
+    volumetric: Option<&VolumetricResponse>,
     force: &mut SVector<f64, ND>,
     mut stiffness: Option<&mut SMatrix<f64, ND, ND>>,
     state: Option<&mut MixedState>,
 ) -> Result<f64, ElementError> {
-    let axi = ctx.analysis == Analysis::Axisymmetric;
-    let mut kin = [Kin::default(); MAX_POINTS];
-    let (vol, vol_def) = kinematics::<ND>(ctx, x, u, &mut kin)?;
-    force.fill(0.0);
-    if let Some(k) = stiffness.as_deref_mut() {
-        k.fill(0.0);
-    }
-    let mat = ctx.material;
+    let vol = kin.volume;
+    let ratio = kin.volume_ratio();
     let mut energy = 0.0;
-    let mixed = ctx.formulation == Formulation::Mixed;
-    let ratio = vol_def / vol;
-    // Pressure and dilatation: condensed from u, or the carried unknowns.
-    let (p, dp, theta) = if !mixed {
-        (0.0, 0.0, ratio)
-    } else {
-        let theta = state.as_ref().map(|s| s.dilatation).unwrap_or(ratio);
-        let m = |e| map_material(e, 0, theta);
-        energy += vol * mat.volumetric.energy(ratio).map_err(|e| map_material(e, 0, ratio))?;
-        let p = match state.as_ref() {
-            Some(s) => s.pressure,
-            None => mat.volumetric.pressure(theta).map_err(m)?,
-        };
-        (p, mat.volumetric.pressure_derivative(theta).map_err(m)?, theta)
+    // Pressure p and volumetric stiffness U''(θ) of the mixed element.
+    let (p, dp) = match volumetric {
+        Some(v) => {
+            energy += vol * v.energy;
+            (v.pressure, v.stiffness)
+        }
+        None => (0.0, 0.0),
     };
+    let mixed = volumetric.is_some();
     let mut g = SVector::<f64, ND>::zeros();
-    for (q, k) in kin.iter().take(ctx.shape.points()).enumerate() {
-        let resp = point_response(mat, mixed, k, q)?;
+    for (q, (k, resp)) in kin.points().iter().zip(responses).enumerate() {
         energy += resp.energy * k.geo.dv;
-        let b = BOp { geo: &k.geo, dim: ND / ctx.shape.nodes(), axisymmetric: axi };
+        let b = kin.bop(k);
         let mut p9 = to9(&(k.f * resp.stress));
         let fi = k.f.try_inverse().ok_or(ElementError::Inverted { point: q, j: k.j })?;
         if mixed {
@@ -281,15 +353,14 @@ fn integrate<const ND: usize>(
             b.add_btab(&a, k.geo.dv, kk);
         }
     }
-    if mixed {
+    if let Some(v) = volumetric {
         if let Some(kk) = stiffness {
             kk.ger(dp / vol, &g, &g, 1.0);
         }
         if let Some(st) = state {
             // Condensed residual of the three-field equations:
             // f += g [U''(θ)(v/V − θ) + U'(θ) − p].
-            let u1 = mat.volumetric.pressure(theta).map_err(|e| map_material(e, 0, theta))?;
-            *force += g * (dp * (ratio - theta) + u1 - p);
+            *force += g * (dp * (ratio - st.dilatation) + v.law_pressure - p);
             st.volume_ratio = ratio;
             for (d, gv) in st.dvolume_du.iter_mut().zip(g.iter()) {
                 *d = gv / vol;
@@ -297,65 +368,6 @@ fn integrate<const ND: usize>(
         }
     }
     Ok(energy)
-}
-
-/// Internal force (and, if asked, the tangent, column-major ND×ND) of one
-/// element into caller buffers of length `shape.dofs()` and its square.
-/// `x` are the reference node positions and `u` the node displacements, both
-/// with three entries per node (the third ignored in 2-D). Returns the
-/// element's strain energy.
-pub fn element_into(
-    ctx: &ElementContext,
-    x: &[[f64; 3]],
-    u: &[[f64; 3]],
-    force: &mut [f64],
-    stiffness: Option<&mut [f64]>,
-) -> Result<f64, ElementError> {
-    element_with_state_into(ctx, x, u, force, stiffness, None)
-}
-
-/// As [`element_into`], with the mixed element's pressure and dilatation
-/// taken from `state` (three-field form) instead of condensed from u.
-/// Ignored by displacement elements.
-pub fn element_with_state_into(
-    ctx: &ElementContext,
-    x: &[[f64; 3]],
-    u: &[[f64; 3]],
-    force: &mut [f64],
-    stiffness: Option<&mut [f64]>,
-    state: Option<&mut MixedState>,
-) -> Result<f64, ElementError> {
-    match ctx.shape {
-        Shape::Hex8 => run::<24>(ctx, x, u, 3, force, stiffness, state),
-        Shape::Quad4 => run::<8>(ctx, x, u, 2, force, stiffness, state),
-    }
-}
-
-fn run<const ND: usize>(
-    ctx: &ElementContext,
-    x: &[[f64; 3]],
-    u: &[[f64; 3]],
-    dim: usize,
-    force: &mut [f64],
-    stiffness: Option<&mut [f64]>,
-    state: Option<&mut MixedState>,
-) -> Result<f64, ElementError> {
-    let uv = SVector::<f64, ND>::from_fn(|r, _| u[r / dim][r % dim]);
-    let mut f = SVector::<f64, ND>::zeros();
-    match stiffness {
-        Some(kbuf) => {
-            let mut k = SMatrix::<f64, ND, ND>::zeros();
-            let e = integrate::<ND>(ctx, x, &uv, &mut f, Some(&mut k), state)?;
-            kbuf[..ND * ND].copy_from_slice(k.as_slice());
-            force[..ND].copy_from_slice(f.as_slice());
-            Ok(e)
-        }
-        None => {
-            let e = integrate::<ND>(ctx, x, &uv, &mut f, None, state)?;
-            force[..ND].copy_from_slice(f.as_slice());
-            Ok(e)
-        }
-    }
 }
 
 /// Stress and strain measures at one integration point.
@@ -377,43 +389,34 @@ pub struct PointState {
     pub volume: f64,
 }
 
-/// Per-point results of one element into `out` (length ≥ `shape.points()`).
-pub fn point_states(ctx: &ElementContext, x: &[[f64; 3]], u: &[[f64; 3]], out: &mut [PointState]) -> Result<(), ElementError> {
-    match ctx.shape {
-        Shape::Hex8 => states::<24>(ctx, x, u, 3, out),
-        Shape::Quad4 => states::<8>(ctx, x, u, 2, out),
+impl PointState {
+    /// Largest principal logarithmic (Hencky) strain ln λ_max.
+    pub fn max_log_strain(&self) -> f64 {
+        self.stretches[0].ln()
     }
 }
 
-fn states<const ND: usize>(
-    ctx: &ElementContext,
+/// Per-point results of one element into `out` (length ≥ `shape.points()`),
+/// from its kinematics, reference node positions `x`, the constitutive answer
+/// at each point and, for a mixed element, the volumetric law at its
+/// dilatation (pressure U'(θ) and energy U(θ) added to every point).
+pub fn point_states_into(
+    kin: &ElementKinematics,
     x: &[[f64; 3]],
-    u: &[[f64; 3]],
-    dim: usize,
+    responses: &[PointResponse],
+    volumetric: Option<&VolumetricResponse>,
     out: &mut [PointState],
-) -> Result<(), ElementError> {
-    let uv = SVector::<f64, ND>::from_fn(|r, _| u[r / dim][r % dim]);
-    let mut kin = [Kin::default(); MAX_POINTS];
-    let (vol, vol_def) = kinematics::<ND>(ctx, x, &uv, &mut kin)?;
-    let mat = ctx.material;
-    let mixed = ctx.formulation == Formulation::Mixed;
-    let theta = vol_def / vol;
-    let (p, u_vol) = if mixed {
-        let m = |e| map_material(e, 0, theta);
-        (mat.volumetric.pressure(theta).map_err(m)?, mat.volumetric.energy(theta).map_err(m)?)
-    } else {
-        (0.0, 0.0)
-    };
-    for (q, k) in kin.iter().take(ctx.shape.points()).enumerate() {
-        let resp = point_response(mat, mixed, k, q)?;
+) {
+    let (p, u_vol) = volumetric.map(|v| (v.pressure, v.energy)).unwrap_or((0.0, 0.0));
+    for (q, (k, resp)) in kin.points().iter().zip(responses).enumerate() {
         let mut sigma = k.f * resp.stress * k.f.transpose() / k.j;
-        if mixed {
+        if volumetric.is_some() {
             sigma += Matrix3::identity() * p;
         }
         let mut ev = (k.f.transpose() * k.f).symmetric_eigenvalues().map(|l| l.max(0.0).sqrt());
         ev.as_mut_slice().sort_by(|a, b| b.total_cmp(a));
         let mut position = [0.0; 3];
-        for a in 0..ctx.shape.nodes() {
+        for a in 0..kin.shape.nodes() {
             for i in 0..3 {
                 position[i] += k.geo.n[a] * x[a][i];
             }
@@ -428,5 +431,4 @@ fn states<const ND: usize>(
             volume: k.geo.dv,
         };
     }
-    Ok(())
 }

@@ -7,8 +7,10 @@
 //! element degree of freedom is a constant 9×nd matrix `B` (the hoop row of an
 //! axisymmetric element included), so `F = I + B u`. Internal force and
 //! tangent are then `∫ Bᵀ P dV` and `∫ Bᵀ A B dV` with `P` the first
-//! Piola–Kirchhoff stress and `A = ∂P/∂F`. The material is reached only
-//! through [`Material`]; adding an element shape touches [`geometry`].
+//! Piola–Kirchhoff stress and `A = ∂P/∂F`. The element knows no material:
+//! it hands the caller the kinematics of every point ([`kinematics`]) and
+//! takes back the stress and tangent there ([`PointResponse`]); the assembly
+//! kernel makes that call. Adding an element shape touches [`geometry`].
 //!
 //! ## Mixed Q1/P0 (mean dilatation)
 //! Following Simo, Taylor & Pister (1985, CMAME 51:177–208), the pressure and
@@ -30,11 +32,12 @@ pub mod geometry;
 pub mod kernel;
 
 pub use geometry::{PointGeometry, Shape};
-pub use kernel::{element_into, element_with_state_into, point_states, MixedState, PointState, MAX_DOFS, MAX_POINTS};
+pub use kernel::{
+    integrate_into, kinematics, point_states_into, ElementKinematics, MixedState, PointKinematics, PointResponse, PointState,
+    VolumetricResponse, MAX_DOFS, MAX_POINTS,
+};
 
 use thiserror::Error;
-
-use crate::material::MaterialError;
 
 /// Kind of analysis: fixes how a 2-D section is read.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -59,15 +62,6 @@ pub enum Formulation {
     Displacement,
 }
 
-/// What one element needs besides its node positions and displacements.
-#[derive(Debug, Clone, Copy)]
-pub struct ElementContext<'a> {
-    pub shape: Shape,
-    pub analysis: Analysis,
-    pub formulation: Formulation,
-    pub material: &'a crate::material::Material,
-}
-
 /// Failure inside one element (the caller adds the element index).
 #[derive(Debug, Clone, PartialEq, Error)]
 pub enum ElementError {
@@ -77,10 +71,4 @@ pub enum ElementError {
     /// The reference element itself has a non-positive Jacobian (bad mesh).
     #[error("non-positive reference Jacobian {det:.3e} at integration point {point}")]
     BadReference { point: usize, det: f64 },
-    /// The constitutive model could not evaluate the state.
-    #[error("material: {0}")]
-    Material(#[from] MaterialError),
 }
-
-#[cfg(test)]
-mod fd_tests;
