@@ -110,7 +110,7 @@ impl ElementKind {
     /// Corner nodes of a side are listed first, counter-clockwise seen from
     /// outside (3-D) or in the element's counter-clockwise sense (2-D), then
     /// any mid-side nodes.
-    pub fn sides(self) -> &'static [&'static [usize]] {
+    pub const fn sides(self) -> &'static [&'static [usize]] {
         match self {
             ElementKind::Tri3 => &[&[0, 1], &[1, 2], &[2, 0]],
             ElementKind::Tri6 => &[&[0, 1, 3], &[1, 2, 4], &[2, 0, 5]],

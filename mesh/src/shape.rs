@@ -108,19 +108,20 @@ const H27: [[f64; 3]; 27] = [
     [0., 0., 0.],
 ];
 
-/// Reference coordinates of every node of `kind`, in VTK order.
-pub fn reference_nodes(kind: ElementKind) -> &'static [[f64; 3]] {
+/// Reference coordinates of every node of `kind`, in VTK order (a `const fn`,
+/// so the solver's shape registry takes its tables from here).
+pub const fn reference_nodes(kind: ElementKind) -> &'static [[f64; 3]] {
     match kind {
-        ElementKind::Tri3 => &T6[..3],
+        ElementKind::Tri3 => T6.split_at(3).0,
         ElementKind::Tri6 => &T6,
         ElementKind::Quad4 => &Q4,
-        ElementKind::Quad8 => &Q9[..8],
+        ElementKind::Quad8 => Q9.split_at(8).0,
         ElementKind::Quad9 => &Q9,
-        ElementKind::Tet4 => &TET10[..4],
+        ElementKind::Tet4 => TET10.split_at(4).0,
         ElementKind::Tet10 => &TET10,
         ElementKind::Wedge6 => &W6,
-        ElementKind::Hex8 => &H27[..8],
-        ElementKind::Hex20 => &H27[..20],
+        ElementKind::Hex8 => H27.split_at(8).0,
+        ElementKind::Hex20 => H27.split_at(20).0,
         ElementKind::Hex27 => &H27,
     }
 }

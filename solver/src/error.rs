@@ -6,6 +6,7 @@ use thiserror::Error;
 use crate::assembly::{AssemblyError, KernelError};
 use crate::contact::active::ContactError;
 use crate::element::ElementError;
+use crate::insert::InsertError;
 use crate::linear::LinearError;
 use crate::material::MaterialError;
 use crate::model::ControlsError;
@@ -46,6 +47,10 @@ pub enum SolveError {
     BadContact { body: String, reason: String },
     #[error("contact: penetration {penetration:.3e} still above the tolerance {tolerance:.3e} after {augmentations} augmentations")]
     ContactNotResolved { penetration: f64, tolerance: f64, augmentations: usize },
+    #[error("insert `{insert}`: {reason}")]
+    BadInsert { insert: String, reason: String },
+    #[error("insert equations are singular (is a free insert component held by nothing?)")]
+    SingularInserts,
     #[error("linear solve failed: {0}")]
     Linear(#[from] LinearError),
     #[error("the residual is not finite")]
@@ -74,6 +79,16 @@ impl From<AssemblyError> for SolveError {
             AssemblyError::Element { element, source } => SolveError::Element { element, source },
             AssemblyError::Material { element, point, source } => SolveError::Material { element, point, source },
             AssemblyError::PatternTooLarge(n) => SolveError::PatternTooLarge(n),
+        }
+    }
+}
+
+impl From<InsertError> for SolveError {
+    fn from(e: InsertError) -> Self {
+        match e {
+            InsertError::UnknownSet { set, .. } => SolveError::UnknownSet { stage: String::from("(inserts)"), name: set },
+            InsertError::Bad { insert, reason } => SolveError::BadInsert { insert, reason },
+            InsertError::Singular => SolveError::SingularInserts,
         }
     }
 }

@@ -33,6 +33,8 @@ pub mod contact;
 pub mod driver;
 pub mod element;
 pub mod error;
+pub mod fit;
+pub mod insert;
 pub mod linear;
 pub mod load;
 pub mod material;
@@ -45,7 +47,7 @@ pub mod shape;
 pub use driver::{solve, Event, Observer, Quiet};
 pub use error::SolveError;
 pub use model::{
-    Analysis, Force, Formulation, IncrementControls, Model, Motion, OutputSettings, Pressure, Ramp, Region, RigidBody, RigidMotion, Stage,
-    Support,
+    Analysis, Force, Formulation, IncrementControls, Insert, InsertDrive, InsertStage, Model, Motion, OutputSettings, Pressure, Ramp,
+    Region, RigidBody, RigidMotion, Stage, Support,
 };
 pub use results::{IncrementResult, NodalFields, PointFields, Solution, SolveStats, Termination};

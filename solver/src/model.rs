@@ -115,6 +115,46 @@ pub struct RigidMotion {
     pub rotation: f64,
 }
 
+/// A rigid metal part (pin, sleeve, plate) bonded to the nodes of a set: the
+/// nodes follow its rigid motion exactly (rotation by the rotation vector
+/// about the reference point, then translation). Components, in this order:
+/// translations x, y, z and rotations rx, ry, rz (the rotation vector,
+/// radians). Plane strain uses x, y, rz; axisymmetric the axial translation
+/// (index 1, the second coordinate) only.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Insert {
+    /// Name in the results (`insert_<name>_...`).
+    pub name: String,
+    /// Node (or side/element) set bonded to the insert.
+    pub set: String,
+    /// Reference point (length units): rotations and moments are about it.
+    pub reference: [f64; 3],
+    /// Components left free (loaded by zero) from the start instead of held
+    /// at zero until a stage prescribes or loads them.
+    pub free: [bool; 6],
+}
+
+/// What a stage does to one component of an insert.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum InsertDrive {
+    /// Prescribed position (length units, or radians for rotations) reached
+    /// at the end of the stage, ramped from its value at the stage start;
+    /// held afterwards.
+    Move(f64),
+    /// Applied force (or moment about the reference point) reached at the
+    /// end of the stage, ramped from its value at the stage start; the
+    /// component is free to move.
+    Load(f64),
+}
+
+/// An insert's components driven in one stage (`None`: unchanged).
+#[derive(Debug, Clone, PartialEq)]
+pub struct InsertStage {
+    /// Name of the [`Insert`].
+    pub insert: String,
+    pub components: [Option<InsertDrive>; 6],
+}
+
 /// Settings of the adaptive load stepping and of the Newton iterations of one stage.
 #[derive(Debug, Clone, PartialEq)]
 pub struct IncrementControls {
@@ -305,6 +345,8 @@ pub struct Stage {
     pub body_force: Option<[f64; 3]>,
     /// Rigid-body positions reached at the end of the stage.
     pub rigid_motions: Vec<RigidMotion>,
+    /// Bonded inserts driven in this stage (ramped by the insert's name in `ramps`).
+    pub inserts: Vec<InsertStage>,
     /// Ramps of the loads of this stage by set name (motions, pressures,
     /// forces on that set; [`BODY_FORCE_RAMP`] for the body force) or by
     /// rigid-body name (its motion). Loads not named here ramp linearly.
@@ -359,6 +401,8 @@ pub struct Model {
     pub stages: Vec<Stage>,
     /// Rigid surfaces in contact with the rubber.
     pub rigid: Vec<RigidBody>,
+    /// Rigid inserts bonded to the rubber.
+    pub inserts: Vec<Insert>,
     pub linear: LinearSettings,
     pub output: OutputSettings,
 }
@@ -373,6 +417,7 @@ impl Model {
             regions: vec![Region { name: "all".into(), elements, material, formulation }],
             stages: Vec::new(),
             rigid: Vec::new(),
+            inserts: Vec::new(),
             linear: LinearSettings::default(),
             output: OutputSettings::default(),
         }

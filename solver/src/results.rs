@@ -75,6 +75,8 @@ pub struct IncrementResult {
     /// Stabilisation springs' force relative to the problem's force scale
     /// (0 without stabilisation); keep it well below 1 %.
     pub stabilization_share: f64,
+    /// Per bonded insert: its position and the force and moment on it.
+    pub inserts: Vec<crate::insert::InsertResult>,
     /// Per rigid body: total force, contact width, peak pressure.
     pub contact: Vec<ContactSummary>,
     /// Contact pressure, gap, slip and status at nodes (when the model has rigid bodies).

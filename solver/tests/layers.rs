@@ -18,6 +18,8 @@ const SOLVER_LAYERS: &[(&str, u32)] = &[
     ("shape", 0),
     ("quadrature", 0),
     ("material", 0),
+    // material fitting (material only)
+    ("fit", 0),
     ("rigid_surface", 0),
     // elements: shape functions, quadrature, kinematics (no material)
     ("element", 1),
@@ -28,6 +30,7 @@ const SOLVER_LAYERS: &[(&str, u32)] = &[
     // loads and contact, evaluated through the assembly's numbering
     ("load", 4),
     ("contact", 4),
+    ("insert", 4),
     // the linear-solver interface and its backends
     ("linear", 5),
     // the Newton driver and what a solve returns
@@ -37,7 +40,7 @@ const SOLVER_LAYERS: &[(&str, u32)] = &[
 ];
 
 /// olli-app's top-level modules (all above the whole of olli-solver).
-const APP_LAYERS: &[(&str, u32)] = &[("job", 7), ("output", 8), ("bin", 9)];
+const APP_LAYERS: &[(&str, u32)] = &[("stability_text", 7), ("job", 7), ("output", 8), ("plot", 8), ("sweep", 9), ("bin", 10)];
 
 /// One import found in a source file.
 #[derive(Debug, Clone, PartialEq)]

@@ -47,6 +47,10 @@ pub struct Outputs<'a> {
     /// (three-field form; one entry per element, ignored by displacement
     /// elements). `None` condenses them from u.
     pub mixed: Option<&'a mut [MixedState]>,
+    /// Tangent–vector products at every dof (free and prescribed): with `m`
+    /// global vectors `v` laid end to end, adds `K v_k` to `out` (same
+    /// layout). Used for the rows and columns of constraint unknowns.
+    pub products: Option<(&'a [f64], &'a mut [f64])>,
 }
 
 impl Assembler {
@@ -70,12 +74,15 @@ impl Assembler {
         u: &[f64],
         out: Outputs,
     ) -> Result<f64, AssemblyError> {
-        let Outputs { internal, mut tangent, mut predictor, mut mixed } = out;
+        let Outputs { internal, mut tangent, mut predictor, mut mixed, mut products } = out;
+        if let Some((_, out)) = products.as_mut() {
+            out.fill(0.0);
+        }
         internal.fill(0.0);
         if let Some(k) = tangent.as_deref_mut() {
             k.fill(0.0);
         }
-        let want_k = tangent.is_some() || predictor.is_some();
+        let want_k = tangent.is_some() || predictor.is_some() || products.is_some();
         let mesh = disc.mesh();
         let ne = mesh.element_count();
         let dim = dofs.dim;
@@ -143,6 +150,19 @@ impl Assembler {
                             let q = dofs.eq[gdof(r)];
                             if q != NONE {
                                 rhs[q] -= k[c * nd + r] * d;
+                            }
+                        }
+                    }
+                }
+                if let Some((vectors, out)) = products.as_mut() {
+                    let ndof = internal.len();
+                    for (v, o) in vectors.chunks(ndof).zip(out.chunks_mut(ndof)) {
+                        for c in 0..nd {
+                            let d = v[gdof(c)];
+                            if d != 0.0 {
+                                for r in 0..nd {
+                                    o[gdof(r)] += k[c * nd + r] * d;
+                                }
                             }
                         }
                     }
@@ -215,8 +235,14 @@ mod tests {
             asm.serial = serial;
             let mut f = vec![0.0; ndof];
             let mut k = vec![0.0; pattern.nnz()];
-            asm.assemble(&disc, &dofs, &pattern, &u, Outputs { internal: &mut f, tangent: Some(&mut k), predictor: None, mixed: None })
-                .unwrap();
+            asm.assemble(
+                &disc,
+                &dofs,
+                &pattern,
+                &u,
+                Outputs { internal: &mut f, tangent: Some(&mut k), predictor: None, mixed: None, products: None },
+            )
+            .unwrap();
             (f, k)
         };
         let (fs, ks) = run(true);

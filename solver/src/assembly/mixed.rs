@@ -48,9 +48,11 @@ impl MixedUnknowns {
     }
 
     /// Starts a correction: the linearised dilatation change of every mixed
-    /// element for the free correction `du` (per unit step, by equation)
-    /// and, if given, the prescribed change `dup` (by global dof).
-    pub fn directions(&mut self, disc: &Discretization, dofs: &DofMap, du: &[f64], dup: Option<&[f64]>) {
+    /// element for the free correction `du` (per unit step, by equation),
+    /// the change of constrained dofs moving with it (`constrained_du`, per
+    /// unit step, by global dof: dofs bonded to an insert) and, if given,
+    /// the prescribed change `dup` applied in full (by global dof).
+    pub fn directions(&mut self, disc: &Discretization, dofs: &DofMap, du: &[f64], constrained_du: &[f64], dup: Option<&[f64]>) {
         if self.is_empty() {
             return;
         }
@@ -70,8 +72,11 @@ impl MixedUnknowns {
                     let w = st.dvolume_du[a * dim + i];
                     if q != NONE {
                         free += w * du[q];
-                    } else if let Some(dup) = dup {
-                        fixed += w * dup[d];
+                    } else {
+                        free += w * constrained_du[d];
+                        if let Some(dup) = dup {
+                            fixed += w * dup[d];
+                        }
                     }
                 }
             }

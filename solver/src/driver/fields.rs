@@ -49,6 +49,7 @@ pub fn increment_fields(disc: &Discretization, ctx: &NewtonContext, u: &[f64], r
         nodal_reactions,
         axisymmetric: disc.model.analysis == Analysis::Axisymmetric,
         contact: ctx.contacts.summaries(),
+        inserts: ctx.inserts.results(),
         contact_fields: if ctx.contacts.is_empty() { None } else { Some(ctx.contacts.fields(mesh.node_count())) },
         ..Default::default()
     }

@@ -23,6 +23,7 @@ use crate::assembly::{Discretization, DofMap, Pattern};
 use crate::contact::active::ActiveContacts;
 use crate::element::MixedState;
 use crate::error::SolveError;
+use crate::insert::Inserts;
 use crate::linear::{self, LinearSolver, LinearStats, SymmetricPattern};
 use crate::model::Model;
 use crate::results::{IncrementResult, Solution, SolveStats, Termination};
@@ -46,6 +47,8 @@ struct RunState {
     /// Carried pressure/dilatation of the mixed elements (empty when condensed).
     mixed: Vec<MixedState>,
     contacts: ActiveContacts,
+    /// Bonded inserts with their unknowns (may hold none).
+    inserts: Inserts,
     equations: Option<Equations>,
     increments: Vec<IncrementResult>,
     stats: SolveStats,
@@ -67,6 +70,7 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
         u: vec![0.0; model.mesh.node_count() * disc.dim],
         mixed: Vec::new(),
         contacts: ActiveContacts::new(&disc)?,
+        inserts: Inserts::new(&disc)?,
         equations: None,
         increments: Vec::new(),
         stats: SolveStats::default(),
@@ -116,13 +120,15 @@ fn run_stage(
     let c = &stage.controls;
     let start: Vec<f64> = run.u.clone();
     run.contacts.begin_stage(&stage.rigid_motions, &stage.ramps);
+    run.inserts.begin_stage(stage);
     if c.carry_pressure && run.mixed.is_empty() {
         run.mixed = vec![MixedState::default(); model.mesh.element_count()];
     }
-    let RunState { u, mixed, contacts, equations, increments, stats } = run;
+    let RunState { u, mixed, contacts, inserts, equations, increments, stats } = run;
     let eq = equations_for(disc, prog, equations, stats)?;
     observer.event(&Event::StageStart { stage: si, name: &stage.name, equations: eq.dofs.n_free });
-    let mut ctx = NewtonContext::new(disc, &eq.dofs, &eq.pattern, eq.linear.as_mut(), prog, &start, c, &stage.name, contacts);
+    let mut ctx = NewtonContext::new(disc, &eq.dofs, &eq.pattern, eq.linear.as_mut(), prog, &start, c, &stage.name, contacts)
+        .with_inserts(std::mem::take(inserts));
     if c.carry_pressure {
         ctx = ctx.with_states(std::mem::take(mixed));
     }
@@ -143,6 +149,7 @@ fn run_stage(
                 let share = ctx.stabilization_share(u);
                 ctx.last_converged.copy_from_slice(u);
                 ctx.contacts.commit();
+                ctx.inserts.commit();
                 let result = IncrementResult {
                     stage: si,
                     stage_name: stage.name.clone(),
@@ -187,6 +194,7 @@ fn run_stage(
             }
         }
     }
+    *inserts = std::mem::take(&mut ctx.inserts);
     Ok(Ok(()))
 }
 

@@ -26,6 +26,7 @@ use crate::assembly::{Assembler, Discretization, DofMap, MixedUnknowns, Pattern}
 use crate::contact::active::{ActiveContacts, MAX_AUGMENTATIONS};
 use crate::element::MixedState;
 use crate::error::SolveError;
+use crate::insert::{condense, Inserts};
 use crate::linear::{LinearSolver, SystemMatrix};
 use crate::load::follower::add_pressure;
 use crate::model::IncrementControls;
@@ -71,6 +72,20 @@ pub struct NewtonContext<'a> {
     stabilization: Vec<f64>,
     /// Element pressure/dilatation unknowns (three-field form; empty when condensed).
     pub mixed: MixedUnknowns,
+    /// Bonded inserts (rigid-body constraints with their own unknowns).
+    pub inserts: Inserts,
+    /// Bonded dofs (driven by the inserts).
+    bonded: Vec<bool>,
+    /// Insert node directions J then equation weights W (each unknowns × dofs),
+    /// and the tangent times each of them.
+    insert_vectors: Vec<f64>,
+    insert_products: Vec<f64>,
+    /// Insert equation residuals, their scales, and the last correction.
+    insert_residual: Vec<f64>,
+    insert_scales: Vec<f64>,
+    dq: Vec<f64>,
+    /// Linearised change of the bonded dofs per unit step (J·dq).
+    bonded_direction: Vec<f64>,
 }
 
 /// A force characteristic of the model: the largest shear modulus times
@@ -135,12 +150,29 @@ impl<'a> NewtonContext<'a> {
             },
             contacts,
             mixed: MixedUnknowns::default(),
+            inserts: Inserts::default(),
+            bonded: vec![false; ndof],
+            insert_vectors: Vec::new(),
+            insert_products: Vec::new(),
+            insert_residual: Vec::new(),
+            insert_scales: Vec::new(),
+            dq: Vec::new(),
+            bonded_direction: vec![0.0; ndof],
         }
     }
 
     /// The numbering of the equations.
     pub fn dofs(&self) -> &DofMap {
         self.dofs
+    }
+
+    /// Drives bonded inserts (their stage already begun).
+    pub fn with_inserts(mut self, inserts: Inserts) -> Self {
+        self.bonded.fill(false);
+        inserts.mark_bonded(&mut self.bonded);
+        self.insert_scales = inserts.scales();
+        self.inserts = inserts;
+        self
     }
 
     /// Starts from carried element states (from the previous stage).
@@ -159,6 +191,14 @@ impl<'a> NewtonContext<'a> {
         let clock = Instant::now();
         self.prog.dead_at(t, &mut self.f_ext);
         self.rhs.fill(0.0);
+        let coupled = want_k && self.inserts.unknowns() > 0;
+        if coupled {
+            let (mut j, mut w) = (Vec::new(), Vec::new());
+            self.inserts.directions(&mut j, &mut w);
+            j.extend_from_slice(&w);
+            self.insert_vectors = j;
+            self.insert_products.resize(self.insert_vectors.len(), 0.0);
+        }
         let energy = self.assembler.assemble(
             self.disc,
             self.dofs,
@@ -169,6 +209,7 @@ impl<'a> NewtonContext<'a> {
                 tangent: if want_k { Some(&mut self.k) } else { None },
                 predictor: if predict { Some((&self.dup, &mut self.rhs)) } else { None },
                 mixed: if self.mixed.is_empty() { None } else { Some(&mut self.mixed.current) },
+                products: if coupled { Some((&self.insert_vectors, &mut self.insert_products)) } else { None },
             },
         );
         let energy = match energy {
@@ -206,6 +247,10 @@ impl<'a> NewtonContext<'a> {
             if q != NONE {
                 self.rhs[q] -= r;
             }
+        }
+        if !self.inserts.is_empty() {
+            self.inserts.residual(&self.residual, t, &mut self.insert_residual);
+            finite &= self.insert_residual.iter().all(|g| g.is_finite());
         }
         stats.assembly_time += clock.elapsed().as_secs_f64();
         stats.assemblies += 1;
@@ -255,7 +300,38 @@ impl<'a> NewtonContext<'a> {
     }
 
     fn free_residual_norm(&self) -> f64 {
-        self.residual.iter().zip(&self.dofs.eq).filter(|(_, q)| **q != NONE).map(|(r, _)| r * r).sum::<f64>().sqrt()
+        let free: f64 = self.residual.iter().zip(&self.dofs.eq).filter(|(_, q)| **q != NONE).map(|(r, _)| r * r).sum();
+        let inserts: f64 = self.insert_residual.iter().zip(&self.insert_scales).map(|(g, s)| (g * s).powi(2)).sum();
+        (free + inserts).sqrt()
+    }
+
+    /// Condenses the insert unknowns out of the Newton step: `du` (solved
+    /// with the inserts held) is corrected, the insert step kept in `dq` and
+    /// its bonded-dof direction in `bonded_direction`. The prescribed change
+    /// `dup` belongs to the first iteration only. Returns `dq·g`.
+    fn couple_inserts(&mut self, first: bool) -> Result<f64, SolveError> {
+        let m = self.insert_residual.len();
+        self.dq.clear();
+        self.bonded_direction.fill(0.0);
+        if m == 0 {
+            return Ok(0.0);
+        }
+        let ndof = self.residual.len();
+        let h = self.inserts.arm_stiffness(&self.residual);
+        let (j, w) = self.insert_vectors.split_at(m * ndof);
+        let (kj, kw) = self.insert_products.split_at(m * ndof);
+        let linear = &mut *self.linear;
+        let none = vec![0.0; if first { 0 } else { ndof }];
+        let dup = if first { &self.dup } else { &none };
+        self.dq = condense(&self.dofs.eq, w, kj, kw, &self.insert_residual, &h, dup, &mut self.du, |x| {
+            linear.solve(x).map_err(SolveError::from)
+        })?;
+        for (k, dq) in self.dq.iter().enumerate() {
+            for (b, jk) in self.bonded_direction.iter_mut().zip(&j[k * ndof..(k + 1) * ndof]) {
+                *b += jk * dq;
+            }
+        }
+        Ok(self.dq.iter().zip(&self.insert_residual).map(|(a, b)| a * b).sum())
     }
 
     /// Solves one increment ending at stage fraction `t`, updating `u`.
@@ -293,6 +369,7 @@ impl<'a> NewtonContext<'a> {
         let mut extrapolated = false;
         u.copy_from_slice(&self.last_converged);
         self.mixed.restart();
+        self.inserts.restore();
         if let Some((prev, ratio)) = extrapolation {
             for d in 0..ndof {
                 u[d] += ratio * (self.last_converged[d] - prev[d]);
@@ -302,6 +379,15 @@ impl<'a> NewtonContext<'a> {
         loop {
             for d in 0..ndof {
                 self.dup[d] = if self.dofs.eq[d] == NONE { self.prescribed_at(t, d) - u[d] } else { 0.0 };
+            }
+            if !self.inserts.is_empty() {
+                let mut moved = u.to_vec();
+                self.inserts.prescribe(t, &mut moved);
+                for d in 0..ndof {
+                    if self.bonded[d] {
+                        self.dup[d] = moved[d] - u[d];
+                    }
+                }
             }
             match self.evaluate(u, t, true, true, stats) {
                 Ok(_) => break,
@@ -338,11 +424,19 @@ impl<'a> NewtonContext<'a> {
             }
             self.du.copy_from_slice(&self.rhs);
             self.linear.solve(&mut self.du)?;
+            let insert_work = self.couple_inserts(iterations == 0)?;
+            self.inserts.save_base();
             iterations += 1;
-            self.mixed.directions(self.disc, self.dofs, &self.du, if iterations == 1 { Some(&self.dup) } else { None });
+            self.mixed.directions(
+                self.disc,
+                self.dofs,
+                &self.du,
+                &self.bonded_direction,
+                if iterations == 1 { Some(&self.dup) } else { None },
+            );
             stats.newton_iterations += 1;
             // G(0) = du·r = −du·rhs (negative for a descent direction).
-            let g0: f64 = -self.du.iter().zip(&self.rhs).map(|(a, b)| a * b).sum::<f64>();
+            let g0: f64 = -self.du.iter().zip(&self.rhs).map(|(a, b)| a * b).sum::<f64>() + insert_work;
             let energy_norm = g0.abs();
             self.base.copy_from_slice(u);
             let mut s = 1.0;
@@ -351,9 +445,13 @@ impl<'a> NewtonContext<'a> {
             // not so with friction (it dissipates) or an indefinite tangent, so
             // then only full steps are taken (still halved when an element
             // would invert).
-            let line_search = c.line_search && !self.contacts.has_friction() && factorization.positive_definite;
+            // Insert unknowns make the system unsymmetric: full steps too.
+            let line_search = c.line_search && !self.contacts.has_friction() && factorization.positive_definite && self.dq.is_empty();
             let energy = loop {
                 self.apply(u, s);
+                if !self.inserts.is_empty() {
+                    self.inserts.step(&self.dq, s, u);
+                }
                 let evaluated =
                     self.mixed.apply(self.disc, s).map_err(SolveError::from).and_then(|_| self.evaluate(u, t, true, false, stats));
                 match evaluated {
@@ -402,6 +500,8 @@ impl<'a> NewtonContext<'a> {
                 let q = self.dofs.eq[d];
                 if q != NONE {
                     step2 += (s * self.du[q]).powi(2);
+                } else {
+                    step2 += (u[d] - self.base[d]).powi(2);
                 }
                 inc2 += (u[d] - self.last_converged[d]).powi(2);
                 tot2 += u[d] * u[d];

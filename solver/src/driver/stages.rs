@@ -69,7 +69,16 @@ pub fn resolve(disc: &Discretization) -> Result<(Vec<StageProgram>, ReportSets),
     let mut body: Option<[f64; 3]> = None;
     let mut dead_prev = vec![0.0; ndof];
     let mut programs = Vec::new();
+    let inserts = crate::insert::Inserts::new(disc)?;
     for stage in &model.stages {
+        for drive in &stage.inserts {
+            if !model.inserts.iter().any(|i| i.name == drive.insert) {
+                return Err(SolveError::BadInsert {
+                    insert: drive.insert.clone(),
+                    reason: format!("stage `{}` drives an insert that does not exist", stage.name),
+                });
+            }
+        }
         let unknown = |name: &str| SolveError::UnknownSet { stage: stage.name.clone(), name: name.to_string() };
         let ramp_for = |set: &str| stage.ramps.get(set).cloned().unwrap_or_default();
         let mut ramps = vec![Ramp::Linear];
@@ -106,6 +115,7 @@ pub fn resolve(disc: &Discretization) -> Result<(Vec<StageProgram>, ReportSets),
             }
             report.insert(m.set.clone(), nodes);
         }
+        inserts.mark_bonded(&mut prescribed);
         let before = pressures.clone();
         for p in &stage.pressures {
             if !mesh.side_sets.contains_key(&p.set) {

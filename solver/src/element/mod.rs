@@ -30,6 +30,7 @@
 
 pub mod geometry;
 pub mod kernel;
+pub mod pressure_space;
 
 pub use geometry::{PointGeometry, Shape};
 pub use kernel::{

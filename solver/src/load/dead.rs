@@ -9,43 +9,36 @@ use olli_mesh::{Mesh, Side};
 use crate::assembly::Discretization;
 use crate::element::geometry::point_geometry;
 use crate::element::Analysis;
-use crate::quadrature::{LINE2, SQUARE4};
-use crate::shape::{line2, quad4};
+use crate::shape::ShapeKind;
 
 /// Reference-area weights ∫ N_a dA of the nodes of one side (2πR·ds
-/// axisymmetric, t·ds plane strain), added into `weights` by global node.
+/// axisymmetric, t·ds plane strain), integrated with the side shape's own
+/// functions and added into `weights` by global node. On quadratic sides
+/// these are the consistent shares (zero at tri6 corners, negative at quad8
+/// corners), so a force spread by them is statically equivalent and exact
+/// for uniform traction.
 pub fn side_weights(mesh: &Mesh, analysis: Analysis, side: Side, weights: &mut [f64]) {
     let nodes = mesh.side_nodes(side);
+    let dim = if analysis == Analysis::Solid3d { 3 } else { 2 };
+    let Some(shape) = ShapeKind::side_with_nodes(dim, nodes.len()) else { return };
+    let table = shape.table();
     let x = |a: usize| Vector3::from(mesh.nodes[nodes[a]]);
-    match analysis {
-        Analysis::Solid3d => {
-            for q in SQUARE4 {
-                let (n, d) = quad4::eval(q);
-                let (mut ta, mut tb) = (Vector3::zeros(), Vector3::zeros());
-                for a in 0..4 {
-                    ta += x(a) * d[a][0];
-                    tb += x(a) * d[a][1];
-                }
-                let da = ta.cross(&tb).norm();
-                for a in 0..4 {
-                    weights[nodes[a]] += n[a] * da;
-                }
-            }
+    for q in 0..table.len() {
+        let (n, d) = (table.values(q), table.derivatives(q));
+        let (mut ta, mut tb, mut r) = (Vector3::zeros(), Vector3::zeros(), 0.0);
+        for a in 0..nodes.len() {
+            ta += x(a) * d[a][0];
+            tb += x(a) * d[a][1];
+            r += x(a)[0] * n[a];
         }
-        _ => {
-            for s in LINE2 {
-                let (n, d) = line2::eval(s);
-                let t = x(0) * d[0] + x(1) * d[1];
-                let r = x(0)[0] * n[0] + x(1)[0] * n[1];
-                let scale = match analysis {
-                    Analysis::Axisymmetric => 2.0 * PI * r,
-                    Analysis::PlaneStrain { thickness } => thickness,
-                    Analysis::Solid3d => unreachable!(),
-                };
-                for a in 0..2 {
-                    weights[nodes[a]] += n[a] * t.norm() * scale;
-                }
-            }
+        let da = table.weights[q]
+            * match analysis {
+                Analysis::Solid3d => ta.cross(&tb).norm(),
+                Analysis::Axisymmetric => 2.0 * PI * r * ta.norm(),
+                Analysis::PlaneStrain { thickness } => thickness * ta.norm(),
+            };
+        for (a, &node) in nodes.iter().enumerate() {
+            weights[node] += n[a] * da;
         }
     }
 }
@@ -99,6 +92,42 @@ pub fn add_body_force(disc: &Discretization, b: [f64; 3], f: &mut [f64]) {
                     }
                 }
             }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use olli_mesh::generate::{block, rectangle, BlockParams, Order, RectangleParams};
+
+    use super::*;
+
+    fn set_area(mesh: &Mesh, analysis: Analysis, name: &str) -> f64 {
+        let mut w = vec![0.0; mesh.node_count()];
+        for &side in &mesh.side_sets[name] {
+            side_weights(mesh, analysis, side, &mut w);
+        }
+        w.iter().sum()
+    }
+
+    /// The side weights of quadratic faces and edges add up to the exact
+    /// area (flat faces; 2πR·ds is linear in R on a straight edge, so the
+    /// axisymmetric areas π(r₂² − r₁²) and 2πRh are exact too).
+    #[test]
+    fn quadratic_side_weights_add_up_to_the_area() {
+        for (order, tetrahedra) in [(Order::Quadratic, false), (Order::QuadraticFull, false), (Order::Quadratic, true)] {
+            let mesh =
+                block(&BlockParams { size: [2.0, 3.0, 1.0], divisions: [2, 2, 1], order, tetrahedra, ..Default::default() }).unwrap();
+            let area = set_area(&mesh, Analysis::Solid3d, "top");
+            assert!((area - 6.0).abs() < 1e-12, "{:?}: {area}", mesh.kinds[0]);
+        }
+        for (order, triangles) in [(Order::Quadratic, false), (Order::QuadraticFull, false), (Order::Quadratic, true)] {
+            let p = RectangleParams { origin: [1.0, 0.0], size: [1.0, 2.0], divisions: [2, 3], order, triangles, ..Default::default() };
+            let mesh = rectangle(&p).unwrap();
+            let pi = std::f64::consts::PI;
+            let top = set_area(&mesh, Analysis::Axisymmetric, "top");
+            let right = set_area(&mesh, Analysis::Axisymmetric, "right");
+            assert!((top - 3.0 * pi).abs() < 1e-12 && (right - 8.0 * pi).abs() < 1e-12, "{:?}: {top} {right}", mesh.kinds[0]);
         }
     }
 }

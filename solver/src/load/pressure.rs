@@ -1,5 +1,5 @@
-//! Follower pressure on one element side (a quad4 face in 3-D, a two-node edge
-//! in 2-D), acting on the current surface.
+//! Follower pressure on one element side (a face in 3-D, an edge in 2-D),
+//! acting on the current surface.
 //!
 //! The nodal force is `f_a = −p ∫ N_a n da` over the deformed side, with `n da`
 //! the current area vector (outward for the mesh's counter-clockwise side
@@ -14,16 +14,18 @@ use std::f64::consts::PI;
 use nalgebra::Vector3;
 
 use crate::element::Analysis;
-use crate::quadrature::{LINE2, SQUARE4};
-use crate::shape::{line2, quad4};
+use crate::shape::{ShapeKind, MAX_SIDE_NODES};
 
-/// Largest number of side degrees of freedom (quad face: 4 × 3).
-pub const MAX_SIDE_DOFS: usize = 12;
+/// Largest number of side degrees of freedom (quad9 face: 9 × 3).
+pub const MAX_SIDE_DOFS: usize = 3 * MAX_SIDE_NODES;
 
 /// Force of pressure `p` on one side into `force` (length nodes·dim) and,
 /// if asked, `∂force/∂u` column-major into `stiffness`. `x` are the reference
-/// positions and `u` the displacements of the side's nodes, corners in the
-/// side order of the mesh model.
+/// positions and `u` the displacements of the side's nodes in the side order
+/// of the mesh model; their number fixes the side shape (line2/line3 edges in
+/// 2-D; tri3, quad4, tri6, quad8, quad9 faces in 3-D), whose own shape
+/// functions and quadrature rule integrate the load, so mid-side nodes get
+/// their consistent share.
 pub fn pressure_side_into(
     analysis: Analysis,
     x: &[[f64; 3]],
@@ -32,83 +34,72 @@ pub fn pressure_side_into(
     force: &mut [f64],
     mut stiffness: Option<&mut [f64]>,
 ) {
+    let solid = analysis == Analysis::Solid3d;
+    let dim = if solid { 3 } else { 2 };
+    let side = ShapeKind::side_with_nodes(dim, x.len()).expect("a side of a supported element");
+    let table = side.table();
+    let nn = x.len();
+    let nd = nn * dim;
     let cur = |a: usize| Vector3::new(x[a][0] + u[a][0], x[a][1] + u[a][1], x[a][2] + u[a][2]);
-    match analysis {
-        Analysis::Solid3d => {
-            let nd = 12;
-            force[..nd].fill(0.0);
-            if let Some(k) = stiffness.as_deref_mut() {
-                k[..nd * nd].fill(0.0);
+    force[..nd].fill(0.0);
+    if let Some(k) = stiffness.as_deref_mut() {
+        k[..nd * nd].fill(0.0);
+    }
+    for q in 0..table.len() {
+        let (n, d, w) = (table.values(q), table.derivatives(q), table.weights[q]);
+        let (mut ta, mut tb, mut r) = (Vector3::zeros(), Vector3::zeros(), 0.0);
+        for a in 0..nn {
+            let c = cur(a);
+            ta += c * d[a][0];
+            tb += c * d[a][1];
+            r += c[0] * n[a];
+        }
+        if solid {
+            let area = ta.cross(&tb) * w;
+            for a in 0..nn {
+                for i in 0..3 {
+                    force[3 * a + i] -= p * n[a] * area[i];
+                }
             }
-            for q in SQUARE4 {
-                let (n, d) = quad4::eval(q);
-                let (mut ta, mut tb) = (Vector3::zeros(), Vector3::zeros());
-                for a in 0..4 {
-                    ta += cur(a) * d[a][0];
-                    tb += cur(a) * d[a][1];
-                }
-                let area = ta.cross(&tb);
-                for a in 0..4 {
-                    for i in 0..3 {
-                        force[3 * a + i] -= p * n[a] * area[i];
-                    }
-                }
-                if let Some(k) = stiffness.as_deref_mut() {
-                    for b in 0..4 {
-                        for m in 0..3 {
-                            let e = Vector3::from_fn(|r, _| if r == m { 1.0 } else { 0.0 });
-                            let dn = e.cross(&tb) * d[b][0] + ta.cross(&e) * d[b][1];
-                            let col = 3 * b + m;
-                            for a in 0..4 {
-                                for i in 0..3 {
-                                    k[col * nd + 3 * a + i] -= p * n[a] * dn[i];
-                                }
+            if let Some(k) = stiffness.as_deref_mut() {
+                for b in 0..nn {
+                    for m in 0..3 {
+                        let e = Vector3::from_fn(|row, _| if row == m { 1.0 } else { 0.0 });
+                        let dn = (e.cross(&tb) * d[b][0] + ta.cross(&e) * d[b][1]) * w;
+                        let col = 3 * b + m;
+                        for a in 0..nn {
+                            for i in 0..3 {
+                                k[col * nd + 3 * a + i] -= p * n[a] * dn[i];
                             }
                         }
                     }
                 }
             }
+            continue;
         }
-        Analysis::Axisymmetric | Analysis::PlaneStrain { .. } => {
-            let nd = 4;
-            force[..nd].fill(0.0);
-            if let Some(k) = stiffness.as_deref_mut() {
-                k[..nd * nd].fill(0.0);
+        // Outward normal of a counter-clockwise element: the edge direction
+        // turned clockwise.
+        let nv = [ta[1] * w, -ta[0] * w];
+        let (scale, dscale_dr) = match analysis {
+            Analysis::Axisymmetric => (2.0 * PI * r, 2.0 * PI),
+            Analysis::PlaneStrain { thickness } => (thickness, 0.0),
+            Analysis::Solid3d => unreachable!(),
+        };
+        for a in 0..nn {
+            for i in 0..2 {
+                force[2 * a + i] -= p * n[a] * scale * nv[i];
             }
-            for s in LINE2 {
-                let (n, d) = line2::eval(s);
-                let (mut t, mut r) = ([0.0; 2], 0.0);
-                for a in 0..2 {
-                    let c = cur(a);
-                    t[0] += c[0] * d[a];
-                    t[1] += c[1] * d[a];
-                    r += c[0] * n[a];
-                }
-                // Outward normal of a counter-clockwise element: the edge
-                // direction turned clockwise.
-                let nv = [t[1], -t[0]];
-                let (scale, dscale_dr) = match analysis {
-                    Analysis::Axisymmetric => (2.0 * PI * r, 2.0 * PI),
-                    Analysis::PlaneStrain { thickness } => (thickness, 0.0),
-                    Analysis::Solid3d => unreachable!(),
-                };
-                for a in 0..2 {
-                    for i in 0..2 {
-                        force[2 * a + i] -= p * n[a] * scale * nv[i];
-                    }
-                }
-                if let Some(k) = stiffness.as_deref_mut() {
-                    for b in 0..2 {
-                        for m in 0..2 {
-                            // ∂(scale·nv)/∂x_bm
-                            let dnv = if m == 0 { [0.0, -d[b]] } else { [d[b], 0.0] };
-                            let ds = if m == 0 { dscale_dr * n[b] } else { 0.0 };
-                            let col = 2 * b + m;
-                            for a in 0..2 {
-                                for i in 0..2 {
-                                    k[col * nd + 2 * a + i] -= p * n[a] * (ds * nv[i] + scale * dnv[i]);
-                                }
-                            }
+        }
+        if let Some(k) = stiffness.as_deref_mut() {
+            for b in 0..nn {
+                for m in 0..2 {
+                    // ∂(scale·nv)/∂x_bm
+                    let dnv = if m == 0 { [0.0, -d[b][0] * w] } else { [d[b][0] * w, 0.0] };
+                    let ds = if m == 0 { dscale_dr * n[b] } else { 0.0 };
+                    let col = 2 * b + m;
+                    for a in 0..nn {
+                        for i in 0..2 {
+                            k[col * nd + 2 * a + i] -= p * n[a] * (ds * nv[i] + scale * dnv[i]);
                         }
                     }
                 }
@@ -156,6 +147,70 @@ mod tests {
         let u = [[0.2, 0.1, 0.0], [-0.1, 0.05, 0.0]];
         check(Analysis::Axisymmetric, &x, &u, 2);
         check(Analysis::PlaneStrain { thickness: 3.0 }, &x, &u, 2);
+    }
+
+    #[test]
+    fn quadratic_side_load_stiffness_matches_finite_differences() {
+        // Curved tri6, quad8 and quad9 faces and a curved line3 edge.
+        let corners = [[0.0, 0.0, 1.0], [1.2, 0.1, 1.1], [1.0, 0.9, 0.8], [-0.1, 1.0, 1.0]];
+        let mid = |a: usize, b: usize, bulge: f64| -> [f64; 3] {
+            std::array::from_fn(|c| 0.5 * (corners[a][c] + corners[b][c]) + if c == 2 { bulge } else { 0.0 })
+        };
+        let tri6 = [corners[0], corners[1], corners[2], mid(0, 1, 0.1), mid(1, 2, -0.05), mid(2, 0, 0.08)];
+        let quad8 = [corners[0], corners[1], corners[2], corners[3], mid(0, 1, 0.1), mid(1, 2, -0.05), mid(2, 3, 0.02), mid(3, 0, 0.07)];
+        let mut quad9 = quad8.to_vec();
+        quad9.push([0.5, 0.5, 1.1]);
+        for x in [&tri6[..], &quad8[..], &quad9[..]] {
+            let u: Vec<[f64; 3]> = (0..x.len()).map(|a| [0.03 * a as f64, -0.02 * (a % 3) as f64, 0.05 * (a % 2) as f64]).collect();
+            check(Analysis::Solid3d, x, &u, 3);
+        }
+        let x = [[1.0, 0.0, 0.0], [1.3, 0.8, 0.0], [1.2, 0.45, 0.0]];
+        let u = [[0.2, 0.1, 0.0], [-0.1, 0.05, 0.0], [0.03, -0.02, 0.0]];
+        check(Analysis::Axisymmetric, &x, &u, 2);
+        check(Analysis::PlaneStrain { thickness: 3.0 }, &x, &u, 2);
+    }
+
+    /// Consistent nodal loads of a uniform pressure on flat quadratic sides:
+    /// line3 L/6, L/6, 2L/3 (Simpson's rule); tri6 corners 0 and mid-sides
+    /// A/3; quad8 corners −A/12 and mid-sides A/3 (Zienkiewicz & Taylor, The
+    /// Finite Element Method, vol. 1, equivalent nodal forces of quadratic
+    /// elements under uniform load; from memory, and each set sums to A).
+    #[test]
+    fn quadratic_sides_get_their_consistent_nodal_loads() {
+        let p = 2.0;
+        // Line3 of length 2 running up x = 1 (plane strain, thickness 1): outward normal +x.
+        let x = [[1.0, 0.0, 0.0], [1.0, 2.0, 0.0], [1.0, 1.0, 0.0]];
+        let mut f = [0.0; 6];
+        pressure_side_into(Analysis::PlaneStrain { thickness: 1.0 }, &x, &[[0.0; 3]; 3], p, &mut f, None);
+        let want = [2.0 / 6.0, 2.0 / 6.0, 4.0 / 3.0];
+        for a in 0..3 {
+            assert!((f[2 * a] + p * want[a]).abs() < 1e-12 && f[2 * a + 1].abs() < 1e-12, "line3 node {a}: {f:?}");
+        }
+        // Flat tri6 of area 2 in the plane z = 0, normal +z.
+        let tri6 = [[0.0, 0.0, 0.0], [2.0, 0.0, 0.0], [0.0, 2.0, 0.0], [1.0, 0.0, 0.0], [1.0, 1.0, 0.0], [0.0, 1.0, 0.0]];
+        let mut f = [0.0; 18];
+        pressure_side_into(Analysis::Solid3d, &tri6, &[[0.0; 3]; 6], p, &mut f, None);
+        for a in 0..6 {
+            let want = if a < 3 { 0.0 } else { -p * 2.0 / 3.0 };
+            assert!((f[3 * a + 2] - want).abs() < 1e-12, "tri6 node {a}: {}", f[3 * a + 2]);
+        }
+        // Flat quad8 of area 4 (the square [0, 2]²), normal +z.
+        let quad8 = [
+            [0.0, 0.0, 0.0],
+            [2.0, 0.0, 0.0],
+            [2.0, 2.0, 0.0],
+            [0.0, 2.0, 0.0],
+            [1.0, 0.0, 0.0],
+            [2.0, 1.0, 0.0],
+            [1.0, 2.0, 0.0],
+            [0.0, 1.0, 0.0],
+        ];
+        let mut f = [0.0; 24];
+        pressure_side_into(Analysis::Solid3d, &quad8, &[[0.0; 3]; 8], p, &mut f, None);
+        for a in 0..8 {
+            let want = if a < 4 { p * 4.0 / 12.0 } else { -p * 4.0 / 3.0 };
+            assert!((f[3 * a + 2] - want).abs() < 1e-12, "quad8 node {a}: {}", f[3 * a + 2]);
+        }
     }
 
     #[test]

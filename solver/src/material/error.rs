@@ -26,11 +26,14 @@ pub enum MaterialError {
     #[error("material model `{model}` does not take parameter `{name}` (it takes: {allowed})")]
     UnexpectedParameter { model: &'static str, name: String, allowed: String },
     /// The model name is not one olli knows.
-    #[error("unknown material model `{0}` (known: neo-hookean, mooney-rivlin, yeoh, eight-chain)")]
+    #[error("unknown material model `{0}` (known: neo-hookean, mooney-rivlin, yeoh, eight-chain, gent, ogden)")]
     UnknownModel(String),
     /// The volume ratio J = det F is not positive: the material is inverted.
     #[error("volume ratio J = {j:.3e} is not positive (inverted material)")]
     NonPositiveVolume { j: f64 },
+    /// Gent: Ī1 − 3 reached the extensibility limit J_m.
+    #[error("Ī1 − 3 = {i1_minus_3:.6} reached the extensibility limit {limit:.6}")]
+    ExtensibilityLimit { i1_minus_3: f64, limit: f64 },
     /// Eight-chain: the chain stretch reached the locking stretch.
     #[error("chain stretch {chain_stretch:.6} reached the locking stretch {locking_stretch:.6}")]
     ChainLocking { chain_stretch: f64, locking_stretch: f64 },

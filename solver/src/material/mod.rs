@@ -11,28 +11,37 @@
 //! ```
 //!
 //! Models: [`neo_hookean`], [`mooney_rivlin`] (the Ī2-dependent one),
-//! [`yeoh`] and [`eight_chain`] (Arruda–Boyce, with the inverse Langevin
-//! function of [`langevin`]); volumetric laws in [`volumetric`]. The
+//! [`yeoh`], [`gent`], [`eight_chain`] (Arruda–Boyce, with the inverse
+//! Langevin function of [`langevin`]) and [`ogden`] (N terms in the principal
+//! stretches); volumetric laws in [`volumetric`]. The
 //! [`registry`] builds a [`Material`] from a model name and named constants.
 //! [`homogeneous`] computes uniaxial, equibiaxial, planar, simple-shear and
 //! volumetric responses through the general 3-D routine, and [`stability`]
 //! checks Drucker stability along them.
 //!
-//! A model implements one trait, [`IsochoricEnergy`]: the energy and its first
-//! and second derivatives with respect to the isochoric invariants. Everything
-//! else — the second Piola–Kirchhoff stress, the consistent material tangent,
-//! and the separate pieces a mixed u–p element needs — is derived here once, in
-//! [`Material`], so adding a model touches one file (plus a row and a match arm in
-//! [`registry`]).
+//! Elements and tests see a model through [`IsochoricModel`]: the isochoric
+//! energy, stress and tangent at given kinematics, and the principal
+//! Kirchhoff stresses of an incompressible state (for the closed-form
+//! homogeneous responses used in fitting). A model written in the invariants
+//! implements the smaller trait [`IsochoricEnergy`] — the energy and its first
+//! and second derivatives with respect to Ī1, Ī2 — and gets everything else
+//! derived once, in [`invariants`]. A model that is not a function of the
+//! invariants in closed form (Ogden, in the principal stretches) implements
+//! [`IsochoricModel`] directly. Adding a model touches one file plus a row
+//! and a match arm in [`registry`], whose sample list drives the generated
+//! finite-difference checks.
 
 pub mod eight_chain;
 pub mod error;
 pub mod fd_check;
+pub mod gent;
 pub mod homogeneous;
+pub mod incompressible;
 pub mod invariants;
 pub mod langevin;
 pub mod mooney_rivlin;
 pub mod neo_hookean;
+pub mod ogden;
 pub mod registry;
 pub mod stability;
 pub mod tensor;
@@ -46,7 +55,8 @@ pub use volumetric::{VolumetricForm, VolumetricLaw};
 
 use nalgebra::Matrix3;
 
-/// Isochoric strain energy W_iso(Ī1, Ī2) of one hyperelastic model.
+/// Isochoric strain energy W_iso(Ī1, Ī2) of one hyperelastic model written in
+/// the invariants; [`IsochoricModel`] follows from it.
 pub trait IsochoricEnergy: Send + Sync + std::fmt::Debug {
     /// Model name as written in material tables (`neo-hookean`, ...).
     fn name(&self) -> &'static str;
@@ -58,6 +68,56 @@ pub trait IsochoricEnergy: Send + Sync + std::fmt::Debug {
 
     /// Small-strain shear modulus μ = 2 (∂W/∂Ī1 + ∂W/∂Ī2) at Ī1 = Ī2 = 3.
     fn shear_modulus(&self) -> f64;
+}
+
+/// The isochoric part of a hyperelastic model as elements and homogeneous
+/// tests use it. Implemented for every [`IsochoricEnergy`]; models in the
+/// principal stretches implement it directly.
+pub trait IsochoricModel: Send + Sync + std::fmt::Debug {
+    /// Model name as written in material tables (`neo-hookean`, ...).
+    fn name(&self) -> &'static str;
+
+    /// Small-strain shear modulus μ.
+    fn shear_modulus(&self) -> f64;
+
+    /// W_iso at the given kinematics.
+    fn energy(&self, kin: &Kinematics) -> Result<f64, MaterialError>;
+
+    /// W_iso, S_iso and D_iso at the given kinematics.
+    fn response(&self, kin: &Kinematics) -> Result<Response, MaterialError>;
+
+    /// Principal Kirchhoff stresses `τ_i = λ_i ∂W_iso/∂λ_i` of the
+    /// incompressible material at principal stretches with `λ1 λ2 λ3 = 1`,
+    /// up to the common hydrostatic pressure (only differences are
+    /// meaningful). The closed-form homogeneous responses are built on these.
+    fn principal_kirchhoff(&self, stretches: [f64; 3]) -> Result<[f64; 3], MaterialError>;
+}
+
+impl<T: IsochoricEnergy> IsochoricModel for T {
+    fn name(&self) -> &'static str {
+        IsochoricEnergy::name(self)
+    }
+
+    fn shear_modulus(&self) -> f64 {
+        IsochoricEnergy::shear_modulus(self)
+    }
+
+    fn energy(&self, kin: &Kinematics) -> Result<f64, MaterialError> {
+        Ok(self.derivatives(kin.i1_bar, kin.i2_bar)?.w)
+    }
+
+    fn response(&self, kin: &Kinematics) -> Result<Response, MaterialError> {
+        isochoric_response(self, kin)
+    }
+
+    fn principal_kirchhoff(&self, l: [f64; 3]) -> Result<[f64; 3], MaterialError> {
+        // ∂I1/∂λ_i = 2λ_i, ∂I2/∂λ_i = 2λ_i (I1 − λ_i²).
+        let sq = l.map(|x| x * x);
+        let i1: f64 = sq.iter().sum();
+        let i2 = sq[0] * sq[1] + sq[1] * sq[2] + sq[2] * sq[0];
+        let d = self.derivatives(i1, i2)?;
+        Ok(sq.map(|s| 2.0 * s * (d.w1 + d.w2 * (i1 - s))))
+    }
 }
 
 /// Stress and tangent at one state.
@@ -74,12 +134,12 @@ pub struct Response {
 /// One rubber compound: an isochoric model plus a volumetric law.
 #[derive(Debug)]
 pub struct Material {
-    pub isochoric: Box<dyn IsochoricEnergy>,
+    pub isochoric: Box<dyn IsochoricModel>,
     pub volumetric: VolumetricLaw,
 }
 
 impl Material {
-    pub fn new(isochoric: Box<dyn IsochoricEnergy>, volumetric: VolumetricLaw) -> Self {
+    pub fn new(isochoric: Box<dyn IsochoricModel>, volumetric: VolumetricLaw) -> Self {
         Material { isochoric, volumetric }
     }
 
@@ -104,14 +164,14 @@ impl Material {
     /// [`VolumetricLaw::pressure`] and [`VolumetricLaw::pressure_derivative`].
     pub fn isochoric_response(&self, c: &Matrix3<f64>) -> Result<Response, MaterialError> {
         let kin = Kinematics::new(c)?;
-        isochoric_response(self.isochoric.as_ref(), &kin)
+        self.isochoric.response(&kin)
     }
 
     /// The full response W, S = S_iso + J U'(J) C⁻¹ and its tangent, for
     /// displacement-only elements and homogeneous tests.
     pub fn response(&self, c: &Matrix3<f64>) -> Result<Response, MaterialError> {
         let kin = Kinematics::new(c)?;
-        let mut r = isochoric_response(self.isochoric.as_ref(), &kin)?;
+        let mut r = self.isochoric.response(&kin)?;
         let (j, ci) = (kin.j, &kin.c_inv);
         let p = self.volumetric.pressure(j)?;
         let dp = self.volumetric.pressure_derivative(j)?;
@@ -125,7 +185,6 @@ impl Material {
     /// Strain energy density W(C).
     pub fn energy(&self, c: &Matrix3<f64>) -> Result<f64, MaterialError> {
         let kin = Kinematics::new(c)?;
-        let d = self.isochoric.derivatives(kin.i1_bar, kin.i2_bar)?;
-        Ok(d.w + self.volumetric.energy(kin.j)?)
+        Ok(self.isochoric.energy(&kin)? + self.volumetric.energy(kin.j)?)
     }
 }

@@ -115,3 +115,34 @@ pub fn check_mode(material: &Material, mode: Mode, stretches: &[f64], settings: 
     let (lost_c, lo, stop_c) = walk(material, mode, &down, settings);
     ModeStability { mode, lost_in_tension: lost_t, lost_in_compression: lost_c, checked: (lo, hi), stopped: stop_t.or(stop_c) }
 }
+
+/// Stretches of `mode` whose principal stretches all lie within
+/// `[1/top, top]` (`top` > 1): the states a part reaches when its largest
+/// principal stretch is `top` and its smallest `1/top`. Equibiaxial
+/// `(b, b, 1/b²)` stays within for `b ∈ [1/√top, √top]`; uniaxial
+/// `(a, a^-½, a^-½)`, planar `(p, 1, 1/p)`, simple shear and volumetric
+/// for `[1/top, top]`.
+pub fn mode_range_within(mode: Mode, top: f64) -> (f64, f64) {
+    match mode {
+        Mode::Equibiaxial => (1.0 / top.sqrt(), top.sqrt()),
+        _ => (1.0 / top, top),
+    }
+}
+
+/// A compressive state of a test as the tensile state of another test it
+/// equals (same principal stretches of an incompressible material, up to
+/// order): equibiaxial compression `b < 1` is uniaxial tension `1/b²`,
+/// uniaxial compression `a < 1` is equibiaxial tension `1/√a`, planar
+/// compression `p < 1` is planar tension `1/p`. `None` for tension and for
+/// simple shear and volumetric states.
+pub fn tensile_equivalent(mode: Mode, stretch: f64) -> Option<(Mode, f64)> {
+    if !(stretch < 1.0) {
+        return None;
+    }
+    match mode {
+        Mode::Equibiaxial => Some((Mode::Uniaxial, 1.0 / (stretch * stretch))),
+        Mode::Uniaxial => Some((Mode::Equibiaxial, 1.0 / stretch.sqrt())),
+        Mode::Planar => Some((Mode::Planar, 1.0 / stretch)),
+        Mode::SimpleShear | Mode::Volumetric => None,
+    }
+}

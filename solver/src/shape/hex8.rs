@@ -1,6 +1,10 @@
 //! Trilinear hexahedron on [−1, 1]³ (VTK order: bottom face counter-clockwise,
 //! then top face).
 
+use olli_mesh::ElementKind;
+
+use super::{Domain, ShapeDef, ShapeKind};
+
 /// Reference coordinates of the nodes.
 pub const NODES: [[f64; 3]; 8] = [
     [-1.0, -1.0, -1.0],
@@ -24,6 +28,26 @@ pub fn eval(xi: [f64; 3]) -> ([f64; 8], [[f64; 3]; 8]) {
     }
     (n, d)
 }
+
+/// Values and reference derivatives into caller slices (the registry's signature).
+pub fn eval_into(xi: [f64; 3], n: &mut [f64], dn: &mut [[f64; 3]]) {
+    let (values, gradients) = eval(xi);
+    n[..8].copy_from_slice(&values);
+    dn[..8].copy_from_slice(&gradients);
+}
+
+/// Registry entry. Faces list their corners counter-clockwise seen from outside.
+pub const SHAPE: ShapeDef = ShapeDef {
+    kind: ShapeKind::Hex8,
+    domain: Domain::Cube,
+    corners: 8,
+    reference_nodes: &NODES,
+    eval: eval_into,
+    degree: 3,
+    sides: ElementKind::Hex8.sides(),
+    side_kind: Some(ShapeKind::Quad4),
+    edges: &[&[0, 1], &[1, 2], &[2, 3], &[3, 0], &[4, 5], &[5, 6], &[6, 7], &[7, 4], &[0, 4], &[1, 5], &[2, 6], &[3, 7]],
+};
 
 #[cfg(test)]
 mod tests {

@@ -70,6 +70,9 @@ pub struct Job {
     /// Rigid surfaces, in file order: their forces, contact width and peak
     /// pressure go to `history.csv` and the summary.
     pub rigid_names: Vec<String>,
+    /// Inserts, in file order: their position, force and moment go to
+    /// `history.csv` and the summary.
+    pub insert_names: Vec<String>,
     pub output: OutputPlan,
     /// Remarks of the mesh importer (reoriented elements, ...).
     pub mesh_notes: Vec<String>,
@@ -101,10 +104,16 @@ impl Job {
             .collect()
     }
 
+    /// The insert columns of `history.csv` with their units (see [`super::inserts::insert_columns`]).
+    pub fn insert_columns(&self) -> Vec<(String, &'static str)> {
+        self.insert_names.iter().flat_map(|n| super::inserts::insert_columns(self.kind, n)).collect()
+    }
+
     /// Every value column of `history.csv`, in order.
     pub fn history_columns(&self) -> Vec<String> {
         let mut c = self.reaction_columns();
         c.extend(self.rigid_columns());
+        c.extend(self.insert_columns().into_iter().map(|(n, _)| n));
         c
     }
 }
@@ -125,6 +134,10 @@ pub fn material_error_key(e: &MaterialError) -> Option<&str> {
 
 /// Reads, parses and checks the job file at `path`.
 pub fn load(path: &Path) -> Result<Job, InputError> {
+    if path.to_string_lossy().ends_with(super::SWEEP_SUFFIX) {
+        let message = "this is a sweep file, not a job: run it with `olli sweep`".to_string();
+        return Err(InputError { file: path.to_path_buf(), position: None, message });
+    }
     let source = std::fs::read_to_string(path).map_err(|e| InputError {
         file: path.to_path_buf(),
         position: None,
@@ -179,7 +192,7 @@ impl Builder<'_> {
         let mut materials = self.materials(&file)?;
         let regions = self.regions(&file, &mesh, &mut materials)?;
         let rigid = self.rigid_bodies(&file, &mesh, kind)?;
-        let stages = self.stages(&file, &mesh, kind)?;
+        let (stages, inserts) = self.stages(&file, &mesh, kind)?;
         let reaction_sets = self.reaction_sets(&file);
         let output = self.output_plan(&file)?;
 
@@ -189,6 +202,7 @@ impl Builder<'_> {
             regions,
             stages,
             rigid,
+            inserts,
             linear: LinearSettings::default(),
             // Frames are computed by the result writer for the increments it
             // saves, so the solver keeps no per-increment fields.
@@ -211,6 +225,7 @@ impl Builder<'_> {
             materials,
             reaction_sets,
             rigid_names: file.rigid.iter().map(|r| r.get_ref().name.get_ref().clone()).collect(),
+            insert_names: file.insert.iter().map(|r| r.get_ref().name.get_ref().clone()).collect(),
             output,
             mesh_notes,
         })
@@ -254,10 +269,10 @@ impl Builder<'_> {
             })?,
         };
         let given = t.constants();
-        let constants: Vec<(&str, f64)> = given.iter().map(|(k, v)| (*k, *v.get_ref())).collect();
+        let constants: Vec<(&str, f64)> = given.iter().map(|(k, v, _)| (*k, *v)).collect();
         olli_solver::material::registry::material(model, &constants, form).map_err(|e| {
             let span = material_error_key(&e)
-                .and_then(|k| given.iter().find(|(n, _)| *n == k).map(|(_, v)| v.span()))
+                .and_then(|k| given.iter().find(|(n, _, _)| *n == k).map(|(_, _, span)| span.clone()))
                 .unwrap_or_else(|| t.model.span());
             self.err(span, format!("material `{name}`: {e}"))
         })

@@ -9,14 +9,20 @@ use std::fmt;
 use olli_mesh::{summary, MeshSummary};
 
 use super::build::Job;
+use crate::stability_text::{self, Concern, Reach};
 use olli_solver::contact::Shape as RigidShape;
 use olli_solver::material::homogeneous::{Mode, Settings};
-use olli_solver::material::stability::check_mode;
+use olli_solver::material::stability::{check_mode, mode_range_within, ModeStability};
 use olli_solver::model::Formulation;
 
 /// Poisson's ratio above which a material counts as nearly incompressible
 /// for the locking warning (κ/μ above about 50; common practice).
 pub const NEARLY_INCOMPRESSIBLE_POISSON: f64 = 0.49;
+
+/// Largest principal stretch up to which stability is searched, whatever
+/// the job: far enough to say how much room a material has beyond a job's
+/// strains (rubber breaks well before a stretch of 10; common practice).
+pub const STABILITY_SEARCH: f64 = 10.0;
 
 /// Aspect ratio above which an element is reported (common practice).
 pub const ASPECT_WARNING: f64 = 10.0;
@@ -30,8 +36,10 @@ pub struct MaterialCheck {
     pub bulk_modulus: f64,
     pub poisson_ratio: f64,
     pub young_modulus: f64,
-    /// Modes that lose Drucker stability in the checked range, with the stretch.
-    pub unstable: Vec<(Mode, f64)>,
+    /// Drucker stability of the uniaxial, equibiaxial and planar tests up to
+    /// principal stretches of [`STABILITY_SEARCH`], with the stretches of
+    /// each test this job may reach.
+    pub stability: Vec<(ModeStability, (f64, f64))>,
 }
 
 /// One rigid surface as it starts.
@@ -85,21 +93,24 @@ pub fn stretch_range(job: &Job) -> (f64, f64) {
 pub fn check(job: &Job) -> CheckReport {
     let mesh = summary(&job.model.mesh);
     let range = stretch_range(job);
-    let n = 40;
-    let stretches: Vec<f64> = (0..=n).map(|i| range.0 * (range.1 / range.0).powf(i as f64 / n as f64)).collect();
     let mut warnings: Vec<String> = job.mesh_notes.clone();
     let settings = Settings::default();
     let mut materials = Vec::new();
     for m in &job.materials {
         let mat = &m.material;
         let (mu, kappa, nu) = (mat.shear_modulus(), mat.bulk_modulus(), mat.poisson_ratio());
-        let mut unstable = Vec::new();
+        let mut stability = Vec::new();
         for mode in [Mode::Uniaxial, Mode::Equibiaxial, Mode::Planar] {
+            let (lo, hi) = mode_range_within(mode, STABILITY_SEARCH);
+            let n = 60;
+            let stretches: Vec<f64> = (0..=n).map(|i| lo * (hi / lo).powf(i as f64 / n as f64)).collect();
             let s = check_mode(mat, mode, &stretches, &settings);
-            if let Some(l) = s.lost_in_tension.or(s.lost_in_compression) {
-                unstable.push((mode, l));
-                warnings.push(format!("material `{}` loses Drucker stability in {} at stretch {l:.3}", m.name, mode.name()));
+            let reach = mode_range_within(mode, range.1);
+            let job_reach = Reach { what: "this job's estimated stretches", range: reach };
+            if stability_text::concern(&s, Some(job_reach)) == Concern::Within {
+                warnings.push(format!("material `{}`, {}: {}", m.name, mode.name(), stability_text::verdict(&s, Some(job_reach))));
             }
+            stability.push((s, reach));
         }
         if m.used_by.is_empty() {
             warnings.push(format!("material `{}` is assigned to no region", m.name));
@@ -118,7 +129,7 @@ pub fn check(job: &Job) -> CheckReport {
             bulk_modulus: kappa,
             poisson_ratio: nu,
             young_modulus: 2.0 * mu * (1.0 + nu),
-            unstable,
+            stability,
         });
     }
     let q = &mesh.quality;
@@ -167,16 +178,27 @@ impl fmt::Display for CheckReport {
         writeln!(f, "stages: {}", self.stages.join(", "))?;
         writeln!(
             f,
-            "stability checked for stretches {:.3} to {:.3} (uniaxial, equibiaxial, planar)",
+            "estimated principal stretches of this job: {:.3} to {:.3} (Drucker stability searched to {STABILITY_SEARCH})",
             self.stretch_range.0, self.stretch_range.1
         )?;
         for mat in &self.materials {
-            let stable = if mat.unstable.is_empty() { "Drucker-stable".to_string() } else { "UNSTABLE".to_string() };
+            let reach = |s: &ModeStability, range: (f64, f64)| stability_text::concern(s, Some(Reach { what: "", range }));
+            let stable = if mat.stability.iter().all(|(s, range)| reach(s, *range) != Concern::Within) {
+                "Drucker-stable within this job's estimated stretches"
+            } else {
+                "loses Drucker stability within this job's estimated stretches"
+            };
             writeln!(
                 f,
                 "material {} ({}): shear modulus {:.4}, bulk modulus {:.4}, Poisson's ratio {:.5}, Young's modulus {:.4}; {stable}",
                 mat.name, mat.model, mat.shear_modulus, mat.bulk_modulus, mat.poisson_ratio, mat.young_modulus
             )?;
+            for (s, range) in &mat.stability {
+                if reach(s, *range) != Concern::Stable {
+                    let what = Reach { what: "this job's estimated stretches", range: *range };
+                    writeln!(f, "  {}: {}", s.mode.name(), stability_text::verdict(s, Some(what)))?;
+                }
+            }
         }
         for r in &self.rigid {
             writeln!(

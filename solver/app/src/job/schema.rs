@@ -51,6 +51,9 @@ pub struct JobFile {
     /// Rigid (metal) surfaces the rubber touches.
     #[serde(default)]
     pub rigid: Vec<Spanned<RigidSpec>>,
+    /// Rigid metal parts bonded to node sets.
+    #[serde(default)]
+    pub insert: Vec<Spanned<InsertSpec>>,
     /// Load stages, run in order.
     pub stage: Vec<Spanned<StageSpec>>,
     /// What to write and where.
@@ -125,24 +128,38 @@ pub struct MaterialTable {
     pub c20: Option<Spanned<f64>>,
     pub c30: Option<Spanned<f64>>,
     pub locking_stretch: Option<Spanned<f64>>,
+    pub extensibility_limit: Option<Spanned<f64>>,
+    /// Ogden moduli, one per term.
+    pub mu: Option<Spanned<Vec<f64>>>,
+    /// Ogden exponents, one per term.
+    pub alpha: Option<Spanned<Vec<f64>>>,
     pub bulk_modulus: Option<Spanned<f64>>,
     pub poisson_ratio: Option<Spanned<f64>>,
 }
 
 impl MaterialTable {
-    /// The constants given, by name, with their spans.
-    pub fn constants(&self) -> Vec<(&'static str, &Spanned<f64>)> {
-        let all = [
-            ("shear_modulus", &self.shear_modulus),
-            ("c10", &self.c10),
-            ("c01", &self.c01),
-            ("c20", &self.c20),
-            ("c30", &self.c30),
-            ("locking_stretch", &self.locking_stretch),
-            ("bulk_modulus", &self.bulk_modulus),
-            ("poisson_ratio", &self.poisson_ratio),
-        ];
-        all.into_iter().filter_map(|(k, v)| v.as_ref().map(|v| (k, v))).collect()
+    /// The constants given, by name, with their spans, in the registry's
+    /// order; a list constant (Ogden's `mu`, `alpha`) gives one entry per
+    /// term, each with the span of the whole array.
+    pub fn constants(&self) -> Vec<(&'static str, f64, std::ops::Range<usize>)> {
+        let scalar = |k, v: &Option<Spanned<f64>>| v.iter().map(move |v| (k, *v.get_ref(), v.span())).collect::<Vec<_>>();
+        let list = |k, v: &Option<Spanned<Vec<f64>>>| {
+            v.iter().flat_map(|v| v.get_ref().iter().map(move |&x| (k, x, v.span()))).collect::<Vec<_>>()
+        };
+        [
+            scalar("shear_modulus", &self.shear_modulus),
+            scalar("c10", &self.c10),
+            scalar("c01", &self.c01),
+            scalar("c20", &self.c20),
+            scalar("c30", &self.c30),
+            scalar("locking_stretch", &self.locking_stretch),
+            scalar("extensibility_limit", &self.extensibility_limit),
+            list("mu", &self.mu),
+            list("alpha", &self.alpha),
+            scalar("bulk_modulus", &self.bulk_modulus),
+            scalar("poisson_ratio", &self.poisson_ratio),
+        ]
+        .concat()
     }
 }
 
@@ -275,16 +292,17 @@ fn one() -> Spanned<usize> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use olli_solver::material::registry::ALL_CONSTANTS;
+    use olli_solver::material::registry::{ALL_CONSTANTS, LIST_CONSTANTS};
 
     #[test]
     fn material_table_knows_every_registry_constant() {
         let mut t = String::from("model = \"neo-hookean\"\n");
         for k in ALL_CONSTANTS {
-            t.push_str(&format!("{k} = 1.0\n"));
+            let value = if LIST_CONSTANTS.contains(k) { "[1.0]" } else { "1.0" };
+            t.push_str(&format!("{k} = {value}\n"));
         }
         let m: MaterialTable = toml::from_str(&t).unwrap();
-        let names: Vec<&str> = m.constants().iter().map(|(k, _)| *k).collect();
+        let names: Vec<&str> = m.constants().iter().map(|(k, _, _)| *k).collect();
         assert_eq!(names, ALL_CONSTANTS);
     }
 }
@@ -384,4 +402,35 @@ pub struct RigidSphere {
 pub enum RampSpec {
     Named(String),
     Table(Vec<[f64; 2]>),
+}
+
+/// Per stage name, components and their values: `{ push = { z = 2.0 } }`.
+pub type StageComponents = Spanned<BTreeMap<String, Spanned<BTreeMap<String, f64>>>>;
+
+/// A rigid metal part (pin, sleeve, plate) bonded to a node set. Per stage
+/// and component it is moved (`move`, `turn`), loaded (`force`, `moment`)
+/// or keeps its earlier state; components never named are held at zero
+/// unless listed in `free`.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct InsertSpec {
+    /// Name used in `history.csv` (`insert_<name>_...`) and the summary.
+    pub name: Spanned<String>,
+    /// Node (or side or element) set bonded to the insert.
+    pub nodes: Spanned<String>,
+    /// Reference point: rotations and moments are about it.
+    pub reference: Spanned<Vec<f64>>,
+    /// Translations (length units) reached at the end of each named stage.
+    #[serde(rename = "move")]
+    pub moves: Option<StageComponents>,
+    /// Rotations (degrees) about the reference point's axes reached at the end of each named stage.
+    pub turn: Option<StageComponents>,
+    /// Applied forces (force units) reached at the end of each named stage; the component moves freely.
+    pub force: Option<StageComponents>,
+    /// Applied moments about the reference point reached at the end of each named stage.
+    pub moment: Option<StageComponents>,
+    /// Components free (unloaded) from the start: `["rx", "ry"]`.
+    pub free: Option<Spanned<Vec<String>>>,
+    /// How each stage's change is spread over the stage (as for loads).
+    pub ramp: Option<Spanned<RampSpec>>,
 }

@@ -11,7 +11,7 @@ use toml::Spanned;
 use super::build::Builder;
 use super::diagnostics::{nearest, InputError};
 use super::schema::{AnalysisKind, JobFile, RampSpec, StageSpec};
-use olli_solver::model::{Force, IncrementControls, Motion, Pressure, Ramp, Stage, Support, BODY_FORCE_RAMP};
+use olli_solver::model::{Force, IncrementControls, Insert, Motion, Pressure, Ramp, Stage, Support, BODY_FORCE_RAMP};
 
 impl Builder<'_> {
     /// Component values `{ x = .., z = .. }` as an array for this analysis.
@@ -88,7 +88,8 @@ impl Builder<'_> {
         Ok(())
     }
 
-    pub(super) fn stages(&self, file: &JobFile, mesh: &Mesh, kind: AnalysisKind) -> Result<Vec<Stage>, InputError> {
+    /// The stages, and the inserts (whose drives the stages hold).
+    pub(super) fn stages(&self, file: &JobFile, mesh: &Mesh, kind: AnalysisKind) -> Result<(Vec<Stage>, Vec<Insert>), InputError> {
         if file.stage.is_empty() {
             return Err(self.err(0..0, "no [[stage]]: add at least one, e.g. `[[stage]] name = \"load\"`"));
         }
@@ -169,14 +170,15 @@ impl Builder<'_> {
             loaded[i] = true;
         }
         self.rigid_motions(file, kind, &mut stages, &mut loaded)?;
+        let inserts = self.inserts(file, mesh, kind, &mut stages, &mut loaded)?;
         if let Some(i) = loaded.iter().position(|&l| !l) {
             let name = &stages[i].name;
             return Err(self.err(
                 file.stage[i].span(),
-                format!("stage `{name}` has no loads: give it a [[motion]], [[pressure]], [[force]] or [[body_force]] with `stage = \"{name}\"`, or move a [[rigid]] surface in it"),
+                format!("stage `{name}` has no loads: give it a [[motion]], [[pressure]], [[force]] or [[body_force]] with `stage = \"{name}\"`, or move a [[rigid]] surface or an [[insert]] in it"),
             ));
         }
-        Ok(stages)
+        Ok((stages, inserts))
     }
 
     fn controls(&self, s: &Spanned<StageSpec>) -> Result<IncrementControls, InputError> {

@@ -50,6 +50,11 @@ pub struct RunSummary {
     /// Each rigid surface at the last converged increment: the force of the
     /// rubber on it by component, `contact_width` and `peak_pressure`.
     pub rigid: BTreeMap<String, BTreeMap<String, f64>>,
+    /// Each insert at the last converged increment, keyed as its
+    /// `history.csv` columns without the `insert_<name>_` prefix: position
+    /// (`x` ... `rz`, rotations in degrees), `force_<c>` and `moment_<c>` of
+    /// the rubber on it.
+    pub inserts: BTreeMap<String, BTreeMap<String, f64>>,
     /// Largest force of the stabilisation springs relative to the force
     /// scale over the run (0 without stabilisation); keep it well below 1 %.
     pub stabilization_share: f64,

@@ -119,6 +119,11 @@ impl<'m> ResultWriter<'m> {
                 None => values.extend(std::iter::repeat_n(0.0, dim + 2)),
             }
         }
+        for name in &self.job.insert_names {
+            if let Some(ins) = r.inserts.iter().find(|i| &i.name == name) {
+                values.extend(crate::job::inserts::insert_values(self.job.kind, ins));
+            }
+        }
         self.history.push(&r.stage_name, r.increment, r.load_factor, values, r.newton_iterations);
         if r.stabilization_share > 0.01 && self.stabilization_share <= 0.01 {
             let line = format!(
@@ -212,6 +217,19 @@ impl<'m> ResultWriter<'m> {
                 .collect(),
             None => BTreeMap::new(),
         };
+        let inserts = match last {
+            Some(r) => r
+                .inserts
+                .iter()
+                .map(|i| {
+                    let cols = crate::job::inserts::insert_columns(self.job.kind, &i.name);
+                    let prefix = format!("insert_{}_", i.name);
+                    let vals = crate::job::inserts::insert_values(self.job.kind, i);
+                    (i.name.clone(), cols.iter().zip(vals).map(|((c, _), v)| (c[prefix.len()..].to_string(), v)).collect())
+                })
+                .collect(),
+            None => BTreeMap::new(),
+        };
         let summary = RunSummary {
             olli_version: env!("CARGO_PKG_VERSION").into(),
             job: self.job.path.display().to_string(),
@@ -224,6 +242,7 @@ impl<'m> ResultWriter<'m> {
             last_increment: last.map(|r| IncrementRef { stage: r.stage_name.clone(), increment: r.increment, load_factor: r.load_factor }),
             reactions,
             rigid,
+            inserts,
             stabilization_share: self.stabilization_share,
             peaks: self.last_peaks,
             increments: solution.increments.len(),
@@ -236,7 +255,11 @@ impl<'m> ResultWriter<'m> {
                 log: LOG_FILE.into(),
                 frames: self.frames.len(),
             },
-            units: units(&self.job.history_columns()),
+            units: {
+                let mut u = units(&self.job.history_columns());
+                u.extend(self.job.insert_columns().into_iter().map(|(c, d)| (c, d.to_string())));
+                u
+            },
         };
         let end = match &summary.reason {
             None => format!("converged: {} increments, {} Newton iterations", summary.increments, summary.newton_iterations),

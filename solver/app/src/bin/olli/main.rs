@@ -6,6 +6,7 @@ mod check_cmd;
 mod material_cmd;
 mod mesh_cmd;
 mod run_cmd;
+mod sweep_cmd;
 
 use std::process::ExitCode;
 
@@ -28,6 +29,8 @@ enum Command {
     Run(run_cmd::Args),
     /// Check a job file and its mesh without solving.
     Check(check_cmd::Args),
+    /// Run many variants of one job (a `*.sweep.toml`), here or as a batch array, and collect `sweep.csv`.
+    Sweep(sweep_cmd::Args),
 }
 
 fn main() -> ExitCode {
@@ -37,5 +40,6 @@ fn main() -> ExitCode {
         Command::Mesh(args) => mesh_cmd::run(args),
         Command::Run(args) => run_cmd::run(args),
         Command::Check(args) => check_cmd::run(args),
+        Command::Sweep(args) => sweep_cmd::run(args),
     }
 }

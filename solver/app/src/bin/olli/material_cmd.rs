@@ -25,13 +25,15 @@ use spec::MaterialSpec;
 )]
 pub struct Args {
     /// TOML file holding one `[material]` table (keys: model, shear_modulus, c10, c01, c20, c30,
-    /// locking_stretch, bulk_modulus or poisson_ratio, volumetric).
+    /// locking_stretch, extensibility_limit, mu = [..], alpha = [..], bulk_modulus or poisson_ratio,
+    /// volumetric).
     #[arg(required_unless_present = "model", conflicts_with = "model")]
     pub file: Option<PathBuf>,
-    /// Model, instead of a file: neo-hookean, mooney-rivlin, yeoh or eight-chain.
+    /// Model, instead of a file: neo-hookean, mooney-rivlin, yeoh, eight-chain, gent or ogden.
     #[arg(long)]
     pub model: Option<String>,
-    /// A constant of the `--model`, as NAME=VALUE (repeat for each constant).
+    /// A constant of the `--model`, as NAME=VALUE (repeat for each constant; Ogden's mu and
+    /// alpha once per term, in term order).
     #[arg(long = "param", value_name = "NAME=VALUE", requires = "model")]
     pub params: Vec<String>,
     /// Volumetric law with `--model`: quadratic, logarithmic or simo-taylor.

@@ -142,6 +142,15 @@ fn print_summary(s: &RunSummary, folder: &Path, components: &[&str]) {
             get("peak_pressure")
         );
     }
+    for (name, r) in &s.inserts {
+        let group =
+            |f: &dyn Fn(&str) -> bool| r.iter().filter(|(k, _)| f(k)).map(|(k, v)| format!("{k} = {v:.6}")).collect::<Vec<_>>().join(", ");
+        let force = group(&|k| k.starts_with("force_"));
+        let moment = group(&|k| k.starts_with("moment_"));
+        let position = group(&|k| !k.starts_with("force_") && !k.starts_with("moment_"));
+        let moment = if moment.is_empty() { String::new() } else { format!("; {moment}") };
+        println!("insert {name}: {position} (rotations in degrees); {force}{moment}");
+    }
     if s.stabilization_share > 0.0 {
         println!("stabilization: the springs carried at most {:.3} % of the force scale", 100.0 * s.stabilization_share);
     }

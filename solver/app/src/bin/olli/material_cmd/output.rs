@@ -30,24 +30,9 @@ fn describe_mode(mode: Mode) -> &'static str {
     }
 }
 
-/// One line: where Drucker stability is lost in this mode, or that it holds.
+/// One line: where Drucker stability ends in this mode (the shared wording).
 pub fn stability_verdict(s: &ModeStability) -> String {
-    let mut lost = Vec::new();
-    if let Some(l) = s.lost_in_compression {
-        lost.push(format!("lost at stretch {l:.4} in compression"));
-    }
-    if let Some(l) = s.lost_in_tension {
-        lost.push(format!("lost at stretch {l:.4} in tension"));
-    }
-    if lost.is_empty() {
-        let mut text = format!("stable over stretch {:.4} to {:.4}", s.checked.0, s.checked.1);
-        if s.stopped.is_some() {
-            text.push_str(" (not checked beyond: the response stops there)");
-        }
-        text
-    } else {
-        format!("UNSTABLE: {}", lost.join("; "))
-    }
+    olli_app::stability_text::verdict(s, None)
 }
 
 fn is_stable(material: &Material, p: &Point) -> bool {
@@ -86,7 +71,7 @@ pub fn print_report(spec: &MaterialSpec, material: &Material, results: &[ModeRes
                 p.lateral_stretches[0],
                 p.lateral_stretches[1],
                 p.volume_ratio,
-                if is_stable(material, p) { "stable" } else { "UNSTABLE" }
+                if is_stable(material, p) { "stable" } else { "lost" }
             );
         }
         for e in &r.stops {

@@ -8,7 +8,7 @@ use std::ops::Range;
 
 use olli_app::job::build::material_error_key;
 use olli_app::job::diagnostics::{line_column, nearest};
-use olli_solver::material::registry::{self, ALL_CONSTANTS, MODEL_NAMES};
+use olli_solver::material::registry::{self, ALL_CONSTANTS, LIST_CONSTANTS, MODEL_NAMES};
 use olli_solver::material::{Material, MaterialError, VolumetricForm};
 use thiserror::Error;
 use toml::de::{DeTable, DeValue};
@@ -66,6 +66,15 @@ pub fn did_you_mean(given: &str, known: &[&str]) -> String {
 
 fn known_constant(name: &str) -> Option<&'static str> {
     ALL_CONSTANTS.iter().copied().find(|k| *k == name)
+}
+
+/// A TOML integer or float as f64.
+fn toml_number(value: &DeValue) -> Option<f64> {
+    match value {
+        DeValue::Integer(i) => i64::from_str_radix(&i.as_str().replace('_', ""), i.radix()).ok().map(|v| v as f64),
+        DeValue::Float(f) => f.as_str().replace('_', "").parse::<f64>().ok(),
+        _ => None,
+    }
 }
 
 impl MaterialSpec {
@@ -144,14 +153,19 @@ impl MaterialSpec {
                             hint: did_you_mean(name, &known),
                         });
                     };
-                    let number = match value.get_ref() {
-                        DeValue::Integer(i) => i64::from_str_radix(&i.as_str().replace('_', ""), i.radix()).ok().map(|v| v as f64),
-                        DeValue::Float(f) => f.as_str().replace('_', "").parse::<f64>().ok(),
-                        _ => None,
+                    let numbers = if LIST_CONSTANTS.contains(&constant) {
+                        match value.get_ref() {
+                            DeValue::Array(items) if !items.is_empty() => items.iter().map(|v| toml_number(v.get_ref())).collect(),
+                            _ => None,
+                        }
+                    } else {
+                        toml_number(value.get_ref()).map(|v| vec![v])
                     };
-                    let number =
-                        number.ok_or_else(|| SpecError::WrongType { at: here.clone(), key: name.to_string(), expected: "a number" })?;
-                    constants.push((constant, number));
+                    let expected = if LIST_CONSTANTS.contains(&constant) { "an array of numbers, one per term" } else { "a number" };
+                    let numbers = numbers.ok_or_else(|| SpecError::WrongType { at: here.clone(), key: name.to_string(), expected })?;
+                    for number in numbers {
+                        constants.push((constant, number));
+                    }
                     origins.push((constant, here));
                 }
             }
@@ -202,10 +216,17 @@ impl MaterialSpec {
         })
     }
 
-    /// The constants as `name = value` for the report header.
+    /// The constants as `name = value` for the report header (a list
+    /// constant as `name = [a, b]`).
     pub fn describe(&self) -> String {
         let mut parts = vec![format!("model = {}", self.model)];
-        parts.extend(self.constants.iter().map(|(k, v)| format!("{k} = {v}")));
+        for (i, (k, _)) in self.constants.iter().enumerate() {
+            if self.constants[..i].iter().any(|(seen, _)| seen == k) {
+                continue;
+            }
+            let values: Vec<String> = self.constants.iter().filter(|(n, _)| n == k).map(|(_, v)| v.to_string()).collect();
+            parts.push(if LIST_CONSTANTS.contains(k) { format!("{k} = [{}]", values.join(", ")) } else { format!("{k} = {}", values[0]) });
+        }
         parts.push(format!("volumetric = {}", self.volumetric.name()));
         parts.join(", ")
     }
