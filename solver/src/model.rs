@@ -162,7 +162,8 @@ pub struct IncrementControls {
     pub first: f64,
     /// Smallest increment before the run stops (fraction of the stage). Default 1e-5.
     pub min: f64,
-    /// Largest increment (fraction of the stage). Default 1.0.
+    /// Largest increment (fraction of the stage). Default 1.0 here; job
+    /// files default to 0.25 (their `max_increment` key).
     pub max: f64,
     /// Growth factor of the increment after a fast convergence. Default 1.5.
     pub growth: f64,
@@ -178,7 +179,8 @@ pub struct IncrementControls {
     /// (external plus reaction forces). Default 1e-6.
     pub force_tolerance: f64,
     /// Energy norm |du·r| of the last correction relative to that of the first.
-    /// Default 1e-12. Either this or the displacement criterion must hold.
+    /// Default 1e-8. Either this or the displacement criterion must hold
+    /// (besides the force criterion).
     pub energy_tolerance: f64,
     /// Norm of the last correction relative to the larger of the increment's
     /// and the total displacement. Default 1e-6.
