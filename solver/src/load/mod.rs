@@ -3,4 +3,5 @@
 //! a nodal force vector.
 
 pub mod dead;
+pub mod follower;
 pub mod pressure;
