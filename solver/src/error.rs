@@ -3,7 +3,14 @@
 
 use thiserror::Error;
 
+use crate::assembly::{AssemblyError, KernelError};
+use crate::contact::active::ContactError;
 use crate::element::ElementError;
+use crate::insert::InsertError;
+use crate::linear::LinearError;
+use crate::load::fluid::FluidError;
+use crate::material::MaterialError;
+use crate::model::ControlsError;
 
 #[derive(Debug, Clone, PartialEq, Error)]
 pub enum SolveError {
@@ -25,8 +32,12 @@ pub enum SolveError {
     BadThickness(f64),
     #[error("the model has no stages")]
     NoStages,
+    #[error("stage `{stage}`: {source}")]
+    BadControls { stage: String, source: ControlsError },
     #[error("element {element}: {source}")]
     Element { element: usize, source: ElementError },
+    #[error("element {element}, integration point {point}: {source}")]
+    Material { element: usize, point: usize, source: MaterialError },
     #[error("element {element} inverted at integration point {point} (J = {j:.3e})")]
     InvertedElement { element: usize, point: usize, j: f64 },
     #[error("stage `{stage}` increment {increment}: no convergence, residual {residual:.3e} (relative {relative:.3e})")]
@@ -43,18 +54,60 @@ pub enum SolveError {
     ContactNotResolved { penetration: f64, tolerance: f64, augmentations: usize },
     #[error("insert `{insert}`: {reason}")]
     BadInsert { insert: String, reason: String },
+    #[error("insert equations are singular (is a free insert component held by nothing?)")]
+    SingularInserts,
     #[error("linear solve failed: {0}")]
-    Linear(String),
+    Linear(#[from] LinearError),
+    #[error("the residual is not finite")]
+    NonFiniteResidual,
     #[error("sparse pattern too large: {0} stored entries exceed the 32-bit scatter map")]
     PatternTooLarge(usize),
 }
 
 impl SolveError {
-    /// Wraps an element failure, lifting inversion to its own variant.
-    pub fn from_element(element: usize, e: ElementError) -> Self {
+    /// Wraps the failure of element `element`, lifting inversion to its own variant.
+    pub fn from_element(element: usize, e: impl Into<KernelError>) -> Self {
+        AssemblyError::in_element(element, e).into()
+    }
+}
+
+impl From<AssemblyError> for SolveError {
+    fn from(e: AssemblyError) -> Self {
         match e {
-            ElementError::Inverted { point, j } => SolveError::InvertedElement { element, point, j },
-            source => SolveError::Element { element, source },
+            AssemblyError::UnsupportedElement { element, kind, analysis, hint } => {
+                SolveError::UnsupportedElement { element, kind, analysis, hint }
+            }
+            AssemblyError::MissingRegion { element } => SolveError::MissingRegion { element },
+            AssemblyError::OverlappingRegions { element, first, second } => SolveError::OverlappingRegions { element, first, second },
+            AssemblyError::ElementOutOfRange { region, element, count } => SolveError::ElementOutOfRange { region, element, count },
+            AssemblyError::DimensionMismatch { mesh, analysis } => SolveError::DimensionMismatch { mesh, analysis },
+            AssemblyError::BadThickness(t) => SolveError::BadThickness(t),
+            AssemblyError::InvertedElement { element, point, j } => SolveError::InvertedElement { element, point, j },
+            AssemblyError::Element { element, source } => SolveError::Element { element, source },
+            AssemblyError::Material { element, point, source } => SolveError::Material { element, point, source },
+            AssemblyError::PatternTooLarge(n) => SolveError::PatternTooLarge(n),
         }
+    }
+}
+
+impl From<InsertError> for SolveError {
+    fn from(e: InsertError) -> Self {
+        match e {
+            InsertError::UnknownSet { set, .. } => SolveError::UnknownSet { stage: String::from("(inserts)"), name: set },
+            InsertError::Bad { insert, reason } => SolveError::BadInsert { insert, reason },
+            InsertError::Singular => SolveError::SingularInserts,
+        }
+    }
+}
+
+impl From<FluidError> for SolveError {
+    fn from(e: FluidError) -> Self {
+        SolveError::BadFluid { fluid: e.fluid, reason: e.reason }
+    }
+}
+
+impl From<ContactError> for SolveError {
+    fn from(e: ContactError) -> Self {
+        SolveError::BadContact { body: e.body, reason: e.reason }
     }
 }

@@ -41,6 +41,7 @@ pub mod material;
 pub mod model;
 pub mod quadrature;
 pub mod results;
+pub mod rigid_surface;
 pub mod shape;
 
 pub use driver::{solve, Event, Observer, Quiet};

@@ -11,11 +11,11 @@
 use std::sync::Arc;
 
 use olli_mesh::Mesh;
+use thiserror::Error;
 
-pub use crate::contact::Shape as RigidShape;
 pub use crate::element::{Analysis, Formulation};
-use crate::linear::LinearSettings;
 use crate::material::Material;
+pub use crate::rigid_surface::Shape as RigidShape;
 
 /// One material region.
 #[derive(Debug, Clone)]
@@ -184,7 +184,8 @@ pub struct IncrementControls {
     pub first: f64,
     /// Smallest increment before the run stops (fraction of the stage). Default 1e-5.
     pub min: f64,
-    /// Largest increment (fraction of the stage). Default 1.0.
+    /// Largest increment (fraction of the stage). Default 1.0 here; job
+    /// files default to 0.25 (their `max_increment` key).
     pub max: f64,
     /// Growth factor of the increment after a fast convergence. Default 1.5.
     pub growth: f64,
@@ -200,7 +201,8 @@ pub struct IncrementControls {
     /// (external plus reaction forces). Default 1e-6.
     pub force_tolerance: f64,
     /// Energy norm |du·r| of the last correction relative to that of the first.
-    /// Default 1e-12. Either this or the displacement criterion must hold.
+    /// Default 1e-8. Either this or the displacement criterion must hold
+    /// (besides the force criterion).
     pub energy_tolerance: f64,
     /// Norm of the last correction relative to the larger of the increment's
     /// and the total displacement. Default 1e-6.
@@ -242,6 +244,65 @@ impl Default for IncrementControls {
             carry_pressure: true,
             stabilization: 0.0,
         }
+    }
+}
+
+/// Why [`IncrementControls`] cannot drive a stage.
+#[derive(Debug, Clone, PartialEq, Error)]
+pub enum ControlsError {
+    /// A value outside its allowed range (NaN included).
+    #[error("`{field}` must be {requirement}, got {value}")]
+    OutOfRange {
+        /// The field of [`IncrementControls`].
+        field: &'static str,
+        /// The value given.
+        value: f64,
+        /// What it must be.
+        requirement: &'static str,
+    },
+    /// The smallest increment is larger than the largest.
+    #[error("`min` ({min}) is larger than `max` ({max})")]
+    MinAboveMax {
+        /// Smallest increment given.
+        min: f64,
+        /// Largest increment given.
+        max: f64,
+    },
+}
+
+impl IncrementControls {
+    /// Checks that the controls can drive a stage: positive finite
+    /// increments with `min ≤ max`, `growth ≥ 1`, `0 < cutback < 1` (so a
+    /// failing increment shrinks and the run ends at `min`), at least one
+    /// iteration, non-negative finite tolerances (the force tolerance
+    /// positive) and stabilisation. [`crate::solve`] calls it for every stage.
+    pub fn validate(&self) -> Result<(), ControlsError> {
+        let check = |field: &'static str, value: f64, ok: bool, requirement: &'static str| {
+            if ok && value.is_finite() {
+                Ok(())
+            } else {
+                Err(ControlsError::OutOfRange { field, value, requirement })
+            }
+        };
+        check("first", self.first, self.first > 0.0, "positive")?;
+        check("min", self.min, self.min > 0.0, "positive")?;
+        check("max", self.max, self.max > 0.0, "positive")?;
+        if self.min > self.max {
+            return Err(ControlsError::MinAboveMax { min: self.min, max: self.max });
+        }
+        check("growth", self.growth, self.growth >= 1.0, "at least 1")?;
+        check("cutback", self.cutback, self.cutback > 0.0 && self.cutback < 1.0, "between 0 and 1 (exclusive)")?;
+        check("max_iterations", self.max_iterations as f64, self.max_iterations >= 1, "at least 1")?;
+        check("force_tolerance", self.force_tolerance, self.force_tolerance > 0.0, "positive")?;
+        check("energy_tolerance", self.energy_tolerance, self.energy_tolerance >= 0.0, "non-negative")?;
+        check("displacement_tolerance", self.displacement_tolerance, self.displacement_tolerance >= 0.0, "non-negative")?;
+        check("stabilization", self.stabilization, self.stabilization >= 0.0, "non-negative")?;
+        Ok(())
+    }
+
+    /// The controls, if [`Self::validate`] accepts them.
+    pub fn checked(self) -> Result<Self, ControlsError> {
+        self.validate().map(|_| self)
     }
 }
 
@@ -316,6 +377,30 @@ pub struct Stage {
     /// forces on that set; [`BODY_FORCE_RAMP`] for the body force), by
     /// rigid-body name (its motion) or by fluid name (its pressure). Loads not named here ramp linearly.
     pub ramps: std::collections::BTreeMap<String, Ramp>,
+}
+
+/// Fill-reducing ordering of the Cholesky factorization.
+#[derive(Debug, Clone, PartialEq, Eq, Default)]
+pub enum Ordering {
+    /// Approximate minimum degree (faer's built-in). Default.
+    #[default]
+    Amd,
+    /// Nested dissection of the node graph through METIS (needs the `metis`
+    /// feature; without it the solver reports an error).
+    NestedDissection,
+    /// Both AMD and nested dissection (if available); keeps whichever gives
+    /// the factor with fewer entries.
+    LeastFill,
+    /// A caller-supplied permutation: `perm[k]` is the equation eliminated k-th
+    /// (e.g. from a nested-dissection partitioner).
+    Custom(Vec<usize>),
+}
+
+/// Settings of the linear solver.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct LinearSettings {
+    /// Fill-reducing ordering. Default AMD.
+    pub ordering: Ordering,
 }
 
 /// Which fields each converged increment keeps.

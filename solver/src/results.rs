@@ -5,17 +5,12 @@ use std::collections::BTreeMap;
 use std::f64::consts::PI;
 
 pub use crate::contact::active::{ContactFields, ContactSummary};
+use olli_mesh::Mesh;
+
 use crate::element::PointState;
 use crate::error::SolveError;
 use crate::linear::LinearStats;
 pub use crate::load::fluid::FluidSummary;
-
-impl PointState {
-    /// Largest principal logarithmic (Hencky) strain ln λ_max.
-    pub fn max_log_strain(&self) -> f64 {
-        self.stretches[0].ln()
-    }
-}
 
 /// Integration-point fields of every element.
 #[derive(Debug, Clone, PartialEq, Default)]
@@ -49,7 +44,7 @@ pub struct NodalFields {
 }
 
 /// One converged increment.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, Default)]
 pub struct IncrementResult {
     /// Index of the stage in the model.
     pub stage: usize,
@@ -62,12 +57,15 @@ pub struct IncrementResult {
     pub step: f64,
     /// Node displacements (2-D: third entry zero).
     pub displacement: Vec<[f64; 3]>,
-    /// Reaction force (internal minus external force) summed over each
-    /// named set; axisymmetric: over the full 2π.
+    /// Reaction force summed over each named set (the sum of
+    /// [`Self::nodal_reactions`] over its nodes); axisymmetric: over the full 2π.
     pub reactions: BTreeMap<String, [f64; 3]>,
     /// Moment of the reactions of each set in [`crate::Model::moment_points`]
     /// about its point, at the deformed node positions.
     pub reaction_moments: BTreeMap<String, [f64; 3]>,
+    /// Reaction force at every node: internal minus external force at its
+    /// prescribed components, zero at free ones (2-D: third entry zero).
+    pub nodal_reactions: Vec<[f64; 3]>,
     /// Linear solves of this increment.
     pub newton_iterations: usize,
     /// Out-of-balance force relative to the force scale after each Newton
@@ -140,5 +138,67 @@ impl Solution {
 
     pub fn last(&self) -> Option<&IncrementResult> {
         self.increments.last()
+    }
+}
+
+/// Volume-weighted mean over one element's integration points of
+/// `value(point)`, and the element's volume (the sum of the point weights;
+/// a plain mean when that is not positive).
+pub fn element_mean<const N: usize>(points: &[PointState], value: impl Fn(&PointState) -> [f64; N]) -> ([f64; N], f64) {
+    let volume: f64 = points.iter().map(|s| s.volume).sum();
+    let mut mean = [0.0; N];
+    for s in points {
+        let w = if volume > 0.0 { s.volume / volume } else { 1.0 / points.len() as f64 };
+        for (m, v) in mean.iter_mut().zip(value(s)) {
+            *m += v * w;
+        }
+    }
+    (mean, volume)
+}
+
+/// Average at each node of per-element values, weighted by the volumes of
+/// the elements around the node (zero at nodes of no element). The one
+/// nodal averaging of olli: the solver's [`NodalFields`] and the result
+/// files' point data both come from it.
+pub fn nodal_average<const N: usize>(mesh: &Mesh, element_values: &[[f64; N]], element_volumes: &[f64]) -> Vec<[f64; N]> {
+    let nn = mesh.node_count();
+    let mut weight = vec![0.0; nn];
+    let mut out = vec![[0.0; N]; nn];
+    for (e, (values, &volume)) in element_values.iter().zip(element_volumes).enumerate() {
+        for &n in mesh.element_nodes(e) {
+            weight[n] += volume;
+            for (o, v) in out[n].iter_mut().zip(values) {
+                *o += v * volume;
+            }
+        }
+    }
+    for (o, w) in out.iter_mut().zip(weight) {
+        if w > 0.0 {
+            o.iter_mut().for_each(|v| *v /= w);
+        }
+    }
+    out
+}
+
+/// The quantities [`NodalFields`] averages, per point: Cauchy stress (Voigt
+/// order), pressure, J, largest log strain, energy density.
+pub fn nodal_quantities(s: &PointState) -> [f64; 10] {
+    let c = &s.cauchy;
+    [c[(0, 0)], c[(1, 1)], c[(2, 2)], c[(0, 1)], c[(1, 2)], c[(0, 2)], s.pressure, s.j, s.max_log_strain(), s.energy_density]
+}
+
+impl NodalFields {
+    /// Node averages of the point fields of every element of `mesh`.
+    pub fn from_points(mesh: &Mesh, points: &PointFields) -> Self {
+        let (means, volumes): (Vec<[f64; 10]>, Vec<f64>) =
+            (0..mesh.element_count()).map(|e| element_mean(points.element(e), nodal_quantities)).unzip();
+        let nodal = nodal_average(mesh, &means, &volumes);
+        NodalFields {
+            cauchy: nodal.iter().map(|v| [v[0], v[1], v[2], v[3], v[4], v[5]]).collect(),
+            pressure: nodal.iter().map(|v| v[6]).collect(),
+            j: nodal.iter().map(|v| v[7]).collect(),
+            max_log_strain: nodal.iter().map(|v| v[8]).collect(),
+            energy_density: nodal.iter().map(|v| v[9]).collect(),
+        }
     }
 }

@@ -4,8 +4,9 @@
 
 use olli_mesh::{ElementKind, Mesh};
 
-use crate::element::{Analysis, ElementContext, Shape};
-use crate::error::SolveError;
+use super::error::AssemblyError;
+use super::kernel::ElementContext;
+use crate::element::{Analysis, Shape};
 use crate::model::Model;
 use crate::shape::{ShapeKind, MAX_NODES};
 
@@ -44,27 +45,27 @@ pub struct Discretization<'m> {
 }
 
 impl<'m> Discretization<'m> {
-    pub fn new(model: &'m Model) -> Result<Self, SolveError> {
+    pub fn new(model: &'m Model) -> Result<Self, AssemblyError> {
         let mesh: &Mesh = &model.mesh;
         let dim = match model.analysis {
             Analysis::Solid3d => 3,
             Analysis::Axisymmetric => 2,
             Analysis::PlaneStrain { thickness } => {
                 if !(thickness > 0.0 && thickness.is_finite()) {
-                    return Err(SolveError::BadThickness(thickness));
+                    return Err(AssemblyError::BadThickness(thickness));
                 }
                 2
             }
         };
         if mesh.dimension != dim {
-            return Err(SolveError::DimensionMismatch { mesh: mesh.dimension, analysis: analysis_name(model.analysis) });
+            return Err(AssemblyError::DimensionMismatch { mesh: mesh.dimension, analysis: analysis_name(model.analysis) });
         }
         let n = mesh.element_count();
         let mut shapes = Vec::with_capacity(n);
         for (e, &k) in mesh.kinds.iter().enumerate() {
             let shape = ShapeKind::of_element(k).filter(|s| s.dimension() == dim && !matches!(s, ShapeKind::Tri3 | ShapeKind::Tet4));
             let Some(shape) = shape else {
-                return Err(SolveError::UnsupportedElement {
+                return Err(AssemblyError::UnsupportedElement {
                     element: e,
                     kind: k.name().to_string(),
                     analysis: analysis_name(model.analysis),
@@ -78,10 +79,10 @@ impl<'m> Discretization<'m> {
         for (r, region) in model.regions.iter().enumerate() {
             for &e in &region.elements {
                 if e >= n {
-                    return Err(SolveError::ElementOutOfRange { region: region.name.clone(), element: e, count: n });
+                    return Err(AssemblyError::ElementOutOfRange { region: region.name.clone(), element: e, count: n });
                 }
                 if region_of[e] != usize::MAX {
-                    return Err(SolveError::OverlappingRegions {
+                    return Err(AssemblyError::OverlappingRegions {
                         element: e,
                         first: model.regions[region_of[e]].name.clone(),
                         second: region.name.clone(),
@@ -91,7 +92,7 @@ impl<'m> Discretization<'m> {
             }
         }
         if let Some(e) = region_of.iter().position(|&r| r == usize::MAX) {
-            return Err(SolveError::MissingRegion { element: e });
+            return Err(AssemblyError::MissingRegion { element: e });
         }
         Ok(Discretization { model, shapes, region_of, dim, max_dofs })
     }

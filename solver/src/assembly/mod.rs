@@ -1,16 +1,31 @@
-//! Global assembly: the degree-of-freedom map with eliminated Dirichlet
+//! Global assembly: the element table resolved from the model
+//! ([`discretization`]), the degree-of-freedom map with eliminated Dirichlet
 //! dofs ([`dofs`]), the sparse lower-triangle pattern with its
 //! element-to-storage scatter map built once per mesh and constraint set
-//! ([`pattern`]), and the rayon-parallel element loop ([`assembler`]).
+//! ([`pattern`]), the integration-point kernel ([`kernel`]), the carried
+//! unknowns of mixed elements ([`mixed`]) and the rayon-parallel element
+//! loop ([`assembler`]).
 //!
-//! This is the one place where elements, materials and the global system meet.
+//! This is the one place where elements and materials meet: the element
+//! supplies kinematics per integration point, [`kernel`] evaluates the
+//! material there and hands the stress and tangent back to the element.
 
 pub mod assembler;
 pub mod discretization;
 pub mod dofs;
+pub mod error;
+pub mod global;
+pub mod kernel;
+pub mod mixed;
 pub mod pattern;
 
 pub use assembler::Assembler;
 pub use discretization::Discretization;
 pub use dofs::DofMap;
+pub use error::AssemblyError;
+pub use kernel::{element_into, element_with_state_into, point_states, ElementContext, KernelError};
+pub use mixed::MixedUnknowns;
 pub use pattern::Pattern;
+
+#[cfg(test)]
+mod fd_tests;

@@ -3,12 +3,10 @@
 //! set, so Newton iterations write straight into the value array without
 //! triplets, sorting or allocation.
 
-use faer::sparse::SymbolicSparseColMat;
-
 use super::discretization::Discretization;
 use super::dofs::{DofMap, NONE};
+use super::error::AssemblyError;
 use crate::element::MAX_DOFS;
-use crate::error::SolveError;
 
 /// Marks an element matrix entry that is not stored (upper triangle or a prescribed dof).
 pub const SKIP: u32 = u32::MAX;
@@ -28,7 +26,7 @@ pub struct Pattern {
 }
 
 impl Pattern {
-    pub fn build(disc: &Discretization, dofs: &DofMap) -> Result<Self, SolveError> {
+    pub fn build(disc: &Discretization, dofs: &DofMap) -> Result<Self, AssemblyError> {
         let mesh = disc.mesh();
         let dim = dofs.dim;
         // Node adjacency, each list sorted: with node-major equation numbers
@@ -68,7 +66,7 @@ impl Pattern {
             }
         }
         if row_idx.len() >= SKIP as usize {
-            return Err(SolveError::PatternTooLarge(row_idx.len()));
+            return Err(AssemblyError::PatternTooLarge(row_idx.len()));
         }
         drop(adj);
         let mut scatter_offset = Vec::with_capacity(mesh.element_count() + 1);
@@ -106,11 +104,6 @@ impl Pattern {
 
     pub fn nnz(&self) -> usize {
         self.row_idx.len()
-    }
-
-    /// The faer symbolic structure of the pattern.
-    pub fn symbolic(&self) -> SymbolicSparseColMat<usize> {
-        SymbolicSparseColMat::new_checked(self.n, self.n, self.col_ptr.clone(), None, self.row_idx.clone())
     }
 }
 

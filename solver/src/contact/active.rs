@@ -4,20 +4,22 @@
 //!
 //! The contact tangent only couples the degrees of freedom of one node with
 //! each other, so it fits in the node-diagonal blocks that the element
-//! pattern already holds: no new sparse entries are needed. Its symmetric
-//! part goes into the lower-triangle tangent; with friction, the skew part
-//! is returned separately for the non-symmetric factorization.
+//! pattern already holds: no new sparse entries are needed. It is added
+//! through the assembly's [`GlobalSystem`]: the symmetric part into the
+//! lower-triangle tangent and, with friction, the skew part separately for
+//! the non-symmetric factorization.
 
 use nalgebra::{Matrix3, Vector3};
 
 use super::law::{ContactParameters, NodeState, Status};
 use super::pair::{AreaMeasure, ContactPair, PairResponse};
 use super::surface::{Placement, RigidSurface};
-use crate::assembly::dofs::{DofMap, NONE};
-use crate::assembly::{Discretization, Pattern};
+use crate::assembly::global::GlobalSystem;
+use crate::assembly::Discretization;
 use crate::element::Analysis;
-use crate::error::SolveError;
 use std::collections::BTreeMap;
+
+use thiserror::Error;
 
 use crate::model::{Ramp, RigidBody, RigidMotion};
 
@@ -28,6 +30,17 @@ pub const PENALTY_FACTOR: f64 = 50.0;
 
 /// Largest number of augmentation updates per increment.
 pub const MAX_AUGMENTATIONS: usize = 12;
+
+/// A rigid body that cannot be set up: a missing or empty side set, a bad
+/// friction coefficient, penalty or tolerance, or a motion naming no body.
+#[derive(Debug, Clone, PartialEq, Error)]
+#[error("rigid body `{body}`: {reason}")]
+pub struct ContactError {
+    /// Name of the rigid body.
+    pub body: String,
+    /// What is wrong with it.
+    pub reason: String,
+}
 
 /// One rigid body in contact during the run.
 #[derive(Debug, Clone)]
@@ -79,8 +92,6 @@ pub struct ContactFields {
 pub struct ActiveContacts {
     bodies: Vec<Body>,
     dim: usize,
-    /// Skew-symmetric part of the tangent at lower-triangle slots (friction).
-    pub skew: Vec<(usize, f64)>,
 }
 
 fn rest(name: &str) -> RigidMotion {
@@ -90,7 +101,7 @@ fn rest(name: &str) -> RigidMotion {
 impl ActiveContacts {
     /// Sets up every rigid body: its rubber nodes, tributary areas and the
     /// default penalty from the neighbouring material.
-    pub fn new(disc: &Discretization) -> Result<Self, SolveError> {
+    pub fn new(disc: &Discretization) -> Result<Self, ContactError> {
         let model = disc.model;
         let mesh = disc.mesh();
         let measure = match model.analysis {
@@ -100,7 +111,7 @@ impl ActiveContacts {
         };
         let mut bodies = Vec::new();
         for def in &model.rigid {
-            let bad = |reason: String| SolveError::BadContact { body: def.name.clone(), reason };
+            let bad = |reason: String| ContactError { body: def.name.clone(), reason };
             let sides = mesh.side_sets.get(&def.sides).ok_or_else(|| bad(format!("no side set named `{}`", def.sides)))?;
             if sides.is_empty() {
                 return Err(bad(format!("side set `{}` is empty", def.sides)));
@@ -152,14 +163,14 @@ impl ActiveContacts {
         for stage in &model.stages {
             for m in &stage.rigid_motions {
                 if !model.rigid.iter().any(|b| b.name == m.body) {
-                    return Err(SolveError::BadContact {
+                    return Err(ContactError {
                         body: m.body.clone(),
                         reason: format!("stage `{}` moves a rigid body that does not exist", stage.name),
                     });
                 }
             }
         }
-        Ok(ActiveContacts { bodies, dim: disc.dim, skew: Vec::new() })
+        Ok(ActiveContacts { bodies, dim: disc.dim })
     }
 
     pub fn is_empty(&self) -> bool {
@@ -199,24 +210,11 @@ impl ActiveContacts {
         );
     }
 
-    /// Evaluates contact at displacement `u` and stage fraction `t`: adds the
-    /// contact forces to `f_ext`, the symmetric tangent part to `k` (lower
-    /// triangle, pattern order), the skew part to `self.skew`, and the
-    /// predictor term `−K_fp du_p` to `rhs`.
-    #[allow(clippy::too_many_arguments)]
-    pub fn evaluate(
-        &mut self,
-        mesh_nodes: &[[f64; 3]],
-        u: &[f64],
-        t: f64,
-        dofs: &DofMap,
-        pattern: &Pattern,
-        f_ext: &mut [f64],
-        mut k: Option<&mut [f64]>,
-        mut predictor: Option<(&[f64], &mut [f64])>,
-    ) {
+    /// Evaluates contact at displacement `u` and stage fraction `t`, adding
+    /// the contact forces, the node-diagonal tangent blocks (their skew
+    /// part with friction) and the predictor term to `system`.
+    pub fn evaluate(&mut self, mesh_nodes: &[[f64; 3]], u: &[f64], t: f64, system: &mut GlobalSystem) {
         let dim = self.dim;
-        self.skew.clear();
         let position = |n: usize| {
             let mut x = Vector3::from(mesh_nodes[n]);
             for i in 0..dim {
@@ -224,6 +222,8 @@ impl ActiveContacts {
             }
             x
         };
+        let want_k = system.wants_stiffness();
+        let mut block = [0.0; 9];
         for b in &mut self.bodies {
             Self::place(b, t);
             b.pair.evaluate_into(&b.surface, position, &mut b.last);
@@ -231,37 +231,16 @@ impl ActiveContacts {
                 if r.status == Status::Open {
                     continue;
                 }
-                for i in 0..dim {
-                    f_ext[node * dim + i] += r.force[i];
-                }
-                let km: &Matrix3<f64> = &r.stiffness;
-                for i in 0..dim {
-                    let qi = dofs.eq[node * dim + i];
-                    if qi == NONE {
-                        continue;
-                    }
-                    if let Some((dup, rhs)) = predictor.as_mut() {
-                        for j in 0..dim {
-                            rhs[qi] -= km[(i, j)] * dup[node * dim + j];
+                let gdofs = [node * dim, node * dim + 1, node * dim + 2];
+                system.add_force(&gdofs[..dim], &r.force.as_slice()[..dim]);
+                if want_k {
+                    let km: &Matrix3<f64> = &r.stiffness;
+                    for c in 0..dim {
+                        for rr in 0..dim {
+                            block[c * dim + rr] = km[(rr, c)];
                         }
                     }
-                    let Some(vals) = k.as_deref_mut() else { continue };
-                    for j in 0..dim {
-                        let qj = dofs.eq[node * dim + j];
-                        if qj == NONE || qi < qj {
-                            continue;
-                        }
-                        let slot = pattern.slot(qi, qj).expect("node-diagonal blocks are in the pattern");
-                        if qi == qj {
-                            vals[slot] += km[(i, i)];
-                        } else {
-                            vals[slot] += 0.5 * (km[(i, j)] + km[(j, i)]);
-                            let skew = 0.5 * (km[(i, j)] - km[(j, i)]);
-                            if skew != 0.0 {
-                                self.skew.push((slot, skew));
-                            }
-                        }
-                    }
+                    system.add_stiffness(&gdofs[..dim], &block[..dim * dim], true);
                 }
             }
         }

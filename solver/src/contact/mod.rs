@@ -3,6 +3,8 @@
 pub mod active;
 pub mod law;
 pub mod pair;
-pub mod surface;
+/// Rigid-surface geometry (closest points, normals); it lives in
+/// [`crate::rigid_surface`], below the model, which describes rigid bodies by it.
+pub use crate::rigid_surface as surface;
 
 pub use surface::{Piece2, Placement, Projection, RigidSurface, Shape};

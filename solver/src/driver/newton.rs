@@ -17,20 +17,21 @@
 use std::time::Instant;
 
 use super::observer::{Event, Observer};
+use super::stabilization::add_springs;
 use super::stages::StageProgram;
 use crate::assembly::assembler::Outputs;
 use crate::assembly::dofs::NONE;
-use crate::assembly::{Assembler, Discretization, DofMap, Pattern};
+use crate::assembly::global::GlobalSystem;
+use crate::assembly::{Assembler, Discretization, DofMap, MixedUnknowns, Pattern};
 use crate::contact::active::{ActiveContacts, MAX_AUGMENTATIONS};
-use crate::element::{ElementError, Formulation, MixedState};
+use crate::element::MixedState;
 use crate::error::SolveError;
 use crate::insert::{condense, Inserts};
-use crate::linear::{FactorKind, LinearSolver};
+use crate::linear::{FactorKind, LinearSolver, SystemMatrix};
 use crate::load::fluid::Fluids;
-use crate::load::pressure::{pressure_side_into, MAX_SIDE_DOFS};
+use crate::load::follower::add_pressure;
 use crate::model::IncrementControls;
 use crate::results::SolveStats;
-use crate::shape::MAX_SIDE_NODES;
 
 /// Result of one increment attempt.
 #[derive(Debug)]
@@ -44,7 +45,7 @@ pub struct NewtonContext<'a> {
     disc: &'a Discretization<'a>,
     dofs: &'a DofMap,
     pattern: &'a Pattern,
-    linear: &'a mut LinearSolver,
+    linear: &'a mut dyn LinearSolver,
     prog: &'a StageProgram,
     start: &'a [f64],
     controls: &'a IncrementControls,
@@ -56,6 +57,8 @@ pub struct NewtonContext<'a> {
     /// (at prescribed dofs: the reactions).
     pub residual: Vec<f64>,
     k: Vec<f64>,
+    /// Skew-symmetric tangent entries (friction) of the last evaluation.
+    skew: Vec<(usize, f64)>,
     rhs: Vec<f64>,
     du: Vec<f64>,
     dup: Vec<f64>,
@@ -66,20 +69,12 @@ pub struct NewtonContext<'a> {
     pub contacts: &'a mut ActiveContacts,
     /// Fluids whose wetted front follows the contact (none: no fluid).
     pub fluids: Option<&'a mut Fluids>,
-    /// Skew-symmetric tangent entries of contact and fluid loads, at lower-triangle slots.
-    skew: Vec<(usize, f64)>,
     /// Smallest force scale: 1e-10 × the model's force unit μ·L² (see [`force_unit`]).
     force_floor: f64,
     /// Stabilisation spring per dof (empty when the stage has none).
     stabilization: Vec<f64>,
-    /// Element pressure/dilatation unknowns (three-field form), at the
-    /// current iterate, at the start of the line search, and converged.
-    states: Vec<MixedState>,
-    states_base: Vec<MixedState>,
-    pub states_converged: Vec<MixedState>,
-    /// Per element: dilatation change per unit line-search step, and the part
-    /// applied in full (prescribed motion and consistency residuals).
-    dtheta: Vec<(f64, f64)>,
+    /// Element pressure/dilatation unknowns (three-field form; empty when condensed).
+    pub mixed: MixedUnknowns,
     /// Bonded inserts (rigid-body constraints with their own unknowns).
     pub inserts: Inserts,
     /// Bonded dofs (driven by the inserts).
@@ -122,7 +117,7 @@ impl<'a> NewtonContext<'a> {
         disc: &'a Discretization<'a>,
         dofs: &'a DofMap,
         pattern: &'a Pattern,
-        linear: &'a mut LinearSolver,
+        linear: &'a mut dyn LinearSolver,
         prog: &'a StageProgram,
         start: &'a [f64],
         controls: &'a IncrementControls,
@@ -144,6 +139,7 @@ impl<'a> NewtonContext<'a> {
             f_ext: vec![0.0; ndof],
             residual: vec![0.0; ndof],
             k: vec![0.0; pattern.nnz()],
+            skew: Vec::new(),
             rhs: vec![0.0; dofs.n_free],
             du: vec![0.0; dofs.n_free],
             dup: vec![0.0; ndof],
@@ -157,11 +153,7 @@ impl<'a> NewtonContext<'a> {
             },
             contacts,
             fluids: None,
-            skew: Vec::new(),
-            states: Vec::new(),
-            states_base: Vec::new(),
-            states_converged: Vec::new(),
-            dtheta: vec![(0.0, 0.0); disc.mesh().element_count()],
+            mixed: MixedUnknowns::default(),
             inserts: Inserts::default(),
             bonded: vec![false; ndof],
             insert_vectors: Vec::new(),
@@ -171,6 +163,11 @@ impl<'a> NewtonContext<'a> {
             dq: Vec::new(),
             bonded_direction: vec![0.0; ndof],
         }
+    }
+
+    /// The numbering of the equations.
+    pub fn dofs(&self) -> &DofMap {
+        self.dofs
     }
 
     /// Drives bonded inserts (their stage already begun).
@@ -184,9 +181,7 @@ impl<'a> NewtonContext<'a> {
 
     /// Starts from carried element states (from the previous stage).
     pub fn with_states(mut self, states: Vec<MixedState>) -> Self {
-        self.states_base = states.clone();
-        self.states = states.clone();
-        self.states_converged = states;
+        self.mixed = MixedUnknowns::new(states);
         self
     }
 
@@ -196,67 +191,6 @@ impl<'a> NewtonContext<'a> {
             self.fluids = Some(fluids);
         }
         self
-    }
-
-    /// Linearised dilatation changes of every mixed element for the free
-    /// correction `du` (per unit step) and the prescribed change `dup`.
-    fn state_directions(&mut self, with_prescribed: bool) -> Result<(), SolveError> {
-        if self.states.is_empty() {
-            return Ok(());
-        }
-        let mesh = self.disc.mesh();
-        let dim = self.dofs.dim;
-        for e in 0..mesh.element_count() {
-            if self.disc.context(e).formulation != Formulation::Mixed {
-                continue;
-            }
-            let st = &self.states[e];
-            let (mut free, mut fixed) = (0.0, st.volume_ratio - st.dilatation);
-            for (a, &n) in mesh.element_nodes(e).iter().enumerate() {
-                for i in 0..dim {
-                    let d = n * dim + i;
-                    let q = self.dofs.eq[d];
-                    let w = st.dvolume_du[a * dim + i];
-                    if q != NONE {
-                        free += w * self.du[q];
-                    } else {
-                        free += w * self.bonded_direction[d];
-                        if with_prescribed {
-                            fixed += w * self.dup[d];
-                        }
-                    }
-                }
-            }
-            self.dtheta[e] = (free, fixed);
-        }
-        Ok(())
-    }
-
-    /// Element states at line-search step `s` from the base states.
-    fn apply_states(&mut self, s: f64) -> Result<(), SolveError> {
-        if self.states.is_empty() {
-            return Ok(());
-        }
-        for e in 0..self.states.len() {
-            let ctx = self.disc.context(e);
-            if ctx.formulation != Formulation::Mixed {
-                continue;
-            }
-            let base = self.states_base[e];
-            let (free, fixed) = self.dtheta[e];
-            let dtheta = fixed + s * free;
-            let vol = &ctx.material.volumetric;
-            let m = |err| SolveError::from_element(e, ElementError::Material(err));
-            let dp =
-                vol.pressure_derivative(base.dilatation).map_err(m)? * dtheta + vol.pressure(base.dilatation).map_err(m)? - base.pressure;
-            let st = &mut self.states[e];
-            st.dilatation = base.dilatation + dtheta;
-            st.pressure = base.pressure + dp;
-            if st.dilatation.is_nan() || st.dilatation <= 0.0 {
-                return Err(SolveError::InvertedElement { element: e, point: 0, j: st.dilatation });
-            }
-        }
-        Ok(())
     }
 
     fn prescribed_at(&self, t: f64, d: usize) -> f64 {
@@ -286,7 +220,7 @@ impl<'a> NewtonContext<'a> {
                 internal: &mut self.f_int,
                 tangent: if want_k { Some(&mut self.k) } else { None },
                 predictor: if predict { Some((&self.dup, &mut self.rhs)) } else { None },
-                mixed: if self.states.is_empty() { None } else { Some(&mut self.states) },
+                mixed: if self.mixed.is_empty() { None } else { Some(&mut self.mixed.current) },
                 products: if coupled { Some((&self.insert_vectors, &mut self.insert_products)) } else { None },
             },
         );
@@ -294,47 +228,31 @@ impl<'a> NewtonContext<'a> {
             Ok(e) => e,
             Err(e) => {
                 stats.assembly_time += clock.elapsed().as_secs_f64();
-                return Err(e);
+                return Err(e.into());
             }
         };
-        self.add_pressures(u, t, want_k, predict);
-        if !self.contacts.is_empty() {
-            self.contacts.evaluate(
-                &self.disc.mesh().nodes,
-                u,
-                t,
-                self.dofs,
-                self.pattern,
-                &mut self.f_ext,
-                if want_k { Some(&mut self.k) } else { None },
-                if predict { Some((&self.dup, &mut self.rhs)) } else { None },
-            );
+        let mesh = self.disc.mesh();
+        self.skew.clear();
+        let mut system = GlobalSystem {
+            dofs: self.dofs,
+            pattern: self.pattern,
+            external: &mut self.f_ext,
+            tangent: if want_k { Some(&mut self.k) } else { None },
+            skew: Some(&mut self.skew),
+            predictor: if predict { Some((&self.dup, &mut self.rhs)) } else { None },
+        };
+        for prog in &self.prog.pressures {
+            let p = prog.start + prog.ramp.fraction(t) * (prog.end - prog.start);
+            add_pressure(mesh, self.disc.model.analysis, &prog.sides, p, u, &mut system);
         }
-        if let Some(fluids) = self.fluids.as_deref_mut() {
-            fluids.add_loads(
-                &self.disc.mesh().nodes,
-                u,
-                t,
-                self.dofs,
-                self.pattern,
-                &mut self.f_ext,
-                if want_k { Some(&mut self.k) } else { None },
-                if predict { Some((&self.dup, &mut self.rhs)) } else { None },
-            );
+        if !self.contacts.is_empty() {
+            self.contacts.evaluate(&mesh.nodes, u, t, &mut system);
+        }
+        if let Some(fluids) = self.fluids.as_deref() {
+            fluids.add_loads(&mesh.nodes, u, t, &mut system);
         }
         // Stabilisation springs to the last converged state (free dofs only).
-        for (d, &w) in self.stabilization.iter().enumerate() {
-            let q = self.dofs.eq[d];
-            if w == 0.0 || q == NONE {
-                continue;
-            }
-            self.f_ext[d] -= w * (u[d] - self.last_converged[d]);
-            if want_k {
-                if let Some(slot) = self.pattern.slot(q, q) {
-                    self.k[slot] += w;
-                }
-            }
-        }
+        add_springs(&self.stabilization, u, &self.last_converged, &mut system);
         let mut finite = true;
         for d in 0..self.residual.len() {
             let r = self.f_int[d] - self.f_ext[d];
@@ -352,65 +270,9 @@ impl<'a> NewtonContext<'a> {
         stats.assembly_time += clock.elapsed().as_secs_f64();
         stats.assemblies += 1;
         if !finite {
-            return Err(SolveError::Linear("residual is not finite".into()));
+            return Err(SolveError::NonFiniteResidual);
         }
         Ok(energy)
-    }
-
-    fn add_pressures(&mut self, u: &[f64], t: f64, want_k: bool, predict: bool) {
-        let mesh = self.disc.mesh();
-        let dim = self.dofs.dim;
-        let analysis = self.disc.model.analysis;
-        let mut fs = [0.0; MAX_SIDE_DOFS];
-        let mut ks = [0.0; MAX_SIDE_DOFS * MAX_SIDE_DOFS];
-        for prog in &self.prog.pressures {
-            let p = prog.start + prog.ramp.fraction(t) * (prog.end - prog.start);
-            if p == 0.0 {
-                continue;
-            }
-            for &side in &prog.sides {
-                // Side nodes without allocating (all nodes of the side, in the side shape's order).
-                let local = mesh.kinds[side.element].sides()[side.local as usize];
-                let enodes = mesh.element_nodes(side.element);
-                let nn = local.len();
-                let mut nodes = [0usize; MAX_SIDE_NODES];
-                for a in 0..nn {
-                    nodes[a] = enodes[local[a]];
-                }
-                let (mut x, mut us) = ([[0.0; 3]; MAX_SIDE_NODES], [[0.0; 3]; MAX_SIDE_NODES]);
-                for a in 0..nn {
-                    x[a] = mesh.nodes[nodes[a]];
-                    for i in 0..dim {
-                        us[a][i] = u[nodes[a] * dim + i];
-                    }
-                }
-                let nd = nn * dim;
-                pressure_side_into(analysis, &x[..nn], &us[..nn], p, &mut fs, if want_k || predict { Some(&mut ks) } else { None });
-                let g = |r: usize| nodes[r / dim] * dim + r % dim;
-                for r in 0..nd {
-                    self.f_ext[g(r)] += fs[r];
-                }
-                if !(want_k || predict) {
-                    continue;
-                }
-                // The tangent is K_int − ∂f_ext/∂u; its symmetric part is kept
-                // so the Cholesky path applies (exact for closed or held surfaces).
-                for c in 0..nd {
-                    for r in 0..nd {
-                        let sym = 0.5 * (ks[c * nd + r] + ks[r * nd + c]);
-                        let (qr, qc) = (self.dofs.eq[g(r)], self.dofs.eq[g(c)]);
-                        if want_k && qr != NONE && qc != NONE && qr >= qc {
-                            if let Some(s) = self.pattern.slot(qr, qc) {
-                                self.k[s] -= sym;
-                            }
-                        }
-                        if predict && qr != NONE {
-                            self.rhs[qr] += sym * self.dup[g(c)];
-                        }
-                    }
-                }
-            }
-        }
     }
 
     /// The stabilisation springs' force at displacement `u` relative to the
@@ -476,7 +338,9 @@ impl<'a> NewtonContext<'a> {
         let linear = &mut *self.linear;
         let none = vec![0.0; if first { 0 } else { ndof }];
         let dup = if first { &self.dup } else { &none };
-        self.dq = condense(&self.dofs.eq, w, kj, kw, &self.insert_residual, &h, dup, &mut self.du, |x| linear.solve(x))?;
+        self.dq = condense(&self.dofs.eq, w, kj, kw, &self.insert_residual, &h, dup, &mut self.du, |x| {
+            linear.solve(x).map_err(SolveError::from)
+        })?;
         for (k, dq) in self.dq.iter().enumerate() {
             for (b, jk) in self.bonded_direction.iter_mut().zip(&j[k * ndof..(k + 1) * ndof]) {
                 *b += jk * dq;
@@ -519,7 +383,7 @@ impl<'a> NewtonContext<'a> {
         // Predictor: extrapolated start, then the remaining prescribed change through the tangent.
         let mut extrapolated = false;
         u.copy_from_slice(&self.last_converged);
-        self.states.copy_from_slice(&self.states_converged);
+        self.mixed.restart();
         if let Some(fluids) = self.fluids.as_deref_mut() {
             fluids.begin_increment(t);
         }
@@ -571,13 +435,9 @@ impl<'a> NewtonContext<'a> {
                     relative: res / self.force_scale(),
                 });
             }
-            self.skew.clear();
-            self.skew.extend_from_slice(&self.contacts.skew);
-            if let Some(fluids) = self.fluids.as_deref() {
-                self.skew.extend_from_slice(&fluids.skew);
-            }
-            let kind = self.linear.factor_nonsymmetric(&self.k, &self.skew)?;
-            if !matches!(kind, FactorKind::Cholesky | FactorKind::LuNonsymmetric) {
+            let factorization = self.linear.factorize(SystemMatrix { lower: &self.k, skew: &self.skew })?;
+            let kind = factorization.kind;
+            if factorization.fallback {
                 observer.event(&Event::LinearFallback { stage, increment, iteration: iterations + 1, factor: kind });
             }
             self.du.copy_from_slice(&self.rhs);
@@ -585,8 +445,13 @@ impl<'a> NewtonContext<'a> {
             let insert_work = self.couple_inserts(iterations == 0)?;
             self.inserts.save_base();
             iterations += 1;
-            self.state_directions(iterations == 1)?;
-            self.states_base.copy_from_slice(&self.states);
+            self.mixed.directions(
+                self.disc,
+                self.dofs,
+                &self.du,
+                &self.bonded_direction,
+                if iterations == 1 { Some(&self.dup) } else { None },
+            );
             stats.newton_iterations += 1;
             // G(0) = du·r = −du·rhs (negative for a descent direction).
             let g0: f64 = -self.du.iter().zip(&self.rhs).map(|(a, b)| a * b).sum::<f64>() + insert_work;
@@ -601,17 +466,19 @@ impl<'a> NewtonContext<'a> {
             // either, but its skew part is small next to the rubber's
             // stiffness, so its direction still descends.
             // Insert unknowns make the system unsymmetric: full steps too.
-            let nonconservative_fluid = kind == FactorKind::LuNonsymmetric && self.fluids.is_some() && self.contacts.skew.is_empty();
+            let nonconservative_fluid =
+                factorization.kind == FactorKind::LuNonsymmetric && self.fluids.is_some() && !self.contacts.has_friction();
             let line_search = c.line_search
                 && !self.contacts.has_friction()
-                && (kind == FactorKind::Cholesky || nonconservative_fluid)
+                && (factorization.positive_definite || nonconservative_fluid)
                 && self.dq.is_empty();
             let energy = loop {
                 self.apply(u, s);
                 if !self.inserts.is_empty() {
                     self.inserts.step(&self.dq, s, u);
                 }
-                let evaluated = self.apply_states(s).and_then(|_| self.evaluate(u, t, true, false, stats));
+                let evaluated =
+                    self.mixed.apply(self.disc, s).map_err(SolveError::from).and_then(|_| self.evaluate(u, t, true, false, stats));
                 match evaluated {
                     Ok(w) => {
                         if !line_search || tries >= 4 {
@@ -626,7 +493,12 @@ impl<'a> NewtonContext<'a> {
                         }
                         break w;
                     }
-                    Err(e @ (SolveError::InvertedElement { .. } | SolveError::Element { .. } | SolveError::Linear(_))) => {
+                    Err(
+                        e @ (SolveError::InvertedElement { .. }
+                        | SolveError::Element { .. }
+                        | SolveError::Material { .. }
+                        | SolveError::NonFiniteResidual),
+                    ) => {
                         if tries >= 6 {
                             return Err(e);
                         }
@@ -642,7 +514,7 @@ impl<'a> NewtonContext<'a> {
             residuals.push(rel);
             observer.event(&Event::Iteration { iteration: iterations, residual: res, relative: rel, line_search: s, factor: kind });
             if !rel.is_finite() {
-                return Err(SolveError::Linear("residual is not finite".into()));
+                return Err(SolveError::NonFiniteResidual);
             }
             let e0 = *first_energy.get_or_insert(energy_norm);
             let energy_ok = e0 == 0.0 || energy_norm * s <= c.energy_tolerance * e0;
@@ -663,7 +535,7 @@ impl<'a> NewtonContext<'a> {
             if rel <= c.force_tolerance && (energy_ok || disp_ok) {
                 if !self.contacts.needs_augmentation() {
                     if !self.fluid_front_moved(u, t, stats)? {
-                        self.states_converged.copy_from_slice(&self.states);
+                        self.mixed.commit();
                         return Ok(IncrementOutcome::Converged { iterations, residuals, energy });
                     }
                     // The wetted set changed: re-balance at the same load.

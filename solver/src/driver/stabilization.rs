@@ -12,6 +12,7 @@
 //! springs most (about 5 % on the squeeze force at 1e-3, 0.5 % at 1e-4, in
 //! the loose-cord test).
 
+use crate::assembly::global::GlobalSystem;
 use crate::assembly::Discretization;
 
 /// Spring stiffness per dof for `factor` (0: none), indexed like the global dofs.
@@ -57,4 +58,14 @@ pub fn dof_weights(disc: &Discretization, factor: f64) -> Vec<f64> {
         }
     }
     w
+}
+
+/// Adds the springs `weights` (per global dof, see [`dof_weights`]) tying
+/// the displacement `u` to `anchor` (the last converged one) to `system`.
+pub fn add_springs(weights: &[f64], u: &[f64], anchor: &[f64], system: &mut GlobalSystem) {
+    for (d, &w) in weights.iter().enumerate() {
+        if w != 0.0 {
+            system.add_spring(d, w, u[d] - anchor[d]);
+        }
+    }
 }

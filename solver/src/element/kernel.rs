@@ -1,12 +1,20 @@
-//! The integration loop shared by every element: `F = I + B u`, stress and
-//! tangent from the material, and the mean-dilatation condensation.
+//! The integration loop shared by every element, in two halves around the
+//! material: [`kinematics`] gives `F = I + B u` and J at every Gauss point;
+//! the caller evaluates the material there ([`PointResponse`], and the
+//! volumetric law of a mixed element, [`VolumetricResponse`]); then
+//! [`integrate_into`] forms `∫ Bᵀ P dV`, `∫ Bᵀ A B dV` and the
+//! condensation of the element's pressure space ([`super::pressure_space`]:
+//! the mean dilatation for a constant pressure, the L² projection for a
+//! linear one). The element never calls a material: the assembly kernel
+//! ([`crate::assembly::kernel`]) is where they meet.
 
 use nalgebra::{Matrix3, SMatrix, SVector};
 
+use nalgebra::Vector4;
+
 use super::geometry::{point_geometry, PointGeometry};
 use super::pressure_space::{Gram, PressureBasis, PressureSpace, MAX_PRESSURES};
-use super::{Analysis, ElementContext, ElementError, Formulation, Shape};
-use crate::material::{Material, MaterialError, Response, Tangent};
+use super::{Analysis, ElementError, Shape};
 
 /// Largest number of element degrees of freedom (hex27: 27 × 3).
 pub const MAX_DOFS: usize = 81;
@@ -25,7 +33,7 @@ fn to9(m: &Matrix3<f64>) -> V9 {
 
 /// `A_iJkL = δ_ik S_JL + F_iI F_kK D_IJKL`: the first elasticity tensor as a
 /// 9×9 matrix with row index 3i+J and column index 3k+L.
-fn first_elasticity(f: &Matrix3<f64>, s: &Matrix3<f64>, d: &Tangent) -> M9 {
+fn first_elasticity(f: &Matrix3<f64>, s: &Matrix3<f64>, d: &SMatrix<f64, 6, 6>) -> M9 {
     // t[i][J][K][L] = F_iI D_IJKL
     let mut t = [[[[0.0; 3]; 3]; 3]; 3];
     for i in 0..3 {
@@ -75,24 +83,6 @@ struct BOp<'g> {
 }
 
 impl BOp<'_> {
-    /// `F − I = B u` as a 9-vector.
-    fn apply<const ND: usize>(&self, u: &SVector<f64, ND>) -> V9 {
-        let mut f = V9::zeros();
-        for a in 0..ND / self.dim {
-            let g = &self.geo.g[a];
-            for i in 0..self.dim {
-                let ua = u[a * self.dim + i];
-                for jj in 0..3 {
-                    f[3 * i + jj] += ua * g[jj];
-                }
-            }
-            if self.axisymmetric {
-                f[8] += u[a * self.dim] * self.geo.n[a] / self.geo.radius;
-            }
-        }
-        f
-    }
-
     /// `out += s · Bᵀ v`.
     fn add_transpose<const ND: usize>(&self, v: &V9, s: f64, out: &mut SVector<f64, ND>) {
         for a in 0..ND / self.dim {
@@ -139,53 +129,193 @@ impl BOp<'_> {
     }
 }
 
-fn map_material(e: MaterialError, point: usize, j: f64) -> ElementError {
-    match e {
-        MaterialError::NonPositiveVolume { .. } => ElementError::Inverted { point, j },
-        other => ElementError::Material(other),
+/// Constitutive answer at one integration point, as the element needs it:
+/// computed by the caller (the assembly kernel) from the point's
+/// [`PointKinematics`], so the element never sees a material model.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct PointResponse {
+    /// Strain energy density per unit reference volume (mixed elements: the
+    /// isochoric part alone).
+    pub energy: f64,
+    /// Second Piola–Kirchhoff stress S (mixed elements: isochoric part).
+    pub stress: Matrix3<f64>,
+    /// Material tangent 4 ∂²W/∂C∂C in Voigt order xx, yy, zz, xy, yz, xz.
+    pub tangent: SMatrix<f64, 6, 6>,
+}
+
+/// The volumetric law of a mixed element evaluated by the caller at one
+/// dilatation θ: for a constant pressure the element's (see
+/// [`ElementKinematics::volume_ratio`] and [`MixedState::dilatation`]), for a
+/// linear pressure the projected θ_h at one integration point (see
+/// [`ElementKinematics::dilatations`]).
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct VolumetricResponse {
+    /// Volumetric energy density U at the current volume ratio v/V (linear
+    /// pressure: U(θ_h) at the point).
+    pub energy: f64,
+    /// Element pressure p entering the stress: U'(θ), or the carried unknown.
+    pub pressure: f64,
+    /// U'(θ): the pressure the law gives at the element dilatation.
+    pub law_pressure: f64,
+    /// U''(θ): the volumetric stiffness at the element dilatation.
+    pub stiffness: f64,
+}
+
+/// Deformation of one Gauss point: its reference geometry, the deformation
+/// gradient F and J = det F.
+#[derive(Debug, Clone, Copy, Default)]
+pub struct PointKinematics {
+    geo: PointGeometry,
+    /// Deformation gradient F (3×3; the hoop stretch in F₃₃ for axisymmetry).
+    pub f: Matrix3<f64>,
+    /// Volume ratio J = det F (> 0).
+    pub j: f64,
+    /// Reference position of the point.
+    pub position: [f64; 3],
+}
+
+impl PointKinematics {
+    /// Right Cauchy–Green tensor C = FᵀF, what a material is evaluated at.
+    pub fn right_cauchy_green(&self) -> Matrix3<f64> {
+        self.f.transpose() * self.f
     }
 }
 
-/// The material's response at one Gauss point: the isochoric part alone for
-/// the mixed form (it adds the element pressure itself), the full one
-/// otherwise.
-fn point_response(mat: &Material, mixed: bool, k: &Kin, q: usize) -> Result<Response, ElementError> {
-    let c = k.f.transpose() * k.f;
-    let resp = if mixed { mat.isochoric_response(&c) } else { mat.response(&c) };
-    resp.map_err(|e| map_material(e, q, k.j))
+/// Deformation of every Gauss point of one element, with its reference
+/// volume V and deformed volume v = ∫ J dV.
+#[derive(Debug, Clone, Copy)]
+pub struct ElementKinematics {
+    shape: Shape,
+    analysis: Analysis,
+    points: [PointKinematics; MAX_POINTS],
+    /// Basis of the element's pressure space (used by mixed elements).
+    basis: PressureBasis,
+    /// Reference volume V (axisymmetric: over 2π; plane strain: times the thickness).
+    pub volume: f64,
+    /// Deformed volume v = ∫ J dV.
+    pub deformed_volume: f64,
 }
 
-/// Deformation state of one Gauss point.
-#[derive(Debug, Clone, Copy, Default)]
-struct Kin {
-    geo: PointGeometry,
-    f: Matrix3<f64>,
-    j: f64,
+impl ElementKinematics {
+    /// The element's integration points.
+    pub fn points(&self) -> &[PointKinematics] {
+        &self.points[..self.shape.points()]
+    }
+
+    /// Mean dilatation v/V.
+    pub fn volume_ratio(&self) -> f64 {
+        self.deformed_volume / self.volume
+    }
+
+    /// The pressure space of the element's mixed form.
+    pub fn pressure_space(&self) -> PressureSpace {
+        PressureSpace::of_shape(self.shape)
+    }
+
+    /// Dilatations at which a mixed element's volumetric law is to be
+    /// evaluated, into `out` (length ≥ `MAX_POINTS`); returns their count.
+    /// Constant pressure: one, the mean dilatation v/V. Linear pressure: the
+    /// L² projection θ_h of J at each integration point.
+    pub fn dilatations(&self, out: &mut [f64]) -> Result<usize, ElementError> {
+        match self.pressure_space() {
+            PressureSpace::Constant => {
+                out[0] = self.volume_ratio();
+                Ok(1)
+            }
+            PressureSpace::Linear => {
+                let lin = self.linear_pressure()?;
+                let theta = lin.gram.project(lin.phi(), lin.dv(), |q| self.points[q].j);
+                for (o, phi) in out.iter_mut().zip(lin.phi()) {
+                    *o = theta.dot(phi);
+                }
+                Ok(lin.count)
+            }
+        }
+    }
+
+    fn linear_pressure(&self) -> Result<LinearPressure, ElementError> {
+        let count = self.shape.points();
+        let phi: [Vector4<f64>; MAX_POINTS] = std::array::from_fn(|q| self.basis.values(self.points[q].position));
+        let dv: [f64; MAX_POINTS] = std::array::from_fn(|q| self.points[q].geo.dv);
+        let gram =
+            Gram::new(self.basis.count(), &phi[..count], &dv[..count]).map_err(|_| ElementError::BadReference { point: 0, det: 0.0 })?;
+        Ok(LinearPressure { count, phi, dv, gram })
+    }
+
+    fn dim(&self) -> usize {
+        self.shape.dimension()
+    }
+
+    fn bop<'g>(&self, p: &'g PointKinematics) -> BOp<'g> {
+        BOp { geo: &p.geo, dim: self.dim(), axisymmetric: self.analysis == Analysis::Axisymmetric }
+    }
 }
 
-/// Pass 1: geometry, F and J at every point; the element's reference volume V
-/// and deformed volume v = ∫ J dV.
-fn kinematics<const ND: usize, const NP: usize>(
-    ctx: &ElementContext,
-    x: &[[f64; 3]],
-    u: &SVector<f64, ND>,
-    out: &mut [Kin; NP],
-) -> Result<(f64, f64), ElementError> {
-    let axi = ctx.analysis == Analysis::Axisymmetric;
-    let (mut vol, mut vol_def) = (0.0, 0.0);
-    for q in 0..ctx.shape.points() {
-        let geo = point_geometry(ctx.shape, ctx.analysis, x, q)?;
-        let f9 = BOp { geo: &geo, dim: ND / ctx.shape.nodes(), axisymmetric: axi }.apply(u);
-        let f = Matrix3::from_fn(|i, jj| f9[3 * i + jj] + if i == jj { 1.0 } else { 0.0 });
+/// The linear discontinuous pressure of one element: basis values and
+/// volume weights at the points and the Gram matrix of the projection.
+struct LinearPressure {
+    count: usize,
+    phi: [Vector4<f64>; MAX_POINTS],
+    dv: [f64; MAX_POINTS],
+    gram: Gram,
+}
+
+impl LinearPressure {
+    fn phi(&self) -> &[Vector4<f64>] {
+        &self.phi[..self.count]
+    }
+
+    fn dv(&self) -> &[f64] {
+        &self.dv[..self.count]
+    }
+
+    /// Coefficients of p_h (projection of U'(θ_h)) and the coupling
+    /// `C = M⁻¹ (∫ U''(θ_h) φ φᵀ) M⁻¹`, from the law at each point.
+    fn condense(&self, volumetric: &[VolumetricResponse]) -> (Vector4<f64>, nalgebra::Matrix4<f64>) {
+        let coefficients = self.gram.project(self.phi(), self.dv(), |q| volumetric[q].law_pressure);
+        let coupling = self.gram.sandwich(self.phi(), self.dv(), |q| volumetric[q].stiffness);
+        (coefficients, coupling)
+    }
+}
+
+/// Geometry, F and J at every Gauss point of an element with reference node
+/// positions `x` and displacements `u` (three entries per node, the third
+/// ignored in 2-D). Fails on a bad reference element or an inverted point.
+pub fn kinematics(shape: Shape, analysis: Analysis, x: &[[f64; 3]], u: &[[f64; 3]]) -> Result<ElementKinematics, ElementError> {
+    let axisymmetric = analysis == Analysis::Axisymmetric;
+    let dim = shape.dimension();
+    if dim < 2 {
+        return Err(ElementError::NotAnElement { shape: shape.name() });
+    }
+    let nodes = shape.nodes();
+    let basis = PressureBasis::new(PressureSpace::of_shape(shape), dim, &x[..nodes]);
+    let mut out =
+        ElementKinematics { shape, analysis, points: [PointKinematics::default(); MAX_POINTS], basis, volume: 0.0, deformed_volume: 0.0 };
+    for q in 0..shape.points() {
+        let geo = point_geometry(shape, analysis, x, q)?;
+        // F = I + B u, written out over the sparse B (see `BOp`).
+        let mut f = Matrix3::<f64>::zeros();
+        for a in 0..shape.nodes() {
+            for i in 0..dim {
+                for jj in 0..3 {
+                    f[(i, jj)] += u[a][i] * geo.g[a][jj];
+                }
+            }
+            if axisymmetric {
+                f[(2, 2)] += u[a][0] * geo.n[a] / geo.radius;
+            }
+        }
+        f += Matrix3::identity();
         let j = f.determinant();
         if !(j > 0.0 && j.is_finite()) {
             return Err(ElementError::Inverted { point: q, j });
         }
-        vol += geo.dv;
-        vol_def += j * geo.dv;
-        out[q] = Kin { geo, f, j };
+        out.volume += geo.dv;
+        out.deformed_volume += j * geo.dv;
+        let position = std::array::from_fn(|c| (0..nodes).map(|a| geo.n[a] * x[a][c]).sum());
+        out.points[q] = PointKinematics { geo, f, j, position };
     }
-    Ok((vol, vol_def))
+    Ok(out)
 }
 
 /// Element pressure and dilatation carried as Newton unknowns of the
@@ -218,57 +348,106 @@ impl Default for MixedState {
     }
 }
 
-impl MixedState {
-    /// Linearised changes (dθ, dp) for an element displacement change `du`
-    /// (only the first `nd` entries used).
-    pub fn increments(&self, du: &[f64], material: &crate::material::Material) -> Result<(f64, f64), MaterialError> {
-        let dtheta = self.volume_ratio - self.dilatation + self.dvolume_du.iter().zip(du).map(|(a, b)| a * b).sum::<f64>();
-        let dp = material.volumetric.pressure_derivative(self.dilatation)? * dtheta + material.volumetric.pressure(self.dilatation)?
-            - self.pressure;
-        Ok((dtheta, dp))
+/// Internal force (and, if asked, the tangent, column-major, `shape.dofs()`
+/// squared) of one element into caller buffers, from its kinematics and the
+/// constitutive answer at each point (`responses`, one per point). Mixed
+/// elements also take the volumetric law at their dilatations (`volumetric`,
+/// one per entry of [`ElementKinematics::dilatations`]; empty for a
+/// displacement element) and, in the three-field form of a constant-pressure
+/// element, their carried unknowns (`state`, whose outputs are filled in;
+/// a linear pressure is always condensed from u and leaves it untouched).
+/// Returns the element's strain energy.
+pub fn integrate_into(
+    kin: &ElementKinematics,
+    responses: &[PointResponse],
+    volumetric: &[VolumetricResponse],
+    force: &mut [f64],
+    stiffness: Option<&mut [f64]>,
+    state: Option<&mut MixedState>,
+) -> Result<f64, ElementError> {
+    // One monomorphised kernel per element size: the dofs are compile-time
+    // sizes, so the linear elements keep their small fixed-size matrices.
+    match kin.shape {
+        Shape::Hex8 => run::<24>(kin, responses, volumetric, force, stiffness, state),
+        Shape::Quad4 => run::<8>(kin, responses, volumetric, force, stiffness, state),
+        Shape::Tri3 => run::<6>(kin, responses, volumetric, force, stiffness, state),
+        Shape::Tri6 => run::<12>(kin, responses, volumetric, force, stiffness, state),
+        Shape::Quad8 => run::<16>(kin, responses, volumetric, force, stiffness, state),
+        Shape::Quad9 => run::<18>(kin, responses, volumetric, force, stiffness, state),
+        Shape::Tet4 => run::<12>(kin, responses, volumetric, force, stiffness, state),
+        Shape::Tet10 => run::<30>(kin, responses, volumetric, force, stiffness, state),
+        Shape::Hex20 => run::<60>(kin, responses, volumetric, force, stiffness, state),
+        Shape::Hex27 => run::<81>(kin, responses, volumetric, force, stiffness, state),
+        Shape::Line2 | Shape::Line3 => Err(ElementError::NotAnElement { shape: kin.shape.name() }),
     }
 }
 
-fn integrate<const ND: usize, const NP: usize>(
-    ctx: &ElementContext,
-    x: &[[f64; 3]],
-    u: &SVector<f64, ND>,
+fn run<const ND: usize>(
+    kin: &ElementKinematics,
+    responses: &[PointResponse],
+    volumetric: &[VolumetricResponse],
+    force: &mut [f64],
+    stiffness: Option<&mut [f64]>,
+    state: Option<&mut MixedState>,
+) -> Result<f64, ElementError> {
+    let mut f = SVector::<f64, ND>::zeros();
+    match stiffness {
+        Some(kbuf) => {
+            let mut k = SMatrix::<f64, ND, ND>::zeros();
+            let e = integrate::<ND>(kin, responses, volumetric, &mut f, Some(&mut k), state)?;
+            kbuf[..ND * ND].copy_from_slice(k.as_slice());
+            force[..ND].copy_from_slice(f.as_slice());
+            Ok(e)
+        }
+        None => {
+            let e = integrate::<ND>(kin, responses, volumetric, &mut f, None, state)?;
+            force[..ND].copy_from_slice(f.as_slice());
+            Ok(e)
+        }
+    }
+}
+
+fn integrate<const ND: usize>(
+    kin: &ElementKinematics,
+    responses: &[PointResponse],
+    volumetric: &[VolumetricResponse],
+    force: &mut SVector<f64, ND>,
+    stiffness: Option<&mut SMatrix<f64, ND, ND>>,
+    state: Option<&mut MixedState>,
+) -> Result<f64, ElementError> {
+    match (volumetric.first(), kin.pressure_space()) {
+        (None, _) => integrate_constant::<ND>(kin, responses, None, force, stiffness, state),
+        (Some(v), PressureSpace::Constant) => integrate_constant::<ND>(kin, responses, Some(v), force, stiffness, state),
+        (Some(_), PressureSpace::Linear) => integrate_linear::<ND>(kin, responses, volumetric, force, stiffness),
+    }
+}
+
+/// Displacement element, or mixed element with a constant pressure (mean
+/// dilatation, optionally with the carried three-field unknowns).
+fn integrate_constant<const ND: usize>(
+    kin: &ElementKinematics,
+    responses: &[PointResponse],
+    volumetric: Option<&VolumetricResponse>,
     force: &mut SVector<f64, ND>,
     mut stiffness: Option<&mut SMatrix<f64, ND, ND>>,
     state: Option<&mut MixedState>,
 ) -> Result<f64, ElementError> {
-    let axi = ctx.analysis == Analysis::Axisymmetric;
-    let mut kin = [Kin::default(); NP];
-    let (vol, vol_def) = kinematics::<ND, NP>(ctx, x, u, &mut kin)?;
-    if ctx.formulation == Formulation::Mixed && PressureSpace::of_shape(ctx.shape) == PressureSpace::Linear {
-        return integrate_linear_pressure::<ND, NP>(ctx, x, &kin, force, stiffness);
-    }
-    force.fill(0.0);
-    if let Some(k) = stiffness.as_deref_mut() {
-        k.fill(0.0);
-    }
-    let mat = ctx.material;
+    let vol = kin.volume;
+    let ratio = kin.volume_ratio();
     let mut energy = 0.0;
-    let mixed = ctx.formulation == Formulation::Mixed;
-    let ratio = vol_def / vol;
-    // Pressure and dilatation: condensed from u, or the carried unknowns.
-    let (p, dp, theta) = if !mixed {
-        (0.0, 0.0, ratio)
-    } else {
-        let theta = state.as_ref().map(|s| s.dilatation).unwrap_or(ratio);
-        let m = |e| map_material(e, 0, theta);
-        energy += vol * mat.volumetric.energy(ratio).map_err(|e| map_material(e, 0, ratio))?;
-        let p = match state.as_ref() {
-            Some(s) => s.pressure,
-            None => mat.volumetric.pressure(theta).map_err(m)?,
-        };
-        (p, mat.volumetric.pressure_derivative(theta).map_err(m)?, theta)
+    // Pressure p and volumetric stiffness U''(θ) of the mixed element.
+    let (p, dp) = match volumetric {
+        Some(v) => {
+            energy += vol * v.energy;
+            (v.pressure, v.stiffness)
+        }
+        None => (0.0, 0.0),
     };
+    let mixed = volumetric.is_some();
     let mut g = SVector::<f64, ND>::zeros();
-    for (q, k) in kin.iter().enumerate() {
-        let resp = point_response(mat, mixed, k, q)?;
+    for (q, (k, resp)) in kin.points().iter().zip(responses).enumerate() {
         energy += resp.energy * k.geo.dv;
-        let b = BOp { geo: &k.geo, dim: ND / ctx.shape.nodes(), axisymmetric: axi };
+        let b = kin.bop(k);
         let mut p9 = to9(&(k.f * resp.stress));
         let fi = k.f.try_inverse().ok_or(ElementError::Inverted { point: q, j: k.j })?;
         if mixed {
@@ -285,15 +464,14 @@ fn integrate<const ND: usize, const NP: usize>(
             b.add_btab(&a, k.geo.dv, kk);
         }
     }
-    if mixed {
+    if let Some(v) = volumetric {
         if let Some(kk) = stiffness {
             kk.ger(dp / vol, &g, &g, 1.0);
         }
         if let Some(st) = state {
             // Condensed residual of the three-field equations:
             // f += g [U''(θ)(v/V − θ) + U'(θ) − p].
-            let u1 = mat.volumetric.pressure(theta).map_err(|e| map_material(e, 0, theta))?;
-            *force += g * (dp * (ratio - theta) + u1 - p);
+            *force += g * (dp * (ratio - st.dilatation) + v.law_pressure - p);
             st.volume_ratio = ratio;
             for (d, gv) in st.dvolume_du.iter_mut().zip(g.iter()) {
                 *d = gv / vol;
@@ -303,78 +481,31 @@ fn integrate<const ND: usize, const NP: usize>(
     Ok(energy)
 }
 
-/// The condensed linear discontinuous pressure of one element (see
-/// [`super::pressure_space`]): basis values at the points, the projected
-/// dilatation θ_h and pressure p_h, and `C = M⁻¹ (∫ U''(θ_h) φ φᵀ) M⁻¹`.
-struct LinearPressure<const NP: usize> {
-    phi: [nalgebra::Vector4<f64>; NP],
-    dv: [f64; NP],
-    coefficients: nalgebra::Vector4<f64>,
-    coupling: nalgebra::Matrix4<f64>,
-    /// U(θ_h) at each point.
-    energy_density: [f64; NP],
-}
-
-impl<const NP: usize> LinearPressure<NP> {
-    fn new(ctx: &ElementContext, x: &[[f64; 3]], kin: &[Kin; NP]) -> Result<Self, ElementError> {
-        let dim = ctx.shape.dimension();
-        let nodes = ctx.shape.nodes();
-        let basis = PressureBasis::new(PressureSpace::Linear, dim, &x[..nodes]);
-        let phi: [nalgebra::Vector4<f64>; NP] = std::array::from_fn(|q| {
-            let g = &kin[q].geo;
-            basis.values(std::array::from_fn(|c| (0..nodes).map(|a| g.n[a] * x[a][c]).sum()))
-        });
-        let dv: [f64; NP] = std::array::from_fn(|q| kin[q].geo.dv);
-        let gram = Gram::new(basis.count(), &phi, &dv).map_err(|_| ElementError::BadReference { point: 0, det: 0.0 })?;
-        let theta = gram.project(&phi, &dv, |q| kin[q].j);
-        let vol = &ctx.material.volumetric;
-        let mut first = [0.0; NP];
-        let mut second = [0.0; NP];
-        let mut energy_density = [0.0; NP];
-        for q in 0..NP {
-            let t = theta.dot(&phi[q]);
-            let m = |e| map_material(e, q, t);
-            first[q] = vol.pressure(t).map_err(m)?;
-            second[q] = vol.pressure_derivative(t).map_err(m)?;
-            energy_density[q] = vol.energy(t).map_err(m)?;
-        }
-        let coefficients = gram.project(&phi, &dv, |q| first[q]);
-        let coupling = gram.sandwich(&phi, &dv, |q| second[q]);
-        Ok(LinearPressure { phi, dv, coefficients, coupling, energy_density })
-    }
-
-    fn pressure(&self, q: usize) -> f64 {
-        self.coefficients.dot(&self.phi[q])
-    }
-}
-
 /// The mixed element with a linear discontinuous pressure (quad9, hex27:
 /// Q2/P1, Simo–Taylor–Pister condensation with the projection of
-/// [`super::pressure_space`]); always condensed from u (the carried
-/// three-field state is used by the constant-pressure elements only).
-fn integrate_linear_pressure<const ND: usize, const NP: usize>(
-    ctx: &ElementContext,
-    x: &[[f64; 3]],
-    kin: &[Kin; NP],
+/// [`super::pressure_space`]); `volumetric` holds the law at θ_h of each point.
+fn integrate_linear<const ND: usize>(
+    kin: &ElementKinematics,
+    responses: &[PointResponse],
+    volumetric: &[VolumetricResponse],
     force: &mut SVector<f64, ND>,
     mut stiffness: Option<&mut SMatrix<f64, ND, ND>>,
 ) -> Result<f64, ElementError> {
-    let axi = ctx.analysis == Analysis::Axisymmetric;
-    let lin = LinearPressure::<NP>::new(ctx, x, kin)?;
+    let lin = kin.linear_pressure()?;
+    let (coefficients, coupling) = lin.condense(volumetric);
     force.fill(0.0);
     if let Some(k) = stiffness.as_deref_mut() {
         k.fill(0.0);
     }
-    let mut energy: f64 = (0..NP).map(|q| lin.energy_density[q] * lin.dv[q]).sum();
+    let mut energy: f64 = volumetric.iter().zip(lin.dv()).map(|(v, dv)| v.energy * dv).sum();
     let mut g = [SVector::<f64, ND>::zeros(); MAX_PRESSURES];
-    let count = PressureSpace::Linear.count(ctx.shape.dimension());
-    for (q, k) in kin.iter().enumerate() {
-        let resp = point_response(ctx.material, true, k, q)?;
+    let count = kin.basis.count();
+    for (q, (k, resp)) in kin.points().iter().zip(responses).enumerate() {
         energy += resp.energy * k.geo.dv;
-        let b = BOp { geo: &k.geo, dim: ND / ctx.shape.nodes(), axisymmetric: axi };
+        let b = kin.bop(k);
         let fi = k.f.try_inverse().ok_or(ElementError::Inverted { point: q, j: k.j })?;
         let jfit = to9(&(fi.transpose() * k.j));
-        let p = lin.pressure(q);
+        let p = coefficients.dot(&lin.phi[q]);
         let p9 = to9(&(k.f * resp.stress)) + jfit * p;
         b.add_transpose(&p9, k.geo.dv, force);
         for (m, gm) in g.iter_mut().enumerate().take(count) {
@@ -388,81 +519,11 @@ fn integrate_linear_pressure<const ND: usize, const NP: usize>(
     if let Some(kk) = stiffness {
         for m in 0..count {
             for l in 0..count {
-                kk.ger(lin.coupling[(m, l)], &g[m], &g[l], 1.0);
+                kk.ger(coupling[(m, l)], &g[m], &g[l], 1.0);
             }
         }
     }
     Ok(energy)
-}
-
-/// Internal force (and, if asked, the tangent, column-major ND×ND) of one
-/// element into caller buffers of length `shape.dofs()` and its square.
-/// `x` are the reference node positions and `u` the node displacements, both
-/// with three entries per node (the third ignored in 2-D). Returns the
-/// element's strain energy.
-pub fn element_into(
-    ctx: &ElementContext,
-    x: &[[f64; 3]],
-    u: &[[f64; 3]],
-    force: &mut [f64],
-    stiffness: Option<&mut [f64]>,
-) -> Result<f64, ElementError> {
-    element_with_state_into(ctx, x, u, force, stiffness, None)
-}
-
-/// As [`element_into`], with the mixed element's pressure and dilatation
-/// taken from `state` (three-field form) instead of condensed from u.
-/// Ignored by displacement elements.
-pub fn element_with_state_into(
-    ctx: &ElementContext,
-    x: &[[f64; 3]],
-    u: &[[f64; 3]],
-    force: &mut [f64],
-    stiffness: Option<&mut [f64]>,
-    state: Option<&mut MixedState>,
-) -> Result<f64, ElementError> {
-    // One monomorphised kernel per shape: dofs and integration points are
-    // compile-time sizes, so the linear elements keep their fixed-size loops.
-    match ctx.shape {
-        Shape::Hex8 => run::<24, 8>(ctx, x, u, 3, force, stiffness, state),
-        Shape::Quad4 => run::<8, 4>(ctx, x, u, 2, force, stiffness, state),
-        Shape::Tri3 => run::<6, 3>(ctx, x, u, 2, force, stiffness, state),
-        Shape::Tri6 => run::<12, 6>(ctx, x, u, 2, force, stiffness, state),
-        Shape::Quad8 => run::<16, 9>(ctx, x, u, 2, force, stiffness, state),
-        Shape::Quad9 => run::<18, 9>(ctx, x, u, 2, force, stiffness, state),
-        Shape::Tet4 => run::<12, 4>(ctx, x, u, 3, force, stiffness, state),
-        Shape::Tet10 => run::<30, 4>(ctx, x, u, 3, force, stiffness, state),
-        Shape::Hex20 => run::<60, 27>(ctx, x, u, 3, force, stiffness, state),
-        Shape::Hex27 => run::<81, 27>(ctx, x, u, 3, force, stiffness, state),
-        Shape::Line2 | Shape::Line3 => Err(ElementError::NotAnElement { shape: ctx.shape.name() }),
-    }
-}
-
-fn run<const ND: usize, const NP: usize>(
-    ctx: &ElementContext,
-    x: &[[f64; 3]],
-    u: &[[f64; 3]],
-    dim: usize,
-    force: &mut [f64],
-    stiffness: Option<&mut [f64]>,
-    state: Option<&mut MixedState>,
-) -> Result<f64, ElementError> {
-    let uv = SVector::<f64, ND>::from_fn(|r, _| u[r / dim][r % dim]);
-    let mut f = SVector::<f64, ND>::zeros();
-    match stiffness {
-        Some(kbuf) => {
-            let mut k = SMatrix::<f64, ND, ND>::zeros();
-            let e = integrate::<ND, NP>(ctx, x, &uv, &mut f, Some(&mut k), state)?;
-            kbuf[..ND * ND].copy_from_slice(k.as_slice());
-            force[..ND].copy_from_slice(f.as_slice());
-            Ok(e)
-        }
-        None => {
-            let e = integrate::<ND, NP>(ctx, x, &uv, &mut f, None, state)?;
-            force[..ND].copy_from_slice(f.as_slice());
-            Ok(e)
-        }
-    }
 }
 
 /// Stress and strain measures at one integration point.
@@ -484,66 +545,54 @@ pub struct PointState {
     pub volume: f64,
 }
 
-/// Per-point results of one element into `out` (length ≥ `shape.points()`).
-pub fn point_states(ctx: &ElementContext, x: &[[f64; 3]], u: &[[f64; 3]], out: &mut [PointState]) -> Result<(), ElementError> {
-    match ctx.shape {
-        Shape::Hex8 => states::<24, 8>(ctx, x, u, 3, out),
-        Shape::Quad4 => states::<8, 4>(ctx, x, u, 2, out),
-        Shape::Tri3 => states::<6, 3>(ctx, x, u, 2, out),
-        Shape::Tri6 => states::<12, 6>(ctx, x, u, 2, out),
-        Shape::Quad8 => states::<16, 9>(ctx, x, u, 2, out),
-        Shape::Quad9 => states::<18, 9>(ctx, x, u, 2, out),
-        Shape::Tet4 => states::<12, 4>(ctx, x, u, 3, out),
-        Shape::Tet10 => states::<30, 4>(ctx, x, u, 3, out),
-        Shape::Hex20 => states::<60, 27>(ctx, x, u, 3, out),
-        Shape::Hex27 => states::<81, 27>(ctx, x, u, 3, out),
-        Shape::Line2 | Shape::Line3 => Err(ElementError::NotAnElement { shape: ctx.shape.name() }),
+impl PointState {
+    /// Largest principal logarithmic (Hencky) strain ln λ_max.
+    pub fn max_log_strain(&self) -> f64 {
+        self.stretches[0].ln()
     }
 }
 
-fn states<const ND: usize, const NP: usize>(
-    ctx: &ElementContext,
-    x: &[[f64; 3]],
-    u: &[[f64; 3]],
-    dim: usize,
+/// Per-point results of one element into `out` (length ≥ `shape.points()`),
+/// from its kinematics, the constitutive answer at each point and, for a
+/// mixed element, the volumetric law at its dilatations (as for
+/// [`integrate_into`]): the pressure and volumetric energy added at each
+/// point are the element's U'(θ), U(θ) for a constant pressure and the
+/// projected p_h, U(θ_h) for a linear one.
+pub fn point_states_into(
+    kin: &ElementKinematics,
+    responses: &[PointResponse],
+    volumetric: &[VolumetricResponse],
     out: &mut [PointState],
 ) -> Result<(), ElementError> {
-    let uv = SVector::<f64, ND>::from_fn(|r, _| u[r / dim][r % dim]);
-    let mut kin = [Kin::default(); NP];
-    let (vol, vol_def) = kinematics::<ND, NP>(ctx, x, &uv, &mut kin)?;
-    let mat = ctx.material;
-    let mixed = ctx.formulation == Formulation::Mixed;
-    let theta = vol_def / vol;
-    // Pressure and volumetric energy density at each point: one value per
-    // element for the constant pressure, the projected fields for the linear one.
-    let mut point_pressure = [0.0; NP];
-    let mut point_u = [0.0; NP];
-    if mixed && PressureSpace::of_shape(ctx.shape) == PressureSpace::Linear {
-        let lin = LinearPressure::new(ctx, x, &kin)?;
-        point_pressure = std::array::from_fn(|q| lin.pressure(q));
-        point_u = lin.energy_density;
-    } else if mixed {
-        let m = |e| map_material(e, 0, theta);
-        point_pressure = [mat.volumetric.pressure(theta).map_err(m)?; NP];
-        point_u = [mat.volumetric.energy(theta).map_err(m)?; NP];
+    let np = kin.points().len();
+    let mut point_pressure = [0.0; MAX_POINTS];
+    let mut point_energy = [0.0; MAX_POINTS];
+    match (volumetric.first(), kin.pressure_space()) {
+        (None, _) => {}
+        (Some(v), PressureSpace::Constant) => {
+            point_pressure[..np].fill(v.pressure);
+            point_energy[..np].fill(v.energy);
+        }
+        (Some(_), PressureSpace::Linear) => {
+            let lin = kin.linear_pressure()?;
+            let (coefficients, _) = lin.condense(volumetric);
+            for q in 0..np {
+                point_pressure[q] = coefficients.dot(&lin.phi[q]);
+                point_energy[q] = volumetric[q].energy;
+            }
+        }
     }
-    for (q, k) in kin.iter().enumerate() {
-        let (p, u_vol) = (point_pressure[q], point_u[q]);
-        let resp = point_response(mat, mixed, k, q)?;
+    let mixed = !volumetric.is_empty();
+    for (q, (k, resp)) in kin.points().iter().zip(responses).enumerate() {
+        let (p, u_vol) = (point_pressure[q], point_energy[q]);
         let mut sigma = k.f * resp.stress * k.f.transpose() / k.j;
         if mixed {
             sigma += Matrix3::identity() * p;
         }
         let mut ev = (k.f.transpose() * k.f).symmetric_eigenvalues().map(|l| l.max(0.0).sqrt());
         ev.as_mut_slice().sort_by(|a, b| b.total_cmp(a));
-        let mut position = [0.0; 3];
-        for a in 0..ctx.shape.nodes() {
-            for i in 0..3 {
-                position[i] += k.geo.n[a] * x[a][i];
-            }
-        }
         out[q] = PointState {
-            position,
+            position: k.position,
             cauchy: sigma,
             pressure: -sigma.trace() / 3.0,
             j: k.j,

@@ -1,16 +1,20 @@
-//! Total-Lagrangian continuum elements for rubber: hex8 in 3-D and quad4 in
-//! axisymmetric or plane-strain analysis, each as the mixed Q1/P0
-//! mean-dilatation element or as a plain displacement element.
+//! Total-Lagrangian continuum elements for rubber: every registered 2-D and
+//! 3-D shape (quad4, tri6, quad8, quad9 in axisymmetric or plane-strain
+//! analysis; hex8, tet10, hex20, hex27 in 3-D), each as a mixed u–p element
+//! with a discontinuous pressure condensed per element
+//! ([`pressure_space`]) or as a plain displacement element.
 //!
 //! Every element is written against one kinematic description: at each Gauss
 //! point the variation of the 3×3 deformation gradient with respect to each
 //! element degree of freedom is a constant 9×nd matrix `B` (the hoop row of an
 //! axisymmetric element included), so `F = I + B u`. Internal force and
 //! tangent are then `∫ Bᵀ P dV` and `∫ Bᵀ A B dV` with `P` the first
-//! Piola–Kirchhoff stress and `A = ∂P/∂F`. The material is reached only
-//! through [`Material`]; adding an element shape touches [`geometry`].
+//! Piola–Kirchhoff stress and `A = ∂P/∂F`. The element knows no material:
+//! it hands the caller the kinematics of every point ([`kinematics`]) and
+//! takes back the stress and tangent there ([`PointResponse`]); the assembly
+//! kernel makes that call. Adding an element shape touches [`geometry`].
 //!
-//! ## Mixed Q1/P0 (mean dilatation)
+//! ## Mixed Q1/P0 (mean dilatation); linear pressure in [`pressure_space`]
 //! Following Simo, Taylor & Pister (1985, CMAME 51:177–208), the pressure and
 //! the dilatation θ are constant per element and condensed. With the
 //! isochoric/volumetric split `W = W_iso(C̄) + U(J)`, the isochoric energy of
@@ -31,11 +35,12 @@ pub mod kernel;
 pub mod pressure_space;
 
 pub use geometry::{PointGeometry, Shape};
-pub use kernel::{element_into, element_with_state_into, point_states, MixedState, PointState, MAX_DOFS, MAX_POINTS};
+pub use kernel::{
+    integrate_into, kinematics, point_states_into, ElementKinematics, MixedState, PointKinematics, PointResponse, PointState,
+    VolumetricResponse, MAX_DOFS, MAX_POINTS,
+};
 
 use thiserror::Error;
-
-use crate::material::MaterialError;
 
 /// Kind of analysis: fixes how a 2-D section is read.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -60,15 +65,6 @@ pub enum Formulation {
     Displacement,
 }
 
-/// What one element needs besides its node positions and displacements.
-#[derive(Debug, Clone, Copy)]
-pub struct ElementContext<'a> {
-    pub shape: Shape,
-    pub analysis: Analysis,
-    pub formulation: Formulation,
-    pub material: &'a crate::material::Material,
-}
-
 /// Failure inside one element (the caller adds the element index).
 #[derive(Debug, Clone, PartialEq, Error)]
 pub enum ElementError {
@@ -81,10 +77,4 @@ pub enum ElementError {
     /// A side shape (line) was passed where an element is needed.
     #[error("{shape} is a side shape, not an element")]
     NotAnElement { shape: &'static str },
-    /// The constitutive model could not evaluate the state.
-    #[error("material: {0}")]
-    Material(#[from] MaterialError),
 }
-
-#[cfg(test)]
-mod fd_tests;

@@ -25,9 +25,9 @@ pub mod rotation;
 
 use crate::assembly::Discretization;
 use crate::element::Analysis;
-use crate::error::SolveError;
 use crate::model::{InsertDrive, Ramp, Stage};
 use rotation::{apply, cross, rotation_with_derivatives, Mat3};
+use thiserror::Error;
 
 /// Component names in model order (translations, then the rotation vector).
 pub const COMPONENTS: [&str; 6] = ["x", "y", "z", "rx", "ry", "rz"];
@@ -96,9 +96,33 @@ pub fn active_components(analysis: Analysis) -> [bool; 6] {
     }
 }
 
+/// Why the inserts cannot be set up or driven.
+#[derive(Debug, Clone, PartialEq, Error)]
+pub enum InsertError {
+    /// An insert names a set the mesh does not have.
+    #[error("insert `{insert}`: no node, side or element set named `{set}`")]
+    UnknownSet {
+        /// Name of the insert.
+        insert: String,
+        /// The set it names.
+        set: String,
+    },
+    /// An insert that cannot be bonded (an empty set, a node shared with another insert).
+    #[error("insert `{insert}`: {reason}")]
+    Bad {
+        /// Name of the insert.
+        insert: String,
+        /// What is wrong with it.
+        reason: String,
+    },
+    /// The condensed insert equations are singular.
+    #[error("insert equations are singular (is a free insert component held by nothing?)")]
+    Singular,
+}
+
 impl Inserts {
     /// Resolves the inserts' node sets. A node bonded to two inserts is an error.
-    pub fn new(disc: &Discretization) -> Result<Self, SolveError> {
+    pub fn new(disc: &Discretization) -> Result<Self, InsertError> {
         let model = disc.model;
         let mesh = disc.mesh();
         let dim = disc.dim;
@@ -106,15 +130,14 @@ impl Inserts {
         let mut owner: Vec<Option<usize>> = vec![None; mesh.node_count()];
         let mut bodies = Vec::new();
         for (b, ins) in model.inserts.iter().enumerate() {
-            let nodes = mesh
-                .nodes_of_set(&ins.set)
-                .ok_or_else(|| SolveError::UnknownSet { stage: String::from("(inserts)"), name: ins.set.clone() })?;
+            let nodes =
+                mesh.nodes_of_set(&ins.set).ok_or_else(|| InsertError::UnknownSet { insert: ins.name.clone(), set: ins.set.clone() })?;
             if nodes.is_empty() {
-                return Err(SolveError::BadInsert { insert: ins.name.clone(), reason: format!("set `{}` has no nodes", ins.set) });
+                return Err(InsertError::Bad { insert: ins.name.clone(), reason: format!("set `{}` has no nodes", ins.set) });
             }
             for &n in &nodes {
                 if let Some(other) = owner[n] {
-                    return Err(SolveError::BadInsert {
+                    return Err(InsertError::Bad {
                         insert: ins.name.clone(),
                         reason: format!("node {n} is also bonded to insert `{}`", model.inserts[other].name),
                     });
@@ -397,9 +420,10 @@ impl Body {
 /// `kj` and `kw` hold K·J_k and K·W_j at every dof, `g` the insert
 /// residuals, `h` the arm term, `dup` the prescribed change of this
 /// iteration. Returns dq and corrects `du` to `y − Σ X_k dq_k`, with
-/// `X_k = K_ff⁻¹ (K J_k)_f` found by `solve`.
+/// `X_k = K_ff⁻¹ (K J_k)_f` found by `solve` (whose error type `E` the
+/// function returns; a singular insert system is [`InsertError::Singular`]).
 #[allow(clippy::too_many_arguments)]
-pub fn condense(
+pub fn condense<E: From<InsertError>>(
     eq: &[usize],
     w: &[f64],
     kj: &[f64],
@@ -408,8 +432,8 @@ pub fn condense(
     h: &[f64],
     dup: &[f64],
     du: &mut [f64],
-    mut solve: impl FnMut(&mut [f64]) -> Result<(), SolveError>,
-) -> Result<Vec<f64>, SolveError> {
+    mut solve: impl FnMut(&mut [f64]) -> Result<(), E>,
+) -> Result<Vec<f64>, E> {
     use crate::assembly::dofs::NONE;
     let m = g.len();
     let ndof = eq.len();
@@ -455,7 +479,7 @@ pub fn condense(
     let dq = s.partial_piv_lu().solve(&rhs);
     let dq: Vec<f64> = (0..m).map(|k| dq[(k, 0)]).collect();
     if dq.iter().any(|v| !v.is_finite()) {
-        return Err(SolveError::Linear("insert equations are singular (is a free insert component held by nothing?)".into()));
+        return Err(InsertError::Singular.into());
     }
     for k in 0..m {
         for (f, v) in du.iter_mut().enumerate() {

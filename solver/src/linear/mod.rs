@@ -1,54 +1,128 @@
-//! Sparse direct solve of the symmetric free-dof tangent with faer.
+//! The linear-solver interface of the Newton driver, and its backends.
 //!
-//! The symbolic Cholesky analysis (fill-reducing ordering, elimination tree,
-//! supernodes) is done once per pattern; every Newton iteration reuses it and
-//! the factor's value buffer and workspace. When the tangent is not positive
-//! definite (a buckling or unstable state), the solver falls back to a sparse
-//! LU of the full matrix, whose symbolic analysis is also built once, lazily,
-//! and says so in its statistics. Before LU it tries LDLᵀ without pivoting
-//! on the Cholesky structure, which costs the same as the Cholesky
-//! factorization and succeeds for the mildly indefinite tangents met in
-//! Newton iterations of nearly incompressible rubber.
+//! A [`LinearSolver`] is built for one sparsity pattern ([`LinearSolver::analyse`]:
+//! ordering, symbolic factorization, workspaces), then factorises the tangent
+//! of every Newton iteration ([`LinearSolver::factorize`]) and solves with it
+//! ([`LinearSolver::solve`]), keeping [`LinearStats`]. The driver sees only
+//! this interface and the [`Factorization`] summary it returns (whether the
+//! matrix was positive definite, whether a fallback was needed); it never
+//! asks which factorization ran. One backend exists: [`FaerDirect`], faer's
+//! sparse Cholesky with LDLᵀ and LU fallbacks ([`faer_direct`]). An
+//! iterative or distributed backend implements the same trait and is chosen
+//! in [`analyse`] from [`LinearSettings`].
 
-use std::time::Instant;
+use thiserror::Error;
 
-use faer::dyn_stack::{MemBuffer, MemStack};
-use faer::linalg::cholesky::ldlt::factor::LdltRegularization;
-use faer::linalg::cholesky::llt::factor::LltRegularization;
-use faer::sparse::linalg::cholesky::{
-    factorize_symbolic_cholesky, CholeskySymbolicParams, LdltRef, LltRef, SymbolicCholesky, SymbolicCholeskyRaw, SymmetricOrdering,
-};
-use faer::sparse::linalg::solvers::{Lu, SymbolicLu};
-use faer::sparse::{Pair, SparseColMat, SparseColMatRef, SymbolicSparseColMat};
-use faer::{Conj, MatMut, Par, Side};
-
-use crate::assembly::Pattern;
-
+pub mod faer_direct;
 pub mod nested_dissection;
-use crate::error::SolveError;
 
-/// Fill-reducing ordering of the Cholesky factorization.
-#[derive(Debug, Clone, PartialEq, Eq, Default)]
-pub enum Ordering {
-    /// Approximate minimum degree (faer's built-in). Default.
-    #[default]
-    Amd,
-    /// Nested dissection of the node graph through METIS (needs the `metis`
-    /// feature; without it the solver reports an error).
-    NestedDissection,
-    /// Both AMD and nested dissection (if available); keeps whichever gives
-    /// the factor with fewer entries.
-    LeastFill,
-    /// A caller-supplied permutation: `perm[k]` is the equation eliminated k-th
-    /// (e.g. from a nested-dissection partitioner).
-    Custom(Vec<usize>),
+pub use faer_direct::FaerDirect;
+
+pub use crate::model::{LinearSettings, Ordering};
+
+/// Why the linear solve failed.
+#[derive(Debug, Clone, PartialEq, Error)]
+pub enum LinearError {
+    /// A custom ordering whose length is not the number of equations.
+    #[error("custom ordering has {given} entries for {equations} equations")]
+    OrderingLength {
+        /// Entries of the given permutation.
+        given: usize,
+        /// Equations of the system.
+        equations: usize,
+    },
+    /// Nested dissection asked for without the `metis` feature.
+    #[error("nested-dissection ordering needs olli-solver's `metis` feature")]
+    MetisUnavailable,
+    /// METIS rejected the node graph.
+    #[error("METIS graph: {0}")]
+    Metis(String),
+    /// A step of the sparse factorization failed inside faer.
+    #[error("{step}: {detail}")]
+    Factorization {
+        /// The step (symbolic Cholesky, LU pattern, LU factorization, …).
+        step: &'static str,
+        /// faer's report.
+        detail: String,
+    },
+    /// The factor's workspace could not be allocated.
+    #[error("out of memory for the factor workspace")]
+    OutOfMemory,
+    /// `solve` called before any factorization.
+    #[error("solve before factorization")]
+    NotFactored,
+    /// The solution has NaN or infinite entries: the matrix is singular.
+    #[error("solution is not finite (singular tangent)")]
+    NotFinite,
 }
 
-/// Settings of the linear solver.
-#[derive(Debug, Clone, PartialEq, Default)]
-pub struct LinearSettings {
-    /// Fill-reducing ordering. Default AMD.
-    pub ordering: Ordering,
+/// The sparsity of a symmetric system as the solver analyses it: the lower
+/// triangle in compressed columns (rows sorted within each column), and the
+/// mesh node of each equation, which node-level orderings keep together.
+#[derive(Debug, Clone, Copy)]
+pub struct SymmetricPattern<'a> {
+    /// Number of equations.
+    pub n: usize,
+    /// Start of each column in `row_idx` (length n + 1).
+    pub col_ptr: &'a [usize],
+    /// Row of each stored entry.
+    pub row_idx: &'a [usize],
+    /// Mesh node of each equation.
+    pub eq_node: &'a [usize],
+}
+
+impl SymmetricPattern<'_> {
+    /// Stored entries of the lower triangle.
+    pub fn nnz(&self) -> usize {
+        self.row_idx.len()
+    }
+}
+
+/// The matrix of one Newton system: the symmetric part of the tangent as
+/// lower-triangle values in the analysed pattern's order, plus skew-symmetric
+/// entries `(slot, w)` (w at the slot's below-diagonal position, −w at its
+/// mirror), as friction produces. Empty `skew`: a symmetric matrix.
+#[derive(Debug, Clone, Copy)]
+pub struct SystemMatrix<'a> {
+    /// Lower-triangle values of the symmetric part, one per pattern entry.
+    pub lower: &'a [f64],
+    /// Skew-symmetric entries by lower-triangle slot.
+    pub skew: &'a [(usize, f64)],
+}
+
+/// What a numeric factorization produced, as the driver needs to know it.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Factorization {
+    /// The method used (for reports).
+    pub kind: FactorKind,
+    /// The matrix was found symmetric positive definite, so the Newton
+    /// direction descends the energy and a line search on it is sound.
+    pub positive_definite: bool,
+    /// The preferred method failed and a more general one was used (an
+    /// indefinite tangent: worth a note in the log).
+    pub fallback: bool,
+}
+
+/// A sparse linear solver bound to one pattern.
+pub trait LinearSolver: std::fmt::Debug + Send {
+    /// Analyses `pattern` once (ordering, symbolic factorization, workspaces).
+    fn analyse(pattern: &SymmetricPattern, settings: &LinearSettings) -> Result<Self, LinearError>
+    where
+        Self: Sized;
+
+    /// Numeric factorization of `matrix` (values in the analysed pattern).
+    fn factorize(&mut self, matrix: SystemMatrix) -> Result<Factorization, LinearError>;
+
+    /// Solves with the last factorization, in place: `rhs` becomes the solution.
+    fn solve(&mut self, rhs: &mut [f64]) -> Result<(), LinearError>;
+
+    /// Counters and timings so far.
+    fn stats(&self) -> &LinearStats;
+}
+
+/// The solver `settings` choose, analysed for `pattern`.
+pub fn analyse(pattern: &SymmetricPattern, settings: &LinearSettings) -> Result<Box<dyn LinearSolver>, LinearError> {
+    Ok(Box::new(FaerDirect::analyse(pattern, settings)?))
 }
 
 /// Which factorization solved the last system.
@@ -86,270 +160,4 @@ pub struct LinearStats {
     /// Factor entries with each ordering, when [`Ordering::LeastFill`] compared them.
     pub fill_amd: Option<usize>,
     pub fill_nested_dissection: Option<usize>,
-}
-
-struct LuFallback {
-    symbolic_full: SymbolicSparseColMat<usize>,
-    argsort: faer::sparse::Argsort<usize>,
-    /// For each pair handed to faer, the slot of the lower-triangle value.
-    source: Vec<usize>,
-    /// For each lower-triangle slot, the index of its own (row ≥ col) pair;
-    /// an off-diagonal slot's mirrored pair follows it.
-    first: Vec<usize>,
-    values: Vec<f64>,
-    symbolic_lu: SymbolicLu<usize>,
-    factor: Option<Lu<usize, f64>>,
-}
-
-/// A solver bound to one pattern.
-pub struct LinearSolver {
-    symbolic_matrix: SymbolicSparseColMat<usize>,
-    symbolic: SymbolicCholesky<usize>,
-    l_values: Vec<f64>,
-    mem: MemBuffer,
-    par: Par,
-    lu: Option<LuFallback>,
-    last: Option<FactorKind>,
-    pub stats: LinearStats,
-}
-
-impl std::fmt::Debug for LinearSolver {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        f.debug_struct("LinearSolver").field("stats", &self.stats).finish()
-    }
-}
-
-impl LinearSolver {
-    /// Symbolic analysis of the pattern (done once).
-    pub fn new(pattern: &Pattern, settings: &LinearSettings) -> Result<Self, SolveError> {
-        let t = Instant::now();
-        let symbolic_matrix = pattern.symbolic();
-        let symbolic_with = |perm: Option<&Vec<usize>>| -> Result<SymbolicCholesky<usize>, SolveError> {
-            let perm_storage;
-            let ordering = match perm {
-                None => SymmetricOrdering::Amd,
-                Some(p) => {
-                    if p.len() != pattern.n {
-                        return Err(SolveError::Linear(format!("custom ordering has {} entries for {} equations", p.len(), pattern.n)));
-                    }
-                    let mut inv = vec![0usize; p.len()];
-                    for (k, &i) in p.iter().enumerate() {
-                        inv[i] = k;
-                    }
-                    perm_storage = faer::perm::Perm::new_checked(p.clone().into_boxed_slice(), inv.into_boxed_slice(), p.len());
-                    SymmetricOrdering::Custom(perm_storage.as_ref())
-                }
-            };
-            factorize_symbolic_cholesky(symbolic_matrix.as_ref(), Side::Lower, ordering, CholeskySymbolicParams::default())
-                .map_err(|e| SolveError::Linear(format!("symbolic Cholesky: {e:?}")))
-        };
-        let mut fill_amd = None;
-        let mut fill_nd = None;
-        let (symbolic, chosen) = match &settings.ordering {
-            Ordering::Amd => (symbolic_with(None)?, Ordering::Amd),
-            Ordering::Custom(p) => (symbolic_with(Some(p))?, Ordering::Custom(Vec::new())),
-            Ordering::NestedDissection => (symbolic_with(Some(&nested_dissection::order(pattern)?))?, Ordering::NestedDissection),
-            Ordering::LeastFill => {
-                let amd = symbolic_with(None)?;
-                fill_amd = Some(factor_counts(&amd).0);
-                match nested_dissection::order(pattern) {
-                    Ok(perm) => {
-                        let nd = symbolic_with(Some(&perm))?;
-                        fill_nd = Some(factor_counts(&nd).0);
-                        if fill_nd < fill_amd {
-                            (nd, Ordering::NestedDissection)
-                        } else {
-                            (amd, Ordering::Amd)
-                        }
-                    }
-                    // Without the `metis` feature only AMD is available.
-                    Err(_) => (amd, Ordering::Amd),
-                }
-            }
-        };
-        let par = faer::get_global_parallelism();
-        let scratch = symbolic
-            .factorize_numeric_llt_scratch::<f64>(par, Default::default())
-            .or(symbolic.factorize_numeric_ldlt_scratch::<f64>(par, Default::default()))
-            .or(symbolic.solve_in_place_scratch::<f64>(1, par));
-        let mem = MemBuffer::try_new(scratch).map_err(|_| SolveError::Linear("out of memory for the factor workspace".into()))?;
-        let l_values = vec![0.0; symbolic.len_val()];
-        let (nnz_factor, factor_flops) = factor_counts(&symbolic);
-        let stats = LinearStats {
-            equations: pattern.n,
-            nnz_matrix: pattern.nnz(),
-            nnz_factor,
-            factor_flops,
-            symbolic_time: t.elapsed().as_secs_f64(),
-            ordering: match chosen {
-                Ordering::Amd => "amd",
-                Ordering::NestedDissection => "nested-dissection",
-                _ => "custom",
-            },
-            fill_amd,
-            fill_nested_dissection: fill_nd,
-            ..Default::default()
-        };
-        Ok(LinearSolver { symbolic_matrix, symbolic, l_values, mem, par, lu: None, last: None, stats })
-    }
-
-    /// Numeric factorization of the tangent with the given lower-triangle values;
-    /// Cholesky first, LU if the matrix is not positive definite.
-    pub fn factor(&mut self, values: &[f64]) -> Result<FactorKind, SolveError> {
-        let t = Instant::now();
-        let a = SparseColMatRef::new(self.symbolic_matrix.as_ref(), values);
-        let res = self.symbolic.factorize_numeric_llt::<f64>(
-            &mut self.l_values,
-            a,
-            Side::Lower,
-            LltRegularization::default(),
-            self.par,
-            MemStack::new(&mut self.mem),
-            Default::default(),
-        );
-        let kind = match res {
-            Ok(_) => FactorKind::Cholesky,
-            Err(_) => {
-                // Not positive definite: LDLᵀ on the same symbolic structure
-                // (no pivoting, so it needs nonzero pivots), then LU.
-                let ldlt = self.symbolic.factorize_numeric_ldlt::<f64>(
-                    &mut self.l_values,
-                    a,
-                    Side::Lower,
-                    LdltRegularization::default(),
-                    self.par,
-                    MemStack::new(&mut self.mem),
-                    Default::default(),
-                );
-                if ldlt.is_ok() && self.l_values.iter().all(|v| v.is_finite()) {
-                    self.stats.ldlt_fallbacks += 1;
-                    FactorKind::Ldlt
-                } else {
-                    self.factor_lu(values, &[])?;
-                    self.stats.lu_fallbacks += 1;
-                    FactorKind::LuFallback
-                }
-            }
-        };
-        self.stats.numeric_time += t.elapsed().as_secs_f64();
-        self.stats.numeric_count += 1;
-        self.last = Some(kind);
-        Ok(kind)
-    }
-
-    /// Numeric factorization of a non-symmetric tangent: the symmetric part
-    /// as lower-triangle `values`, plus skew-symmetric entries `(slot, w)`
-    /// (w at the slot's below-diagonal position, −w at its mirror), as
-    /// friction produces. Uses LU; with no skew entries it is [`Self::factor`].
-    pub fn factor_nonsymmetric(&mut self, values: &[f64], skew: &[(usize, f64)]) -> Result<FactorKind, SolveError> {
-        if skew.is_empty() {
-            return self.factor(values);
-        }
-        let t = Instant::now();
-        self.factor_lu(values, skew)?;
-        self.stats.numeric_time += t.elapsed().as_secs_f64();
-        self.stats.numeric_count += 1;
-        self.stats.lu_nonsymmetric += 1;
-        self.last = Some(FactorKind::LuNonsymmetric);
-        Ok(FactorKind::LuNonsymmetric)
-    }
-
-    fn factor_lu(&mut self, values: &[f64], skew: &[(usize, f64)]) -> Result<(), SolveError> {
-        if self.lu.is_none() {
-            let m = self.symbolic_matrix.as_ref();
-            let (col_ptr, row_idx) = (m.col_ptr(), m.row_idx());
-            let mut pairs = Vec::with_capacity(2 * row_idx.len());
-            let mut source = Vec::with_capacity(2 * row_idx.len());
-            let mut first = vec![0; row_idx.len()];
-            for c in 0..m.ncols() {
-                for s in col_ptr[c]..col_ptr[c + 1] {
-                    let r = row_idx[s];
-                    first[s] = pairs.len();
-                    pairs.push(Pair::new(r, c));
-                    source.push(s);
-                    if r != c {
-                        pairs.push(Pair::new(c, r));
-                        source.push(s);
-                    }
-                }
-            }
-            let n = m.nrows();
-            let (symbolic_full, argsort) =
-                SymbolicSparseColMat::try_new_from_indices(n, n, &pairs).map_err(|e| SolveError::Linear(format!("LU pattern: {e:?}")))?;
-            let symbolic_lu = SymbolicLu::try_new(symbolic_full.as_ref()).map_err(|e| SolveError::Linear(format!("symbolic LU: {e:?}")))?;
-            self.lu =
-                Some(LuFallback { symbolic_full, argsort, values: vec![0.0; source.len()], source, first, symbolic_lu, factor: None });
-        }
-        let lu = self.lu.as_mut().expect("built above");
-        for (v, &s) in lu.values.iter_mut().zip(&lu.source) {
-            *v = values[s];
-        }
-        // Non-symmetric part: +w at (row, col) below the diagonal, −w at its mirror.
-        for &(slot, w) in skew {
-            let i = lu.first[slot];
-            lu.values[i] += w;
-            lu.values[i + 1] -= w;
-        }
-        let a = SparseColMat::new_from_argsort(lu.symbolic_full.clone(), &lu.argsort, &lu.values)
-            .map_err(|e| SolveError::Linear(format!("LU values: {e:?}")))?;
-        let f = Lu::try_new_with_symbolic(lu.symbolic_lu.clone(), a.as_ref())
-            .map_err(|e| SolveError::Linear(format!("LU factorization: {e:?}")))?;
-        lu.factor = Some(f);
-        Ok(())
-    }
-
-    /// Solves with the last factorization, in place.
-    pub fn solve(&mut self, rhs: &mut [f64]) -> Result<(), SolveError> {
-        let t = Instant::now();
-        let n = rhs.len();
-        let x = MatMut::from_column_major_slice_mut(rhs, n, 1);
-        match self.last {
-            Some(FactorKind::Cholesky) => {
-                let llt = LltRef::<usize, f64>::new(&self.symbolic, &self.l_values);
-                llt.solve_in_place_with_conj(Conj::No, x, self.par, MemStack::new(&mut self.mem));
-            }
-            Some(FactorKind::Ldlt) => {
-                let ldlt = LdltRef::<usize, f64>::new(&self.symbolic, &self.l_values);
-                ldlt.solve_in_place_with_conj(Conj::No, x, self.par, MemStack::new(&mut self.mem));
-            }
-            Some(FactorKind::LuFallback | FactorKind::LuNonsymmetric) => {
-                use faer::linalg::solvers::SolveCore;
-                let f = self.lu.as_ref().and_then(|l| l.factor.as_ref()).ok_or(SolveError::Linear("no LU factor".into()))?;
-                f.solve_in_place_with_conj(Conj::No, x);
-            }
-            None => return Err(SolveError::Linear("solve before factorization".into())),
-        }
-        self.stats.solve_time += t.elapsed().as_secs_f64();
-        if rhs.iter().any(|v| !v.is_finite()) {
-            return Err(SolveError::Linear("solution is not finite (singular tangent)".into()));
-        }
-        Ok(())
-    }
-}
-
-/// Stored entries and Σ colcount² of a symbolic factor.
-fn factor_counts(symbolic: &SymbolicCholesky<usize>) -> (usize, f64) {
-    let (mut nnz, mut flops) = (0usize, 0f64);
-    match symbolic.raw() {
-        SymbolicCholeskyRaw::Supernodal(s) => {
-            for k in 0..s.n_supernodes() {
-                let ncol = s.supernode_end()[k] - s.supernode_begin()[k];
-                let below = s.supernode(k).pattern().len();
-                for j in 0..ncol {
-                    let c = ncol - j + below;
-                    nnz += c;
-                    flops += (c * c) as f64;
-                }
-            }
-        }
-        SymbolicCholeskyRaw::Simplicial(s) => {
-            let cp = s.col_ptr();
-            for j in 0..cp.len() - 1 {
-                let c = cp[j + 1] - cp[j];
-                nnz += c;
-                flops += (c * c) as f64;
-            }
-        }
-    }
-    (nnz, flops)
 }

@@ -6,8 +6,7 @@
 //! recursively and the separator is numbered last. Equations of a node stay
 //! together. The result is handed to faer as a custom permutation.
 
-use crate::assembly::Pattern;
-use crate::error::SolveError;
+use super::{LinearError, SymmetricPattern};
 
 /// Subgraphs at most this large are numbered as they come.
 #[cfg(feature = "metis")]
@@ -15,13 +14,13 @@ const LEAF: usize = 48;
 
 /// Elimination order of the equations (`perm[k]` = equation eliminated k-th).
 #[cfg(not(feature = "metis"))]
-pub fn order(_pattern: &Pattern) -> Result<Vec<usize>, SolveError> {
-    Err(SolveError::Linear("nested-dissection ordering needs olli-solver's `metis` feature".into()))
+pub fn order(_pattern: &SymmetricPattern) -> Result<Vec<usize>, LinearError> {
+    Err(LinearError::MetisUnavailable)
 }
 
 /// Elimination order of the equations (`perm[k]` = equation eliminated k-th).
 #[cfg(feature = "metis")]
-pub fn order(pattern: &Pattern) -> Result<Vec<usize>, SolveError> {
+pub fn order(pattern: &SymmetricPattern) -> Result<Vec<usize>, LinearError> {
     // Compact node ids in equation order (equations are node-major).
     let mut first_eq = Vec::new();
     let mut cid = Vec::with_capacity(pattern.n);
@@ -59,7 +58,7 @@ pub fn order(pattern: &Pattern) -> Result<Vec<usize>, SolveError> {
 }
 
 #[cfg(feature = "metis")]
-fn dissect(vertices: &[usize], adj: &[Vec<usize>], local: &mut [usize], out: &mut Vec<usize>) -> Result<(), SolveError> {
+fn dissect(vertices: &[usize], adj: &[Vec<usize>], local: &mut [usize], out: &mut Vec<usize>) -> Result<(), LinearError> {
     if vertices.len() <= LEAF {
         out.extend_from_slice(vertices);
         return Ok(());
@@ -79,8 +78,7 @@ fn dissect(vertices: &[usize], adj: &[Vec<usize>], local: &mut [usize], out: &mu
         xadj.push(adjncy.len() as metis::Idx);
     }
     let mut part = vec![0 as metis::Idx; vertices.len()];
-    let split =
-        metis::Graph::new(1, 2, &xadj, &adjncy).map_err(|e| SolveError::Linear(format!("METIS graph: {e:?}")))?.part_recursive(&mut part);
+    let split = metis::Graph::new(1, 2, &xadj, &adjncy).map_err(|e| LinearError::Metis(format!("{e:?}")))?.part_recursive(&mut part);
     let boundary = |side: metis::Idx, part: &[metis::Idx]| -> Vec<bool> {
         vertices
             .iter()

@@ -24,11 +24,21 @@
 use olli_mesh::{select::boundary_sides, Side};
 
 use super::pressure::{pressure_side_into, MAX_SIDE_DOFS};
-use crate::assembly::dofs::{DofMap, NONE};
-use crate::assembly::{Discretization, Pattern};
+use crate::assembly::global::GlobalSystem;
+use crate::assembly::Discretization;
 use crate::element::Analysis;
-use crate::error::SolveError;
 use crate::model::{Ramp, Stage};
+
+/// A fluid that cannot be set up: an unknown or empty side set, a source
+/// off its sides, a stage pressure that is not finite.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+#[error("fluid `{fluid}`: {reason}")]
+pub struct FluidError {
+    /// Name of the fluid.
+    pub fluid: String,
+    /// What is wrong with it.
+    pub reason: String,
+}
 
 /// Front updates per increment that may also dry facets; later updates only wet.
 pub const FREE_UPDATES: usize = 4;
@@ -74,15 +84,13 @@ pub struct Fluids {
     committed_contact: Vec<f64>,
     /// Front updates in the current increment.
     updates: usize,
-    /// Skew-symmetric part of the load stiffness at lower-triangle slots.
-    pub skew: Vec<(usize, f64)>,
 }
 
 impl Fluids {
     /// Sets up every fluid of the model: its facets, their connectivity and
     /// the source facet. Errors name the fluid: an unknown side set, a set
     /// with no facet on the mesh boundary, a source point off the set.
-    pub fn new(disc: &Discretization) -> Result<Self, SolveError> {
+    pub fn new(disc: &Discretization) -> Result<Self, FluidError> {
         let model = disc.model;
         let mesh = disc.mesh();
         let dim = disc.dim;
@@ -90,7 +98,7 @@ impl Fluids {
         let boundary = if model.fluids.is_empty() { Vec::new() } else { boundary_sides(mesh) };
         let mut fluids = Vec::new();
         for def in &model.fluids {
-            let bad = |reason: String| SolveError::BadFluid { fluid: def.name.clone(), reason };
+            let bad = |reason: String| FluidError { fluid: def.name.clone(), reason };
             let sides = mesh.side_sets.get(&def.sides).ok_or_else(|| bad(format!("no side set named `{}`", def.sides)))?;
             let free: Vec<Side> = sides.iter().copied().filter(|s| boundary.binary_search(s).is_ok()).collect();
             if free.is_empty() {
@@ -140,25 +148,17 @@ impl Fluids {
         for stage in &model.stages {
             for p in &stage.fluid_pressures {
                 if !model.fluids.iter().any(|f| f.name == p.fluid) {
-                    return Err(SolveError::BadFluid {
+                    return Err(FluidError {
                         fluid: p.fluid.clone(),
                         reason: format!("stage `{}` sets the pressure of a fluid that does not exist", stage.name),
                     });
                 }
                 if !p.value.is_finite() {
-                    return Err(SolveError::BadFluid { fluid: p.fluid.clone(), reason: "pressure must be finite".into() });
+                    return Err(FluidError { fluid: p.fluid.clone(), reason: "pressure must be finite".into() });
                 }
             }
         }
-        Ok(Fluids {
-            fluids,
-            dim,
-            corners,
-            analysis: Some(model.analysis),
-            committed_contact: vec![0.0; mesh.node_count()],
-            updates: 0,
-            skew: Vec::new(),
-        })
+        Ok(Fluids { fluids, dim, corners, analysis: Some(model.analysis), committed_contact: vec![0.0; mesh.node_count()], updates: 0 })
     }
 
     pub fn is_empty(&self) -> bool {
@@ -231,29 +231,16 @@ impl Fluids {
     }
 
     /// Adds the wetted facets' follower pressure at `u` and stage fraction
-    /// `t` to `f_ext`; with `k`, subtracts the symmetric part of the load
-    /// stiffness from the tangent (lower triangle) and keeps its skew part
-    /// in [`Self::skew`]; with a predictor `(du_p, rhs)`, adds `∂f/∂u_p du_p`
-    /// to `rhs`.
-    #[allow(clippy::too_many_arguments)]
-    pub fn add_loads(
-        &mut self,
-        nodes: &[[f64; 3]],
-        u: &[f64],
-        t: f64,
-        dofs: &DofMap,
-        pattern: &Pattern,
-        f_ext: &mut [f64],
-        mut k: Option<&mut [f64]>,
-        mut predictor: Option<(&[f64], &mut [f64])>,
-    ) {
-        self.skew.clear();
+    /// `t` to `system`: the force, and `−∂f/∂u` to the tangent with its skew
+    /// part kept (a wetted front on a sliding seal is not conservative).
+    pub fn add_loads(&self, nodes: &[[f64; 3]], u: &[f64], t: f64, system: &mut GlobalSystem) {
         let (dim, nn) = (self.dim, self.corners);
         let Some(analysis) = self.analysis else { return };
         let nd = nn * dim;
         let mut fs = [0.0; MAX_SIDE_DOFS];
         let mut ks = [0.0; MAX_SIDE_DOFS * MAX_SIDE_DOFS];
-        let want_k = k.is_some() || predictor.is_some();
+        let mut gdofs = [0usize; MAX_SIDE_DOFS];
+        let want_k = system.wants_stiffness();
         for i in 0..self.fluids.len() {
             let p = self.pressure(i, t);
             if p == 0.0 {
@@ -266,42 +253,15 @@ impl Fluids {
                     x[a] = nodes[facet[a]];
                     for c in 0..dim {
                         us[a][c] = u[facet[a] * dim + c];
+                        gdofs[a * dim + c] = facet[a] * dim + c;
                     }
                 }
                 pressure_side_into(analysis, &x[..nn], &us[..nn], p, &mut fs, if want_k { Some(&mut ks) } else { None });
-                let g = |r: usize| facet[r / dim] * dim + r % dim;
-                for r in 0..nd {
-                    f_ext[g(r)] += fs[r];
-                }
-                if !want_k {
-                    continue;
-                }
-                // The tangent is K_int − ∂f/∂u, ks[c·nd + r] = ∂f_r/∂u_c.
-                for c in 0..nd {
-                    let qc = dofs.eq[g(c)];
-                    for r in 0..nd {
-                        let qr = dofs.eq[g(r)];
-                        if let Some((dup, rhs)) = predictor.as_mut() {
-                            if qr != NONE {
-                                rhs[qr] += ks[c * nd + r] * dup[g(c)];
-                            }
-                        }
-                        let Some(vals) = k.as_deref_mut() else { continue };
-                        if qr == NONE || qc == NONE || qr < qc {
-                            continue;
-                        }
-                        let Some(slot) = pattern.slot(qr, qc) else { continue };
-                        if qr == qc {
-                            vals[slot] -= ks[c * nd + r];
-                            continue;
-                        }
-                        let (krc, kcr) = (ks[c * nd + r], ks[r * nd + c]);
-                        vals[slot] -= 0.5 * (krc + kcr);
-                        let skew = -0.5 * (krc - kcr);
-                        if skew != 0.0 {
-                            self.skew.push((slot, skew));
-                        }
-                    }
+                system.add_force(&gdofs[..nd], &fs[..nd]);
+                if want_k {
+                    // The tangent holds −∂f/∂u.
+                    ks[..nd * nd].iter_mut().for_each(|v| *v = -*v);
+                    system.add_stiffness(&gdofs[..nd], &ks[..nd * nd], true);
                 }
             }
         }
@@ -518,7 +478,7 @@ mod tests {
         assert_eq!(nb[3], Vec::<usize>::new());
     }
 
-    fn two_squares(source: [f64; 3], interior_only: bool) -> Result<Fluids, SolveError> {
+    fn two_squares(source: [f64; 3], interior_only: bool) -> Result<Fluids, FluidError> {
         use crate::material::{registry, VolumetricForm};
         use crate::model::{Fluid, Formulation, Model};
         use olli_mesh::{ElementKind, Mesh};

@@ -4,4 +4,5 @@
 
 pub mod dead;
 pub mod fluid;
+pub mod follower;
 pub mod pressure;

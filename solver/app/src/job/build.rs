@@ -189,7 +189,7 @@ pub const JOB_FILE_LIMIT: u64 = 16 << 20;
 
 /// Reads, parses and checks the job file at `path`.
 pub fn load(path: &Path) -> Result<Job, InputError> {
-    if path.to_string_lossy().ends_with(crate::sweep::SWEEP_SUFFIX) {
+    if path.to_string_lossy().ends_with(super::SWEEP_SUFFIX) {
         let message = "this is a sweep file, not a job: run it with `olli sweep`".to_string();
         return Err(InputError { file: path.to_path_buf(), position: None, message });
     }

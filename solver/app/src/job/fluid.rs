@@ -9,8 +9,7 @@ use super::build::Builder;
 use super::diagnostics::InputError;
 use super::schema::{AnalysisKind, JobFile};
 use olli_solver::assembly::Discretization;
-use olli_solver::error::SolveError;
-use olli_solver::load::fluid::Fluids;
+use olli_solver::load::fluid::{FluidError, Fluids};
 use olli_solver::model::{Fluid, FluidPressure, Stage};
 
 impl Builder<'_> {
@@ -70,7 +69,7 @@ impl Builder<'_> {
     pub(super) fn check_fluids(&self, file: &JobFile, disc: &Discretization) -> Result<(), InputError> {
         match Fluids::new(disc) {
             Ok(_) => Ok(()),
-            Err(SolveError::BadFluid { fluid, reason }) => {
+            Err(FluidError { fluid, reason }) => {
                 let spec = file.fluid.iter().map(|f| f.get_ref()).find(|f| *f.name.get_ref() == fluid);
                 let span = match spec {
                     Some(s) if reason.contains("source point") => s.source.span(),
@@ -79,7 +78,6 @@ impl Builder<'_> {
                 };
                 Err(self.err(span, format!("fluid `{fluid}`: {reason}")))
             }
-            Err(e) => Err(self.err(0..0, e.to_string())),
         }
     }
 }

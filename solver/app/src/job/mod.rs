@@ -20,3 +20,7 @@ mod stages;
 
 pub use build::{load, load_str, Job, JobMaterial, OutputPlan, FIELD_NAMES};
 pub use diagnostics::InputError;
+
+/// How sweep files are named, so they are never mistaken for jobs (the job
+/// reader refuses them; the sweep module reads them).
+pub const SWEEP_SUFFIX: &str = ".sweep.toml";

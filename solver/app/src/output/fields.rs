@@ -12,9 +12,10 @@ use rayon::prelude::*;
 use serde::Serialize;
 
 use super::vtu::Field;
-use olli_solver::assembly::Discretization;
-use olli_solver::element::{element_into, point_states, PointState, MAX_DOFS, MAX_POINTS};
+use olli_solver::assembly::{point_states, Discretization};
+use olli_solver::element::{PointState, MAX_POINTS};
 use olli_solver::error::SolveError;
+use olli_solver::results::{element_mean, nodal_average, nodal_quantities};
 use olli_solver::shape::MAX_NODES;
 
 /// Von Mises equivalent stress of a symmetric stress tensor.
@@ -117,40 +118,27 @@ struct ElementResult {
 }
 
 /// Computes the frame of displacement `u` (flat, `dim` per node);
-/// `prescribed` flags the held dofs whose internal force is a reaction;
+/// `reactions` are the solver's nodal reactions of the increment
+/// ([`olli_solver::IncrementResult::nodal_reactions`]), so the `reaction`
+/// array sums over a set to the summary's reaction of that set;
 /// `wanted` names the arrays to keep (see [`crate::job::FIELD_NAMES`]).
-pub fn frame(disc: &Discretization, u: &[f64], prescribed: &[bool], wanted: &[String]) -> Result<Frame, SolveError> {
+pub fn frame(disc: &Discretization, u: &[f64], reactions: &[[f64; 3]], wanted: &[String]) -> Result<Frame, SolveError> {
     let mesh = disc.mesh();
     let dim = disc.dim;
-    let per: Vec<Result<(ElementResult, [f64; MAX_DOFS]), SolveError>> =
+    let per: Vec<Result<ElementResult, SolveError>> =
         (0..mesh.element_count()).into_par_iter().map(|e| element_result(disc, e, u)).collect();
     let nn = mesh.node_count();
-    let ne = mesh.element_count();
-    let mut cell = vec![[0.0; MEANS]; ne];
-    let mut node = vec![[0.0; MEANS]; nn];
-    let mut weight = vec![0.0; nn];
-    let mut reaction = vec![0.0; nn * 3];
+    let mut cell = Vec::with_capacity(per.len());
+    let mut volumes = Vec::with_capacity(per.len());
     let mut peaks = Peaks::empty();
-    for (e, r) in per.into_iter().enumerate() {
-        let (mut r, force) = r?;
-        cell[e] = r.means;
+    for r in per {
+        let mut r = r?;
+        cell.push(r.means);
+        volumes.push(r.volume);
         merge(&mut peaks, &mut r.peaks);
-        for (a, &n) in mesh.element_nodes(e).iter().enumerate() {
-            weight[n] += r.volume;
-            for k in 0..MEANS {
-                node[n][k] += r.means[k] * r.volume;
-            }
-            for i in 0..dim {
-                if prescribed[n * dim + i] {
-                    reaction[n * 3 + i] += force[a * dim + i];
-                }
-            }
-        }
     }
+    let node = nodal_average(mesh, &cell, &volumes);
     for n in 0..nn {
-        if weight[n] > 0.0 {
-            node[n].iter_mut().for_each(|v| *v /= weight[n]);
-        }
         let mut d = [0.0; 3];
         d[..dim].copy_from_slice(&u[n * dim..n * dim + dim]);
         let size = (d[0] * d[0] + d[1] * d[1] + d[2] * d[2]).sqrt();
@@ -175,7 +163,7 @@ pub fn frame(disc: &Discretization, u: &[f64], prescribed: &[bool], wanted: &[St
         }
     }
     if want("reaction") {
-        point.push(Field::new("reaction", 3, reaction));
+        point.push(Field::new("reaction", 3, reactions.iter().flatten().copied().collect()));
     }
     let mut cells = Vec::new();
     if want("material") {
@@ -203,37 +191,31 @@ fn merge(into: &mut Peaks, from: &mut Peaks) {
     }
 }
 
-/// Point states, means, peaks and internal force of element `e`.
-fn element_result(disc: &Discretization, e: usize, u: &[f64]) -> Result<(ElementResult, [f64; MAX_DOFS]), SolveError> {
+/// Point states, means and peaks of element `e`.
+fn element_result(disc: &Discretization, e: usize, u: &[f64]) -> Result<ElementResult, SolveError> {
     let (mut x, mut ue) = ([[0.0; 3]; MAX_NODES], [[0.0; 3]; MAX_NODES]);
     disc.gather(e, u, &mut x, &mut ue);
     let ctx = disc.context(e);
     let np = ctx.shape.points();
     let mut states = [PointState::default(); MAX_POINTS];
     point_states(&ctx, &x, &ue, &mut states[..np]).map_err(|err| SolveError::from_element(e, err))?;
-    let mut force = [0.0; MAX_DOFS];
-    element_into(&ctx, &x, &ue, &mut force[..ctx.shape.dofs()], None).map_err(|err| SolveError::from_element(e, err))?;
-    let volume: f64 = states[..np].iter().map(|s| s.volume).sum();
-    let mut means = [0.0; MEANS];
+    let (means, volume) = element_mean(&states[..np], |s| {
+        let q = nodal_quantities(s);
+        [q[0], q[1], q[2], q[3], q[4], q[5], q[6], q[7], q[8], q[9], von_mises(&s.cauchy)]
+    });
     let mut peaks = Peaks::empty();
     for s in &states[..np] {
         let c = &s.cauchy;
-        let vm = von_mises(c);
         let strain = s.max_log_strain();
-        let v = [c[(0, 0)], c[(1, 1)], c[(2, 2)], c[(0, 1)], c[(1, 2)], c[(0, 2)], s.pressure, s.j, strain, s.energy_density, vm];
-        let w = if volume > 0.0 { s.volume / volume } else { 1.0 / np as f64 };
-        for k in 0..MEANS {
-            means[k] += v[k] * w;
-        }
         let eig = c.symmetric_eigenvalues();
         peaks.max_principal_log_strain.offer(strain, s.position);
-        peaks.von_mises.offer(vm, s.position);
+        peaks.von_mises.offer(von_mises(c), s.position);
         peaks.max_principal_stress.offer(eig.max(), s.position);
         peaks.min_principal_stress.offer(-eig.min(), s.position);
         peaks.max_pressure.offer(s.pressure, s.position);
         peaks.min_pressure.offer(-s.pressure, s.position);
     }
-    Ok((ElementResult { means, volume, peaks }, force))
+    Ok(ElementResult { means, volume, peaks })
 }
 
 #[cfg(test)]
@@ -253,8 +235,10 @@ mod tests {
     }
 
     /// The nodal `reaction` array must add up, over a set, to the reaction
-    /// the solver reports for that set (both are the internal force at the
-    /// held components; no load acts on those nodes here).
+    /// the solver reports for that set, also where a load acts on held nodes
+    /// (here a force on the moved top edge): both are internal minus
+    /// external force at the held components. (The array once held the
+    /// internal force alone and differed from the summary by that load.)
     #[test]
     fn reaction_field_sums_to_the_set_reaction() {
         let text = r#"
@@ -277,6 +261,10 @@ fix = ["x", "y"]
 [[motion]]
 nodes = "top"
 displacement = { x = 0.3, y = -0.2 }
+[[force]]
+set = "top"
+stage = "load"
+total = { x = 0.5, y = 0.25 }
 [[stage]]
 name = "load"
 first_increment = 0.5
@@ -286,9 +274,25 @@ max_increment = 0.5
         let sol = olli_solver::solve(&job.model, &mut olli_solver::Quiet).unwrap();
         let last = sol.last().unwrap();
         let disc = Discretization::new(&job.model).unwrap();
-        let (programs, _) = olli_solver::driver::stages::resolve(&disc).unwrap();
         let u: Vec<f64> = last.displacement.iter().flat_map(|d| d[..2].to_vec()).collect();
-        let f = frame(&disc, &u, &programs[0].prescribed, &["reaction".to_string()]).unwrap();
+        let f = frame(&disc, &u, &last.nodal_reactions, &["reaction".to_string()]).unwrap();
+        // The top's reaction is the internal force less the applied 0.5 (x):
+        // compare with the element forces summed over the top edge.
+        let mut internal = [0.0; 2];
+        for e in 0..job.model.mesh.element_count() {
+            let (mut x, mut ue) = ([[0.0; 3]; MAX_NODES], [[0.0; 3]; MAX_NODES]);
+            disc.gather(e, &u, &mut x, &mut ue);
+            let mut fe = [0.0; 8];
+            olli_solver::assembly::element_into(&disc.context(e), &x, &ue, &mut fe, None).unwrap();
+            for (a, &n) in job.model.mesh.element_nodes(e).iter().enumerate() {
+                if job.model.mesh.node_sets["top"].contains(&n) {
+                    internal[0] += fe[2 * a];
+                    internal[1] += fe[2 * a + 1];
+                }
+            }
+        }
+        let top = last.reactions["top"];
+        assert!((internal[0] - top[0] - 0.5).abs() < 1e-8 && (internal[1] - top[1] - 0.25).abs() < 1e-8, "{internal:?} vs {top:?}");
         let reaction = &f.point[0].values;
         for set in ["bottom", "top"] {
             let want = last.reactions[set];

@@ -35,8 +35,6 @@ pub struct ResultWriter<'m> {
     folder: PathBuf,
     stem: String,
     disc: Discretization<'m>,
-    /// Held dofs of each stage (their internal force is a reaction).
-    prescribed: Vec<Vec<bool>>,
     history: History,
     frames: Vec<PvdEntry>,
     log: BufWriter<File>,
@@ -57,7 +55,6 @@ impl<'m> ResultWriter<'m> {
     /// Nothing is created until the model and the folder have been checked.
     pub fn new(job: &'m Job, folder: &Path) -> io::Result<Self> {
         let disc = Discretization::new(&job.model).map_err(io::Error::other)?;
-        let (programs, _) = olli_solver::driver::stages::resolve(&disc).map_err(io::Error::other)?;
         let stem = job_stem(job);
         check_output_folder(folder, &stem).map_err(io::Error::other)?;
         std::fs::create_dir_all(folder)?;
@@ -69,7 +66,6 @@ impl<'m> ResultWriter<'m> {
             folder: folder.to_path_buf(),
             stem,
             disc,
-            prescribed: programs.into_iter().map(|p| p.prescribed).collect(),
             history: History::new(job.history_columns()),
             frames: Vec::new(),
             log,
@@ -210,7 +206,7 @@ impl<'m> ResultWriter<'m> {
         let (stage, increment, load_factor) = (r.stage, r.increment, r.load_factor);
         let dim = self.disc.dim;
         let u: Vec<f64> = r.displacement.iter().flat_map(|x| x[..dim].to_vec()).collect();
-        let mut f = frame(&self.disc, &u, &self.prescribed[stage], &self.job.output.fields).map_err(io::Error::other)?;
+        let mut f = frame(&self.disc, &u, &r.nodal_reactions, &self.job.output.fields).map_err(io::Error::other)?;
         if let Some(c) = r.contact_fields.as_ref().filter(|_| self.job.output.fields.iter().any(|w| w == "contact")) {
             f.point.push(Field::new("contact_pressure", 1, c.pressure.clone()));
             f.point.push(Field::new("contact_gap", 1, c.gap.clone()));

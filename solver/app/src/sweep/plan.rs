@@ -17,8 +17,7 @@ use super::schema::{DesignKind, DistributionSpec, ParameterSpec, SweepFile};
 use crate::job::check::check;
 use crate::job::{self, InputError};
 
-/// How sweep files are named, so they are never mistaken for jobs.
-pub const SWEEP_SUFFIX: &str = ".sweep.toml";
+pub use crate::job::SWEEP_SUFFIX;
 
 /// Seed of a Latin hypercube without `seed`.
 pub const DEFAULT_SEED: u64 = 1;

@@ -1,0 +1,174 @@
+//! The integration-point kernel: the one place where an element meets a
+//! material. The element supplies the kinematics of each Gauss point
+//! ([`kinematics`]); the material is evaluated there (the isochoric part
+//! alone for a mixed element, whose pressure comes from the volumetric law
+//! at the element's dilatation); the element integrates the answers
+//! ([`integrate_into`], [`point_states_into`]).
+
+use thiserror::Error;
+
+use crate::element::pressure_space::PressureSpace;
+use crate::element::{
+    integrate_into, kinematics, point_states_into, Analysis, ElementError, ElementKinematics, Formulation, MixedState, PointResponse,
+    PointState, Shape, VolumetricResponse, MAX_POINTS,
+};
+use crate::material::{Material, MaterialError};
+
+/// What one element needs besides its node positions and displacements.
+#[derive(Debug, Clone, Copy)]
+pub struct ElementContext<'a> {
+    /// Element shape (node count, integration rule).
+    pub shape: Shape,
+    /// How a 2-D section is read (axisymmetric, plane strain) or 3-D.
+    pub analysis: Analysis,
+    /// Mixed (mean dilatation) or plain displacement element.
+    pub formulation: Formulation,
+    /// Material of the element's region.
+    pub material: &'a Material,
+}
+
+/// Failure of one element evaluation (the caller adds the element index).
+#[derive(Debug, Clone, PartialEq, Error)]
+pub enum KernelError {
+    /// The element's geometry failed: an inverted point or a bad reference element.
+    #[error(transparent)]
+    Element(#[from] ElementError),
+    /// The material could not be evaluated at an integration point (e.g. at
+    /// the eight-chain locking stretch).
+    #[error("material at integration point {point}: {source}")]
+    Material {
+        /// Integration point (0 for the element's volumetric law).
+        point: usize,
+        /// What the material reported.
+        source: MaterialError,
+    },
+}
+
+/// A material failure at `point`; a non-positive volume is an inversion.
+fn material_error(source: MaterialError, point: usize, j: f64) -> KernelError {
+    match source {
+        MaterialError::NonPositiveVolume { .. } => KernelError::Element(ElementError::Inverted { point, j }),
+        source => KernelError::Material { point, source },
+    }
+}
+
+/// The volumetric law of a mixed element at its dilatations
+/// ([`ElementKinematics::dilatations`]) into `out`; returns their count.
+/// Constant pressure: the carried θ and p of the three-field form when
+/// `state` is given, else θ = v/V and p = U'(θ). Linear pressure: the law at
+/// the projected θ_h of every point (always condensed from u).
+fn volumetric(
+    material: &Material,
+    kin: &ElementKinematics,
+    state: Option<&MixedState>,
+    out: &mut [VolumetricResponse; MAX_POINTS],
+) -> Result<usize, KernelError> {
+    let law = &material.volumetric;
+    let mut theta = [0.0; MAX_POINTS];
+    let count = kin.dilatations(&mut theta)?;
+    if kin.pressure_space() == PressureSpace::Linear {
+        for (q, (&t, o)) in theta.iter().zip(out.iter_mut()).take(count).enumerate() {
+            let at = |e| material_error(e, q, t);
+            let energy = law.energy(t).map_err(at)?;
+            let law_pressure = law.pressure(t).map_err(at)?;
+            let stiffness = law.pressure_derivative(t).map_err(at)?;
+            *o = VolumetricResponse { energy, pressure: law_pressure, law_pressure, stiffness };
+        }
+        return Ok(count);
+    }
+    let ratio = theta[0];
+    let theta = state.map(|s| s.dilatation).unwrap_or(ratio);
+    let at_theta = |e| material_error(e, 0, theta);
+    let energy = law.energy(ratio).map_err(|e| material_error(e, 0, ratio))?;
+    let law_pressure = law.pressure(theta).map_err(at_theta)?;
+    let stiffness = law.pressure_derivative(theta).map_err(at_theta)?;
+    let pressure = state.map(|s| s.pressure).unwrap_or(law_pressure);
+    out[0] = VolumetricResponse { energy, pressure, law_pressure, stiffness };
+    Ok(1)
+}
+
+/// The material's answer at every Gauss point: the isochoric part alone for
+/// the mixed form (it adds the element pressure itself), the full one otherwise.
+fn responses(material: &Material, mixed: bool, kin: &ElementKinematics, out: &mut [PointResponse]) -> Result<(), KernelError> {
+    for (q, (k, r)) in kin.points().iter().zip(out.iter_mut()).enumerate() {
+        let c = k.right_cauchy_green();
+        let resp = if mixed { material.isochoric_response(&c) } else { material.response(&c) };
+        let resp = resp.map_err(|e| material_error(e, q, k.j))?;
+        *r = PointResponse { energy: resp.energy, stress: resp.stress, tangent: resp.tangent };
+    }
+    Ok(())
+}
+
+/// One element's kinematics with the material evaluated at its points.
+struct MaterialAt {
+    kinematics: ElementKinematics,
+    /// The volumetric law at the element's dilatations (mixed elements only).
+    volumetric: [VolumetricResponse; MAX_POINTS],
+    /// How many entries of `volumetric` hold (0 for a displacement element).
+    volumetric_count: usize,
+    responses: [PointResponse; MAX_POINTS],
+}
+
+impl MaterialAt {
+    fn evaluate(ctx: &ElementContext, x: &[[f64; 3]], u: &[[f64; 3]], state: Option<&MixedState>) -> Result<Self, KernelError> {
+        let kinematics = kinematics(ctx.shape, ctx.analysis, x, u)?;
+        let mixed = ctx.formulation == Formulation::Mixed;
+        let mut out = MaterialAt {
+            kinematics,
+            volumetric: [VolumetricResponse::default(); MAX_POINTS],
+            volumetric_count: 0,
+            responses: [PointResponse::default(); MAX_POINTS],
+        };
+        if mixed {
+            out.volumetric_count = volumetric(ctx.material, &out.kinematics, state, &mut out.volumetric)?;
+        }
+        responses(ctx.material, mixed, &out.kinematics, &mut out.responses)?;
+        Ok(out)
+    }
+
+    fn volumetric(&self) -> &[VolumetricResponse] {
+        &self.volumetric[..self.volumetric_count]
+    }
+
+    fn responses(&self) -> &[PointResponse] {
+        &self.responses[..self.kinematics.points().len()]
+    }
+}
+
+/// Internal force (and, if asked, the tangent, column-major ND×ND) of one
+/// element into caller buffers of length `shape.dofs()` and its square.
+/// `x` are the reference node positions and `u` the node displacements, both
+/// with three entries per node (the third ignored in 2-D). Returns the
+/// element's strain energy.
+pub fn element_into(
+    ctx: &ElementContext,
+    x: &[[f64; 3]],
+    u: &[[f64; 3]],
+    force: &mut [f64],
+    stiffness: Option<&mut [f64]>,
+) -> Result<f64, KernelError> {
+    element_with_state_into(ctx, x, u, force, stiffness, None)
+}
+
+/// As [`element_into`], with the mixed element's pressure and dilatation
+/// taken from `state` (three-field form) instead of condensed from u.
+/// Ignored by displacement elements.
+pub fn element_with_state_into(
+    ctx: &ElementContext,
+    x: &[[f64; 3]],
+    u: &[[f64; 3]],
+    force: &mut [f64],
+    stiffness: Option<&mut [f64]>,
+    state: Option<&mut MixedState>,
+) -> Result<f64, KernelError> {
+    let at = MaterialAt::evaluate(ctx, x, u, state.as_deref())?;
+    let state = if at.volumetric_count > 0 { state } else { None };
+    Ok(integrate_into(&at.kinematics, at.responses(), at.volumetric(), force, stiffness, state)?)
+}
+
+/// Per-point results of one element into `out` (length ≥ `shape.points()`).
+pub fn point_states(ctx: &ElementContext, x: &[[f64; 3]], u: &[[f64; 3]], out: &mut [PointState]) -> Result<(), KernelError> {
+    let at = MaterialAt::evaluate(ctx, x, u, None)?;
+    point_states_into(&at.kinematics, at.responses(), at.volumetric(), out)?;
+    Ok(())
+}
