@@ -20,9 +20,13 @@ enum Claim {
     Held(f64),
     /// Moved to a value by the end of the stage, along a ramp (by name of its key).
     Moved { to: f64, ramp: String },
-    /// Anything else (a rotating or loaded insert).
+    /// Anything else (a rotating or loaded insert, a turned set).
     Other,
 }
+
+/// The stage of a set component's latest motion, its value (`None`: a rigid
+/// turn), and where the motion was written.
+type LatestMotion = (usize, Option<f64>, Range<usize>);
 
 /// A constraint's claim with what to call it and where it was written.
 struct Holder {
@@ -93,25 +97,40 @@ impl Builder<'_> {
                     }
                 }
             }
-            // The latest motion of each set and component up to this stage.
-            let mut latest: BTreeMap<(String, usize), (usize, f64, Range<usize>)> = BTreeMap::new();
+            // The latest motion of each set and component up to this stage
+            // (`None`: a rigid turn, which holds every component where it leaves it).
+            let mut latest: BTreeMap<(String, usize), LatestMotion> = BTreeMap::new();
             for m in &file.motion {
                 let spec = m.get_ref();
                 let at = self.stage_index(&file.stage, &spec.stage)?;
                 if at > si {
                     continue;
                 }
-                for (i, v) in self.components(kind, &spec.displacement)?.iter().enumerate() {
+                let values = match (&spec.rotation, &spec.displacement) {
+                    (Some(_), _) => [Some(None); 3],
+                    (None, Some(d)) => self.components(kind, d)?.map(|v| v.map(Some)),
+                    (None, None) => [None; 3],
+                };
+                let span = match (&spec.rotation, &spec.displacement) {
+                    (Some(r), _) => r.span(),
+                    (None, Some(d)) => d.span(),
+                    (None, None) => m.span(),
+                };
+                for (i, v) in values.iter().enumerate().take(dim) {
                     if let Some(v) = v {
                         let key = (spec.nodes.get_ref().clone(), i);
                         if latest.get(&key).is_none_or(|(s, _, _)| *s <= at) {
-                            latest.insert(key, (at, *v, spec.displacement.span()));
+                            latest.insert(key, (at, *v, span.clone()));
                         }
                     }
                 }
             }
             for ((set, i), (at, v, span)) in latest {
-                let claim = if at == si { Claim::Moved { to: v, ramp: ramp_key(stage, &set) } } else { Claim::Held(v) };
+                let claim = match v {
+                    None => Claim::Other,
+                    Some(v) if at == si => Claim::Moved { to: v, ramp: ramp_key(stage, &set) },
+                    Some(v) => Claim::Held(v),
+                };
                 for n in mesh.nodes_of_set(&set).unwrap_or_default() {
                     let what = format!("the motion on `{set}`");
                     claims.entry(n * dim + i).or_default().push(Holder { what, span: span.clone(), claim: claim.clone() });
