@@ -445,6 +445,29 @@ fn run_with_plots_then_plot_as_svg() {
     assert!(section.contains("von Mises stress") && section.contains("rigid `plate`") && section.contains("undeformed"));
     let html = std::fs::read_to_string(svg_dir.join("index.html")).unwrap();
     assert!(html.contains("<img src=\"force.svg\""));
+
+    // Chosen frames: every saved frame, or a list; a frame that does not exist is bad input.
+    let frames = pvd_files(&out).len();
+    let all_dir = s.0.join("all");
+    let plot = olli(&["plot", out.to_str().unwrap(), "--output", all_dir.to_str().unwrap(), "--format", "svg", "--frames", "all"]);
+    assert_eq!(plot.status.code(), Some(0), "{}", text(&plot));
+    let sections = |dir: &Path| {
+        std::fs::read_dir(dir).unwrap().filter(|e| e.as_ref().unwrap().file_name().to_string_lossy().starts_with("section_")).count()
+    };
+    assert!(frames > 2);
+    assert_eq!(sections(&all_dir), frames);
+    let two_dir = s.0.join("two");
+    let plot = olli(&["plot", out.to_str().unwrap(), "--output", two_dir.to_str().unwrap(), "--format", "svg", "--frames", "1,2"]);
+    assert_eq!(plot.status.code(), Some(0), "{}", text(&plot));
+    assert_eq!(sections(&two_dir), 2);
+    let first = std::fs::read_to_string(two_dir.join("section_1.svg")).unwrap();
+    assert!(first.contains("stage `press`"), "the first frame is in the first stage");
+    let plot = olli(&["plot", out.to_str().unwrap(), "--output", s.0.join("bad").to_str().unwrap(), "--frames", "99"]);
+    assert_eq!(plot.status.code(), Some(2));
+    assert!(text(&plot).contains(&format!("frame 99 was asked for, but the results hold frames 1 to {frames}")), "{}", text(&plot));
+    let plot = olli(&["plot", out.to_str().unwrap(), "--frames", "first"]);
+    assert_eq!(plot.status.code(), Some(2));
+    assert!(text(&plot).contains("`first` is not a frame number"), "{}", text(&plot));
 }
 
 #[test]

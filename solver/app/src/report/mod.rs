@@ -34,6 +34,41 @@ pub enum ReportError {
     Plot(#[from] PlotError),
     #[error("{file}: cannot write: {source}")]
     Write { file: PathBuf, source: std::io::Error },
+    #[error("frame {asked} was asked for, but the results hold frames 1 to {available}")]
+    NoSuchFrame { asked: usize, available: usize },
+}
+
+/// Which saved frames get contour pictures and contact-pressure charts.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub enum FrameChoice {
+    /// The last saved frame of each stage (its end, or the last converged
+    /// increment of a stopped run). Default.
+    #[default]
+    StageEnds,
+    /// Every saved frame.
+    All,
+    /// These frames, numbered from 1 in the order of the `.pvd` collection.
+    Numbers(Vec<usize>),
+}
+
+impl std::str::FromStr for FrameChoice {
+    type Err = String;
+
+    /// `ends`, `all`, or frame numbers separated by commas (`1,4,7`).
+    fn from_str(s: &str) -> Result<Self, String> {
+        match s.trim() {
+            "ends" => Ok(FrameChoice::StageEnds),
+            "all" => Ok(FrameChoice::All),
+            list => list
+                .split(',')
+                .map(|n| match n.trim().parse::<usize>() {
+                    Ok(k) if k >= 1 => Ok(k),
+                    _ => Err(format!("`{n}` is not a frame number (give `ends`, `all`, or numbers from 1 such as `1,4,7`)")),
+                })
+                .collect::<Result<Vec<_>, _>>()
+                .map(FrameChoice::Numbers),
+        }
+    }
 }
 
 /// What to draw and how.
@@ -47,11 +82,13 @@ pub struct Options {
     pub colors: ColorMap,
     /// View axis of 3-D parts. Default: chosen from the shape and the motion ([`View::choose`]).
     pub view: Option<View>,
+    /// Frames drawn. Default: the end of each stage.
+    pub frames: FrameChoice,
 }
 
 impl Default for Options {
     fn default() -> Self {
-        Options { format: Format::Png, field: Field::default(), colors: ColorMap::default(), view: None }
+        Options { format: Format::Png, field: Field::default(), colors: ColorMap::default(), view: None, frames: FrameChoice::default() }
     }
 }
 
@@ -71,9 +108,27 @@ pub fn stage_of(time: f64, stages: &[String]) -> (String, f64) {
     (name, time - index)
 }
 
-/// The frames to draw: the last saved frame of each stage (the end of a
-/// stage, or the last converged increment of a stopped one).
-pub fn chosen_frames(r: &RunResults) -> Vec<usize> {
+/// The frames to draw (indices into the run's frames) for `choice`.
+pub fn chosen_frames(r: &RunResults, choice: &FrameChoice) -> Result<Vec<usize>, ReportError> {
+    match choice {
+        FrameChoice::StageEnds => Ok(stage_ends(r)),
+        FrameChoice::All => Ok((0..r.frames.len()).collect()),
+        FrameChoice::Numbers(list) => list
+            .iter()
+            .map(|&k| {
+                if (1..=r.frames.len()).contains(&k) {
+                    Ok(k - 1)
+                } else {
+                    Err(ReportError::NoSuchFrame { asked: k, available: r.frames.len() })
+                }
+            })
+            .collect(),
+    }
+}
+
+/// The last saved frame of each stage (the end of a stage, or the last
+/// converged increment of a stopped one).
+pub fn stage_ends(r: &RunResults) -> Vec<usize> {
     let mut chosen: Vec<usize> = Vec::new();
     for (i, f) in r.frames.iter().enumerate() {
         let stage = (f.time - 1e-9).floor();
@@ -104,7 +159,7 @@ pub fn draw_all(folder: &Path, out: &Path, job: Option<&Job>, options: &Options)
     let stages = r.history.stage_names();
     let title = r.title();
     let analysis = r.summary_text("analysis").unwrap_or("").to_string();
-    for (k, &i) in chosen_frames(&r).iter().enumerate() {
+    for (k, &i) in chosen_frames(&r, &options.frames)?.iter().enumerate() {
         let frame = Frame::read(&r.frames[i].file)?;
         let (stage, load) = stage_of(r.frames[i].time, &stages);
         let when = format!("stage `{stage}`, load factor {}", plot::number(load));

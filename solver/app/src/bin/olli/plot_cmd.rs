@@ -8,7 +8,7 @@ use std::process::ExitCode;
 
 use olli_app::plot::{ColorMap, Format};
 use olli_app::report::section::{Field, View};
-use olli_app::report::{self, Options};
+use olli_app::report::{self, FrameChoice, Options};
 
 #[derive(clap::Args)]
 #[command(after_help = "Example:\n  olli plot examples/results/seal --format svg")]
@@ -30,12 +30,17 @@ pub struct Args {
     /// Axis a 3-D part is seen along (default: chosen from its shape and motion).
     #[arg(long, value_enum)]
     pub view: Option<View>,
+    /// Frames drawn as contour pictures and contact-pressure charts: `ends`
+    /// (the end of each stage), `all`, or frame numbers from 1 in the order
+    /// of the .pvd file, e.g. `1,4,7`.
+    #[arg(long, default_value = "ends", value_name = "ends|all|N,N,..")]
+    pub frames: FrameChoice,
 }
 
 impl Args {
     /// Options for the library.
     pub fn options(&self) -> Options {
-        Options { format: self.format, field: self.field, colors: self.colormap, view: self.view }
+        Options { format: self.format, field: self.field, colors: self.colormap, view: self.view, frames: self.frames.clone() }
     }
 }
 
