@@ -401,14 +401,13 @@ pub struct Stage {
 /// Fill-reducing ordering of the Cholesky factorization.
 #[derive(Debug, Clone, PartialEq, Eq, Default)]
 pub enum Ordering {
-    /// Approximate minimum degree (faer's built-in). Default.
-    #[default]
+    /// Approximate minimum degree (faer's built-in).
     Amd,
-    /// Nested dissection of the node graph through METIS (needs the `metis`
-    /// feature; without it the solver reports an error).
+    /// Nested dissection of the node graph (METIS bisections).
     NestedDissection,
-    /// Both AMD and nested dissection (if available); keeps whichever gives
-    /// the factor with fewer entries.
+    /// Both AMD and nested dissection; keeps whichever gives the factor with
+    /// fewer entries (AMD if the nested dissection fails). Default.
+    #[default]
     LeastFill,
     /// A caller-supplied permutation: `perm[k]` is the equation eliminated k-th
     /// (e.g. from a nested-dissection partitioner).
@@ -418,7 +417,7 @@ pub enum Ordering {
 /// Settings of the linear solver.
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct LinearSettings {
-    /// Fill-reducing ordering. Default AMD.
+    /// Fill-reducing ordering. Default: the one with the smaller factor.
     pub ordering: Ordering,
 }
 

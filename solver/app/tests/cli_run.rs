@@ -143,6 +143,20 @@ fn run_writes_history_summary_and_readable_frames() {
     assert_eq!(summary["units"]["applied_pin_z"], "length");
     assert_eq!(summary["applied"]["applied_pin_z"], 0.5);
     assert!(summary["peaks"]["displacement"]["value"].as_f64().unwrap() >= 0.5 - 1e-12);
+    // What the run cost: the kept ordering has the smaller factor of the two.
+    let perf = &summary["performance"];
+    let count = |k: &str| perf[k].as_u64().unwrap_or_else(|| panic!("performance.{k}: {perf}"));
+    assert!(count("equations") > 0 && count("assemblies") >= count("factorizations") && count("factorizations") > 0);
+    let (amd, nd) = (count("factor_entries_amd"), count("factor_entries_nested_dissection"));
+    assert_eq!(count("factor_entries"), amd.min(nd));
+    assert_eq!(perf["ordering"], if nd < amd { "nested-dissection" } else { "amd" });
+    for k in ["assembly_s", "analysis_s", "factorization_s", "solve_s"] {
+        assert!(perf[k].as_f64().is_some_and(|v| v >= 0.0), "performance.{k}: {perf}");
+    }
+    if cfg!(target_os = "linux") {
+        assert!(perf["peak_memory_mib"].as_f64().is_some_and(|m| m > 1.0), "{perf}");
+    }
+    assert!(text(&out).contains(&format!("performance: {} equations, ", count("equations"))), "{}", text(&out));
     assert!(s.out().join("olli.log").exists());
 
     let frames = pvd_files(&s.out());

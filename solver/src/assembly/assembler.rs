@@ -195,7 +195,9 @@ mod tests {
 
     /// Parallel and serial element loops give the same residual and tangent
     /// (a practice of our code style): the scatter is serial, so they agree
-    /// bit for bit. The 13³ = 2197 elements span three element chunks
+    /// bit for bit, condensed and with carried pressure and dilatation
+    /// states (three-field form, each element's own values), whose outputs
+    /// must agree too. The 13³ = 2197 elements span three element chunks
     /// ([`CHUNK`] = 1024), so the chunk boundaries are crossed too.
     #[test]
     fn parallel_and_serial_assembly_agree() {
@@ -240,26 +242,43 @@ mod tests {
         let dofs = DofMap::new(3, &prescribed);
         let pattern = Pattern::build(&disc, &dofs).unwrap();
         let u: Vec<f64> = (0..ndof).map(|d| 0.01 * ((d * 13 % 17) as f64 - 8.0)).collect();
-        let run = |serial: bool| {
+        let ne = model.mesh.element_count();
+        let carried: Vec<MixedState> = (0..ne)
+            .map(|e| MixedState {
+                pressure: 0.1 * ((e * 5 % 9) as f64 - 4.0),
+                dilatation: 1.0 + 0.001 * (e % 7) as f64,
+                ..Default::default()
+            })
+            .collect();
+        let run = |serial: bool, states: Option<&[MixedState]>| {
             let mut asm = Assembler::new();
             asm.serial = serial;
             let mut f = vec![0.0; ndof];
             let mut k = vec![0.0; pattern.nnz()];
+            let mut states = states.map(|s| s.to_vec());
             asm.assemble(
                 &disc,
                 &dofs,
                 &pattern,
                 &u,
-                Outputs { internal: &mut f, tangent: Some(&mut k), predictor: None, mixed: None, products: None },
+                Outputs { internal: &mut f, tangent: Some(&mut k), predictor: None, mixed: states.as_deref_mut(), products: None },
             )
             .unwrap();
-            (f, k)
+            (f, k, states)
         };
-        assert!(model.mesh.element_count() > 2 * CHUNK, "several chunks");
-        let (fs, ks) = run(true);
-        let (fp, kp) = (run(false).0, run(false).1);
-        assert_eq!(fs, fp);
-        assert_eq!(ks, kp);
-        assert!(ks.iter().any(|v| *v != 0.0));
+        assert!(ne > 2 * CHUNK, "several chunks");
+        for states in [None, Some(carried.as_slice())] {
+            let (fs, ks, ss) = run(true, states);
+            let (fp, kp, sp) = run(false, states);
+            assert_eq!(fs, fp);
+            assert_eq!(ks, kp);
+            assert_eq!(ss, sp);
+            assert!(ks.iter().any(|v| *v != 0.0));
+            if let Some(ss) = ss {
+                assert!(ss.iter().all(|s| s.volume_ratio != 1.0), "state outputs written");
+            }
+        }
+        // The carried pressures enter the tangent: the two forms differ.
+        assert_ne!(run(false, None).1, run(false, Some(&carried)).1);
     }
 }

@@ -13,7 +13,7 @@ fn material() -> Material {
 
 /// A distorted element: reference nodes perturbed by a fixed pattern, and a
 /// large displacement field (stretches up to ~1.3, shear ~0.2).
-fn distorted(shape: Shape) -> (Vec<[f64; 3]>, Vec<[f64; 3]>) {
+pub(super) fn distorted(shape: Shape) -> (Vec<[f64; 3]>, Vec<[f64; 3]>) {
     let base: Vec<[f64; 3]> = if shape.dimension() == 3 {
         shape.def().reference_nodes.iter().map(|p| [1.0 + 0.5 * p[0], 2.0 + 0.6 * p[1], 0.4 * p[2]]).collect()
     } else {

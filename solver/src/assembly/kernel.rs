@@ -161,9 +161,33 @@ pub fn element_with_state_into(
     stiffness: Option<&mut [f64]>,
     state: Option<&mut MixedState>,
 ) -> Result<f64, KernelError> {
+    element_through(integrate_into, ctx, x, u, force, stiffness, state)
+}
+
+/// The element integration [`element_with_state_into`] hands the material's answers to.
+pub(crate) type Integration = fn(
+    &ElementKinematics,
+    &[PointResponse],
+    &[VolumetricResponse],
+    &mut [f64],
+    Option<&mut [f64]>,
+    Option<&mut MixedState>,
+) -> Result<f64, ElementError>;
+
+/// [`element_with_state_into`] through a given element integration (the
+/// kernel parity test passes the reference one).
+pub(crate) fn element_through(
+    integration: Integration,
+    ctx: &ElementContext,
+    x: &[[f64; 3]],
+    u: &[[f64; 3]],
+    force: &mut [f64],
+    stiffness: Option<&mut [f64]>,
+    state: Option<&mut MixedState>,
+) -> Result<f64, KernelError> {
     let at = MaterialAt::evaluate(ctx, x, u, state.as_deref())?;
     let state = if at.volumetric_count > 0 { state } else { None };
-    Ok(integrate_into(&at.kinematics, at.responses(), at.volumetric(), force, stiffness, state)?)
+    Ok(integration(&at.kinematics, at.responses(), at.volumetric(), force, stiffness, state)?)
 }
 
 /// Per-point results of one element into `out` (length ≥ `shape.points()`).

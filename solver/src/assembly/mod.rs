@@ -29,3 +29,5 @@ pub use pattern::Pattern;
 
 #[cfg(test)]
 mod fd_tests;
+#[cfg(test)]
+mod parity_tests;

@@ -97,8 +97,10 @@ impl BOp<'_> {
         }
     }
 
-    /// `k += s · Bᵀ A B`, using the sparsity of B (about a third of the dense product's work).
-    fn add_btab<const ND: usize>(&self, a: &M9, s: f64, k: &mut SMatrix<f64, ND, ND>) {
+    /// `k += s · Bᵀ A B`, using the sparsity of B (about a third of the dense
+    /// product's work). `LOWER`: only the lower triangle (rows ≥ column),
+    /// for a symmetric `A`; the caller mirrors it once per element.
+    fn add_btab<const ND: usize, const LOWER: bool>(&self, a: &M9, s: f64, k: &mut SMatrix<f64, ND, ND>) {
         let mut ab = SMatrix::<f64, 9, ND>::zeros();
         for b in 0..ND / self.dim {
             let g = &self.geo.g[b];
@@ -115,9 +117,13 @@ impl BOp<'_> {
         }
         for c in 0..ND {
             let abc = ab.column(c);
-            for a_ in 0..ND / self.dim {
+            let first = if LOWER { c / self.dim } else { 0 };
+            for a_ in first..ND / self.dim {
                 let g = &self.geo.g[a_];
                 for i in 0..self.dim {
+                    if LOWER && a_ * self.dim + i < c {
+                        continue;
+                    }
                     let mut t = g[0] * abc[3 * i] + g[1] * abc[3 * i + 1] + g[2] * abc[3 * i + 2];
                     if self.axisymmetric && i == 0 {
                         t += abc[8] * self.geo.n[a_] / self.geo.radius;
@@ -365,24 +371,40 @@ pub fn integrate_into(
     stiffness: Option<&mut [f64]>,
     state: Option<&mut MixedState>,
 ) -> Result<f64, ElementError> {
+    integrate_with::<true>(kin, responses, volumetric, force, stiffness, state)
+}
+
+/// [`integrate_into`]; `LOWER`: the tangent's lower triangle is integrated
+/// and mirrored (the element tangent of a hyperelastic material is
+/// symmetric). `integrate_with::<false>` forms the whole tangent entry by
+/// entry, as the kernel did before it used the symmetry: the reference of
+/// the parity test.
+pub(crate) fn integrate_with<const LOWER: bool>(
+    kin: &ElementKinematics,
+    responses: &[PointResponse],
+    volumetric: &[VolumetricResponse],
+    force: &mut [f64],
+    stiffness: Option<&mut [f64]>,
+    state: Option<&mut MixedState>,
+) -> Result<f64, ElementError> {
     // One monomorphised kernel per element size: the dofs are compile-time
     // sizes, so the linear elements keep their small fixed-size matrices.
     match kin.shape {
-        Shape::Hex8 => run::<24>(kin, responses, volumetric, force, stiffness, state),
-        Shape::Quad4 => run::<8>(kin, responses, volumetric, force, stiffness, state),
-        Shape::Tri3 => run::<6>(kin, responses, volumetric, force, stiffness, state),
-        Shape::Tri6 => run::<12>(kin, responses, volumetric, force, stiffness, state),
-        Shape::Quad8 => run::<16>(kin, responses, volumetric, force, stiffness, state),
-        Shape::Quad9 => run::<18>(kin, responses, volumetric, force, stiffness, state),
-        Shape::Tet4 => run::<12>(kin, responses, volumetric, force, stiffness, state),
-        Shape::Tet10 => run::<30>(kin, responses, volumetric, force, stiffness, state),
-        Shape::Hex20 => run::<60>(kin, responses, volumetric, force, stiffness, state),
-        Shape::Hex27 => run::<81>(kin, responses, volumetric, force, stiffness, state),
+        Shape::Hex8 => run::<24, LOWER>(kin, responses, volumetric, force, stiffness, state),
+        Shape::Quad4 => run::<8, LOWER>(kin, responses, volumetric, force, stiffness, state),
+        Shape::Tri3 => run::<6, LOWER>(kin, responses, volumetric, force, stiffness, state),
+        Shape::Tri6 => run::<12, LOWER>(kin, responses, volumetric, force, stiffness, state),
+        Shape::Quad8 => run::<16, LOWER>(kin, responses, volumetric, force, stiffness, state),
+        Shape::Quad9 => run::<18, LOWER>(kin, responses, volumetric, force, stiffness, state),
+        Shape::Tet4 => run::<12, LOWER>(kin, responses, volumetric, force, stiffness, state),
+        Shape::Tet10 => run::<30, LOWER>(kin, responses, volumetric, force, stiffness, state),
+        Shape::Hex20 => run::<60, LOWER>(kin, responses, volumetric, force, stiffness, state),
+        Shape::Hex27 => run::<81, LOWER>(kin, responses, volumetric, force, stiffness, state),
         Shape::Line2 | Shape::Line3 => Err(ElementError::NotAnElement { shape: kin.shape.name() }),
     }
 }
 
-fn run<const ND: usize>(
+fn run<const ND: usize, const LOWER: bool>(
     kin: &ElementKinematics,
     responses: &[PointResponse],
     volumetric: &[VolumetricResponse],
@@ -394,20 +416,27 @@ fn run<const ND: usize>(
     match stiffness {
         Some(kbuf) => {
             let mut k = SMatrix::<f64, ND, ND>::zeros();
-            let e = integrate::<ND>(kin, responses, volumetric, &mut f, Some(&mut k), state)?;
+            let e = integrate::<ND, LOWER>(kin, responses, volumetric, &mut f, Some(&mut k), state)?;
+            if LOWER {
+                for c in 0..ND {
+                    for r in c + 1..ND {
+                        k[(c, r)] = k[(r, c)];
+                    }
+                }
+            }
             kbuf[..ND * ND].copy_from_slice(k.as_slice());
             force[..ND].copy_from_slice(f.as_slice());
             Ok(e)
         }
         None => {
-            let e = integrate::<ND>(kin, responses, volumetric, &mut f, None, state)?;
+            let e = integrate::<ND, LOWER>(kin, responses, volumetric, &mut f, None, state)?;
             force[..ND].copy_from_slice(f.as_slice());
             Ok(e)
         }
     }
 }
 
-fn integrate<const ND: usize>(
+fn integrate<const ND: usize, const LOWER: bool>(
     kin: &ElementKinematics,
     responses: &[PointResponse],
     volumetric: &[VolumetricResponse],
@@ -416,15 +445,15 @@ fn integrate<const ND: usize>(
     state: Option<&mut MixedState>,
 ) -> Result<f64, ElementError> {
     match (volumetric.first(), kin.pressure_space()) {
-        (None, _) => integrate_constant::<ND>(kin, responses, None, force, stiffness, state),
-        (Some(v), PressureSpace::Constant) => integrate_constant::<ND>(kin, responses, Some(v), force, stiffness, state),
-        (Some(_), PressureSpace::Linear) => integrate_linear::<ND>(kin, responses, volumetric, force, stiffness),
+        (None, _) => integrate_constant::<ND, LOWER>(kin, responses, None, force, stiffness, state),
+        (Some(v), PressureSpace::Constant) => integrate_constant::<ND, LOWER>(kin, responses, Some(v), force, stiffness, state),
+        (Some(_), PressureSpace::Linear) => integrate_linear::<ND, LOWER>(kin, responses, volumetric, force, stiffness),
     }
 }
 
 /// Displacement element, or mixed element with a constant pressure (mean
 /// dilatation, optionally with the carried three-field unknowns).
-fn integrate_constant<const ND: usize>(
+fn integrate_constant<const ND: usize, const LOWER: bool>(
     kin: &ElementKinematics,
     responses: &[PointResponse],
     volumetric: Option<&VolumetricResponse>,
@@ -461,7 +490,7 @@ fn integrate_constant<const ND: usize>(
             if mixed {
                 a += cofactor_derivative(k.j, &fi) * p;
             }
-            b.add_btab(&a, k.geo.dv, kk);
+            b.add_btab::<ND, LOWER>(&a, k.geo.dv, kk);
         }
     }
     if let Some(v) = volumetric {
@@ -484,7 +513,7 @@ fn integrate_constant<const ND: usize>(
 /// The mixed element with a linear discontinuous pressure (quad9, hex27:
 /// Q2/P1, Simo–Taylor–Pister condensation with the projection of
 /// [`super::pressure_space`]); `volumetric` holds the law at θ_h of each point.
-fn integrate_linear<const ND: usize>(
+fn integrate_linear<const ND: usize, const LOWER: bool>(
     kin: &ElementKinematics,
     responses: &[PointResponse],
     volumetric: &[VolumetricResponse],
@@ -513,7 +542,7 @@ fn integrate_linear<const ND: usize>(
         }
         if let Some(kk) = stiffness.as_deref_mut() {
             let a = first_elasticity(&k.f, &resp.stress, &resp.tangent) + cofactor_derivative(k.j, &fi) * p;
-            b.add_btab(&a, k.geo.dv, kk);
+            b.add_btab::<ND, LOWER>(&a, k.geo.dv, kk);
         }
     }
     if let Some(kk) = stiffness {

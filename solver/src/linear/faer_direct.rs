@@ -103,7 +103,7 @@ impl FaerDirect {
                             (amd, Ordering::Amd)
                         }
                     }
-                    // Without the `metis` feature only AMD is available.
+                    // METIS refused the graph: AMD is always there.
                     Err(_) => (amd, Ordering::Amd),
                 }
             }

@@ -31,9 +31,6 @@ pub enum LinearError {
         /// Equations of the system.
         equations: usize,
     },
-    /// Nested dissection asked for without the `metis` feature.
-    #[error("nested-dissection ordering needs olli-solver's `metis` feature")]
-    MetisUnavailable,
     /// METIS rejected the node graph.
     #[error("METIS graph: {0}")]
     Metis(String),

@@ -9,17 +9,9 @@
 use super::{LinearError, SymmetricPattern};
 
 /// Subgraphs at most this large are numbered as they come.
-#[cfg(feature = "metis")]
 const LEAF: usize = 48;
 
 /// Elimination order of the equations (`perm[k]` = equation eliminated k-th).
-#[cfg(not(feature = "metis"))]
-pub fn order(_pattern: &SymmetricPattern) -> Result<Vec<usize>, LinearError> {
-    Err(LinearError::MetisUnavailable)
-}
-
-/// Elimination order of the equations (`perm[k]` = equation eliminated k-th).
-#[cfg(feature = "metis")]
 pub fn order(pattern: &SymmetricPattern) -> Result<Vec<usize>, LinearError> {
     // Compact node ids in equation order (equations are node-major).
     let mut first_eq = Vec::new();
@@ -57,7 +49,6 @@ pub fn order(pattern: &SymmetricPattern) -> Result<Vec<usize>, LinearError> {
     Ok(perm)
 }
 
-#[cfg(feature = "metis")]
 fn dissect(vertices: &[usize], adj: &[Vec<usize>], local: &mut [usize], out: &mut Vec<usize>) -> Result<(), LinearError> {
     if vertices.len() <= LEAF {
         out.extend_from_slice(vertices);

@@ -10,6 +10,7 @@ pub mod atomic;
 pub mod event_text;
 pub mod fields;
 pub mod history;
+pub mod performance;
 pub mod pvd;
 pub mod summary;
 pub mod vtu;

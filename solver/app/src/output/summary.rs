@@ -10,6 +10,7 @@ use std::collections::BTreeMap;
 use serde::Serialize;
 
 use super::fields::Peaks;
+use super::performance::Performance;
 
 /// Where the last converged increment is.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -69,6 +70,8 @@ pub struct RunSummary {
     pub newton_iterations: usize,
     pub cutbacks: usize,
     pub wall_time_s: f64,
+    /// Size, ordering, counts, seconds and peak memory of the run.
+    pub performance: Performance,
     pub files: Files,
     /// Physical dimension of each `history.csv` column and each peak.
     pub units: BTreeMap<String, String>,
@@ -103,6 +106,8 @@ pub fn units(columns: &[String]) -> BTreeMap<String, String> {
         ("peaks.max_principal_log_strain", "strain (ln of stretch)"),
         ("peaks.*_stress, peaks.von_mises, peaks.*_pressure", "stress (force/length²)"),
         ("wall_time_s", "second"),
+        ("performance.*_s", "second"),
+        ("performance.peak_memory_mib", "mebibyte (2^20 bytes)"),
     ]
     .into_iter()
     .map(|(k, v)| (k.to_string(), v.to_string()))

@@ -14,6 +14,7 @@ use super::atomic::write_atomic;
 use super::event_text::EventText;
 use super::fields::{frame, Peaks};
 use super::history::History;
+use super::performance::{peak_memory_mib, Performance};
 use super::pvd::{pvd_text, PvdEntry};
 use super::summary::{units, Files, IncrementRef, RunSummary};
 use super::vtu::{write_vtu, Field};
@@ -343,6 +344,7 @@ impl<'m> ResultWriter<'m> {
             newton_iterations: solution.stats.newton_iterations,
             cutbacks: solution.stats.cutbacks,
             wall_time_s: self.text.elapsed(),
+            performance: Performance::new(&solution.stats, peak_memory_mib()),
             files: Files {
                 history: HISTORY_FILE.into(),
                 collection: format!("{}.pvd", self.stem),
@@ -357,6 +359,7 @@ impl<'m> ResultWriter<'m> {
         };
         let line = format!("[{:8.2} s] {end}", self.text.elapsed());
         self.log_line(&line);
+        self.log_line(&summary.performance.line());
         self.flush(|w| {
             w.write(SUMMARY_FILE, summary.to_json().as_bytes())?;
             w.log.flush()

@@ -92,6 +92,20 @@ pub fn summary_rows(r: &RunResults) -> Vec<[String; 3]> {
                 rows.push([key.replace('_', " "), number(v), String::new()]);
             }
         }
+        if let Some(p) = s.get("performance") {
+            let ordering = text(p.get("ordering"));
+            for (key, remark) in [
+                ("equations", String::new()),
+                ("factor_entries", format!("{ordering} ordering")),
+                ("assembly_s", String::new()),
+                ("factorization_s", String::new()),
+                ("peak_memory_mib", String::new()),
+            ] {
+                if let Some(v) = num(p.get(key)) {
+                    rows.push([key.replace('_', " "), number(v), remark]);
+                }
+            }
+        }
     }
     rows
 }

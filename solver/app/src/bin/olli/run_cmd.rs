@@ -166,6 +166,7 @@ fn print_summary(s: &RunSummary, folder: &Path, components: &[&str]) {
     if s.stabilization_share > 0.0 {
         println!("stabilization: the springs carried at most {:.3} % of the force scale", 100.0 * s.stabilization_share);
     }
+    println!("{}", s.performance.line());
     println!("wall time: {:.2} s", s.wall_time_s);
     println!("results: {}", folder.display());
 }
