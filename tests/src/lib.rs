@@ -324,3 +324,46 @@ pub fn generated_block(kind: ElementKind, n: [usize; 3], place: impl Fn([f64; 3]
     }
     mesh
 }
+
+/// Cumulative positions of `n` cells growing geometrically from `first` to fill `total`.
+pub fn geometric(n: usize, total: f64, first: f64) -> Vec<f64> {
+    let sum = |q: f64| if (q - 1.0).abs() < 1e-12 { first * n as f64 } else { first * (q.powi(n as i32) - 1.0) / (q - 1.0) };
+    let (mut lo, mut hi) = (1.0, 2.0);
+    for _ in 0..200 {
+        let m = 0.5 * (lo + hi);
+        if sum(m) < total {
+            lo = m
+        } else {
+            hi = m
+        }
+    }
+    let q = 0.5 * (lo + hi);
+    let mut x = vec![0.0];
+    let mut h = first;
+    for _ in 0..n {
+        let next = x.last().unwrap() + h;
+        x.push(next);
+        h *= q;
+    }
+    let scale = total / x[n];
+    x.iter().map(|v| v * scale).collect()
+}
+
+/// The value of the piecewise-linear map through `positions` (as from
+/// [`geometric`], `n + 1` values) at `s ∈ [0, 1]`: a graded coordinate that
+/// also places mid-side nodes of quadratic meshes halfway along their cell.
+pub fn graded_at(positions: &[f64], s: f64) -> f64 {
+    let n = positions.len() - 1;
+    let t = (s * n as f64).clamp(0.0, n as f64);
+    let i = (t.floor() as usize).min(n - 1);
+    let f = t - i as f64;
+    positions[i] * (1.0 - f) + positions[i + 1] * f
+}
+
+/// E* = E / (1 − ν²) of the rubber against a rigid body, from μ and κ
+/// (isotropic elasticity: E = 9κμ/(3κ+μ), ν = (3κ−2μ)/(2(3κ+μ))).
+pub fn contact_modulus(mu: f64, kappa: f64) -> f64 {
+    let e = 9.0 * kappa * mu / (3.0 * kappa + mu);
+    let nu = (3.0 * kappa - 2.0 * mu) / (2.0 * (3.0 * kappa + mu));
+    e / (1.0 - nu * nu)
+}

@@ -18,41 +18,9 @@
 use olli_solver::contact::Shape;
 use olli_solver::model::{RigidBody, RigidMotion};
 use olli_solver::{solve, Analysis, Formulation, IncrementControls, Model, Motion, Quiet, Stage, Support};
-use olli_verification::{neo_hookean, quad_grid};
-
-/// Cumulative positions of `n` cells growing geometrically from `first` to fill `total`.
-fn geometric(n: usize, total: f64, first: f64) -> Vec<f64> {
-    let sum = |q: f64| if (q - 1.0).abs() < 1e-12 { first * n as f64 } else { first * (q.powi(n as i32) - 1.0) / (q - 1.0) };
-    let (mut lo, mut hi) = (1.0, 2.0);
-    for _ in 0..200 {
-        let m = 0.5 * (lo + hi);
-        if sum(m) < total {
-            lo = m
-        } else {
-            hi = m
-        }
-    }
-    let q = 0.5 * (lo + hi);
-    let mut x = vec![0.0];
-    let mut h = first;
-    for _ in 0..n {
-        let next = x.last().unwrap() + h;
-        x.push(next);
-        h *= q;
-    }
-    let scale = total / x[n];
-    x.iter().map(|v| v * scale).collect()
-}
+use olli_verification::{contact_modulus, geometric, neo_hookean, quad_grid};
 
 const PUSH: f64 = 0.05;
-
-/// E* = E / (1 − ν²) of the rubber against a rigid body, from μ and κ
-/// (isotropic elasticity: E = 9κμ/(3κ+μ), ν = (3κ−2μ)/(2(3κ+μ))).
-fn plane_strain_modulus(mu: f64, kappa: f64) -> f64 {
-    let e = 9.0 * kappa * mu / (3.0 * kappa + mu);
-    let nu = (3.0 * kappa - 2.0 * mu) / (2.0 * (3.0 * kappa + mu));
-    e / (1.0 - nu * nu)
-}
 
 struct HertzRun {
     load: f64,
@@ -110,7 +78,7 @@ fn run(edge: f64, push: f64) -> HertzRun {
 fn hertz_line_contact_half_width_and_peak_pressure_converge() {
     let mu = 1.0;
     let kappa = 1000.0 * mu;
-    let e_star = plane_strain_modulus(mu, kappa);
+    let e_star = contact_modulus(mu, kappa);
     let radius = 10.0;
     let mut errors = Vec::new();
     for edge in [0.4, 0.2, 0.1, 0.05] {
@@ -187,7 +155,7 @@ fn hertz_rigid_cylinder_on_a_3d_slab() {
     let fields = last.contact_fields.as_ref().unwrap();
     // Load per unit length of the full contact (two halves, thickness 1).
     let load = 2.0 * last.contact[0].force[1].abs();
-    let e_star = plane_strain_modulus(mu, kappa);
+    let e_star = contact_modulus(mu, kappa);
     let p0 = (load * e_star / (std::f64::consts::PI * radius)).sqrt();
     let a = 2.0 * load / (std::f64::consts::PI * p0);
     let peak = fields.pressure.iter().copied().fold(0.0, f64::max);
@@ -283,7 +251,7 @@ fn hertz_rigid_sphere_on_a_3d_block() {
     let last = sol.last().unwrap();
     let fields = last.contact_fields.as_ref().unwrap();
     let load = 4.0 * last.contact[0].force[2].abs();
-    let e_star = plane_strain_modulus(mu, kappa);
+    let e_star = contact_modulus(mu, kappa);
     let a = (3.0 * load * radius / (4.0 * e_star)).cbrt();
     let p0 = 3.0 * load / (2.0 * std::f64::consts::PI * a * a);
     let peak = fields.pressure.iter().copied().fold(0.0, f64::max);

@@ -116,14 +116,6 @@ impl ActiveContacts {
             if sides.is_empty() {
                 return Err(bad(format!("side set `{}` is empty", def.sides)));
             }
-            // Contact is node-based on side corners: mid-side nodes of
-            // quadratic sides would pass through the surface unseen.
-            if let Some(s) = sides.iter().find(|s| disc.shapes[s.element].is_quadratic()) {
-                return Err(bad(format!(
-                    "side set `{}` has quadratic sides (element {}, {}); contact on quadratic sides is not supported yet: mesh the contact region with quad4/hex8 elements",
-                    def.sides, s.element, disc.shapes[s.element]
-                )));
-            }
             if !(def.friction >= 0.0 && def.friction.is_finite()) {
                 return Err(bad(format!("friction coefficient {} must be ≥ 0", def.friction)));
             }

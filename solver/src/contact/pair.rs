@@ -6,6 +6,8 @@
 use nalgebra::Vector3;
 use olli_mesh::{Mesh, Side};
 
+use crate::shape::{rule, ShapeKind};
+
 use super::law::{evaluate, smoothed_pressure, ContactParameters, NodeResponse, NodeState, Status};
 use super::surface::RigidSurface;
 
@@ -35,7 +37,7 @@ pub enum AreaMeasure {
 pub struct ContactPair {
     /// The nodes that may touch (sorted).
     pub nodes: Vec<usize>,
-    /// The sides they belong to, as local node index pairs/polygons into `nodes`.
+    /// The pieces of their sides (see `side_pieces`), as local node indices into `nodes`.
     sides: Vec<Vec<usize>>,
     /// Tributary area of each node in the reference configuration.
     pub areas: Vec<f64>,
@@ -48,6 +50,9 @@ pub struct ContactPair {
     measure: AreaMeasure,
     /// Sides around each node (indices into `sides`).
     neighbours: Vec<Vec<usize>>,
+    /// Faces whose reported pressure is recovered (see `recover_pressures`):
+    /// piece index, the face's area and its nodes' shares of it.
+    recovered: Vec<(usize, f64, Vec<f64>)>,
 }
 
 /// Evaluation of a whole pair at one iterate.
@@ -65,48 +70,57 @@ pub struct PairResponse {
     pub positions: Vec<Vector3<f64>>,
     /// Largest penetration (−gap) of a touching node, ≥ 0.
     pub max_penetration: f64,
+    /// Work space of the pressure recovery: force and area per node.
+    recovery: Vec<(f64, f64)>,
 }
 
-fn corner_count(n: usize, dimension: usize) -> usize {
-    match (dimension, n) {
-        (2, _) => 2,
-        (_, 3) | (_, 6) => 3,
-        _ => 4,
+/// The pieces of one side that the width and node-spacing measures see, as
+/// mesh node lists: a line2 edge or a linear face as it is; a line3 edge as
+/// its two halves (corner, mid-side node, corner) so that the contact band
+/// follows node to node; a quadratic face whole. With the piece comes its
+/// node spacing (2-D: the piece's length; 3-D: √area of the corner polygon,
+/// halved on quadratic faces).
+fn side_pieces(all: &[usize], x: &[Vector3<f64>], dimension: usize) -> Vec<(Vec<usize>, f64)> {
+    if dimension == 2 {
+        let halves: &[[usize; 2]] = if all.len() == 3 { &[[0, 2], [2, 1]] } else { &[[0, 1]] };
+        return halves.iter().map(|&[a, b]| (vec![all[a], all[b]], (x[b] - x[a]).norm())).collect();
     }
+    let corners = if matches!(all.len(), 3 | 6) { 3 } else { 4 };
+    let spacing = if all.len() > corners { 0.5 } else { 1.0 };
+    vec![(all.to_vec(), spacing * side_size(&x[..corners]))]
 }
 
 impl ContactPair {
-    /// Builds the pair from the side set `sides` of `mesh`. Only corner nodes
-    /// of each side take part (olli's contact elements are linear).
+    /// Builds the pair from the side set `sides` of `mesh`. Every node of a
+    /// side takes part, mid-side nodes of quadratic sides included (see
+    /// [`tributary`] for their areas).
     pub fn new(mesh: &Mesh, sides: &[Side], measure: AreaMeasure, params: ContactParameters) -> Self {
-        let mut polys: Vec<Vec<usize>> = sides
-            .iter()
-            .map(|&s| {
-                let all = mesh.side_nodes(s);
-                let k = corner_count(all.len(), mesh.dimension);
-                all[..k].to_vec()
-            })
-            .collect();
-        let mut nodes: Vec<usize> = polys.iter().flatten().copied().collect();
+        let mut nodes: Vec<usize> = sides.iter().flat_map(|&s| mesh.side_nodes(s)).collect();
         nodes.sort_unstable();
         nodes.dedup();
-        for p in &mut polys {
-            for n in p.iter_mut() {
-                *n = nodes.binary_search(n).expect("node of the side set");
-            }
-        }
+        let local = |n: usize| nodes.binary_search(&n).expect("node of the side set");
+        let mut polys: Vec<Vec<usize>> = Vec::new();
         let mut areas = vec![0.0; nodes.len()];
         let mut sizes = vec![0.0; nodes.len()];
         let mut count = vec![0usize; nodes.len()];
-        for p in &polys {
-            let x: Vec<Vector3<f64>> = p.iter().map(|&i| Vector3::from(mesh.nodes[nodes[i]])).collect();
-            for (k, a) in tributary(&x, measure).into_iter().enumerate() {
-                areas[p[k]] += a;
+        let mut recovered = Vec::new();
+        for &s in sides {
+            let all = mesh.side_nodes(s);
+            let x: Vec<Vector3<f64>> = all.iter().map(|&n| Vector3::from(mesh.nodes[n])).collect();
+            let shares = tributary(&x, measure);
+            for (&n, a) in all.iter().zip(&shares) {
+                areas[local(n)] += a;
             }
-            let size = side_size(&x);
-            for &k in p {
-                sizes[k] += size;
-                count[k] += 1;
+            if mesh.dimension == 3 && matches!(all.len(), 6 | 8) {
+                recovered.push((polys.len(), shares.iter().sum(), shares));
+            }
+            for (piece, size) in side_pieces(&all, &x, mesh.dimension) {
+                let piece: Vec<usize> = piece.into_iter().map(local).collect();
+                for &k in &piece {
+                    sizes[k] += size;
+                    count[k] += 1;
+                }
+                polys.push(piece);
             }
         }
         for (s, c) in sizes.iter_mut().zip(&count) {
@@ -120,7 +134,7 @@ impl ContactPair {
                 neighbours[k].push(e);
             }
         }
-        ContactPair { nodes, sides: polys, areas, sizes, penalties, params, states, measure, neighbours }
+        ContactPair { nodes, sides: polys, areas, sizes, penalties, params, states, measure, neighbours, recovered }
     }
 
     /// Evaluates every node at the current positions (`position(node)` gives
@@ -147,13 +161,62 @@ impl ContactPair {
                     NodeResponse::open()
                 }
             };
-            if r.status != Status::Open {
+            if r.status != Status::Open && self.areas[k] > 0.0 {
                 out.surface_force -= r.force;
                 out.peak_pressure = out.peak_pressure.max(r.pressure);
                 out.max_penetration = out.max_penetration.max(-out.gaps[k]);
             }
             out.nodes.push(r);
         }
+        self.recover_pressures(out);
+        self.follow_on_the_axis(out);
+    }
+
+    /// Nodes without area (a line3 corner on the axis in axisymmetry: the
+    /// consistent ring area of a point on the axis is zero) carry no force,
+    /// so no penetration check or multiplier applies to them. They report
+    /// the state and pressure of the next node along their side, so the
+    /// contact band and the pressure field run on to the axis.
+    fn follow_on_the_axis(&self, out: &mut PairResponse) {
+        for k in (0..self.nodes.len()).filter(|&k| self.areas[k] == 0.0) {
+            let Some(&piece) = self.neighbours[k].first() else { continue };
+            let next = self.sides[piece].iter().copied().find(|&j| j != k).unwrap_or(k);
+            let (status, pressure) = (out.nodes[next].status, out.nodes[next].pressure);
+            out.nodes[k] = NodeResponse { status, pressure, ..NodeResponse::open() };
+        }
+    }
+
+    /// The reported pressure on tri6 and quad8 faces. Their nodes carry
+    /// the forces of the consistent nodal loads, which put nothing (tri6) or
+    /// a pull (quad8) on the corners, while their areas are the positive
+    /// scaled diagonal (see `lumped_areas`): force / area would read zero at
+    /// the corners and 19 % (tri6) too much at the mid-side nodes of a
+    /// uniformly pressed face. So each such face reports its mean pressure,
+    /// its nodes' forces Σ p_b A_b over its area, and a node the area-weighted
+    /// mean over its faces (a patch average, as stresses are recovered at
+    /// nodes): smooth, exact for a uniform pressure, and the total force it
+    /// integrates to is the nodes' own. Only what is reported changes; the
+    /// nodes' forces and the law are untouched.
+    fn recover_pressures(&self, out: &mut PairResponse) {
+        if self.recovered.is_empty() {
+            return;
+        }
+        out.recovery.clear();
+        out.recovery.resize(self.nodes.len(), (0.0, 0.0));
+        for (piece, area, shares) in &self.recovered {
+            let face = &self.sides[*piece];
+            let force: f64 = face.iter().zip(shares).map(|(&k, a)| out.nodes[k].pressure * a).sum();
+            for &k in face {
+                out.recovery[k].0 += force;
+                out.recovery[k].1 += area;
+            }
+        }
+        for (k, &(force, area)) in out.recovery.iter().enumerate() {
+            if area > 0.0 && out.nodes[k].status != Status::Open {
+                out.nodes[k].pressure = force / area;
+            }
+        }
+        out.peak_pressure = out.nodes.iter().filter(|r| r.status != Status::Open).map(|r| r.pressure).fold(0.0, f64::max);
     }
 
     /// Contact width of an evaluation (2-D: length of the touching band along
@@ -212,7 +275,7 @@ impl ContactPair {
     pub fn augment(&mut self, response: &PairResponse) {
         for k in 0..self.nodes.len() {
             let g = response.gaps[k];
-            if g.is_finite() {
+            if g.is_finite() && self.areas[k] > 0.0 {
                 let smoothing = self.node_params(k).smoothing;
                 let s = &mut self.states[k];
                 s.multiplier = smoothed_pressure(s.multiplier - self.penalties[k] * g, smoothing).0;
@@ -266,7 +329,7 @@ impl ContactPair {
     pub fn worst_penetration_ratio(&self, response: &PairResponse, fraction: f64) -> (f64, f64) {
         let mut worst = (0.0, 0.0, 0.0);
         for (k, r) in response.nodes.iter().enumerate() {
-            if r.status == Status::Open {
+            if r.status == Status::Open || self.areas[k] == 0.0 {
                 continue;
             }
             let pen = -response.gaps[k];
@@ -301,8 +364,76 @@ fn side_size(x: &[Vector3<f64>]) -> f64 {
     }
 }
 
-/// Tributary areas of the corners of one side (reference geometry).
+/// Tributary areas of the nodes of one side (reference geometry), in the
+/// side's node order.
 fn tributary(x: &[Vector3<f64>], measure: AreaMeasure) -> Vec<f64> {
+    let dimension = if measure == AreaMeasure::Solid { 3 } else { 2 };
+    match ShapeKind::side_with_nodes(dimension, x.len()) {
+        Some(side) if side.is_quadratic() => lumped_areas(side, x, measure),
+        _ => linear_tributary(x, measure),
+    }
+}
+
+/// Nodal areas of a quadratic side.
+///
+/// Line3 edges and quad9 faces take the consistent areas ∫ N_a dA (ring
+/// area ∫ N_a 2πr ds in axisymmetry), the nodal loads of a uniform pressure:
+/// they are positive (L/6, 2L/3, L/6 on a straight edge, their tensor
+/// product on a flat quad9 face), so a uniform contact pressure gives equal
+/// nodal pressures and no corner/mid-side oscillation.
+///
+/// Tri6 and quad8 faces cannot: their consistent areas are zero (tri6) or
+/// negative (quad8, −A/12) at the corners, so a corner node would carry no
+/// or a pulling contact force. They take the diagonal scaling of the side's
+/// "mass" matrix M_ab = ∫ N_a N_b dA (Hinton, Rock & Zienkiewicz 1976, "A
+/// note on mass lumping and related processes in the finite element method",
+/// Earthquake Engng Struct. Dyn. 4, 245–249): A_a = A · M_aa / Σ_b M_bb. It
+/// is positive at every node, sums to the exact side area, and shrinks with
+/// the side, so Σ_a p_a A_a converges to ∫ p dA; on a flat tri6 face it is
+/// A/19 at corners and 16A/57 at mid-side nodes, on a flat square quad8 face
+/// 3A/76 and 4A/19 (unit test `lumped_areas_of_flat_sides`). (The row sums
+/// of M are the consistent areas again, so row-sum lumping would not do.)
+/// The same scaling replaces the consistent areas of a line3 or quad9 side
+/// so curved that one of them turns negative. A line3 edge from the axis in
+/// axisymmetry keeps its consistent areas, zero at the axis corner: that
+/// node carries no ring and follows its side (`follow_on_the_axis`).
+fn lumped_areas(side: ShapeKind, x: &[Vector3<f64>], measure: AreaMeasure) -> Vec<f64> {
+    let def = side.def();
+    // N_a² is of degree 4 per coordinate and the axisymmetric radius adds one.
+    let rule = rule::rule(def.domain, 5).expect("a degree-5 rule on every side domain");
+    let nn = x.len();
+    let (mut n, mut dn) = (vec![0.0; nn], vec![[0.0; 3]; nn]);
+    let (mut consistent, mut diagonal) = (vec![0.0; nn], vec![0.0; nn]);
+    let mut area = 0.0;
+    for (xi, w) in rule.points.iter().zip(&rule.weights) {
+        (def.eval)(*xi, &mut n, &mut dn);
+        let tangent = |k: usize| (0..nn).map(|a| x[a] * dn[a][k]).sum::<Vector3<f64>>();
+        let da = w * match measure {
+            AreaMeasure::Solid => tangent(0).cross(&tangent(1)).norm(),
+            AreaMeasure::PlaneStrain { thickness } => thickness * tangent(0).norm(),
+            AreaMeasure::Axisymmetric => {
+                let r: f64 = (0..nn).map(|a| n[a] * x[a].x).sum();
+                std::f64::consts::TAU * r * tangent(0).norm()
+            }
+        };
+        area += da;
+        for a in 0..nn {
+            consistent[a] += n[a] * da;
+            diagonal[a] += n[a] * n[a] * da;
+        }
+    }
+    // A corner on the axis has no consistent ring area (see
+    // `follow_on_the_axis`); rounding may leave a trace of either sign.
+    let floor = 1e-12 * area.abs();
+    if matches!(side, ShapeKind::Line3 | ShapeKind::Quad9) && consistent.iter().all(|&c| c >= -floor) {
+        return consistent.iter().map(|&c| if c > floor { c } else { 0.0 }).collect();
+    }
+    let total: f64 = diagonal.iter().sum();
+    diagonal.iter().map(|m| if total > 0.0 { area * m / total } else { 0.0 }).collect()
+}
+
+/// Tributary areas of a linear side: its corners' shares.
+fn linear_tributary(x: &[Vector3<f64>], measure: AreaMeasure) -> Vec<f64> {
     match measure {
         AreaMeasure::PlaneStrain { thickness } => {
             let half = 0.5 * (x[1] - x[0]).norm() * thickness;
@@ -323,5 +454,68 @@ fn tributary(x: &[Vector3<f64>], measure: AreaMeasure) -> Vec<f64> {
             };
             vec![area / x.len() as f64; x.len()]
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Nodes of `side` mapped affinely from its reference nodes (scale 1.5 in
+    /// x, 0.5 in y, shifted to x ≥ 2), and the areas of [`tributary`].
+    fn affine_areas(side: ShapeKind, measure: AreaMeasure) -> (Vec<[f64; 3]>, Vec<f64>) {
+        let refs = side.def().reference_nodes;
+        let x: Vec<Vector3<f64>> = refs.iter().map(|r| Vector3::new(2.0 + 1.5 * (r[0] + 1.0), 0.5 * r[1], 0.0)).collect();
+        (refs.to_vec(), tributary(&x, measure))
+    }
+
+    /// Hand-integrated HRZ areas of flat sides (M_aa by the product formulas
+    /// ∫ N² on the reference shapes), as fractions of the side area.
+    #[test]
+    fn lumped_areas_of_flat_sides() {
+        let cases: [(ShapeKind, AreaMeasure, f64, [f64; 3]); 4] = [
+            // (side, measure, area, [corner, mid-side, centre] fractions)
+            (ShapeKind::Line3, AreaMeasure::PlaneStrain { thickness: 2.0 }, 3.0 * 2.0, [1.0 / 6.0, 2.0 / 3.0, 0.0]),
+            (ShapeKind::Tri6, AreaMeasure::Solid, 0.5 * 1.5 * 0.5, [1.0 / 19.0, 16.0 / 57.0, 0.0]),
+            (ShapeKind::Quad8, AreaMeasure::Solid, 3.0 * 1.0, [3.0 / 76.0, 4.0 / 19.0, 0.0]),
+            (ShapeKind::Quad9, AreaMeasure::Solid, 3.0 * 1.0, [1.0 / 36.0, 1.0 / 9.0, 4.0 / 9.0]),
+        ];
+        for (side, measure, area, fractions) in cases {
+            let (refs, a) = affine_areas(side, measure);
+            let corners = side.def().corners;
+            for (k, (r, ak)) in refs.iter().zip(&a).enumerate() {
+                let centre = side == ShapeKind::Quad9 && r[0] == 0.0 && r[1] == 0.0;
+                let expected = area
+                    * if k < corners {
+                        fractions[0]
+                    } else if centre {
+                        fractions[2]
+                    } else {
+                        fractions[1]
+                    };
+                assert!((ak - expected).abs() < 1e-12 * area, "{side} node {k}: {ak} vs {expected}");
+            }
+        }
+    }
+
+    /// In axisymmetry a straight line3 edge off the axis gets its consistent
+    /// ring areas ∫ N_a 2πr ds (r linear from r0 to r1: πL/3 · (r0, r1,
+    /// 2(r0 + r1)), hand-integrated), summing to the ring area 2π r̄ L, and
+    /// an edge from the axis (r0 = 0) the same formula: none on the axis.
+    #[test]
+    fn lumped_ring_areas_are_positive_and_sum_to_the_ring() {
+        let pi = std::f64::consts::PI;
+        let (r0, r1) = (1.0, 4.0);
+        let x = [Vector3::new(r0, 0.0, 0.0), Vector3::new(r1, 4.0, 0.0), Vector3::new(0.5 * (r0 + r1), 2.0, 0.0)];
+        let a = tributary(&x, AreaMeasure::Axisymmetric);
+        let third = pi * 5.0 / 3.0;
+        for (ak, expected) in a.iter().zip([third * r0, third * r1, third * 2.0 * (r0 + r1)]) {
+            assert!((ak - expected).abs() < 1e-12 * expected, "{a:?}");
+        }
+        let from_axis = [Vector3::new(0.0, 0.0, 0.0), Vector3::new(3.0, 4.0, 0.0), Vector3::new(1.5, 2.0, 0.0)];
+        let a = tributary(&from_axis, AreaMeasure::Axisymmetric);
+        let ring = 2.0 * pi * 1.5 * 5.0;
+        assert!((a.iter().sum::<f64>() - ring).abs() < 1e-12 * ring);
+        assert!(a[0] == 0.0 && (a[1] - 5.0 * pi).abs() < 1e-12 * ring, "{a:?}");
     }
 }
