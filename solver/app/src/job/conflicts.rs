@@ -1,6 +1,7 @@
 //! Constraints that disagree: a node component that a support, a motion or
-//! an insert would hold at two different values in one stage, and a node
-//! bonded to two inserts, are located errors. Agreeing constraints (a
+//! an insert would hold at two different values in one stage (two motions
+//! of one set included), and a node bonded to two inserts, are located
+//! errors; a released constraint no longer holds. Agreeing constraints (a
 //! symmetry plane's zero and a motion's zero on a shared edge) stay legal.
 
 use std::collections::BTreeMap;
@@ -83,6 +84,9 @@ impl Builder<'_> {
             let mut claims: BTreeMap<usize, Vec<Holder>> = BTreeMap::new();
             for sup in &file.support {
                 let spec = sup.get_ref();
+                if self.release_stage(&file.stage, &spec.release, 0)?.is_some_and(|r| r <= si) {
+                    continue;
+                }
                 let names = kind.components();
                 for n in mesh.nodes_of_set(spec.nodes.get_ref()).unwrap_or_default() {
                     for (i, c) in names.iter().enumerate() {
@@ -94,23 +98,40 @@ impl Builder<'_> {
                 }
             }
             // The latest motion of each set and component up to this stage.
-            let mut latest: BTreeMap<(String, usize), (usize, f64, Range<usize>)> = BTreeMap::new();
+            // (stage, value, where written, released by this stage)
+            type Latest = (usize, f64, Range<usize>, bool);
+            let mut latest: BTreeMap<(String, usize), Latest> = BTreeMap::new();
             for m in &file.motion {
                 let spec = m.get_ref();
                 let at = self.stage_index(&file.stage, &spec.stage)?;
                 if at > si {
                     continue;
                 }
+                let released = self.release_stage(&file.stage, &spec.release, at)?.is_some_and(|r| r <= si);
                 for (i, v) in self.components(kind, &spec.displacement)?.iter().enumerate() {
                     if let Some(v) = v {
                         let key = (spec.nodes.get_ref().clone(), i);
-                        if latest.get(&key).is_none_or(|(s, _, _)| *s <= at) {
-                            latest.insert(key, (at, *v, spec.displacement.span()));
+                        if let Some((_, other, ..)) = latest.get(&key).filter(|(s, other, ..)| *s == at && other != v) {
+                            return Err(self.err(
+                                spec.displacement.span(),
+                                format!(
+                                    "stage `{}`: two motions of `{}` move component `{}` to {other} and to {v}; give one of them only",
+                                    file.stage[at].get_ref().name.get_ref(),
+                                    key.0,
+                                    kind.components()[i]
+                                ),
+                            ));
+                        }
+                        if latest.get(&key).is_none_or(|(s, ..)| *s <= at) {
+                            latest.insert(key, (at, *v, spec.displacement.span(), released));
                         }
                     }
                 }
             }
-            for ((set, i), (at, v, span)) in latest {
+            for ((set, i), (at, v, span, released)) in latest {
+                if released {
+                    continue;
+                }
                 let claim = if at == si { Claim::Moved { to: v, ramp: ramp_key(stage, &set) } } else { Claim::Held(v) };
                 for n in mesh.nodes_of_set(&set).unwrap_or_default() {
                     let what = format!("the motion on `{set}`");

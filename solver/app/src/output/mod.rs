@@ -11,6 +11,7 @@ pub mod event_text;
 pub mod fields;
 pub mod history;
 pub mod pvd;
+pub mod stage_peaks;
 pub mod summary;
 pub mod vtu;
 pub mod writer;
