@@ -44,6 +44,18 @@ pub enum SolveError {
     NotConverged { stage: String, increment: usize, residual: f64, relative: f64 },
     #[error("stage `{stage}`: increment {step:.3e} fell below the minimum {min:.3e} at load factor {load_factor:.4} ({reason})")]
     IncrementTooSmall { stage: String, load_factor: f64, step: f64, min: f64, reason: String },
+    #[error(
+        "stage `{stage}`: the load cannot be increased past {load} at load factor {load_factor:.4}: a limit point \
+         (the stiffness along the load fell to {percent:.1} % of its value at the start of the stage); \
+         drive the stage by a motion instead of a load"
+    )]
+    LimitPoint { stage: String, load_factor: f64, load: String, percent: f64 },
+    #[error(
+        "stage `{stage}`: the part with node {node} ({nodes} nodes) is free to move: {free}; \
+         hold it by a support (a symmetry plane is a support of the normal component), a motion or an insert, \
+         or give the stage `stabilization` if contact holds it"
+    )]
+    Unheld { stage: String, node: usize, nodes: usize, free: String },
     #[error("rigid body `{body}`: {reason}")]
     BadContact { body: String, reason: String },
     #[error("fluid `{fluid}`: {reason}")]

@@ -381,6 +381,10 @@ pub struct Stage {
     pub motions: Vec<Motion>,
     /// Node sets turned as rigid bodies in this stage (ramped by the set's name in `ramps`).
     pub rotations: Vec<RotationMotion>,
+    /// Held components (of supports or motions of earlier stages) let go at
+    /// the start of this stage: their reaction at the last converged
+    /// increment is applied as a load that ramps linearly to zero over the stage.
+    pub releases: Vec<Support>,
     pub pressures: Vec<Pressure>,
     pub forces: Vec<Force>,
     /// Fluid pressures reached at the end of the stage (others are held).

@@ -89,6 +89,70 @@ pub struct IncrementResult {
     pub fluids: Vec<FluidSummary>,
     /// Fluid pressure at every node of a wetted facet, 0 elsewhere (when the model has fluids).
     pub fluid_pressure: Option<Vec<f64>>,
+    /// Extremes over every integration point of the mesh at this increment.
+    pub peaks: IncrementPeaks,
+}
+
+/// An extreme value at one integration point, and where it is.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct PointPeak {
+    pub value: f64,
+    /// Element index (0-based, as in messages and the `.vtu` frames).
+    pub element: usize,
+    /// Integration point of the element (0-based).
+    pub point: usize,
+    /// Reference position of the point.
+    pub at: [f64; 3],
+}
+
+/// The extremes of one converged increment over all integration points.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct IncrementPeaks {
+    /// Largest maximum principal logarithmic strain ln λ_max.
+    pub max_principal_log_strain: PointPeak,
+    /// Largest von Mises equivalent Cauchy stress.
+    pub von_mises: PointPeak,
+    /// Smallest volume ratio J = det F.
+    pub min_volume_ratio: PointPeak,
+}
+
+impl IncrementPeaks {
+    /// The extremes over `states`, the points of element `element`
+    /// (`None` for no points).
+    pub fn of_element(element: usize, states: &[PointState]) -> Option<Self> {
+        let peak = |p: usize, value: f64| PointPeak { value, element, point: p, at: states[p].position };
+        let mut out: Option<Self> = None;
+        for (p, s) in states.iter().enumerate() {
+            let here = IncrementPeaks {
+                max_principal_log_strain: peak(p, s.max_log_strain()),
+                von_mises: peak(p, von_mises(&s.cauchy)),
+                min_volume_ratio: peak(p, s.j),
+            };
+            out = Some(match out {
+                None => here,
+                Some(o) => o.merge(here),
+            });
+        }
+        out
+    }
+
+    /// The extremes of both (the first wins ties, so the lower element and point).
+    pub fn merge(self, other: Self) -> Self {
+        let larger = |a: PointPeak, b: PointPeak| if b.value > a.value { b } else { a };
+        let smaller = |a: PointPeak, b: PointPeak| if b.value < a.value { b } else { a };
+        IncrementPeaks {
+            max_principal_log_strain: larger(self.max_principal_log_strain, other.max_principal_log_strain),
+            von_mises: larger(self.von_mises, other.von_mises),
+            min_volume_ratio: smaller(self.min_volume_ratio, other.min_volume_ratio),
+        }
+    }
+}
+
+/// Von Mises equivalent stress √(3/2 s:s) of a symmetric stress tensor (s its deviator).
+pub fn von_mises(s: &nalgebra::Matrix3<f64>) -> f64 {
+    let (a, b, c) = (s[(0, 0)], s[(1, 1)], s[(2, 2)]);
+    let shear = s[(0, 1)].powi(2) + s[(1, 2)].powi(2) + s[(0, 2)].powi(2);
+    (0.5 * ((a - b).powi(2) + (b - c).powi(2) + (c - a).powi(2)) + 3.0 * shear).max(0.0).sqrt()
 }
 
 impl IncrementResult {

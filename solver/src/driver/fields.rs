@@ -1,6 +1,7 @@
 //! The fields of a converged increment: displacements, reactions (per node
 //! and per reported set), contact figures, and the integration-point and
-//! nodal fields the model's output settings ask for.
+//! nodal fields the model's output settings ask for, and the peaks of
+//! every increment (largest log strain and von Mises stress, smallest J).
 
 use rayon::prelude::*;
 
@@ -10,7 +11,7 @@ use crate::assembly::dofs::NONE;
 use crate::assembly::{point_states, Discretization};
 use crate::element::{Analysis, PointState};
 use crate::error::SolveError;
-use crate::results::{IncrementResult, NodalFields, PointFields};
+use crate::results::{IncrementPeaks, IncrementResult, NodalFields, PointFields};
 use crate::shape::MAX_NODES;
 
 /// Displacements, reactions, contact and fluid figures at the converged
@@ -89,13 +90,10 @@ fn reaction_moments(
         .collect()
 }
 
-/// `result` with the integration-point and nodal fields at `u` that the
-/// model's output settings keep.
+/// `result` with the peaks of every integration point at `u` and the
+/// point and nodal fields that the model's output settings keep.
 pub fn with_point_fields(disc: &Discretization, u: &[f64], mut result: IncrementResult) -> Result<IncrementResult, SolveError> {
     let output = disc.model.output;
-    if !(output.point_fields || output.nodal_fields) {
-        return Ok(result);
-    }
     let mesh = disc.mesh();
     let per: Vec<Result<Vec<PointState>, SolveError>> = (0..mesh.element_count())
         .into_par_iter()
@@ -109,10 +107,18 @@ pub fn with_point_fields(disc: &Discretization, u: &[f64], mut result: Increment
         })
         .collect();
     let mut points = PointFields { offsets: vec![0], states: Vec::new() };
-    for p in per {
-        points.states.extend(p?);
-        points.offsets.push(points.states.len());
+    let mut peaks: Option<IncrementPeaks> = None;
+    for (e, p) in per.into_iter().enumerate() {
+        let p = p?;
+        if let Some(here) = IncrementPeaks::of_element(e, &p) {
+            peaks = Some(peaks.map_or(here, |all| all.merge(here)));
+        }
+        if output.point_fields || output.nodal_fields {
+            points.states.extend(p);
+            points.offsets.push(points.states.len());
+        }
     }
+    result.peaks = peaks.unwrap_or_default();
     if output.nodal_fields {
         result.nodal = Some(NodalFields::from_points(mesh, &points));
     }

@@ -10,6 +10,8 @@
 //! cleanly, keeping every converged increment.
 
 pub mod fields;
+pub mod held;
+pub mod limit_point;
 pub mod newton;
 pub mod observer;
 pub mod stabilization;
@@ -69,6 +71,9 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
         stage.controls.validate().map_err(|source| SolveError::BadControls { stage: stage.name.clone(), source })?;
     }
     let (programs, report_sets) = stages::resolve(&disc)?;
+    if let Some(free) = held::unheld(&disc, &programs) {
+        return Err(free.into());
+    }
     let mut run = RunState {
         u: vec![0.0; model.mesh.node_count() * disc.dim],
         mixed: Vec::new(),
@@ -123,6 +128,14 @@ fn run_stage(
     let stage = &model.stages[si];
     let c = &stage.controls;
     let start: Vec<f64> = run.u.clone();
+    let released;
+    let prog = if prog.released.is_empty() {
+        prog
+    } else {
+        let reactions = run.increments.last().map(|r| r.nodal_reactions.as_slice()).unwrap_or_default();
+        released = prog.with_release_loads(reactions, disc.dim);
+        &released
+    };
     run.contacts.begin_stage(&stage.rigid_motions, &stage.ramps);
     run.fluids.begin_stage(stage);
     run.inserts.begin_stage(stage);
@@ -141,6 +154,8 @@ fn run_stage(
     let (mut t, mut dt) = (0.0f64, c.first.clamp(c.min, c.max).min(1.0));
     let mut history: Option<(Vec<f64>, f64)> = None;
     let mut count = 0;
+    let load_driven = limit_point::load_driven(stage, prog, &start);
+    let mut path = limit_point::LoadPath::default();
     while t < 1.0 - 1e-12 {
         let step = dt.min(1.0 - t);
         observer.event(&Event::IncrementStart { stage: si, increment: count + 1, load_factor: t + step, step });
@@ -151,6 +166,7 @@ fn run_stage(
                 stats.increments += 1;
                 t += step;
                 history = Some((ctx.last_converged.clone(), step));
+                path.record(step, &ctx.last_converged, u);
                 // Springs pull toward the previous increment: measure before replacing it.
                 let share = ctx.stabilization_share(u);
                 ctx.last_converged.copy_from_slice(u);
@@ -189,6 +205,14 @@ fn run_stage(
                 ctx.contacts.restore();
                 let next = step * c.cutback;
                 if next < c.min {
+                    if let Some(ratio) = path.ratio().filter(|&r| load_driven && r < limit_point::LIMIT_STIFFNESS_RATIO) {
+                        return Ok(Err(SolveError::LimitPoint {
+                            stage: stage.name.clone(),
+                            load_factor: t,
+                            load: limit_point::loads_at(prog, t),
+                            percent: 100.0 * ratio,
+                        }));
+                    }
                     let reason = err.to_string();
                     return Ok(Err(SolveError::IncrementTooSmall {
                         stage: stage.name.clone(),

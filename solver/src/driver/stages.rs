@@ -33,6 +33,8 @@ pub fn arc_position(m: &RotationMotion, a: f64, start: [f64; 3]) -> [f64; 3] {
 /// One pressurised side set during a stage.
 #[derive(Debug, Clone)]
 pub struct PressureProgram {
+    /// The side set's name.
+    pub name: String,
     pub sides: Vec<Side>,
     pub start: f64,
     pub end: f64,
@@ -59,9 +61,27 @@ pub struct StageProgram {
     pub dead_start: Vec<f64>,
     /// Changes of the dead load over the stage, each with its ramp.
     pub dead_changes: Vec<(Ramp, Vec<f64>)>,
+    /// Dofs held before this stage and let go at its start.
+    pub released: Vec<usize>,
 }
 
 impl StageProgram {
+    /// This program with the release loads of its stage: `reactions` (the
+    /// nodal reactions of the last converged increment, `dim` per node) at
+    /// the released dofs, applied at the start and ramped linearly to zero,
+    /// so the let-go part starts in equilibrium and relaxes.
+    pub fn with_release_loads(&self, reactions: &[[f64; 3]], dim: usize) -> StageProgram {
+        let mut prog = self.clone();
+        let mut change = vec![0.0; self.dead_start.len()];
+        for &d in &self.released {
+            let r = reactions.get(d / dim).map_or(0.0, |r| r[d % dim]);
+            prog.dead_start[d] += r;
+            change[d] = -r;
+        }
+        prog.dead_changes.push((Ramp::Linear, change));
+        prog
+    }
+
     /// The dead load vector at stage fraction `t` into `f`.
     pub fn dead_at(&self, t: f64, f: &mut [f64]) {
         f.copy_from_slice(&self.dead_start);
@@ -107,6 +127,19 @@ pub fn resolve(disc: &Discretization) -> Result<(Vec<StageProgram>, ReportSets),
         let ramp_for = |set: &str| stage.ramps.get(set).cloned().unwrap_or_default();
         let mut ramps = vec![Ramp::Linear];
         let mut ramp_of_dof = vec![0u32; ndof];
+        let mut released = Vec::new();
+        for r in &stage.releases {
+            let nodes = mesh.nodes_of_set(&r.set).ok_or_else(|| unknown(&r.set))?;
+            for &n in &nodes {
+                for i in (0..dim).filter(|&i| r.components[i]) {
+                    let d = n * dim + i;
+                    turned[d] = false;
+                    if std::mem::replace(&mut prescribed[d], false) {
+                        released.push(d);
+                    }
+                }
+            }
+        }
         for s in &stage.supports {
             let nodes = mesh.nodes_of_set(&s.set).ok_or_else(|| unknown(&s.set))?;
             for &n in &nodes {
@@ -176,6 +209,7 @@ pub fn resolve(disc: &Discretization) -> Result<(Vec<StageProgram>, ReportSets),
         let pressure_programs = pressures
             .iter()
             .map(|(name, &end)| PressureProgram {
+                name: name.clone(),
                 sides: mesh.side_sets[name].clone(),
                 start: before.get(name).copied().unwrap_or(0.0),
                 end,
@@ -231,6 +265,7 @@ pub fn resolve(disc: &Discretization) -> Result<(Vec<StageProgram>, ReportSets),
             pressures: pressure_programs,
             dead_start: std::mem::replace(&mut dead_prev, dead),
             dead_changes,
+            released,
         });
     }
     Ok((programs, report))

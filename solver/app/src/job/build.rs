@@ -16,6 +16,7 @@ use super::diagnostics::{nearest, InputError};
 use super::mesh_source::{all_set_names, apply_selections, mesh_from_table};
 use super::schema::{AnalysisKind, FormulationKind, JobFile, MaterialTable};
 use olli_solver::assembly::Discretization;
+use olli_solver::error::SolveError;
 use olli_solver::linear::LinearSettings;
 use olli_solver::material::{Material, MaterialError, VolumetricForm};
 use olli_solver::model::{Analysis, Formulation, Model, OutputSettings, Region};
@@ -151,7 +152,8 @@ impl Job {
     }
 
     /// Every value column of `history.csv`, in order: applied loads,
-    /// reactions, rigid surfaces, fluids, inserts.
+    /// reactions, rigid surfaces, fluids, inserts, then the increment's peaks
+    /// ([`PEAK_COLUMNS`]).
     pub fn history_columns(&self) -> Vec<String> {
         let mut c: Vec<String> = self.applied.iter().map(|a| a.name.clone()).collect();
         c.extend(self.reaction_columns());
@@ -159,6 +161,7 @@ impl Job {
         c.extend(self.rigid_columns());
         c.extend(self.fluid_columns());
         c.extend(self.insert_columns().into_iter().map(|(n, _)| n));
+        c.extend(PEAK_COLUMNS.iter().map(|(n, _)| n.to_string()));
         c
     }
 
@@ -168,6 +171,14 @@ impl Job {
         self.rigid_fluids[rigid].iter().filter_map(|n| r.fluids.iter().find(|f| &f.name == n)).map(|f| f.pressure).fold(0.0, f64::max)
     }
 }
+
+/// The last columns of `history.csv`, with their dimension: the extremes
+/// over every integration point of the mesh at each converged increment.
+pub const PEAK_COLUMNS: [(&str, &str); 3] = [
+    ("peak_max_principal_log_strain", "strain (ln of stretch)"),
+    ("peak_von_mises", "stress (force/length²)"),
+    ("min_volume_ratio", "ratio (deformed/reference volume)"),
+];
 
 /// The key of a material table a material error is about: the constant at
 /// fault, or `model` when the set of constants does not fit the model. Job
@@ -264,7 +275,11 @@ impl Builder<'_> {
         };
         // Element kinds, region cover and set kinds, checked by the solver's own tables.
         let disc = Discretization::new(&model).map_err(|e| self.err(file.mesh.span(), e.to_string()))?;
-        olli_solver::driver::stages::resolve(&disc).map_err(|e| self.err(0..0, e.to_string()))?;
+        let (programs, _) = olli_solver::driver::stages::resolve(&disc).map_err(|e| self.err(0..0, e.to_string()))?;
+        if let Some(u) = olli_solver::driver::held::unheld(&disc, &programs) {
+            let span = file.stage[u.stage].get_ref().name.span();
+            return Err(self.err(span, SolveError::from(u).to_string()));
+        }
         self.check_fluids(&file, &disc)?;
         drop(disc);
         let fluid_names: Vec<String> = model.fluids.iter().map(|f| f.name.clone()).collect();

@@ -1,6 +1,7 @@
 //! Constraints that disagree: a node component that a support, a motion or
-//! an insert would hold at two different values in one stage, and a node
-//! bonded to two inserts, are located errors. Agreeing constraints (a
+//! an insert would hold at two different values in one stage (two motions
+//! of one set included), and a node bonded to two inserts, are located
+//! errors; a released constraint no longer holds. Agreeing constraints (a
 //! symmetry plane's zero and a motion's zero on a shared edge) stay legal.
 
 use std::collections::BTreeMap;
@@ -25,8 +26,9 @@ enum Claim {
 }
 
 /// The stage of a set component's latest motion, its value (`None`: a rigid
-/// turn), and where the motion was written.
-type LatestMotion = (usize, Option<f64>, Range<usize>);
+/// turn), where the motion was written, and whether it is released by the
+/// stage being checked.
+type LatestMotion = (usize, Option<f64>, Range<usize>, bool);
 
 /// A constraint's claim with what to call it and where it was written.
 struct Holder {
@@ -87,6 +89,9 @@ impl Builder<'_> {
             let mut claims: BTreeMap<usize, Vec<Holder>> = BTreeMap::new();
             for sup in &file.support {
                 let spec = sup.get_ref();
+                if self.release_stage(&file.stage, &spec.release, 0)?.is_some_and(|r| r <= si) {
+                    continue;
+                }
                 let names = kind.components();
                 for n in mesh.nodes_of_set(spec.nodes.get_ref()).unwrap_or_default() {
                     for (i, c) in names.iter().enumerate() {
@@ -106,6 +111,7 @@ impl Builder<'_> {
                 if at > si {
                     continue;
                 }
+                let released = self.release_stage(&file.stage, &spec.release, at)?.is_some_and(|r| r <= si);
                 let values = match (&spec.rotation, &spec.displacement) {
                     (Some(_), _) => [Some(None); 3],
                     (None, Some(d)) => self.components(kind, d)?.map(|v| v.map(Some)),
@@ -119,13 +125,28 @@ impl Builder<'_> {
                 for (i, v) in values.iter().enumerate().take(dim) {
                     if let Some(v) = v {
                         let key = (spec.nodes.get_ref().clone(), i);
-                        if latest.get(&key).is_none_or(|(s, _, _)| *s <= at) {
-                            latest.insert(key, (at, *v, span.clone()));
+                        if let Some((_, Some(other), ..)) = latest.get(&key).filter(|(s, other, ..)| *s == at && other != v) {
+                            return Err(self.err(
+                                span.clone(),
+                                format!(
+                                    "stage `{}`: two motions of `{}` move component `{}` to {other} and to {}; give one of them only",
+                                    file.stage[at].get_ref().name.get_ref(),
+                                    key.0,
+                                    kind.components()[i],
+                                    v.map(|v| v.to_string()).unwrap_or_else(|| "a turn".into())
+                                ),
+                            ));
+                        }
+                        if latest.get(&key).is_none_or(|(s, ..)| *s <= at) {
+                            latest.insert(key, (at, *v, span.clone(), released));
                         }
                     }
                 }
             }
-            for ((set, i), (at, v, span)) in latest {
+            for ((set, i), (at, v, span, released)) in latest {
+                if released {
+                    continue;
+                }
                 let claim = match v {
                     None => Claim::Other,
                     Some(v) if at == si => Claim::Moved { to: v, ramp: ramp_key(stage, &set) },

@@ -18,7 +18,7 @@ mod rigid;
 pub mod schema;
 mod stages;
 
-pub use build::{load, load_str, Job, JobMaterial, OutputPlan, FIELD_NAMES};
+pub use build::{load, load_str, Job, JobMaterial, OutputPlan, FIELD_NAMES, PEAK_COLUMNS};
 pub use diagnostics::InputError;
 
 /// How sweep files are named, so they are never mistaken for jobs (the job

@@ -197,6 +197,9 @@ pub struct SupportSpec {
     pub fix: Spanned<Vec<String>>,
     /// Report the moment of the reaction about this point (3-D, plane strain).
     pub moment_about: Option<Spanned<Vec<f64>>>,
+    /// Stage (after the first) at whose start the components are let go,
+    /// their reaction ramped to zero over that stage (default: held throughout).
+    pub release: Option<Spanned<String>>,
 }
 
 /// Displacement components reached at the end of `stage`, ramped linearly
@@ -219,6 +222,9 @@ pub struct MotionSpec {
     /// How the load changes over its stage: `"linear"` (default), `"step"`
     /// (all at once), or a table `[[t, fraction], ...]` of stage fraction t.
     pub ramp: Option<Spanned<RampSpec>>,
+    /// Stage (after `stage`) at whose start the components are let go, their
+    /// reaction ramped to zero over that stage (default: held afterwards).
+    pub release: Option<Spanned<String>>,
 }
 
 /// A rigid turn of a motion's node set, made during the motion's stage from

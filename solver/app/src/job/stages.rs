@@ -86,6 +86,32 @@ impl Builder<'_> {
         })
     }
 
+    /// The stage of a `release` key: a stage after `from`, the stage the
+    /// constraint starts in (none without the key).
+    pub(super) fn release_stage(
+        &self,
+        stages: &[Spanned<StageSpec>],
+        release: &Option<Spanned<String>>,
+        from: usize,
+    ) -> Result<Option<usize>, InputError> {
+        let Some(name) = release else { return Ok(None) };
+        let Some(at) = stages.iter().position(|s| s.get_ref().name.get_ref() == name.get_ref()) else {
+            let names: Vec<&str> = stages.iter().map(|s| s.get_ref().name.get_ref().as_str()).collect();
+            return Err(self.unknown_name(name.span(), "release", "stage", name.get_ref(), &names));
+        };
+        if at <= from {
+            return Err(self.err(
+                name.span(),
+                format!(
+                    "`release`: stage `{}` does not come after stage `{}`, where this constraint starts; name a later stage",
+                    name.get_ref(),
+                    stages[from].get_ref().name.get_ref()
+                ),
+            ));
+        }
+        Ok(Some(at))
+    }
+
     /// A ramp as written, checked: `linear`, `step`, or a table of
     /// (stage fraction, fraction) points with strictly increasing fractions
     /// of the stage within [0, 1].
@@ -162,6 +188,10 @@ impl Builder<'_> {
             if !components.iter().any(|&c| c) {
                 return Err(self.err(spec.fix.span(), "`fix` names no component"));
             }
+            if let Some(at) = self.release_stage(&file.stage, &spec.release, 0)? {
+                stages[at].releases.push(Support { set: set.clone(), components });
+                loaded[at] = true;
+            }
             stages[0].supports.push(Support { set, components });
         }
         for m in &file.motion {
@@ -170,6 +200,16 @@ impl Builder<'_> {
             let set = self.node_set(mesh, "nodes", &spec.nodes)?;
             let displacement = spec.displacement.as_ref().map(|d| self.components(kind, d)).transpose()?;
             self.set_ramp(&mut stages[i], &set, &spec.ramp)?;
+            if let Some(at) = self.release_stage(&file.stage, &spec.release, i)? {
+                // A turn holds every component; a plain motion those it names.
+                let components = match (&spec.rotation, displacement) {
+                    (Some(_), _) => [true; 3],
+                    (None, Some(d)) => d.map(|v| v.is_some()),
+                    (None, None) => [false; 3],
+                };
+                stages[at].releases.push(Support { set: set.clone(), components });
+                loaded[at] = true;
+            }
             match (&spec.rotation, displacement) {
                 (Some(turn), translation) => {
                     let turn = self.rotation_motion(kind, set, turn, translation.unwrap_or([None; 3]))?;

@@ -7,7 +7,6 @@
 //! Frames are computed only for the increments that are written, so the
 //! solver keeps no per-increment fields and memory stays bounded.
 
-use nalgebra::Matrix3;
 use rayon::prelude::*;
 use serde::Serialize;
 
@@ -18,12 +17,7 @@ use olli_solver::error::SolveError;
 use olli_solver::results::{element_mean, nodal_average, nodal_quantities};
 use olli_solver::shape::MAX_NODES;
 
-/// Von Mises equivalent stress of a symmetric stress tensor.
-pub fn von_mises(s: &Matrix3<f64>) -> f64 {
-    let (a, b, c) = (s[(0, 0)], s[(1, 1)], s[(2, 2)]);
-    let shear = s[(0, 1)].powi(2) + s[(1, 2)].powi(2) + s[(0, 2)].powi(2);
-    (0.5 * ((a - b).powi(2) + (b - c).powi(2) + (c - a).powi(2)) + 3.0 * shear).max(0.0).sqrt()
-}
+pub use olli_solver::results::von_mises;
 
 /// A value and where it occurs.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
@@ -222,6 +216,7 @@ fn element_result(disc: &Discretization, e: usize, u: &[f64]) -> Result<ElementR
 mod tests {
     use super::*;
     use crate::job::load_str;
+    use nalgebra::Matrix3;
 
     /// Von Mises stress of textbook states (general mechanics): uniaxial σ
     /// gives |σ|, pure shear τ gives √3 τ, a hydrostatic state gives 0.

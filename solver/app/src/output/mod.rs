@@ -12,6 +12,7 @@ pub mod fields;
 pub mod history;
 pub mod performance;
 pub mod pvd;
+pub mod stage_peaks;
 pub mod summary;
 pub mod vtu;
 pub mod writer;

@@ -11,6 +11,7 @@ use serde::Serialize;
 
 use super::fields::Peaks;
 use super::performance::Performance;
+use super::stage_peaks::StagePeaks;
 
 /// Where the last converged increment is.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -66,6 +67,10 @@ pub struct RunSummary {
     pub stabilization_share: f64,
     /// Peaks at the last converged increment.
     pub peaks: Option<Peaks>,
+    /// By stage name: its largest log strain and von Mises stress and
+    /// smallest volume ratio over all its converged increments, with where
+    /// (element, point, reference position) and when (increment, load factor).
+    pub stage_peaks: BTreeMap<String, StagePeaks>,
     pub increments: usize,
     pub newton_iterations: usize,
     pub cutbacks: usize,
@@ -108,11 +113,18 @@ pub fn units(columns: &[String]) -> BTreeMap<String, String> {
         ("wall_time_s", "second"),
         ("performance.*_s", "second"),
         ("performance.peak_memory_mib", "mebibyte (2^20 bytes)"),
+        ("stage_peaks.max_principal_log_strain", "strain (ln of stretch)"),
+        ("stage_peaks.von_mises", "stress (force/length²)"),
+        ("stage_peaks.min_volume_ratio", "ratio (deformed/reference volume)"),
     ]
     .into_iter()
     .map(|(k, v)| (k.to_string(), v.to_string()))
     .collect();
     for c in columns {
+        if let Some((_, d)) = crate::job::PEAK_COLUMNS.iter().find(|(n, _)| n == c) {
+            u.insert(c.clone(), d.to_string());
+            continue;
+        }
         let dimension = if c.contains("_moment_") {
             "force·length"
         } else if c.ends_with("_contact_width") || c.ends_with("_wetted_length") {

@@ -16,6 +16,7 @@ use super::fields::{frame, Peaks};
 use super::history::History;
 use super::performance::{peak_memory_mib, Performance};
 use super::pvd::{pvd_text, PvdEntry};
+use super::stage_peaks::{self, StagePeaks};
 use super::summary::{units, Files, IncrementRef, RunSummary};
 use super::vtu::{write_vtu, Field};
 use crate::job::applied::AppliedSource;
@@ -49,6 +50,8 @@ pub struct ResultWriter<'m> {
     stabilization_share: f64,
     /// The last converged increment, for the `running` and `interrupted` summaries.
     last_increment: Option<IncrementRef>,
+    /// Each stage's peaks over its converged increments so far.
+    stage_peaks: BTreeMap<String, StagePeaks>,
 }
 
 impl<'m> ResultWriter<'m> {
@@ -76,6 +79,7 @@ impl<'m> ResultWriter<'m> {
             error: None,
             stabilization_share: 0.0,
             last_increment: None,
+            stage_peaks: BTreeMap::new(),
         };
         w.log_line(&format!("olli {} run of {} ({})", env!("CARGO_PKG_VERSION"), job.path.display(), job.title));
         w.flush(|w| w.write(HISTORY_FILE, w.history.to_csv().as_bytes()));
@@ -95,6 +99,7 @@ impl<'m> ResultWriter<'m> {
             "status": status,
             "last_increment": self.last_increment,
             "increments": self.history.len(),
+            "stage_peaks": self.stage_peaks,
         });
         self.write(SUMMARY_FILE, format!("{summary:#}\n").as_bytes())
     }
@@ -179,6 +184,9 @@ impl<'m> ResultWriter<'m> {
                 values.extend(crate::job::inserts::insert_values(self.job.kind, ins));
             }
         }
+        let p = &r.peaks;
+        values.extend([p.max_principal_log_strain.value, p.von_mises.value, p.min_volume_ratio.value]);
+        stage_peaks::record(&mut self.stage_peaks, r);
         self.history.push(&r.stage_name, r.increment, r.load_factor, values, r.newton_iterations);
         if r.stabilization_share > 0.01 && self.stabilization_share <= 0.01 {
             let line = format!(
@@ -258,7 +266,9 @@ impl<'m> ResultWriter<'m> {
             Termination::Completed => ("converged", None, None),
             Termination::Stopped(e) => {
                 let stage = match e {
-                    SolveError::IncrementTooSmall { stage, .. } | SolveError::NotConverged { stage, .. } => stage.clone(),
+                    SolveError::IncrementTooSmall { stage, .. }
+                    | SolveError::NotConverged { stage, .. }
+                    | SolveError::LimitPoint { stage, .. } => stage.clone(),
                     _ => last.map(|r| r.stage_name.clone()).unwrap_or_else(|| stages[0].name.clone()),
                 };
                 ("stopped", Some(e.to_string()), Some(stage))
@@ -340,6 +350,7 @@ impl<'m> ResultWriter<'m> {
             inserts,
             stabilization_share: self.stabilization_share,
             peaks: self.last_peaks,
+            stage_peaks: self.stage_peaks.clone(),
             increments: solution.increments.len(),
             newton_iterations: solution.stats.newton_iterations,
             cutbacks: solution.stats.cutbacks,
