@@ -19,7 +19,7 @@ use crate::output::{write_atomic, SUMMARY_FILE};
 pub const TABLE_FILE: &str = "sweep.csv";
 
 /// Summary entries that describe the run rather than the part: not results.
-pub const BOOKKEEPING: [&str; 15] = [
+pub const BOOKKEEPING: [&str; 16] = [
     "olli_version",
     "job",
     "title",
@@ -34,6 +34,7 @@ pub const BOOKKEEPING: [&str; 15] = [
     "newton_iterations",
     "cutbacks",
     "wall_time_s",
+    "performance",
     "files",
 ];
 
@@ -211,7 +212,7 @@ mod tests {
     #[test]
     fn summaries_flatten_to_named_columns_without_bookkeeping() {
         let s: Value = serde_json::from_str(
-            r#"{"status":"converged","increments":4,"reactions":{"pin":{"r":0.1,"z":2.5}},
+            r#"{"status":"converged","increments":4,"reactions":{"pin":{"r":0.1,"z":2.5}},"performance":{"assembly_s":0.5},
                 "peaks":{"von_mises":{"value":1.5,"at":[1,2,3]}},"sealing":{"margin":0.3,"sealed":true}}"#,
         )
         .unwrap();
