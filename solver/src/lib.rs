@@ -48,6 +48,6 @@ pub use driver::{solve, Event, Observer, Quiet};
 pub use error::SolveError;
 pub use model::{
     Analysis, Force, Formulation, IncrementControls, Insert, InsertDrive, InsertStage, Model, Motion, OutputSettings, Pressure, Ramp,
-    Region, RigidBody, RigidMotion, Stage, Support,
+    Region, RigidBody, RigidMotion, RotationMotion, Stage, Support,
 };
 pub use results::{IncrementResult, NodalFields, PointFields, Solution, SolveStats, Termination};

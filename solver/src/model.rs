@@ -46,6 +46,23 @@ pub struct Motion {
     pub displacement: [Option<f64>; 3],
 }
 
+/// A node set moved as a rigid body during one stage: turned about the axis
+/// through `center` and translated by `translation`, both ramped from the
+/// nodes' positions at the stage start, so every node follows an exact arc
+/// (a chord would shorten the radius). All components of the set's nodes
+/// are prescribed; in later stages they are held where the stage left them.
+/// 2-D analyses turn about the out-of-plane axis.
+#[derive(Debug, Clone, PartialEq)]
+pub struct RotationMotion {
+    pub set: String,
+    /// Rotation vector made during the stage: unit axis times angle (radians).
+    pub rotation: [f64; 3],
+    /// A point on the axis (position at the stage start).
+    pub center: [f64; 3],
+    /// Translation (length units) made during the stage, after the turn.
+    pub translation: [f64; 3],
+}
+
 /// Follower pressure on a side set, positive pushing on the surface.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Pressure {
@@ -219,7 +236,7 @@ pub struct IncrementControls {
     /// iterations and a positive-definite tangent more often for nearly
     /// incompressible rubber. Default true.
     pub carry_pressure: bool,
-    /// Stabilisation factor (dimensionless, ≥ 0): ties every free node to its
+    /// Stabilization factor (dimensionless, ≥ 0): ties every free node to its
     /// last converged position by a weak spring `factor · μ V / h²`, for parts
     /// not held in every direction until contact closes (see
     /// [`crate::driver::stabilization`]). Default 0 (none).
@@ -275,7 +292,7 @@ impl IncrementControls {
     /// increments with `min ≤ max`, `growth ≥ 1`, `0 < cutback < 1` (so a
     /// failing increment shrinks and the run ends at `min`), at least one
     /// iteration, non-negative finite tolerances (the force tolerance
-    /// positive) and stabilisation. [`crate::solve`] calls it for every stage.
+    /// positive) and stabilization. [`crate::solve`] calls it for every stage.
     pub fn validate(&self) -> Result<(), ControlsError> {
         let check = |field: &'static str, value: f64, ok: bool, requirement: &'static str| {
             if ok && value.is_finite() {
@@ -366,6 +383,8 @@ pub struct Stage {
     /// the start of this stage: their reaction at the last converged
     /// increment is applied as a load that ramps linearly to zero over the stage.
     pub releases: Vec<Support>,
+    /// Node sets turned as rigid bodies in this stage (ramped by the set's name in `ramps`).
+    pub rotations: Vec<RotationMotion>,
     pub pressures: Vec<Pressure>,
     pub forces: Vec<Force>,
     /// Fluid pressures reached at the end of the stage (others are held).

@@ -76,8 +76,8 @@ pub struct IncrementResult {
     pub axisymmetric: bool,
     pub points: Option<PointFields>,
     pub nodal: Option<NodalFields>,
-    /// Stabilisation springs' force relative to the problem's force scale
-    /// (0 without stabilisation); keep it well below 1 %.
+    /// Stabilization springs' force relative to the problem's force scale
+    /// (0 without stabilization); keep it well below 1 %.
     pub stabilization_share: f64,
     /// Per bonded insert: its position and the force and moment on it.
     pub inserts: Vec<crate::insert::InsertResult>,

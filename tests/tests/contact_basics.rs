@@ -204,7 +204,7 @@ fn contact_rigid_plane_3d_reproduces_uniaxial_compression() {
 
 // A cord lying loose between two frictionless plates is held only by the
 // two contact points it starts on (the rounded pressure law gives them
-// stiffness at zero gap). With stabilisation springs (factor 1e-4) holding
+// stiffness at zero gap). With stabilization springs (factor 1e-4) holding
 // every node as well, the answer must still match the same squeeze with the
 // section held by its symmetry lines (the exact way to remove the rigid-body
 // modes) within 1 %, the two plate forces must balance to the springs' share

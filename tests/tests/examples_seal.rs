@@ -1,5 +1,5 @@
 //! The face-seal example (examples/seal.toml, seal.md): it checks and runs,
-//! its recorded results hold, and its stabilisation does not steer them. The
+//! its recorded results hold, and its stabilization does not steer them. The
 //! comparison with Lindley's O-ring relation for frictionless plates lives in
 //! `lindley_oring.rs`; the note compares this frictional seal with it.
 
@@ -24,7 +24,7 @@ fn seal_example_results_match_its_note() {
     // The seal holds: peak contact pressure above the 1 MPa system pressure.
     assert!(groove["peak_pressure"] > 1.0);
     // At the end of the squeeze, groove and cover take equal and opposite
-    // axial forces, up to the stabilisation springs' share (a few 0.1 %).
+    // axial forces, up to the stabilization springs' share (a few 0.1 %).
     let groove_squeezed = squeezed.contact.iter().find(|c| c.name == "groove").unwrap();
     assert!(rel_diff(-groove_squeezed.force[1], cover.force[1]) < 5e-3);
     // Its pictures (issue 13): each drawn at its size and not blank, the report
@@ -45,11 +45,11 @@ fn seal_example_results_match_its_note() {
     );
 }
 
-// The stabilisation springs must not steer the answer: with half the factor
+// The stabilization springs must not steer the answer: with half the factor
 // the squeeze force and the peak pressure move by far less than the 1 %
 // engineering tolerance (common practice for such numerical aids).
 #[test]
-fn seal_example_is_insensitive_to_its_stabilisation() {
+fn seal_example_is_insensitive_to_its_stabilization() {
     let base = std::fs::read_to_string(examples_dir().join("seal.toml")).unwrap();
     let half = base.replace("stabilization = 1e-3", "stabilization = 5e-4");
     assert_ne!(base, half);

@@ -1,5 +1,5 @@
 //! The global system of one Newton evaluation, as loads, contact and
-//! stabilisation add to it: the external force at every dof, the tangent in
+//! stabilization add to it: the external force at every dof, the tangent in
 //! the pattern's lower triangle (with an optional skew part), and the
 //! predictor's right-hand side. They write through [`GlobalSystem`]'s
 //! methods, never into pattern slots of their own.

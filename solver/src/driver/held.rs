@@ -7,9 +7,9 @@
 //! would only fail later as a generic non-convergence.
 //!
 //! A part may be held by what cannot be seen before solving: contact with a
-//! rigid surface (with or without stabilisation springs) holds it once
+//! rigid surface (with or without stabilization springs) holds it once
 //! touching, so a model with rigid surfaces, or a stage with
-//! stabilisation, is not checked.
+//! stabilization, is not checked.
 
 use nalgebra::{DMatrix, SymmetricEigen};
 

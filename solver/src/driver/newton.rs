@@ -18,7 +18,7 @@ use std::time::Instant;
 
 use super::observer::{Event, Observer};
 use super::stabilization::add_springs;
-use super::stages::StageProgram;
+use super::stages::{arc_position, StageProgram, HOLD_AT_START, NO_ARC};
 use crate::assembly::assembler::Outputs;
 use crate::assembly::dofs::NONE;
 use crate::assembly::global::GlobalSystem;
@@ -71,7 +71,7 @@ pub struct NewtonContext<'a> {
     pub fluids: Option<&'a mut Fluids>,
     /// Smallest force scale: 1e-10 × the model's force unit μ·L² (see [`force_unit`]).
     force_floor: f64,
-    /// Stabilisation spring per dof (empty when the stage has none).
+    /// Stabilization spring per dof (empty when the stage has none).
     stabilization: Vec<f64>,
     /// Element pressure/dilatation unknowns (three-field form; empty when condensed).
     pub mixed: MixedUnknowns,
@@ -193,9 +193,24 @@ impl<'a> NewtonContext<'a> {
         self
     }
 
+    /// Value of prescribed dof `d` at stage fraction `t`: ramped towards its
+    /// target, along its set's arc, or held at its stage-start value.
     fn prescribed_at(&self, t: f64, d: usize) -> f64 {
         let a = self.prog.ramps[self.prog.ramp_of_dof[d] as usize].fraction(t);
-        self.start[d] + a * (self.prog.target[d] - self.start[d])
+        match self.prog.arc_of_dof[d] {
+            NO_ARC => self.start[d] + a * (self.prog.target[d] - self.start[d]),
+            HOLD_AT_START => self.start[d],
+            k => {
+                let dim = self.dofs.dim;
+                let (n, i) = (d / dim, d % dim);
+                let node = self.disc.mesh().nodes[n];
+                let mut x0 = [0.0; 3];
+                for c in 0..dim {
+                    x0[c] = node[c] + self.start[n * dim + c];
+                }
+                arc_position(&self.prog.arcs[k as usize], a, x0)[i] - node[i]
+            }
+        }
     }
 
     /// Residual (and tangent, and the right-hand side `−r_f − K_fp Δu_p`) at `u`.
@@ -251,7 +266,7 @@ impl<'a> NewtonContext<'a> {
         if let Some(fluids) = self.fluids.as_deref() {
             fluids.add_loads(&mesh.nodes, u, t, &mut system);
         }
-        // Stabilisation springs to the last converged state (free dofs only).
+        // Stabilization springs to the last converged state (free dofs only).
         add_springs(&self.stabilization, u, &self.last_converged, &mut system);
         let mut finite = true;
         for d in 0..self.residual.len() {
@@ -275,9 +290,9 @@ impl<'a> NewtonContext<'a> {
         Ok(energy)
     }
 
-    /// The stabilisation springs' force at displacement `u` relative to the
+    /// The stabilization springs' force at displacement `u` relative to the
     /// force scale of the problem: how much of the answer they carry (0
-    /// without stabilisation).
+    /// without stabilization).
     pub fn stabilization_share(&self, u: &[f64]) -> f64 {
         if self.stabilization.is_empty() {
             return 0.0;

@@ -1,4 +1,4 @@
-//! Viscous-like stabilisation for parts that are not held in every direction
+//! Viscous-like stabilization for parts that are not held in every direction
 //! until contact closes: an O-ring lying loose between frictionless plates,
 //! a seal about to roll. Each free node is tied to its position at the last
 //! converged increment by a weak spring, k = factor · μ · V / h² (μ the

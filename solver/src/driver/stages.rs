@@ -10,8 +10,25 @@ use olli_mesh::Side;
 
 use crate::assembly::Discretization;
 use crate::error::SolveError;
+use crate::insert::rotation;
 use crate::load::dead::{add_body_force, add_node_force, add_side_force};
-use crate::model::{Ramp, BODY_FORCE_RAMP};
+use crate::model::{Ramp, RotationMotion, BODY_FORCE_RAMP};
+
+/// [`StageProgram::arc_of_dof`] of a dof that follows no arc.
+pub const NO_ARC: u32 = u32::MAX;
+/// [`StageProgram::arc_of_dof`] of a dof held where it was at the stage start
+/// (an earlier stage turned it).
+pub const HOLD_AT_START: u32 = u32::MAX - 1;
+
+/// Where a node of a turned set is at ramp fraction `a` of the stage, from
+/// its position `start` at the stage start: the exact arc about the axis,
+/// then the translation.
+pub fn arc_position(m: &RotationMotion, a: f64, start: [f64; 3]) -> [f64; 3] {
+    let r = rotation::rotation(m.rotation.map(|v| a * v));
+    let arm = [0, 1, 2].map(|i| start[i] - m.center[i]);
+    let turned = rotation::apply(&r, arm);
+    [0, 1, 2].map(|i| m.center[i] + turned[i] + a * m.translation[i])
+}
 
 /// One pressurised side set during a stage.
 #[derive(Debug, Clone)]
@@ -33,6 +50,11 @@ pub struct StageProgram {
     pub target: Vec<f64>,
     /// Index into `ramps` of each dof's ramp (0: linear).
     pub ramp_of_dof: Vec<u32>,
+    /// Index into `arcs` of each dof of a turned set, else [`NO_ARC`] (moves
+    /// towards `target`) or [`HOLD_AT_START`].
+    pub arc_of_dof: Vec<u32>,
+    /// The rigid turns of this stage.
+    pub arcs: Vec<RotationMotion>,
     pub ramps: Vec<Ramp>,
     pub pressures: Vec<PressureProgram>,
     /// Dead load at the start of the stage.
@@ -88,6 +110,8 @@ pub fn resolve(disc: &Discretization) -> Result<(Vec<StageProgram>, ReportSets),
     let mut forces: BTreeMap<String, [f64; 3]> = BTreeMap::new();
     let mut body: Option<[f64; 3]> = None;
     let mut dead_prev = vec![0.0; ndof];
+    // Dofs an earlier stage turned: held at their stage-start value until re-prescribed.
+    let mut turned = vec![false; ndof];
     let mut programs = Vec::new();
     let inserts = crate::insert::Inserts::new(disc)?;
     for stage in &model.stages {
@@ -109,6 +133,7 @@ pub fn resolve(disc: &Discretization) -> Result<(Vec<StageProgram>, ReportSets),
             for &n in &nodes {
                 for i in (0..dim).filter(|&i| r.components[i]) {
                     let d = n * dim + i;
+                    turned[d] = false;
                     if std::mem::replace(&mut prescribed[d], false) {
                         released.push(d);
                     }
@@ -122,6 +147,7 @@ pub fn resolve(disc: &Discretization) -> Result<(Vec<StageProgram>, ReportSets),
                     if s.components[i] {
                         prescribed[n * dim + i] = true;
                         target[n * dim + i] = 0.0;
+                        turned[n * dim + i] = false;
                     }
                 }
             }
@@ -141,8 +167,29 @@ pub fn resolve(disc: &Discretization) -> Result<(Vec<StageProgram>, ReportSets),
                     if let Some(v) = m.displacement[i] {
                         prescribed[n * dim + i] = true;
                         target[n * dim + i] = v;
+                        turned[n * dim + i] = false;
                         ramp_of_dof[n * dim + i] = r;
                     }
+                }
+            }
+            report.insert(m.set.clone(), nodes);
+        }
+        let mut arc_of_dof: Vec<u32> = turned.iter().map(|&h| if h { HOLD_AT_START } else { NO_ARC }).collect();
+        for (k, m) in stage.rotations.iter().enumerate() {
+            let nodes = mesh.nodes_of_set(&m.set).ok_or_else(|| unknown(&m.set))?;
+            let ramp = ramp_for(&m.set);
+            let r = if ramp == Ramp::Linear {
+                0
+            } else {
+                ramps.push(ramp);
+                (ramps.len() - 1) as u32
+            };
+            for &n in &nodes {
+                for d in n * dim..(n + 1) * dim {
+                    prescribed[d] = true;
+                    arc_of_dof[d] = k as u32;
+                    ramp_of_dof[d] = r;
+                    turned[d] = true;
                 }
             }
             report.insert(m.set.clone(), nodes);
@@ -212,6 +259,8 @@ pub fn resolve(disc: &Discretization) -> Result<(Vec<StageProgram>, ReportSets),
             prescribed: prescribed.clone(),
             target: target.clone(),
             ramp_of_dof,
+            arc_of_dof,
+            arcs: stage.rotations.clone(),
             ramps,
             pressures: pressure_programs,
             dead_start: std::mem::replace(&mut dead_prev, dead),

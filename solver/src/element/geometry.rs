@@ -4,7 +4,7 @@
 
 use std::f64::consts::PI;
 
-use nalgebra::{Matrix2, Matrix3, Vector2, Vector3};
+use nalgebra::{Matrix3, Vector3};
 
 use super::{Analysis, ElementError};
 use crate::shape::{ShapeKind, MAX_NODES};
@@ -39,37 +39,25 @@ pub fn point_geometry(shape: ShapeKind, analysis: Analysis, x: &[[f64; 3]], poin
     let nodes = n.len();
     let mut out = PointGeometry::default();
     out.n[..nodes].copy_from_slice(n);
-    let det = if shape.dimension() == 3 {
-        let mut jac = Matrix3::zeros();
-        for a in 0..nodes {
-            jac += Vector3::from(x[a]) * Vector3::from(d[a]).transpose();
-        }
-        let det = jac.determinant();
-        let inv = match jac.try_inverse() {
-            Some(inv) if det > 0.0 => inv,
-            _ => return Err(ElementError::BadReference { point, det }),
-        };
-        for a in 0..nodes {
-            let g = inv.transpose() * Vector3::from(d[a]);
-            out.g[a] = [g[0], g[1], g[2]];
-        }
-        det
-    } else {
-        let mut jac = Matrix2::zeros();
-        for a in 0..nodes {
-            jac += Vector2::new(x[a][0], x[a][1]) * Vector2::new(d[a][0], d[a][1]).transpose();
-        }
-        let det = jac.determinant();
-        let inv = match jac.try_inverse() {
-            Some(inv) if det > 0.0 => inv,
-            _ => return Err(ElementError::BadReference { point, det }),
-        };
-        for a in 0..nodes {
-            let g = inv.transpose() * Vector2::new(d[a][0], d[a][1]);
-            out.g[a] = [g[0], g[1], 0.0];
-        }
-        det
+    // One 3×3 Jacobian for both dimensions: a 2-D shape's third row and
+    // column are the identity, so its determinant and inverse are the 2×2 ones.
+    let planar = shape.dimension() == 2;
+    let mut jac = if planar { Matrix3::from_diagonal(&Vector3::new(0.0, 0.0, 1.0)) } else { Matrix3::zeros() };
+    for a in 0..nodes {
+        let xa = if planar { Vector3::new(x[a][0], x[a][1], 0.0) } else { Vector3::from(x[a]) };
+        let da = if planar { Vector3::new(d[a][0], d[a][1], 0.0) } else { Vector3::from(d[a]) };
+        jac += xa * da.transpose();
+    }
+    let det = jac.determinant();
+    let inv = match jac.try_inverse() {
+        Some(inv) if det > 0.0 => inv,
+        _ => return Err(ElementError::BadReference { point, det }),
     };
+    for a in 0..nodes {
+        let da = if planar { Vector3::new(d[a][0], d[a][1], 0.0) } else { Vector3::from(d[a]) };
+        let g = inv.transpose() * da;
+        out.g[a] = [g[0], g[1], g[2]];
+    }
     let w = table.weights[point] * det;
     out.dv = match analysis {
         Analysis::Axisymmetric => {

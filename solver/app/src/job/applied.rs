@@ -19,6 +19,9 @@ pub enum AppliedSource {
     Force { set: String, component: usize },
     /// Pressure on a side set.
     Pressure { set: String },
+    /// Angle (degrees) a set has turned through its motions' `rotation`s,
+    /// about the first turn's axis (each turn projected on it).
+    Angle { set: String },
 }
 
 /// One `applied_...` column.
@@ -40,10 +43,13 @@ pub fn applied_columns(file: &JobFile, kind: AnalysisKind) -> Vec<AppliedColumn>
     };
     for m in &file.motion {
         let spec = m.get_ref();
+        let set = spec.nodes.get_ref().clone();
+        if spec.rotation.is_some() {
+            push(format!("applied_{set}_angle"), AppliedSource::Angle { set: set.clone() });
+        }
         for (i, c) in comps.iter().enumerate() {
-            if spec.displacement.get_ref().contains_key(*c) {
-                let set = spec.nodes.get_ref().clone();
-                push(format!("applied_{set}_{c}"), AppliedSource::Travel { set, component: i });
+            if spec.displacement.as_ref().is_some_and(|d| d.get_ref().contains_key(*c)) {
+                push(format!("applied_{set}_{c}"), AppliedSource::Travel { set: set.clone(), component: i });
             }
         }
     }
@@ -63,6 +69,26 @@ pub fn applied_columns(file: &JobFile, kind: AnalysisKind) -> Vec<AppliedColumn>
         push(format!("applied_{name}_pressure"), AppliedSource::Pressure { set });
     }
     out
+}
+
+/// Degrees turned by `set` up to load factor `t` of stage `stage`: each
+/// stage's turn projected on the first turn's axis, the current one ramped.
+fn turned_angle(model: &Model, stage: usize, t: f64, set: &str) -> f64 {
+    let mut axis: Option<[f64; 3]> = None;
+    let mut total = 0.0;
+    for (i, s) in model.stages.iter().enumerate().take(stage + 1) {
+        for m in s.rotations.iter().filter(|m| m.set == set) {
+            let norm = m.rotation.iter().map(|v| v * v).sum::<f64>().sqrt();
+            if norm == 0.0 {
+                continue;
+            }
+            let e = *axis.get_or_insert(m.rotation.map(|v| v / norm));
+            let angle = (0..3).map(|k| m.rotation[k] * e[k]).sum::<f64>().to_degrees();
+            let fraction = if i == stage { s.ramps.get(set).cloned().unwrap_or(Ramp::Linear).fraction(t) } else { 1.0 };
+            total += fraction * angle;
+        }
+    }
+    total
 }
 
 /// Value of a load keyed by set in stage `stage` at load factor `t`: held from
@@ -86,9 +112,10 @@ impl AppliedColumn {
     pub fn value(&self, model: &Model, r: &IncrementResult) -> f64 {
         match &self.source {
             AppliedSource::Travel { set, component } => {
-                let named = model.stages[..=r.stage]
-                    .iter()
-                    .any(|s| s.motions.iter().any(|m| &m.set == set && m.displacement[*component].is_some()));
+                let named = model.stages[..=r.stage].iter().any(|s| {
+                    s.motions.iter().any(|m| &m.set == set && m.displacement[*component].is_some())
+                        || s.rotations.iter().any(|m| &m.set == set)
+                });
                 let nodes = model.mesh.nodes_of_set(set).unwrap_or_default();
                 if !named || nodes.is_empty() {
                     return 0.0;
@@ -101,6 +128,7 @@ impl AppliedColumn {
             AppliedSource::Pressure { set } => staged_value(model, r.stage, r.load_factor, set, |i| {
                 model.stages[i].pressures.iter().rfind(|p| &p.set == set).map(|p| p.value)
             }),
+            AppliedSource::Angle { set } => turned_angle(model, r.stage, r.load_factor, set),
         }
     }
 }

@@ -443,6 +443,16 @@ impl Builder<'_> {
             }
             out.insert(set.get_ref().clone(), p);
         }
+        // A turned set reports its moment about its turn's centre unless told otherwise.
+        for m in &file.motion {
+            let spec = m.get_ref();
+            let Some(turn) = spec.rotation.as_ref().map(|r| r.get_ref()) else { continue };
+            if kind != AnalysisKind::Axisymmetric && turn.center.len() == dim && turn.center.iter().all(|v| v.is_finite()) {
+                let mut p = [0.0; 3];
+                p[..dim].copy_from_slice(&turn.center);
+                out.entry(spec.nodes.get_ref().clone()).or_insert(p);
+            }
+        }
         Ok(out)
     }
 

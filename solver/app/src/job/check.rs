@@ -84,6 +84,7 @@ pub fn stretch_range(job: &Job) -> (f64, f64) {
         .flat_map(|s| &s.motions)
         .flat_map(|m| m.displacement.iter().flatten())
         .chain(job.model.stages.iter().flat_map(|s| &s.rigid_motions).flat_map(|m| m.translation.iter()))
+        .chain(job.model.stages.iter().flat_map(|s| &s.rotations).flat_map(|m| m.translation.iter()))
         .fold(0.0f64, |a, &v| a.max(v.abs()));
     let top = if h > 0.0 { (1.0 + 2.0 * d / h).clamp(3.0, 20.0) } else { 3.0 };
     (1.0 / top, top)

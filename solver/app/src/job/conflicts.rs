@@ -21,9 +21,14 @@ enum Claim {
     Held(f64),
     /// Moved to a value by the end of the stage, along a ramp (by name of its key).
     Moved { to: f64, ramp: String },
-    /// Anything else (a rotating or loaded insert).
+    /// Anything else (a rotating or loaded insert, a turned set).
     Other,
 }
+
+/// The stage of a set component's latest motion, its value (`None`: a rigid
+/// turn), where the motion was written, and whether it is released by the
+/// stage checked.
+type LatestMotion = (usize, Option<f64>, Range<usize>, bool);
 
 /// A constraint's claim with what to call it and where it was written.
 struct Holder {
@@ -97,33 +102,44 @@ impl Builder<'_> {
                     }
                 }
             }
-            // The latest motion of each set and component up to this stage.
-            // (stage, value, where written, released by this stage)
-            type Latest = (usize, f64, Range<usize>, bool);
-            let mut latest: BTreeMap<(String, usize), Latest> = BTreeMap::new();
+            // The latest motion of each set and component up to this stage
+            // (`None`: a rigid turn, which holds every component where it leaves it).
+            let mut latest: BTreeMap<(String, usize), LatestMotion> = BTreeMap::new();
             for m in &file.motion {
                 let spec = m.get_ref();
                 let at = self.stage_index(&file.stage, &spec.stage)?;
                 if at > si {
                     continue;
                 }
+                let values = match (&spec.rotation, &spec.displacement) {
+                    (Some(_), _) => [Some(None); 3],
+                    (None, Some(d)) => self.components(kind, d)?.map(|v| v.map(Some)),
+                    (None, None) => [None; 3],
+                };
+                let span = match (&spec.rotation, &spec.displacement) {
+                    (Some(r), _) => r.span(),
+                    (None, Some(d)) => d.span(),
+                    (None, None) => m.span(),
+                };
                 let released = self.release_stage(&file.stage, &spec.release, at)?.is_some_and(|r| r <= si);
-                for (i, v) in self.components(kind, &spec.displacement)?.iter().enumerate() {
+                for (i, v) in values.iter().enumerate().take(dim) {
                     if let Some(v) = v {
                         let key = (spec.nodes.get_ref().clone(), i);
-                        if let Some((_, other, ..)) = latest.get(&key).filter(|(s, other, ..)| *s == at && other != v) {
-                            return Err(self.err(
-                                spec.displacement.span(),
-                                format!(
-                                    "stage `{}`: two motions of `{}` move component `{}` to {other} and to {v}; give one of them only",
-                                    file.stage[at].get_ref().name.get_ref(),
-                                    key.0,
-                                    kind.components()[i]
-                                ),
-                            ));
+                        if let Some((_, Some(other), ..)) = latest.get(&key).filter(|(s, other, ..)| *s == at && other != v) {
+                            if let Some(v) = v {
+                                return Err(self.err(
+                                    span.clone(),
+                                    format!(
+                                        "stage `{}`: two motions of `{}` move component `{}` to {other} and to {v}; give one of them only",
+                                        file.stage[at].get_ref().name.get_ref(),
+                                        key.0,
+                                        kind.components()[i]
+                                    ),
+                                ));
+                            }
                         }
                         if latest.get(&key).is_none_or(|(s, ..)| *s <= at) {
-                            latest.insert(key, (at, *v, spec.displacement.span(), released));
+                            latest.insert(key, (at, *v, span.clone(), released));
                         }
                     }
                 }
@@ -132,7 +148,11 @@ impl Builder<'_> {
                 if released {
                     continue;
                 }
-                let claim = if at == si { Claim::Moved { to: v, ramp: ramp_key(stage, &set) } } else { Claim::Held(v) };
+                let claim = match v {
+                    None => Claim::Other,
+                    Some(v) if at == si => Claim::Moved { to: v, ramp: ramp_key(stage, &set) },
+                    Some(v) => Claim::Held(v),
+                };
                 for n in mesh.nodes_of_set(&set).unwrap_or_default() {
                     let what = format!("the motion on `{set}`");
                     claims.entry(n * dim + i).or_default().push(Holder { what, span: span.clone(), claim: claim.clone() });

@@ -210,9 +210,14 @@ pub struct MotionSpec {
     pub nodes: Spanned<String>,
     /// Stage name (default: the first stage).
     pub stage: Option<Spanned<String>>,
-    /// Component → displacement (length units), e.g. `{ x = 0.0, z = -2.0 }`.
-    pub displacement: Spanned<BTreeMap<String, f64>>,
-    /// Report the moment of the reaction about this point (3-D, plane strain).
+    /// Component → displacement (length units), e.g. `{ x = 0.0, z = -2.0 }`;
+    /// beside `rotation`, the translation made during the stage (unnamed
+    /// components: none).
+    pub displacement: Option<Spanned<BTreeMap<String, f64>>>,
+    /// A rigid turn of the set during its stage, along exact arcs.
+    pub rotation: Option<Spanned<RotationSpec>>,
+    /// Report the moment of the reaction about this point (3-D, plane
+    /// strain; default for a motion with `rotation`: its `center`).
     pub moment_about: Option<Spanned<Vec<f64>>>,
     /// How the load changes over its stage: `"linear"` (default), `"step"`
     /// (all at once), or a table `[[t, fraction], ...]` of stage fraction t.
@@ -220,6 +225,20 @@ pub struct MotionSpec {
     /// Stage (after `stage`) at whose start the components are let go, their
     /// reaction ramped to zero over that stage (default: held afterwards).
     pub release: Option<Spanned<String>>,
+}
+
+/// A rigid turn of a motion's node set, made during the motion's stage from
+/// the nodes' positions at the stage start: `angle` (degrees, right-handed
+/// about `axis`) about the axis through `center`.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RotationSpec {
+    /// Degrees turned during the stage.
+    pub angle: f64,
+    /// Direction of the axis (3-D; 2-D turns about the out-of-plane axis and takes none).
+    pub axis: Option<Vec<f64>>,
+    /// A point on the axis (2 coordinates in 2-D, 3 in 3-D).
+    pub center: Vec<f64>,
 }
 
 /// Follower pressure (stress units) on a side set, positive pushing into the material.

@@ -10,8 +10,8 @@ use toml::Spanned;
 
 use super::build::Builder;
 use super::diagnostics::{nearest, InputError};
-use super::schema::{AnalysisKind, JobFile, RampSpec, StageSpec};
-use olli_solver::model::{Force, IncrementControls, Insert, Motion, Pressure, Ramp, Stage, Support, BODY_FORCE_RAMP};
+use super::schema::{AnalysisKind, JobFile, RampSpec, RotationSpec, StageSpec};
+use olli_solver::model::{Force, IncrementControls, Insert, Motion, Pressure, Ramp, RotationMotion, Stage, Support, BODY_FORCE_RAMP};
 
 impl Builder<'_> {
     /// Component values `{ x = .., z = .. }` as an array for this analysis.
@@ -34,6 +34,48 @@ impl Builder<'_> {
             out[i] = Some(*v);
         }
         Ok(out)
+    }
+
+    /// A motion's `rotation` as a rigid turn of `set` (translated by the
+    /// given displacement components, others 0).
+    fn rotation_motion(
+        &self,
+        kind: AnalysisKind,
+        set: String,
+        spec: &Spanned<RotationSpec>,
+        translation: [Option<f64>; 3],
+    ) -> Result<RotationMotion, InputError> {
+        let r = spec.get_ref();
+        let span = spec.span();
+        let dim = kind.components().len();
+        if kind == AnalysisKind::Axisymmetric {
+            return Err(self.err(
+                span,
+                "`rotation`: an axisymmetric section cannot turn in its plane; use a plane-strain or 3-D analysis, or an [[insert]]",
+            ));
+        }
+        if !r.angle.is_finite() {
+            return Err(self.err(span, "`rotation`: `angle` (degrees) must be a finite number"));
+        }
+        if r.center.len() != dim || r.center.iter().any(|v| !v.is_finite()) {
+            return Err(self.err(span, format!("`rotation`: `center` needs {dim} finite coordinates, got {:?}", r.center)));
+        }
+        let axis = match (&r.axis, dim) {
+            (None, 2) => [0.0, 0.0, 1.0],
+            (Some(_), 2) => return Err(self.err(span, "`rotation`: a 2-D section turns about the out-of-plane axis; leave `axis` out")),
+            (None, _) => return Err(self.err(span, "`rotation`: give the `axis` direction, e.g. `axis = [0.0, 0.0, 1.0]`")),
+            (Some(a), _) => {
+                let norm = a.iter().map(|v| v * v).sum::<f64>().sqrt();
+                if a.len() != 3 || !norm.is_finite() || norm == 0.0 {
+                    return Err(self.err(span, format!("`rotation`: `axis` needs 3 finite numbers, not all zero, got {a:?}")));
+                }
+                [a[0] / norm, a[1] / norm, a[2] / norm]
+            }
+        };
+        let mut center = [0.0; 3];
+        center[..dim].copy_from_slice(&r.center);
+        let angle = r.angle.to_radians();
+        Ok(RotationMotion { set, rotation: axis.map(|v| v * angle), center, translation: translation.map(|v| v.unwrap_or(0.0)) })
     }
 
     pub(super) fn stage_index(&self, stages: &[Spanned<StageSpec>], name: &Option<Spanned<String>>) -> Result<usize, InputError> {
@@ -156,13 +198,25 @@ impl Builder<'_> {
             let spec = m.get_ref();
             let i = self.stage_index(&file.stage, &spec.stage)?;
             let set = self.node_set(mesh, "nodes", &spec.nodes)?;
-            let displacement = self.components(kind, &spec.displacement)?;
+            let displacement = spec.displacement.as_ref().map(|d| self.components(kind, d)).transpose()?;
             self.set_ramp(&mut stages[i], &set, &spec.ramp)?;
+            let held = match (&spec.rotation, displacement) {
+                (Some(_), _) => [true; 3],
+                (None, Some(d)) => d.map(|v| v.is_some()),
+                (None, None) => [false; 3],
+            };
             if let Some(at) = self.release_stage(&file.stage, &spec.release, i)? {
-                stages[at].releases.push(Support { set: set.clone(), components: displacement.map(|d| d.is_some()) });
+                stages[at].releases.push(Support { set: set.clone(), components: held });
                 loaded[at] = true;
             }
-            stages[i].motions.push(Motion { set, displacement });
+            match (&spec.rotation, displacement) {
+                (Some(turn), translation) => {
+                    let turn = self.rotation_motion(kind, set, turn, translation.unwrap_or([None; 3]))?;
+                    stages[i].rotations.push(turn);
+                }
+                (None, Some(displacement)) => stages[i].motions.push(Motion { set, displacement }),
+                (None, None) => return Err(self.err(m.span(), "a [[motion]] needs `displacement`, `rotation` or both")),
+            }
             loaded[i] = true;
         }
         for p in &file.pressure {

@@ -61,8 +61,8 @@ pub struct RunSummary {
     /// (`x` ... `rz`, rotations in degrees), `force_<c>` and `moment_<c>` of
     /// the rubber on it.
     pub inserts: BTreeMap<String, BTreeMap<String, f64>>,
-    /// Largest force of the stabilisation springs relative to the force
-    /// scale over the run (0 without stabilisation); keep it well below 1 %.
+    /// Largest force of the stabilization springs relative to the force
+    /// scale over the run (0 without stabilization); keep it well below 1 %.
     pub stabilization_share: f64,
     /// Peaks at the last converged increment.
     pub peaks: Option<Peaks>,

@@ -45,7 +45,7 @@ pub struct ResultWriter<'m> {
     last_peaks: Option<Peaks>,
     /// The first write failure; later writes are skipped.
     error: Option<String>,
-    /// Largest stabilisation share of any converged increment.
+    /// Largest stabilization share of any converged increment.
     stabilization_share: f64,
     /// The last converged increment, for the `running` and `interrupted` summaries.
     last_increment: Option<IncrementRef>,
@@ -189,7 +189,7 @@ impl<'m> ResultWriter<'m> {
         self.history.push(&r.stage_name, r.increment, r.load_factor, values, r.newton_iterations);
         if r.stabilization_share > 0.01 && self.stabilization_share <= 0.01 {
             let line = format!(
-                "warning: stage `{}` increment {}: the stabilisation springs carry {:.1} % of the force scale; lower `stabilization`",
+                "warning: stage `{}` increment {}: the stabilization springs carry {:.1} % of the force scale; lower `stabilization`",
                 r.stage_name,
                 r.increment,
                 100.0 * r.stabilization_share
@@ -237,14 +237,16 @@ impl<'m> ResultWriter<'m> {
         Ok(())
     }
 
-    /// Dimensions of every column; an applied motion is a travel (length).
+    /// Dimensions of every column; an applied motion is a travel (length) or a turn (degree).
     fn units(&self) -> BTreeMap<String, String> {
         let mut u = units(&self.job.history_columns());
         u.extend(self.job.insert_columns().into_iter().map(|(c, d)| (c, d.to_string())));
         for a in &self.job.applied {
-            if let AppliedSource::Travel { .. } = a.source {
-                u.insert(a.name.clone(), "length".into());
-            }
+            match a.source {
+                AppliedSource::Travel { .. } => u.insert(a.name.clone(), "length".into()),
+                AppliedSource::Angle { .. } => u.insert(a.name.clone(), "degree".into()),
+                _ => None,
+            };
         }
         u
     }
