@@ -13,16 +13,27 @@
 /// supports a subset.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub enum ElementKind {
+    /// 3-node triangle (2-D), linear.
     Tri3,
+    /// 6-node triangle (2-D), quadratic: corners then edge midpoints.
     Tri6,
+    /// 4-node quadrilateral (2-D), bilinear.
     Quad4,
+    /// 8-node serendipity quadrilateral (2-D): corners then edge midpoints.
     Quad8,
+    /// 9-node Lagrange quadrilateral (2-D): quad8 plus a centre node.
     Quad9,
+    /// 4-node tetrahedron, linear.
     Tet4,
+    /// 10-node tetrahedron, quadratic: corners then edge midpoints.
     Tet10,
+    /// 6-node wedge (triangular prism): base triangle 0-1-2, top triangle 3-4-5.
     Wedge6,
+    /// 8-node hexahedron, trilinear.
     Hex8,
+    /// 20-node serendipity hexahedron: corners then edge midpoints.
     Hex20,
+    /// 27-node Lagrange hexahedron: hex20 plus six face centres and a body centre.
     Hex27,
 }
 

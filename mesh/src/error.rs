@@ -41,25 +41,53 @@ impl fmt::Display for Location {
 /// Everything that can go wrong when building, reading or writing a mesh.
 #[derive(Debug, thiserror::Error)]
 pub enum MeshError {
+    /// The file could not be opened or read.
     #[error("{path}: cannot read: {source}")]
     Io {
+        /// The file as given by the user.
         path: PathBuf,
+        /// What the operating system reported.
         #[source]
         source: std::io::Error,
     },
     /// A malformed or unsupported file.
     #[error("{}: {}{message}", .path.display(), .location.prefix())]
-    Parse { path: PathBuf, location: Location, message: String },
+    Parse {
+        /// The file being read.
+        path: PathBuf,
+        /// Line, byte offset or cell where reading stopped.
+        location: Location,
+        /// What is wrong there, in words for the user.
+        message: String,
+    },
+    /// The file's extension is none of `.vtu`, `.vtk`, `.msh`.
     #[error("{path}: unknown mesh file type (expected .vtu, .vtk or .msh)")]
-    UnknownFormat { path: PathBuf },
+    UnknownFormat {
+        /// The file whose extension was not recognised.
+        path: PathBuf,
+    },
+    /// Writing an output file failed.
     #[error("{path}: cannot write: {message}")]
-    Write { path: PathBuf, message: String },
+    Write {
+        /// The file that could not be written.
+        path: PathBuf,
+        /// The underlying I/O or encoder error, in words.
+        message: String,
+    },
     /// A generator spec that does not parse (the message names line and key).
     #[error("mesh spec: {message}")]
-    Spec { message: String },
+    Spec {
+        /// The TOML parser's message, with line and key.
+        message: String,
+    },
     /// A generator or operation was given an impossible value.
     #[error("invalid `{key}`: {message}")]
-    InvalidParameter { key: String, message: String },
+    InvalidParameter {
+        /// The parameter's name as spelt in the spec (e.g. `divisions[1]`).
+        key: String,
+        /// Why the value is refused.
+        message: String,
+    },
 }
 
 impl MeshError {

@@ -17,9 +17,11 @@ use crate::element::ElementKind;
 use crate::error::MeshError;
 use crate::model::Mesh;
 
-/// Prefixes of the set arrays.
+/// Prefix of the node-set arrays (point data, 1 for members, 0 otherwise).
 pub const NODE_SET_PREFIX: &str = "set_node_";
+/// Prefix of the element-set arrays (cell data, 1 for members, 0 otherwise).
 pub const ELEMENT_SET_PREFIX: &str = "set_element_";
+/// Prefix of the side-set arrays (cell data, bit `local` set for each member side of the cell).
 pub const SIDE_SET_PREFIX: &str = "set_side_";
 
 /// VTK cell type of an element kind (node orders agree, see [`crate::element`]).

@@ -53,6 +53,7 @@
 //! - [`select`]: node and side sets from geometry, with set algebra.
 //! - [`shape`], [`quality`], [`cleanup`]: Jacobians, quality report, repairs.
 //! - [`summary`], [`command`]: what `olli mesh info / convert / generate` print and do.
+#![warn(missing_docs)]
 
 pub mod cleanup;
 pub mod command;

@@ -14,7 +14,9 @@ use crate::element::ElementKind;
 /// on that side (see [`Mesh::side_normal`]).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub struct Side {
+    /// Index of the element in the mesh.
     pub element: usize,
+    /// Local side number, an index into the kind's [`ElementKind::sides`] table.
     pub local: u8,
 }
 
@@ -64,10 +66,12 @@ impl Mesh {
         self.kinds.len() - 1
     }
 
+    /// Number of nodes.
     pub fn node_count(&self) -> usize {
         self.nodes.len()
     }
 
+    /// Number of elements.
     pub fn element_count(&self) -> usize {
         self.kinds.len()
     }

@@ -42,29 +42,40 @@ impl From<Vec3> for Vec<f64> {
 pub enum Selection {
     /// Inside the axis-aligned box (boundary included).
     Box {
+        /// Corner with the smallest coordinates.
         min: Vec3,
+        /// Corner with the largest coordinates.
         max: Vec3,
     },
     /// On the plane through `point` with normal `normal`. In 2-D a plane with
     /// normal in the x–y plane is a line.
     Plane {
+        /// Any point of the plane.
         point: Vec3,
+        /// Normal of the plane (need not be of unit length).
         normal: Vec3,
     },
     /// On the straight line through `point` along `direction`.
     Line {
+        /// Any point of the line.
         point: Vec3,
+        /// Direction of the line (need not be of unit length).
         direction: Vec3,
     },
     /// On the cylinder of `radius` around the axis through `point` along `axis`.
     Cylinder {
+        /// Any point of the axis.
         point: Vec3,
+        /// Direction of the axis (need not be of unit length).
         axis: Vec3,
+        /// Radius of the cylinder, in mesh length units.
         radius: f64,
     },
     /// On the circle of `radius` around `center` in the x–y plane (2-D).
     Circle {
+        /// Centre of the circle (its z is ignored).
         center: Vec3,
+        /// Radius of the circle, in mesh length units.
         radius: f64,
     },
     /// The single node nearest to the point (for sides: the boundary side
@@ -72,7 +83,9 @@ pub enum Selection {
     Nearest(Vec3),
     /// A named set of the mesh (node, side or element set, see [`Mesh::nodes_of_set`]).
     Set(String),
+    /// Everything any of the selections picks.
     Union(Vec<Selection>),
+    /// Only what every one of the selections picks.
     Intersection(Vec<Selection>),
     /// The first selection minus all the others.
     Difference(Vec<Selection>),

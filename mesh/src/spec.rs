@@ -30,24 +30,37 @@ use crate::model::Mesh;
 #[derive(Debug, Clone, PartialEq, serde::Deserialize, serde::Serialize)]
 #[serde(tag = "generate", rename_all = "kebab-case")]
 pub enum GeneratorSpec {
+    /// A 2-D rectangle of quadrilaterals or triangles.
     Rectangle(RectangleParams),
+    /// A 3-D block of hexahedra or wedges.
     Block(BlockParams),
+    /// A 2-D annulus (ring) section, e.g. a bushing in the r–z or x–y plane.
     Annulus(AnnulusParams),
+    /// A 3-D hollow cylinder: the annulus extruded along its axis.
     HollowCylinder(AnnulusParams),
+    /// A 2-D disc (full circle), e.g. a mount disc seen from above.
     Disc(CircleParams),
+    /// A 2-D circular cord section, e.g. an O-ring cross-section.
     Cord(CircleParams),
+    /// A 3-D solid cylinder: the disc extruded along its axis.
     SolidCylinder(CircleParams),
     /// A 2-D section extruded along z by `length` in `layers` layers (caps `start`, `end`).
     Extrude {
+        /// The 2-D section to extrude (a 2-D generator).
         section: Box<GeneratorSpec>,
+        /// Extruded length along z, in mesh length units.
         length: f64,
+        /// Number of element layers along z.
         layers: usize,
     },
     /// An r–z section swept by `angle` degrees (default 360) in `divisions` layers.
     Sweep {
+        /// The r–z section to sweep (x = r, y = z; a 2-D generator).
         section: Box<GeneratorSpec>,
+        /// Swept angle in degrees, default 360 (a closed ring).
         #[serde(default = "full_turn")]
         angle: f64,
+        /// Number of element layers around the axis.
         divisions: usize,
     },
 }

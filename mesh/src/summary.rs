@@ -11,15 +11,23 @@ use crate::quality::{check, QualityReport, QualitySettings};
 /// Counts, extent and quality of a mesh.
 #[derive(Debug, Clone, PartialEq)]
 pub struct MeshSummary {
+    /// Spatial dimension, 2 or 3.
     pub dimension: usize,
+    /// Number of nodes.
     pub nodes: usize,
+    /// Number of elements of all kinds.
     pub elements: usize,
     /// Elements per kind, in [`ElementKind::ALL`] order, kinds present only.
     pub per_kind: Vec<(ElementKind, usize)>,
+    /// Node sets by name with their node counts.
     pub node_sets: Vec<(String, usize)>,
+    /// Element sets by name with their element counts.
     pub element_sets: Vec<(String, usize)>,
+    /// Side sets by name with their side counts.
     pub side_sets: Vec<(String, usize)>,
+    /// Axis-aligned bounding box `(min, max)` of the nodes, in mesh length units.
     pub bounding_box: ([f64; 3], [f64; 3]),
+    /// Quality report with the default [`QualitySettings`].
     pub quality: QualityReport,
     /// Kinds of the worst elements, matching `quality.worst`.
     pub worst_kinds: Vec<ElementKind>,

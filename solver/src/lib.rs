@@ -27,6 +27,7 @@
 //! let solution = solve(&model, &mut Quiet).unwrap();
 //! let force = solution.last().unwrap().reactions["top"];
 //! ```
+#![warn(missing_docs)]
 
 pub mod assembly;
 pub mod contact;

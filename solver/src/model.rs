@@ -20,10 +20,13 @@ pub use crate::rigid_surface::Shape as RigidShape;
 /// One material region.
 #[derive(Debug, Clone)]
 pub struct Region {
+    /// Name of the region (the mesh's element set).
     pub name: String,
     /// Element indices of the region (each element in exactly one region).
     pub elements: Vec<usize>,
+    /// The compound the region is made of.
     pub material: Arc<Material>,
+    /// Mixed displacement–pressure or displacement-only elements.
     pub formulation: Formulation,
 }
 
@@ -40,6 +43,7 @@ pub struct Support {
 /// face moving with a rigid plate.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Motion {
+    /// Node set (or side/element set, whose nodes are used).
     pub set: String,
     /// Displacement (length units) reached at the end of the stage; `None`
     /// leaves the component free.
@@ -54,6 +58,7 @@ pub struct Motion {
 /// 2-D analyses turn about the out-of-plane axis.
 #[derive(Debug, Clone, PartialEq)]
 pub struct RotationMotion {
+    /// Node set (or side/element set, whose nodes are used).
     pub set: String,
     /// Rotation vector made during the stage: unit axis times angle (radians).
     pub rotation: [f64; 3],
@@ -66,6 +71,7 @@ pub struct RotationMotion {
 /// Follower pressure on a side set, positive pushing on the surface.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Pressure {
+    /// Side set the pressure acts on.
     pub set: String,
     /// Pressure (stress units) reached at the end of the stage.
     pub value: f64,
@@ -89,7 +95,9 @@ pub struct Fluid {
 /// ramped like other loads (ramp keyed by the fluid's name).
 #[derive(Debug, Clone, PartialEq)]
 pub struct FluidPressure {
+    /// Name of the [`Fluid`].
     pub fluid: String,
+    /// Pressure reached at the end of the stage (stress units).
     pub value: f64,
 }
 
@@ -98,7 +106,9 @@ pub struct FluidPressure {
 /// equally among the nodes. Axisymmetric: the force over the full 2π.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Force {
+    /// Node or side set the force acts on.
     pub set: String,
+    /// Total force reached at the end of the stage (force units), x, y, z.
     pub total: [f64; 3],
 }
 
@@ -106,7 +116,9 @@ pub struct Force {
 /// shaft or a bore. Its motion is given per stage by [`RigidMotion`].
 #[derive(Debug, Clone, PartialEq)]
 pub struct RigidBody {
+    /// Name in the results (`rigid_<name>_...`).
     pub name: String,
+    /// Geometry of the surface in its unmoved position.
     pub shape: RigidShape,
     /// Side set of the rubber that may touch it.
     pub sides: String,
@@ -191,6 +203,7 @@ pub enum InsertDrive {
 pub struct InsertStage {
     /// Name of the [`Insert`].
     pub insert: String,
+    /// Drive of each component x, y, z, rx, ry, rz.
     pub components: [Option<InsertDrive>; 6],
 }
 
@@ -375,9 +388,13 @@ pub const BODY_FORCE_RAMP: &str = "body_force";
 /// converged state of the previous one.
 #[derive(Debug, Clone, Default)]
 pub struct Stage {
+    /// Stage name (used in results and to key ramps).
     pub name: String,
+    /// Increment sizes and growth: first, smallest and largest step of the stage.
     pub controls: IncrementControls,
+    /// Components held at zero from this stage on.
     pub supports: Vec<Support>,
+    /// Prescribed displacements reached at the end of the stage.
     pub motions: Vec<Motion>,
     /// Node sets turned as rigid bodies in this stage (ramped by the set's name in `ramps`).
     pub rotations: Vec<RotationMotion>,
@@ -385,7 +402,9 @@ pub struct Stage {
     /// the start of this stage: their reaction at the last converged
     /// increment is applied as a load that ramps linearly to zero over the stage.
     pub releases: Vec<Support>,
+    /// Follower pressures reached at the end of the stage.
     pub pressures: Vec<Pressure>,
+    /// Total forces reached at the end of the stage.
     pub forces: Vec<Force>,
     /// Fluid pressures reached at the end of the stage (others are held).
     pub fluid_pressures: Vec<FluidPressure>,
@@ -443,9 +462,13 @@ impl Default for OutputSettings {
 /// A complete problem.
 #[derive(Debug, Clone)]
 pub struct Model {
+    /// The mesh, with the sets the stages name.
     pub mesh: Mesh,
+    /// 3-D solid, axisymmetric or plane strain.
     pub analysis: Analysis,
+    /// Material regions; every element in exactly one.
     pub regions: Vec<Region>,
+    /// Load stages, run in order.
     pub stages: Vec<Stage>,
     /// Rigid surfaces in contact with the rubber.
     pub rigid: Vec<RigidBody>,
@@ -456,7 +479,9 @@ pub struct Model {
     /// Sets whose reaction moment is reported, with the point it is taken
     /// about (length units; 2-D: the moment about the out-of-plane axis).
     pub moment_points: std::collections::BTreeMap<String, [f64; 3]>,
+    /// Linear solver settings.
     pub linear: LinearSettings,
+    /// Which fields each converged increment keeps.
     pub output: OutputSettings,
 }
 

@@ -17,10 +17,12 @@ pub use crate::load::fluid::FluidSummary;
 pub struct PointFields {
     /// Start of each element's points in `states` (length elements + 1).
     pub offsets: Vec<usize>,
+    /// State of every integration point, element after element.
     pub states: Vec<PointState>,
 }
 
 impl PointFields {
+    /// The integration-point states of element `e`.
     pub fn element(&self, e: usize) -> &[PointState] {
         &self.states[self.offsets[e]..self.offsets[e + 1]]
     }
@@ -48,6 +50,7 @@ pub struct NodalFields {
 pub struct IncrementResult {
     /// Index of the stage in the model.
     pub stage: usize,
+    /// Name of the stage.
     pub stage_name: String,
     /// Converged increments of this stage so far (1-based).
     pub increment: usize,
@@ -73,8 +76,11 @@ pub struct IncrementResult {
     pub residual_history: Vec<f64>,
     /// Total strain energy (axisymmetric: full 2π; plane strain: thickness).
     pub strain_energy: f64,
+    /// Whether the model is axisymmetric (forces and energy over the full 2π).
     pub axisymmetric: bool,
+    /// Integration-point fields (None when [`crate::model::OutputSettings::point_fields`] is off).
     pub points: Option<PointFields>,
+    /// Nodal averages (None when [`crate::model::OutputSettings::nodal_fields`] is off).
     pub nodal: Option<NodalFields>,
     /// Stabilization springs' force relative to the problem's force scale
     /// (0 without stabilization); keep it well below 1 %.
@@ -96,6 +102,7 @@ pub struct IncrementResult {
 /// An extreme value at one integration point, and where it is.
 #[derive(Debug, Clone, Copy, PartialEq, Default)]
 pub struct PointPeak {
+    /// The extreme value (log strain, stress units, or volume ratio J).
     pub value: f64,
     /// Element index (0-based, as in messages and the `.vtu` frames).
     pub element: usize,
@@ -177,11 +184,15 @@ pub enum Termination {
 pub struct SolveStats {
     /// Element loops (force and tangent, including line-search evaluations).
     pub assembly_time: f64,
+    /// Number of element loops.
     pub assemblies: usize,
     /// Sparse-pattern and scatter-map construction.
     pub pattern_time: f64,
+    /// Newton iterations over the run.
     pub newton_iterations: usize,
+    /// Converged increments over the run.
     pub increments: usize,
+    /// Increments cut back.
     pub cutbacks: usize,
     /// Linear solver statistics, summed over the patterns used.
     pub linear: LinearStats,
@@ -190,16 +201,21 @@ pub struct SolveStats {
 /// Everything a solve produced.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Solution {
+    /// The converged increments, in order.
     pub increments: Vec<IncrementResult>,
+    /// How the run ended.
     pub termination: Termination,
+    /// Counts and timings.
     pub stats: SolveStats,
 }
 
 impl Solution {
+    /// Whether every stage reached its end.
     pub fn completed(&self) -> bool {
         self.termination == Termination::Completed
     }
 
+    /// The last converged increment, if any.
     pub fn last(&self) -> Option<&IncrementResult> {
         self.increments.last()
     }

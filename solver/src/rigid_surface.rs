@@ -31,33 +31,76 @@ pub struct Projection {
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum Piece2 {
     /// Segment from `a` to `b`; the rubber is on its left (looking from a to b).
-    Segment { a: [f64; 2], b: [f64; 2] },
+    Segment {
+        /// Start point (length units).
+        a: [f64; 2],
+        /// End point (length units).
+        b: [f64; 2],
+    },
     /// Arc of a circle from angle `start` to `end` (radians, counter-clockwise
     /// when `end > start`); the rubber is on the left of the travel direction.
-    Arc { center: [f64; 2], radius: f64, start: f64, end: f64 },
+    Arc {
+        /// Centre of the circle (length units).
+        center: [f64; 2],
+        /// Radius (length units).
+        radius: f64,
+        /// Start angle (radians from +x).
+        start: f64,
+        /// End angle (radians from +x).
+        end: f64,
+    },
 }
 
 /// The geometry of a rigid surface in its own (unmoved) frame.
 #[derive(Debug, Clone, PartialEq)]
 pub enum Shape {
     /// An infinite line in 2-D through `point` with direction `direction`; the rubber is on its left.
-    Line { point: [f64; 2], direction: [f64; 2] },
+    Line {
+        /// Any point on the line (length units).
+        point: [f64; 2],
+        /// Direction of travel; the rubber is on its left.
+        direction: [f64; 2],
+    },
     /// A chain of segments and arcs in 2-D; the rubber is on its left.
     Profile(Vec<Piece2>),
     /// A plane in 3-D through `point`; `normal` points to the rubber.
-    Plane { point: [f64; 3], normal: [f64; 3] },
+    Plane {
+        /// Any point on the plane (length units).
+        point: [f64; 3],
+        /// Normal pointing to the rubber (any non-zero length).
+        normal: [f64; 3],
+    },
     /// A circular cylinder in 3-D: axis through `point` along `axis`. With
     /// `rubber_outside` the rubber is outside it (a shaft), otherwise inside (a bore).
-    Cylinder { point: [f64; 3], axis: [f64; 3], radius: f64, rubber_outside: bool },
+    Cylinder {
+        /// Any point on the axis (length units).
+        point: [f64; 3],
+        /// Direction of the axis (any non-zero length).
+        axis: [f64; 3],
+        /// Radius (length units).
+        radius: f64,
+        /// Rubber outside the surface (shaft, ball) rather than inside (bore, cup).
+        rubber_outside: bool,
+    },
     /// A sphere in 3-D, rubber outside or inside.
-    Sphere { center: [f64; 3], radius: f64, rubber_outside: bool },
+    Sphere {
+        /// Centre (length units).
+        center: [f64; 3],
+        /// Radius (length units).
+        radius: f64,
+        /// Rubber outside the surface (shaft, ball) rather than inside (bore, cup).
+        rubber_outside: bool,
+    },
 }
 
 /// Rigid motion of a surface at some load factor: `x ↦ R (x − c) + c + t`.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Placement {
+    /// Translation t (length units).
     pub translation: Vector3<f64>,
+    /// Rotation R about the centre.
     pub rotation: Rotation3<f64>,
+    /// Centre of rotation c (length units).
     pub center: Vector3<f64>,
 }
 
@@ -280,7 +323,9 @@ impl Shape {
 /// A named rigid surface with its placement at the current load factor.
 #[derive(Debug, Clone, PartialEq)]
 pub struct RigidSurface {
+    /// Geometry in the surface's own frame.
     pub shape: Shape,
+    /// Where the surface is at the current load factor.
     pub placement: Placement,
 }
 

@@ -55,11 +55,17 @@ impl Order {
 #[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Deserialize, serde::Serialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum Face {
+    /// The face at minimum x.
     Left,
+    /// The face at maximum x.
     Right,
+    /// The face at minimum y of a block (3-D only).
     Front,
+    /// The face at maximum y of a block (3-D only).
     Back,
+    /// The face at minimum y of a rectangle, minimum z of a block.
     Bottom,
+    /// The face at maximum y of a rectangle, maximum z of a block.
     Top,
 }
 

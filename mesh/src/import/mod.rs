@@ -21,6 +21,7 @@ use crate::model::Mesh;
 /// A mesh read from a file, with notes about repairs made on the way.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Imported {
+    /// The mesh as read, after the repairs listed in `notes`.
     pub mesh: Mesh,
     /// Human-readable remarks (reoriented elements, skipped cells, ...).
     pub notes: Vec<String>,
@@ -32,8 +33,11 @@ pub struct Imported {
 /// A named array with `components` values per node, in node order.
 #[derive(Debug, Clone, PartialEq)]
 pub struct PointArray {
+    /// The array's name in the file.
     pub name: String,
+    /// Values per node (1 for a scalar, 3 for a vector, ...).
     pub components: usize,
+    /// `components` values per node, node after node.
     pub values: Vec<f64>,
 }
 

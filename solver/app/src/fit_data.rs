@@ -24,14 +24,18 @@ const MODE_NAMES: &[&str] = &["uniaxial", "equibiaxial", "planar", "simple-shear
 #[derive(Debug, Clone, PartialEq, Error)]
 #[error("{file}{}: {message}", line.map(|l| format!(" line {l}")).unwrap_or_default())]
 pub struct DataError {
+    /// The data file as given on the command line.
     pub file: String,
+    /// 1-based line of the file, when the problem is on one line.
     pub line: Option<usize>,
+    /// What is wrong, in words for the user.
     pub message: String,
 }
 
 /// One measured point with where it came from.
 #[derive(Debug, Clone, PartialEq)]
 pub struct SourcedPoint {
+    /// The measured point (test mode, stretch, nominal stress).
     pub point: DataPoint,
     /// File as given on the command line.
     pub file: String,

@@ -7,6 +7,7 @@
 //! this crate.
 //! Nothing in `olli-solver` depends on it: a library user who only solves a
 //! `Model` compiles no command-line parser, progress bar or VTK writer.
+#![warn(missing_docs)]
 
 pub mod fit_data;
 pub mod job;

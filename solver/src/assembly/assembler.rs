@@ -54,6 +54,7 @@ pub struct Outputs<'a> {
 }
 
 impl Assembler {
+    /// An assembler with empty buffers, bound to no pattern yet.
     pub fn new() -> Self {
         Assembler {
             kbuf: Vec::new(),

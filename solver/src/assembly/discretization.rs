@@ -10,6 +10,7 @@ use crate::element::{Analysis, Shape};
 use crate::model::Model;
 use crate::shape::{ShapeKind, MAX_NODES};
 
+/// The analysis kind in words, for messages (`3-D solid`, `axisymmetric`, `plane strain`).
 pub fn analysis_name(a: Analysis) -> &'static str {
     match a {
         Analysis::Solid3d => "3-D solid",
@@ -36,15 +37,20 @@ fn element_hint(kind: ElementKind, dim: usize) -> &'static str {
 /// Elements of a model, ready for assembly.
 #[derive(Debug)]
 pub struct Discretization<'m> {
+    /// The model being discretized.
     pub model: &'m Model,
+    /// The element shape of each mesh element.
     pub shapes: Vec<Shape>,
+    /// Index into `model.regions` of each element.
     pub region_of: Vec<usize>,
+    /// Displacement components per node: 3 in 3-D, 2 in 2-D.
     pub dim: usize,
     /// Largest element degree-of-freedom count in the mesh (sizes buffers).
     pub max_dofs: usize,
 }
 
 impl<'m> Discretization<'m> {
+    /// Checks the mesh against the analysis (dimension, thickness, element kinds) and maps each element to its shape and region.
     pub fn new(model: &'m Model) -> Result<Self, AssemblyError> {
         let mesh: &Mesh = &model.mesh;
         let dim = match model.analysis {
@@ -97,10 +103,12 @@ impl<'m> Discretization<'m> {
         Ok(Discretization { model, shapes, region_of, dim, max_dofs })
     }
 
+    /// The model's mesh.
     pub fn mesh(&self) -> &'m Mesh {
         &self.model.mesh
     }
 
+    /// What the element kernel needs for element `e`: shape, analysis, formulation, material.
     pub fn context(&self, e: usize) -> ElementContext<'m> {
         let region = &self.model.regions[self.region_of[e]];
         ElementContext { shape: self.shapes[e], analysis: self.model.analysis, formulation: region.formulation, material: &region.material }

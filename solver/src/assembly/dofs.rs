@@ -4,8 +4,10 @@
 /// Marks a prescribed dof in [`DofMap::eq`].
 pub const NONE: usize = usize::MAX;
 
+/// Numbering of the global dofs (node × component) into equations.
 #[derive(Debug, Clone, PartialEq)]
 pub struct DofMap {
+    /// Displacement components per node.
     pub dim: usize,
     /// Equation number of each global dof, or [`NONE`] if prescribed.
     pub eq: Vec<usize>,
@@ -32,6 +34,7 @@ impl DofMap {
         DofMap { dim, eq, n_free }
     }
 
+    /// Whether the global dof is an unknown (not prescribed).
     pub fn is_free(&self, dof: usize) -> bool {
         self.eq[dof] != NONE
     }

@@ -11,11 +11,14 @@ use crate::element::MAX_DOFS;
 /// Marks an element matrix entry that is not stored (upper triangle or a prescribed dof).
 pub const SKIP: u32 = u32::MAX;
 
+/// Sparsity pattern of the tangent (compressed columns) with each element's scatter map.
 #[derive(Debug, Clone)]
 pub struct Pattern {
     /// Number of equations.
     pub n: usize,
+    /// Start of each column in `row_idx` (length `n + 1`).
     pub col_ptr: Vec<usize>,
+    /// Row index of each stored entry, sorted within a column.
     pub row_idx: Vec<usize>,
     /// For each element, `dofs²` storage slots (column-major over local dofs).
     pub scatter: Vec<u32>,
@@ -26,6 +29,7 @@ pub struct Pattern {
 }
 
 impl Pattern {
+    /// Builds the pattern and the scatter maps of every element of `disc`.
     pub fn build(disc: &Discretization, dofs: &DofMap) -> Result<Self, AssemblyError> {
         let mesh = disc.mesh();
         let dim = dofs.dim;
@@ -102,6 +106,7 @@ impl Pattern {
         find(&self.col_ptr, &self.row_idx, row, col)
     }
 
+    /// Number of stored entries.
     pub fn nnz(&self) -> usize {
         self.row_idx.len()
     }

@@ -63,14 +63,18 @@ struct Body {
 /// Per-rigid-body figures of one converged increment.
 #[derive(Debug, Clone, PartialEq)]
 pub struct ContactSummary {
+    /// Name of the rigid body.
     pub name: String,
     /// Total force of the rubber on the body (axisymmetric: over 2π).
     pub force: [f64; 3],
     /// Contact width (2-D: length of the touching band; 3-D: largest
     /// distance between touching nodes).
     pub contact_width: f64,
+    /// Largest contact pressure over the touching nodes (stress units).
     pub peak_pressure: f64,
+    /// Largest penetration of a node into the surface (length units, ≥ 0).
     pub max_penetration: f64,
+    /// Number of nodes in contact (stick or slip).
     pub touching_nodes: usize,
 }
 
@@ -165,10 +169,12 @@ impl ActiveContacts {
         Ok(ActiveContacts { bodies, dim: disc.dim })
     }
 
+    /// Whether the model has no rigid surface.
     pub fn is_empty(&self) -> bool {
         self.bodies.is_empty()
     }
 
+    /// Whether any rigid surface has a non-zero friction coefficient.
     pub fn has_friction(&self) -> bool {
         self.bodies.iter().any(|b| b.def.friction > 0.0)
     }

@@ -51,9 +51,12 @@ pub fn smoothed_pressure(x: f64, delta: f64) -> (f64, f64) {
 /// Whether the node touches, and how.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
 pub enum Status {
+    /// Not touching: no pressure, no friction (default).
     #[default]
     Open,
+    /// Touching without sliding: the tangential force is below the friction limit.
     Stick,
+    /// Touching and sliding: the tangential force equals the friction limit.
     Slip,
 }
 
@@ -70,6 +73,7 @@ pub struct NodeState {
 /// What the law gives at the current iterate.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct NodeResponse {
+    /// Open, stick or slip.
     pub status: Status,
     /// Contact pressure p (stress units, ≥ 0).
     pub pressure: f64,

@@ -27,7 +27,10 @@ pub enum AreaMeasure {
     /// 3-D faces: their area.
     Solid,
     /// Plane strain: edge length × thickness.
-    PlaneStrain { thickness: f64 },
+    PlaneStrain {
+        /// Out-of-plane thickness (length units).
+        thickness: f64,
+    },
     /// Axisymmetric: edge length × 2π r (the full ring).
     Axisymmetric,
 }
@@ -45,7 +48,9 @@ pub struct ContactPair {
     pub sizes: Vec<f64>,
     /// Normal penalty of each node (stress / length); the tangential penalty equals it.
     pub penalties: Vec<f64>,
+    /// Penalty, augmentation and friction settings of the pair.
     pub params: ContactParameters,
+    /// History of each node (same order as `nodes`).
     pub states: Vec<NodeState>,
     measure: AreaMeasure,
     /// Sides around each node (indices into `sides`).

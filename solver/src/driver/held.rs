@@ -22,9 +22,11 @@ use crate::element::Analysis;
 pub struct Unheld {
     /// Index and name of the stage.
     pub stage: usize,
+    /// Name of the stage.
     pub stage_name: String,
     /// The part: its number of nodes and one node of it (0-based).
     pub nodes: usize,
+    /// One node of the part (0-based).
     pub first_node: usize,
     /// Each free motion in words, e.g. "translation along y".
     pub free: Vec<String>,

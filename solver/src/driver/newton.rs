@@ -36,7 +36,16 @@ use crate::results::SolveStats;
 /// Result of one increment attempt.
 #[derive(Debug)]
 pub enum IncrementOutcome {
-    Converged { iterations: usize, residuals: Vec<f64>, energy: f64 },
+    /// The increment converged.
+    Converged {
+        /// Newton iterations it took.
+        iterations: usize,
+        /// Relative out-of-balance force after each correction.
+        residuals: Vec<f64>,
+        /// Total strain energy at the converged state.
+        energy: f64,
+    },
+    /// The increment failed; the driver cuts it back.
     Failed(SolveError),
 }
 
@@ -115,6 +124,7 @@ pub fn force_unit(disc: &Discretization) -> f64 {
 }
 
 impl<'a> NewtonContext<'a> {
+    /// Binds the solver state of one stage (discretization, dofs, loads, contact) for its increments.
     #[allow(clippy::too_many_arguments)]
     pub fn new(
         disc: &'a Discretization<'a>,

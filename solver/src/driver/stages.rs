@@ -35,9 +35,13 @@ pub fn arc_position(m: &RotationMotion, a: f64, start: [f64; 3]) -> [f64; 3] {
 pub struct PressureProgram {
     /// The side set's name.
     pub name: String,
+    /// The loaded sides.
     pub sides: Vec<Side>,
+    /// Pressure at the stage start (stress units).
     pub start: f64,
+    /// Pressure at the stage end (stress units).
     pub end: f64,
+    /// How the pressure goes from `start` to `end` over the stage.
     pub ramp: Ramp,
 }
 
@@ -55,7 +59,9 @@ pub struct StageProgram {
     pub arc_of_dof: Vec<u32>,
     /// The rigid turns of this stage.
     pub arcs: Vec<RotationMotion>,
+    /// The ramps of the stage; index 0 is linear.
     pub ramps: Vec<Ramp>,
+    /// The pressurised side sets.
     pub pressures: Vec<PressureProgram>,
     /// Dead load at the start of the stage.
     pub dead_start: Vec<f64>,

@@ -16,6 +16,7 @@ pub type Shape = ShapeKind;
 /// Geometry of one integration point (entries beyond the node count are zero).
 #[derive(Debug, Clone, Copy)]
 pub struct PointGeometry {
+    /// Shape function values N_a at the point.
     pub n: [f64; MAX_NODES],
     /// ∂N_a/∂X (third entry zero in 2-D).
     pub g: [[f64; 3]; MAX_NODES],

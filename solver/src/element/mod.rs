@@ -51,7 +51,10 @@ pub enum Analysis {
     /// reactions are for the full 2π revolution.
     Axisymmetric,
     /// Plane strain x–y section of the given out-of-plane thickness (length units), quad4.
-    PlaneStrain { thickness: f64 },
+    PlaneStrain {
+        /// Out-of-plane thickness (length units), > 0.
+        thickness: f64,
+    },
 }
 
 /// How the volumetric response is discretised.
@@ -70,11 +73,24 @@ pub enum Formulation {
 pub enum ElementError {
     /// det F ≤ 0 (or the mean dilatation θ ≤ 0) at an integration point.
     #[error("inverted at integration point {point}: J = {j:.3e}")]
-    Inverted { point: usize, j: f64 },
+    Inverted {
+        /// Index of the integration point (0-based).
+        point: usize,
+        /// det F (or θ) there.
+        j: f64,
+    },
     /// The reference element itself has a non-positive Jacobian (bad mesh).
     #[error("non-positive reference Jacobian {det:.3e} at integration point {point}")]
-    BadReference { point: usize, det: f64 },
+    BadReference {
+        /// Index of the integration point (0-based).
+        point: usize,
+        /// The reference Jacobian determinant there.
+        det: f64,
+    },
     /// A side shape (line) was passed where an element is needed.
     #[error("{shape} is a side shape, not an element")]
-    NotAnElement { shape: &'static str },
+    NotAnElement {
+        /// Name of the side shape.
+        shape: &'static str,
+    },
 }

@@ -69,7 +69,9 @@ impl PressureSpace {
 /// element in the reference configuration.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct PressureBasis {
+    /// Which pressure field the element carries.
     pub space: PressureSpace,
+    /// Spatial dimension, 2 or 3.
     pub dim: usize,
     center: [f64; 3],
     inverse_size: f64,

@@ -94,12 +94,21 @@ pub enum FitError {
     NoShearData,
     /// Fewer points than constants.
     #[error("{model}: {points} data points cannot determine {constants} constants")]
-    TooFewPoints { model: String, points: usize, constants: usize },
+    TooFewPoints {
+        /// The model being fitted.
+        model: String,
+        /// Data points given to the fit.
+        points: usize,
+        /// Constants of the model.
+        constants: usize,
+    },
     /// The model cannot be evaluated at the data from any starting point
     /// (e.g. the data stretch beyond every start's locking stretch).
     #[error("{model}: no starting point reaches all the data ({source})")]
     NoStart {
+        /// The model being fitted.
         model: String,
+        /// The failure at the last start tried.
         #[source]
         source: MaterialError,
     },
@@ -107,7 +116,9 @@ pub enum FitError {
     /// c10 ≤ 0): the data do not support this model.
     #[error("{model}: the best fit is not an admissible material: {source}")]
     Inadmissible {
+        /// The model being fitted.
         model: String,
+        /// The range the best constants violate.
         #[source]
         source: MaterialError,
     },

@@ -22,10 +22,15 @@ use crate::material::{IsochoricModel, MaterialError};
 /// A model as fitted: its registry name and the number of Ogden terms.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum FitModel {
+    /// Neo-Hookean: μ.
     NeoHookean,
+    /// Mooney–Rivlin: C10, C01.
     MooneyRivlin,
+    /// Yeoh: C10, C20, C30.
     Yeoh,
+    /// Eight-chain (Arruda–Boyce): μ and locking stretch.
     EightChain,
+    /// Gent: μ and extensibility limit.
     Gent,
     /// Ogden with this many terms (1 to [`MAX_OGDEN_TERMS`]).
     Ogden(usize),

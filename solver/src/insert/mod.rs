@@ -68,6 +68,7 @@ pub struct Body {
 /// What one insert reports for a converged increment.
 #[derive(Debug, Clone, PartialEq)]
 pub struct InsertResult {
+    /// Name of the insert.
     pub name: String,
     /// Translation of the reference point (length units).
     pub displacement: [f64; 3],
@@ -82,6 +83,7 @@ pub struct InsertResult {
 /// Every insert of a model, and the dofs they own.
 #[derive(Debug, Clone, Default)]
 pub struct Inserts {
+    /// The inserts, in model order.
     pub bodies: Vec<Body>,
     dim: usize,
     ndof: usize,
@@ -178,6 +180,7 @@ impl Inserts {
         Ok(Inserts { bodies, dim, ndof: mesh.node_count() * dim })
     }
 
+    /// Whether the model has no insert.
     pub fn is_empty(&self) -> bool {
         self.bodies.is_empty()
     }

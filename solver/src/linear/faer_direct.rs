@@ -50,6 +50,7 @@ pub struct FaerDirect {
     par: Par,
     lu: Option<LuFallback>,
     last: Option<FactorKind>,
+    /// Counters and timings of this solver.
     pub stats: LinearStats,
 }
 

@@ -125,6 +125,7 @@ pub fn analyse(pattern: &SymmetricPattern, settings: &LinearSettings) -> Result<
 /// Which factorization solved the last system.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum FactorKind {
+    /// Sparse Cholesky (the tangent was positive definite).
     Cholesky,
     /// The tangent was not positive definite; LDLᵀ without pivoting was used.
     Ldlt,
@@ -137,6 +138,7 @@ pub enum FactorKind {
 /// Counters and timings (seconds) of the linear solver.
 #[derive(Debug, Clone, Default, PartialEq)]
 pub struct LinearStats {
+    /// Number of equations.
     pub equations: usize,
     /// Stored entries of the lower triangle of the tangent.
     pub nnz_matrix: usize,
@@ -144,11 +146,17 @@ pub struct LinearStats {
     pub nnz_factor: usize,
     /// Σ colcount² over the factor (a flop-count proxy).
     pub factor_flops: f64,
+    /// Time in symbolic analysis (ordering, elimination tree), seconds.
     pub symbolic_time: f64,
+    /// Time in numeric factorizations, seconds.
     pub numeric_time: f64,
+    /// Time in triangular solves, seconds.
     pub solve_time: f64,
+    /// Number of numeric factorizations.
     pub numeric_count: usize,
+    /// Factorizations that fell back to LU.
     pub lu_fallbacks: usize,
+    /// Factorizations that fell back to LDLᵀ.
     pub ldlt_fallbacks: usize,
     /// LU factorizations of non-symmetric (frictional) tangents.
     pub lu_nonsymmetric: usize,
@@ -156,5 +164,6 @@ pub struct LinearStats {
     pub ordering: &'static str,
     /// Factor entries with each ordering, when [`Ordering::LeastFill`] compared them.
     pub fill_amd: Option<usize>,
+    /// Factor entries with the nested-dissection ordering, when compared.
     pub fill_nested_dissection: Option<usize>,
 }

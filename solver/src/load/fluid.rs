@@ -63,6 +63,7 @@ struct FluidFront {
 /// Figures of one fluid at a converged increment.
 #[derive(Debug, Clone, PartialEq)]
 pub struct FluidSummary {
+    /// Name of the fluid.
     pub name: String,
     /// Fluid pressure applied (stress units).
     pub pressure: f64,
@@ -161,6 +162,7 @@ impl Fluids {
         Ok(Fluids { fluids, dim, corners, analysis: Some(model.analysis), committed_contact: vec![0.0; mesh.node_count()], updates: 0 })
     }
 
+    /// Whether the model has no fluid.
     pub fn is_empty(&self) -> bool {
         self.fluids.is_empty()
     }

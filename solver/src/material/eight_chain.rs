@@ -21,6 +21,7 @@ use super::error::MaterialError;
 use super::langevin::{inverse_langevin, langevin_derivative};
 use super::{InvariantDerivatives, IsochoricEnergy};
 
+/// The eight-chain (Arruda–Boyce) model, with the inverse Langevin function.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct EightChain {
     /// Small-strain shear modulus μ (stress units), > 0.

@@ -29,10 +29,15 @@ use super::Material;
 /// A homogeneous test.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Mode {
+    /// Uniaxial tension or compression, lateral faces free.
     Uniaxial,
+    /// Equal stretch in two directions, the third free.
     Equibiaxial,
+    /// Planar (pure shear): stretched in one direction, held in the second, free in the third.
     Planar,
+    /// Simple shear.
     SimpleShear,
+    /// Equal stretch in all three directions (volume change).
     Volumetric,
 }
 
@@ -114,17 +119,37 @@ pub struct Point {
 /// Why a point of a homogeneous response could not be computed.
 #[derive(Debug, Clone, PartialEq, Error)]
 pub enum HomogeneousError {
+    /// The material could not be evaluated at this stretch.
     #[error("{mode} at stretch {stretch}: {source}")]
     Material {
+        /// The test, e.g. `uniaxial`.
         mode: &'static str,
+        /// The applied stretch.
         stretch: f64,
+        /// What the material reported.
         #[source]
         source: MaterialError,
     },
+    /// The free lateral stretch of the test was not found.
     #[error("{mode} at stretch {stretch}: lateral stretch not converged (stress residual {residual:.3e} after {iterations} iterations)")]
-    NotConverged { mode: &'static str, stretch: f64, residual: f64, iterations: usize },
+    NotConverged {
+        /// The test, e.g. `uniaxial`.
+        mode: &'static str,
+        /// The applied stretch.
+        stretch: f64,
+        /// Lateral stress left (stress units).
+        residual: f64,
+        /// Iterations made.
+        iterations: usize,
+    },
+    /// The stretch is not positive and finite.
     #[error("{mode}: stretch {stretch} must be positive and finite")]
-    BadStretch { mode: &'static str, stretch: f64 },
+    BadStretch {
+        /// The test, e.g. `uniaxial`.
+        mode: &'static str,
+        /// The applied stretch.
+        stretch: f64,
+    },
 }
 
 /// Lateral stretch `t` of the incompressible material in `mode`: a start

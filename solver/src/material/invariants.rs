@@ -24,23 +24,36 @@ use super::{IsochoricEnergy, Response};
 /// W_iso and its derivatives with respect to the isochoric invariants.
 #[derive(Debug, Clone, Copy, Default, PartialEq)]
 pub struct InvariantDerivatives {
+    /// Isochoric strain energy W_iso (stress units).
     pub w: f64,
+    /// ∂W/∂Ī1.
     pub w1: f64,
+    /// ∂W/∂Ī2.
     pub w2: f64,
+    /// ∂²W/∂Ī1².
     pub w11: f64,
+    /// ∂²W/∂Ī1∂Ī2.
     pub w12: f64,
+    /// ∂²W/∂Ī2².
     pub w22: f64,
 }
 
 /// Invariants of C needed by the isochoric/volumetric split.
 #[derive(Debug, Clone, Copy)]
 pub struct Kinematics {
+    /// Right Cauchy–Green tensor C = FᵀF.
     pub c: Matrix3<f64>,
+    /// Its inverse C⁻¹.
     pub c_inv: Matrix3<f64>,
+    /// Volume ratio J = det F.
     pub j: f64,
+    /// First invariant I1 = tr C.
     pub i1: f64,
+    /// Second invariant I2 = ½((tr C)² − tr C²).
     pub i2: f64,
+    /// Isochoric first invariant Ī1 = J^(−2/3) I1.
     pub i1_bar: f64,
+    /// Isochoric second invariant Ī2 = J^(−4/3) I2.
     pub i2_bar: f64,
 }
 

@@ -134,11 +134,14 @@ pub struct Response {
 /// One rubber compound: an isochoric model plus a volumetric law.
 #[derive(Debug)]
 pub struct Material {
+    /// The isochoric (shape-changing) strain energy.
     pub isochoric: Box<dyn IsochoricModel>,
+    /// The volumetric strain energy U(J).
     pub volumetric: VolumetricLaw,
 }
 
 impl Material {
+    /// A material from its two parts.
     pub fn new(isochoric: Box<dyn IsochoricModel>, volumetric: VolumetricLaw) -> Self {
         Material { isochoric, volumetric }
     }

@@ -10,6 +10,7 @@
 use super::error::MaterialError;
 use super::{InvariantDerivatives, IsochoricEnergy};
 
+/// The Mooney–Rivlin model, W = C10 (Ī1 − 3) + C01 (Ī2 − 3).
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct MooneyRivlin {
     /// Coefficient of `Ī1 − 3` (stress units).

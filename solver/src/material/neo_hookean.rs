@@ -6,6 +6,7 @@
 use super::error::MaterialError;
 use super::{InvariantDerivatives, IsochoricEnergy};
 
+/// The neo-Hookean model, W = μ/2 (Ī1 − 3).
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct NeoHookean {
     /// Small-strain shear modulus μ (stress units), > 0.
@@ -13,6 +14,7 @@ pub struct NeoHookean {
 }
 
 impl NeoHookean {
+    /// A neo-Hookean law; refuses a shear modulus that is not finite and positive.
     pub fn new(shear_modulus: f64) -> Result<Self, MaterialError> {
         if !(shear_modulus.is_finite() && shear_modulus > 0.0) {
             return Err(MaterialError::InvalidParameter {

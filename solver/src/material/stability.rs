@@ -45,6 +45,7 @@ pub fn drucker_margin(material: &Material, l: [f64; 3]) -> Result<f64, MaterialE
 /// Stability of one mode over a stretch range, searched outward from λ = 1.
 #[derive(Debug, Clone, PartialEq)]
 pub struct ModeStability {
+    /// The homogeneous test checked.
     pub mode: Mode,
     /// Smallest λ > 1 where stability is lost (bisected to 1e-10), if any
     /// below the largest stretch checked.

@@ -36,6 +36,7 @@ impl VolumetricForm {
 /// U(J) with its bulk modulus κ.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct VolumetricLaw {
+    /// The form of U(J).
     pub form: VolumetricForm,
     /// Small-strain bulk modulus κ (stress units), > 0.
     pub bulk_modulus: f64,

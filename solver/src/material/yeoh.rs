@@ -10,6 +10,7 @@
 use super::error::MaterialError;
 use super::{InvariantDerivatives, IsochoricEnergy};
 
+/// The Yeoh model, W = C10 (Ī1 − 3) + C20 (Ī1 − 3)² + C30 (Ī1 − 3)³.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Yeoh {
     /// Coefficient of `Ī1 − 3` (stress units), > 0.

@@ -39,17 +39,29 @@ pub const MAX_SIDE_NODES: usize = 9;
 /// Every shape the solver knows: elements and the sides of elements.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 pub enum ShapeKind {
+    /// 2-node line (side of a linear 2-D element).
     Line2,
+    /// 3-node line (side of a quadratic 2-D element).
     Line3,
+    /// 3-node triangle.
     Tri3,
+    /// 6-node triangle.
     Tri6,
+    /// 4-node quadrilateral.
     Quad4,
+    /// 8-node serendipity quadrilateral.
     Quad8,
+    /// 9-node Lagrange quadrilateral.
     Quad9,
+    /// 4-node tetrahedron.
     Tet4,
+    /// 10-node tetrahedron.
     Tet10,
+    /// 8-node hexahedron.
     Hex8,
+    /// 20-node serendipity hexahedron.
     Hex20,
+    /// 27-node Lagrange hexahedron.
     Hex27,
 }
 
@@ -61,13 +73,16 @@ pub type EvalFn = fn([f64; 3], &mut [f64], &mut [[f64; 3]]);
 /// Everything the element layer needs to know about one shape.
 #[derive(Debug, Clone, Copy)]
 pub struct ShapeDef {
+    /// Which shape.
     pub kind: ShapeKind,
+    /// Its reference domain.
     pub domain: Domain,
     /// Number of corner nodes; they come first.
     pub corners: usize,
     /// Reference coordinates of every node (unused coordinates zero); element
     /// shapes take the mesh crate's (`olli_mesh::shape::reference_nodes`).
     pub reference_nodes: &'static [[f64; 3]],
+    /// Evaluates the shape functions and their reference derivatives.
     pub eval: EvalFn,
     /// Polynomial degree of the quadrature rule used to integrate over this
     /// shape: full integration of the displacement stiffness of an

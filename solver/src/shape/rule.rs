@@ -52,6 +52,7 @@ impl Domain {
 pub struct Rule {
     /// Published name of the rule, e.g. "Gauss–Legendre 3×3".
     pub name: String,
+    /// Reference domain the points lie in.
     pub domain: Domain,
     /// Highest total polynomial degree integrated exactly (for the tensor
     /// products: the degree in each coordinate separately).

@@ -14,20 +14,38 @@ use super::schema::{AnalysisKind, JobFile};
 pub enum AppliedSource {
     /// Prescribed displacement component of a set: the mean over the set's
     /// nodes (each holds the prescribed value) once a motion names it, 0 before.
-    Travel { set: String, component: usize },
+    Travel {
+        /// The moved set.
+        set: String,
+        /// 0-based component index (x, y, z; axisymmetric r, z).
+        component: usize,
+    },
     /// Total force component on a set.
-    Force { set: String, component: usize },
+    Force {
+        /// The loaded set.
+        set: String,
+        /// 0-based component index (x, y, z; axisymmetric r, z).
+        component: usize,
+    },
     /// Pressure on a side set.
-    Pressure { set: String },
+    Pressure {
+        /// The pressure's name (default: its side set).
+        set: String,
+    },
     /// Angle (degrees) a set has turned through its motions' `rotation`s,
     /// about the first turn's axis (each turn projected on it).
-    Angle { set: String },
+    Angle {
+        /// The turned set.
+        set: String,
+    },
 }
 
 /// One `applied_...` column.
 #[derive(Debug, Clone, PartialEq)]
 pub struct AppliedColumn {
+    /// Column name in `history.csv`, `applied_...`.
     pub name: String,
+    /// The quantity the column follows.
     pub source: AppliedSource,
 }
 

@@ -41,8 +41,11 @@ pub const FIELD_NAMES: &[&str] = &[
 /// One material of the job, built.
 #[derive(Debug, Clone)]
 pub struct JobMaterial {
+    /// The `[material.<name>]` table name.
     pub name: String,
+    /// The model name as written in the job (e.g. `neo-hookean`).
     pub model: String,
+    /// The built constitutive law, shared by the regions using it.
     pub material: Arc<Material>,
     /// Regions (element sets) made of it.
     pub used_by: Vec<String>,
@@ -64,10 +67,15 @@ pub struct OutputPlan {
 /// A checked job, ready to solve.
 #[derive(Debug, Clone)]
 pub struct Job {
+    /// The job file as given.
     pub path: PathBuf,
+    /// The job's title (shown in reports and the summary).
     pub title: String,
+    /// Solid 3-D, axisymmetric or plane strain.
     pub kind: AnalysisKind,
+    /// The solver model: mesh, regions, supports and load stages.
     pub model: Model,
+    /// The materials, in file order.
     pub materials: Vec<JobMaterial>,
     /// Sets with supports or prescribed motions, in file order: their
     /// reactions go to `history.csv` and the summary.
@@ -86,6 +94,7 @@ pub struct Job {
     /// Inserts, in file order: their position, force and moment go to
     /// `history.csv` and the summary.
     pub insert_names: Vec<String>,
+    /// Where and how often to write results.
     pub output: OutputPlan,
     /// Remarks of the mesh importer (reoriented elements, ...).
     pub mesh_notes: Vec<String>,

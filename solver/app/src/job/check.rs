@@ -30,11 +30,17 @@ pub const ASPECT_WARNING: f64 = 10.0;
 /// One material's line in the report.
 #[derive(Debug, Clone, PartialEq)]
 pub struct MaterialCheck {
+    /// The `[material.<name>]` table name.
     pub name: String,
+    /// The model name as written in the job.
     pub model: String,
+    /// Small-strain shear modulus μ, in stress units.
     pub shear_modulus: f64,
+    /// Small-strain bulk modulus κ, in stress units.
     pub bulk_modulus: f64,
+    /// Small-strain Poisson's ratio ν (dimensionless).
     pub poisson_ratio: f64,
+    /// Small-strain Young's modulus E = 2μ(1 + ν), in stress units.
     pub young_modulus: f64,
     /// Drucker stability of the uniaxial, equibiaxial and planar tests up to
     /// principal stretches of [`STABILITY_SEARCH`], with the stretches of
@@ -45,11 +51,15 @@ pub struct MaterialCheck {
 /// One rigid surface as it starts.
 #[derive(Debug, Clone)]
 pub struct RigidCheck {
+    /// The `[[rigid]]` name.
     pub name: String,
+    /// Shape kind: `line`, `arc`, `plane`, ... as in the job.
     pub shape: &'static str,
+    /// The side set of the rubber it may touch.
     pub touches: String,
     /// Nodes of the touching side set.
     pub nodes: usize,
+    /// Coulomb friction coefficient (0: frictionless).
     pub friction: f64,
     /// Smallest signed gap of those nodes at the start (negative: penetrating).
     pub min_gap: f64,
@@ -58,14 +68,21 @@ pub struct RigidCheck {
 /// The whole report.
 #[derive(Debug, Clone)]
 pub struct CheckReport {
+    /// The job's title.
     pub title: String,
+    /// Analysis kind as written in the job (`3d`, `axisymmetric`, `plane-strain`).
     pub analysis: &'static str,
+    /// Counts, extent and quality of the mesh.
     pub mesh: MeshSummary,
+    /// Stage names, in run order.
     pub stages: Vec<String>,
+    /// One line per material.
     pub materials: Vec<MaterialCheck>,
+    /// One line per rigid surface.
     pub rigid: Vec<RigidCheck>,
     /// Stretch range of the stability check.
     pub stretch_range: (f64, f64),
+    /// Things that will not stop the run but deserve a look.
     pub warnings: Vec<String>,
 }
 

@@ -9,9 +9,11 @@ use std::path::{Path, PathBuf};
 /// A problem in an input file, located as precisely as the parser allows.
 #[derive(Debug, Clone, PartialEq)]
 pub struct InputError {
+    /// The file the problem is in.
     pub file: PathBuf,
     /// 1-based line and column, when known.
     pub position: Option<(usize, usize)>,
+    /// What is wrong, in words for the user.
     pub message: String,
 }
 

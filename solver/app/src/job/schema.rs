@@ -64,6 +64,7 @@ pub struct JobFile {
     pub output: OutputSpec,
 }
 
+/// The kind of analysis, `analysis = "..."` in the job.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
 pub enum AnalysisKind {
     /// Full 3-D solid.
@@ -87,6 +88,7 @@ impl AnalysisKind {
         }
     }
 
+    /// The name as written in the job file.
     pub fn name(self) -> &'static str {
         match self {
             AnalysisKind::Solid => "3d",
@@ -122,21 +124,31 @@ pub struct SelectSpec {
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct MaterialTable {
+    /// Model name, e.g. `"neo-hookean"`, `"mooney-rivlin"`, `"ogden"`.
     pub model: Spanned<String>,
     /// `"quadratic"` (default), `"logarithmic"` or `"simo-taylor"`.
     pub volumetric: Option<Spanned<String>>,
+    /// Initial shear modulus μ (stress units); neo-Hookean, eight-chain, Gent.
     pub shear_modulus: Option<Spanned<f64>>,
+    /// Constant C10 of the neo-Hookean, Mooney–Rivlin and Yeoh laws (stress units).
     pub c10: Option<Spanned<f64>>,
+    /// Mooney–Rivlin constant C01 (stress units).
     pub c01: Option<Spanned<f64>>,
+    /// Yeoh constant C20 (stress units).
     pub c20: Option<Spanned<f64>>,
+    /// Yeoh constant C30 (stress units).
     pub c30: Option<Spanned<f64>>,
+    /// Locking stretch λ_m of the eight-chain law (dimensionless, > 1).
     pub locking_stretch: Option<Spanned<f64>>,
+    /// Gent extensibility limit J_m (dimensionless, > 0).
     pub extensibility_limit: Option<Spanned<f64>>,
     /// Ogden moduli, one per term.
     pub mu: Option<Spanned<Vec<f64>>>,
     /// Ogden exponents, one per term.
     pub alpha: Option<Spanned<Vec<f64>>>,
+    /// Bulk modulus κ (stress units); give this or `poisson_ratio`.
     pub bulk_modulus: Option<Spanned<f64>>,
+    /// Poisson's ratio ν (just below 0.5 for rubber); give this or `bulk_modulus`.
     pub poisson_ratio: Option<Spanned<f64>>,
 }
 
@@ -179,11 +191,14 @@ pub struct RegionSpec {
     pub formulation: FormulationKind,
 }
 
+/// Element formulation of a region.
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq, Deserialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum FormulationKind {
+    /// Displacement with a pressure per element (default; for nearly incompressible rubber).
     #[default]
     Mixed,
+    /// Displacement only (locks when the material is nearly incompressible).
     Displacement,
 }
 
@@ -207,6 +222,7 @@ pub struct SupportSpec {
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct MotionSpec {
+    /// Node set (or side or element set: its nodes).
     pub nodes: Spanned<String>,
     /// Stage name (default: the first stage).
     pub stage: Option<Spanned<String>>,
@@ -247,8 +263,11 @@ pub struct RotationSpec {
 pub struct PressureSpec {
     /// Name of the `applied_<name>_pressure` column (default: the side set's name).
     pub name: Option<Spanned<String>>,
+    /// Side set the pressure acts on.
     pub sides: Spanned<String>,
+    /// Stage name (default: the first stage).
     pub stage: Option<Spanned<String>>,
+    /// Pressure reached at the end of the stage, in stress units.
     pub value: f64,
     /// How the load changes over its stage: `"linear"` (default), `"step"`
     /// (all at once), or a table `[[t, fraction], ...]` of stage fraction t.
@@ -268,6 +287,7 @@ pub struct FluidSpec {
     pub sides: Spanned<String>,
     /// A point on `sides` (reference position) where the fluid enters.
     pub source: Spanned<Vec<f64>>,
+    /// Stage name (default: the first stage).
     pub stage: Option<Spanned<String>>,
     /// Pressure reached at the end of the stage.
     pub pressure: Spanned<f64>,
@@ -280,8 +300,11 @@ pub struct FluidSpec {
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct ForceSpec {
+    /// Node or side set the force acts on.
     pub set: Spanned<String>,
+    /// Stage name (default: the first stage).
     pub stage: Option<Spanned<String>>,
+    /// Component → total force reached at the end of the stage, e.g. `{ z = -100.0 }`.
     pub total: Spanned<BTreeMap<String, f64>>,
     /// How the load changes over its stage: `"linear"` (default), `"step"`
     /// (all at once), or a table `[[t, fraction], ...]` of stage fraction t.
@@ -292,7 +315,9 @@ pub struct ForceSpec {
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct BodyForceSpec {
+    /// Stage name (default: the first stage).
     pub stage: Option<Spanned<String>>,
+    /// Component → force per unit reference volume, e.g. `{ z = -9.81e-6 }`.
     pub per_volume: Spanned<BTreeMap<String, f64>>,
     /// How the load changes over its stage: `"linear"` (default), `"step"`
     /// (all at once), or a table `[[t, fraction], ...]` of stage fraction t.
@@ -303,6 +328,7 @@ pub struct BodyForceSpec {
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct StageSpec {
+    /// Stage name, used by loads, motions and rigid moves to refer to it.
     pub name: Spanned<String>,
     /// First increment as a fraction of the stage (default 0.1).
     pub first_increment: Option<f64>,
@@ -410,17 +436,23 @@ pub struct RigidSpec {
     pub ramp: Option<Spanned<RampSpec>>,
 }
 
+/// A straight rigid line in 2-D.
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct RigidLine {
+    /// Any point on the line (length units).
     pub point: [f64; 2],
+    /// Direction along the line (any non-zero length).
     pub direction: [f64; 2],
 }
 
+/// A rigid circular arc in 2-D.
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct RigidArc {
+    /// Centre of the arc (length units).
     pub center: [f64; 2],
+    /// Radius of the arc (length units).
     pub radius: f64,
     /// Start angle, degrees from the +x (r) axis.
     pub from: f64,
@@ -428,25 +460,35 @@ pub struct RigidArc {
     pub to: f64,
 }
 
+/// A rigid plane in 3-D.
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct RigidPlane {
+    /// Any point on the plane (length units).
     pub point: [f64; 3],
+    /// Normal of the plane, pointing to the rubber (any non-zero length).
     pub normal: [f64; 3],
 }
 
+/// A rigid circular cylinder in 3-D.
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct RigidCylinder {
+    /// Any point on the cylinder's axis (length units).
     pub point: [f64; 3],
+    /// Direction of the axis (any non-zero length).
     pub axis: [f64; 3],
+    /// Radius of the cylinder (length units).
     pub radius: f64,
 }
 
+/// A rigid sphere in 3-D.
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct RigidSphere {
+    /// Centre of the sphere (length units).
     pub center: [f64; 3],
+    /// Radius of the sphere (length units).
     pub radius: f64,
 }
 
@@ -454,7 +496,9 @@ pub struct RigidSphere {
 #[derive(Debug, Clone, Deserialize)]
 #[serde(untagged)]
 pub enum RampSpec {
+    /// `"linear"` or `"step"`.
     Named(String),
+    /// Rows `[t, fraction]`: stage fraction t and the load fraction reached there.
     Table(Vec<[f64; 2]>),
 }
 

@@ -14,6 +14,7 @@ pub struct EventText {
 }
 
 impl EventText {
+    /// A formatter for a run of `stage_count` stages, its clock started now.
     pub fn new(stage_count: usize) -> Self {
         EventText { start: Instant::now(), stage: String::new(), stage_count }
     }

@@ -22,6 +22,7 @@ pub use olli_solver::results::von_mises;
 /// A value and where it occurs.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct Peak {
+    /// The peak value, in the field's units.
     pub value: f64,
     /// Reference position (node, or integration point).
     pub at: [f64; 3],
@@ -96,8 +97,11 @@ impl Peaks {
 /// The arrays and peaks of one frame.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Frame {
+    /// Arrays per node.
     pub point: Vec<Field>,
+    /// Arrays per element.
     pub cell: Vec<Field>,
+    /// Peaks of the frame's fields.
     pub peaks: Peaks,
 }
 

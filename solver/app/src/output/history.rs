@@ -26,6 +26,7 @@ struct Row {
 }
 
 impl History {
+    /// An empty history with these value columns.
     pub fn new(columns: Vec<String>) -> Self {
         History { columns, rows: Vec::new() }
     }
@@ -36,10 +37,12 @@ impl History {
         self.rows.push(Row { stage: stage.to_string(), increment, load_factor, values, iterations });
     }
 
+    /// Number of rows (converged increments) recorded.
     pub fn len(&self) -> usize {
         self.rows.len()
     }
 
+    /// Whether no row has been recorded yet.
     pub fn is_empty(&self) -> bool {
         self.rows.is_empty()
     }

@@ -15,9 +15,11 @@ pub struct Performance {
     /// Fill-reducing ordering of the factor: `amd` or `nested-dissection`.
     pub ordering: String,
     /// Stored entries of the sparse factor with that ordering.
+    /// Entries of the Cholesky factor with the ordering kept.
     pub factor_entries: usize,
     /// Factor entries with each ordering, when both were measured.
     pub factor_entries_amd: Option<usize>,
+    /// Factor entries with nested dissection (AMD's are the line above).
     pub factor_entries_nested_dissection: Option<usize>,
     /// Element loops (residual, with or without the tangent).
     pub assemblies: usize,

@@ -7,6 +7,7 @@ use std::fmt::Write;
 /// One entry of the collection.
 #[derive(Debug, Clone, PartialEq)]
 pub struct PvdEntry {
+    /// Pseudo-time of the frame: stage index + load factor.
     pub time: f64,
     /// File name relative to the `.pvd` file.
     pub file: String,

@@ -13,6 +13,7 @@ use olli_solver::results::{IncrementResult, PointPeak};
 /// One extreme of a stage and where and when it occurred.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct StagePeak {
+    /// The extreme value (log strain, stress units, or volume ratio J).
     pub value: f64,
     /// Element index (0-based, as in messages and the `.vtu` frames).
     pub element: usize,
@@ -22,14 +23,18 @@ pub struct StagePeak {
     pub at: [f64; 3],
     /// Converged increment of the stage (1-based) and its load factor.
     pub increment: usize,
+    /// Load factor of that increment (fraction of the stage).
     pub load_factor: f64,
 }
 
 /// The extremes of one stage.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct StagePeaks {
+    /// Largest maximum principal log strain ln λ_max.
     pub max_principal_log_strain: StagePeak,
+    /// Largest von Mises stress (stress units).
     pub von_mises: StagePeak,
+    /// Smallest volume ratio J.
     pub min_volume_ratio: StagePeak,
 }
 

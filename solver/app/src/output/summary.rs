@@ -16,26 +16,37 @@ use super::stage_peaks::StagePeaks;
 /// Where the last converged increment is.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct IncrementRef {
+    /// Stage name.
     pub stage: String,
+    /// Increment number within the stage.
     pub increment: usize,
+    /// Load factor of the stage reached, 0 to 1.
     pub load_factor: f64,
 }
 
 /// Names of the files a run wrote, relative to the output folder.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Files {
+    /// The history table (`history.csv`).
     pub history: String,
+    /// The `.pvd` collection of the frames.
     pub collection: String,
+    /// The run log.
     pub log: String,
+    /// Number of `.vtu` frames written.
     pub frames: usize,
 }
 
 /// The whole summary.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct RunSummary {
+    /// Version of olli that wrote the summary.
     pub olli_version: String,
+    /// The job file as given.
     pub job: String,
+    /// The job's title.
     pub title: String,
+    /// Analysis kind as written in the job.
     pub analysis: String,
     /// `"converged"` or `"stopped"`.
     pub status: String,
@@ -45,6 +56,7 @@ pub struct RunSummary {
     pub stopped_in_stage: Option<String>,
     /// Stages that reached their end.
     pub stages_completed: Vec<String>,
+    /// The last converged increment (absent when none converged).
     pub last_increment: Option<IncrementRef>,
     /// Reaction force of each named set at the last converged increment, by
     /// component (axisymmetric: over the full 2π).
@@ -71,12 +83,17 @@ pub struct RunSummary {
     /// smallest volume ratio over all its converged increments, with where
     /// (element, point, reference position) and when (increment, load factor).
     pub stage_peaks: BTreeMap<String, StagePeaks>,
+    /// Converged increments over all stages.
     pub increments: usize,
+    /// Newton iterations over the whole run.
     pub newton_iterations: usize,
+    /// Times an increment was cut back.
     pub cutbacks: usize,
+    /// Wall-clock time of the run, in seconds.
     pub wall_time_s: f64,
     /// Size, ordering, counts, seconds and peak memory of the run.
     pub performance: Performance,
+    /// The files the run wrote.
     pub files: Files,
     /// Physical dimension of each `history.csv` column and each peak.
     pub units: BTreeMap<String, String>,
@@ -94,6 +111,7 @@ pub fn run_finished(folder: &std::path::Path) -> bool {
 }
 
 impl RunSummary {
+    /// The summary as pretty-printed JSON (`summary.json`).
     pub fn to_json(&self) -> String {
         serde_json::to_string_pretty(self).expect("plain data serialises") + "\n"
     }

@@ -16,12 +16,16 @@ use super::atomic::write_atomic;
 /// A named array with `components` values per point or cell.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Field {
+    /// Array name in the `.vtu` file.
     pub name: String,
+    /// Values per point or cell (1 scalar, 3 vector, 6 or 9 tensor).
     pub components: usize,
+    /// `components` values per point or cell, one after another.
     pub values: Vec<f64>,
 }
 
 impl Field {
+    /// A field from its name, component count and values.
     pub fn new(name: impl Into<String>, components: usize, values: Vec<f64>) -> Self {
         Field { name: name.into(), components, values }
     }

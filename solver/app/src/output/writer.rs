@@ -28,7 +28,9 @@ use olli_solver::results::{IncrementResult, Solution, Termination};
 
 /// Names of the files in the output folder.
 pub const HISTORY_FILE: &str = "history.csv";
+/// The run summary, rewritten after every increment.
 pub const SUMMARY_FILE: &str = "summary.json";
+/// The run log.
 pub const LOG_FILE: &str = "olli.log";
 
 /// The result writer of one run; pass it (or a wrapper) to [`olli_solver::solve`].

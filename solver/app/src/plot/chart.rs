@@ -19,12 +19,14 @@ use super::{ColorMap, Figure, PlotError, FONT};
 /// An axis: the quantity and its unit, written `quantity [unit]`.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Axis {
+    /// The quantity's name, e.g. `displacement`.
     pub quantity: String,
     /// Empty for a dimensionless quantity (then no brackets are written).
     pub unit: String,
 }
 
 impl Axis {
+    /// An axis of `quantity` in `unit` (empty for none).
     pub fn new(quantity: impl Into<String>, unit: impl Into<String>) -> Self {
         Axis { quantity: quantity.into(), unit: unit.into() }
     }
@@ -55,7 +57,9 @@ pub enum SeriesStyle {
 pub struct Series {
     /// The legend entry (an empty name gives none).
     pub name: String,
+    /// The (x, y) points, in drawing order.
     pub points: Vec<(f64, f64)>,
+    /// Line, points or both.
     pub style: SeriesStyle,
     /// Series with the same group share one colour (measured points and the
     /// fitted curve of one test); `None`: a colour of its own.
@@ -87,17 +91,23 @@ impl Series {
 /// A labelled dashed line across the chart at one coordinate.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Mark {
+    /// The coordinate of the line, in the axis units.
     pub at: f64,
+    /// Text written beside the line.
     pub label: String,
 }
 
 /// Where the legend goes.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
 pub enum Corner {
+    /// Top left (default).
     #[default]
     UpperLeft,
+    /// Top right.
     UpperRight,
+    /// Bottom left.
     LowerLeft,
+    /// Bottom right.
     LowerRight,
 }
 
@@ -107,8 +117,11 @@ pub enum Corner {
 pub struct LineChart {
     /// The title line above the chart.
     pub title: String,
+    /// Horizontal axis.
     pub x: Axis,
+    /// Vertical axis.
     pub y: Axis,
+    /// The curves, drawn in order.
     pub series: Vec<Series>,
     /// Vertical marks at x values (events: stage ends, a chosen increment).
     pub vertical: Vec<Mark>,
@@ -116,12 +129,14 @@ pub struct LineChart {
     pub horizontal: Vec<Mark>,
     /// Colours of the series, spread over this map (default viridis).
     pub colors: ColorMap,
+    /// Corner of the legend box.
     pub legend: Corner,
     /// Width and height in pixels (default 900 × 600).
     pub size: (u32, u32),
 }
 
 impl LineChart {
+    /// An empty chart with a title and its axes.
     pub fn new(title: impl Into<String>, x: Axis, y: Axis) -> Self {
         LineChart {
             title: title.into(),
@@ -136,6 +151,7 @@ impl LineChart {
         }
     }
 
+    /// Adds a series.
     pub fn with_series(mut self, series: Series) -> Self {
         self.series.push(series);
         self
@@ -153,6 +169,7 @@ impl LineChart {
         self
     }
 
+    /// Puts the legend in `corner`.
     pub fn with_legend(mut self, corner: Corner) -> Self {
         self.legend = corner;
         self

@@ -28,8 +28,11 @@ pub enum LineKind {
 /// A polyline drawn over the contour; a non-empty `label` goes in the legend.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Outline {
+    /// Vertices in drawing coordinates.
     pub points: Vec<[f64; 2]>,
+    /// What the line shows, which sets its style.
     pub kind: LineKind,
+    /// Legend entry (empty: none).
     pub label: String,
 }
 
@@ -38,7 +41,9 @@ pub struct Outline {
 pub struct ContourPlot {
     /// The title line.
     pub title: String,
+    /// Horizontal axis.
     pub x: Axis,
+    /// Vertical axis.
     pub y: Axis,
     /// The plotted quantity and unit, written beside the colour bar.
     pub field: Axis,
@@ -48,7 +53,9 @@ pub struct ContourPlot {
     pub values: Vec<f64>,
     /// Convex polygons as node indices, painted in order (later ones cover earlier ones).
     pub cells: Vec<Vec<usize>>,
+    /// Polylines drawn over the bands (rigid surfaces, the undeformed outline).
     pub outlines: Vec<Outline>,
+    /// Colour map of the bands.
     pub colors: ColorMap,
     /// Number of colour bands (default 12).
     pub bands: usize,

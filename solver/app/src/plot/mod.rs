@@ -43,7 +43,12 @@ pub enum PlotError {
     Encode(String),
     /// The file could not be written.
     #[error("{path}: cannot write the picture: {source}")]
-    Write { path: PathBuf, source: std::io::Error },
+    Write {
+        /// The picture file.
+        path: PathBuf,
+        /// What the operating system reported.
+        source: std::io::Error,
+    },
     /// There is nothing to draw (no finite point, no element).
     #[error("nothing to plot: {0}")]
     Empty(String),

@@ -24,18 +24,46 @@ use section::{Field, View};
 /// Something that stops the pictures of a run.
 #[derive(Debug, thiserror::Error)]
 pub enum ReportError {
+    /// A results file could not be read.
     #[error("{file}: cannot read: {source}")]
-    Read { file: PathBuf, source: std::io::Error },
+    Read {
+        /// The file.
+        file: PathBuf,
+        /// What the operating system reported.
+        source: std::io::Error,
+    },
+    /// A results file is malformed.
     #[error("{file}, line {line}: {message}")]
-    Parse { file: PathBuf, line: usize, message: String },
+    Parse {
+        /// The file.
+        file: PathBuf,
+        /// 1-based line of the problem.
+        line: usize,
+        /// What is wrong there.
+        message: String,
+    },
+    /// A `.vtu` frame could not be read.
     #[error(transparent)]
     Mesh(#[from] olli_mesh::MeshError),
+    /// A picture could not be drawn or written.
     #[error(transparent)]
     Plot(#[from] PlotError),
+    /// A picture or page could not be written.
     #[error("{file}: cannot write: {source}")]
-    Write { file: PathBuf, source: std::io::Error },
+    Write {
+        /// The file.
+        file: PathBuf,
+        /// What the operating system reported.
+        source: std::io::Error,
+    },
+    /// `--frames` named a frame the results do not hold.
     #[error("frame {asked} was asked for, but the results hold frames 1 to {available}")]
-    NoSuchFrame { asked: usize, available: usize },
+    NoSuchFrame {
+        /// The frame number asked for (from 1).
+        asked: usize,
+        /// How many frames the results hold.
+        available: usize,
+    },
 }
 
 /// Which saved frames get contour pictures and contact-pressure charts.

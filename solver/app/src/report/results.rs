@@ -111,14 +111,18 @@ fn split_csv(line: &str) -> Vec<String> {
 /// One saved frame: its `.pvd` time (stage index + load factor) and file.
 #[derive(Debug, Clone, PartialEq)]
 pub struct FrameRef {
+    /// The `.pvd` time: stage index + load factor.
     pub time: f64,
+    /// The `.vtu` file of the frame.
     pub file: PathBuf,
 }
 
 /// A frame read back: the reference mesh and its point arrays.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Frame {
+    /// The reference (undeformed) mesh.
     pub mesh: Mesh,
+    /// Point arrays (displacement, stresses, ...).
     pub arrays: Vec<PointArray>,
 }
 
@@ -150,7 +154,9 @@ impl Frame {
 /// Everything read from a results folder.
 #[derive(Debug, Clone, PartialEq)]
 pub struct RunResults {
+    /// The results folder.
     pub folder: PathBuf,
+    /// `history.csv`, one row per converged increment.
     pub history: Table,
     /// `summary.json`, absent when the run was killed before writing it.
     pub summary: Option<serde_json::Value>,

@@ -48,8 +48,11 @@ impl Field {
 /// Axis a 3-D part is seen along.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
 pub enum View {
+    /// Along x: the y–z plane is drawn.
     X,
+    /// Along y: the x–z plane is drawn.
     Y,
+    /// Along z: the x–y plane is drawn.
     Z,
 }
 
@@ -82,6 +85,7 @@ impl View {
         [View::X, View::Y, View::Z][axis]
     }
 
+    /// The axis letter, as on the command line.
     pub fn name(self) -> &'static str {
         match self {
             View::X => "x",

@@ -66,7 +66,9 @@ impl Status {
 /// A variant's outcome as found in its folder.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Outcome {
+    /// How the variant ended (or that it did not run).
     pub status: Status,
+    /// Why it stopped or failed (empty when it converged).
     pub reason: String,
     /// Results by column name, in the summary's order.
     pub results: Vec<(String, String)>,
@@ -121,15 +123,18 @@ pub struct Table {
     pub parameters: Vec<String>,
     /// Result columns, in order of first appearance.
     pub results: Vec<String>,
+    /// One row per variant, in plan order.
     pub rows: Vec<Row>,
 }
 
 /// One variant's row.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Row {
+    /// Variant name (also its folder).
     pub variant: String,
     /// Parameter values as written in the job.
     pub values: Vec<String>,
+    /// How it ended and its results.
     pub outcome: Outcome,
 }
 

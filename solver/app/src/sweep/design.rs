@@ -34,9 +34,17 @@ pub enum Levels {
 /// A design with its settings.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum Design {
+    /// Every combination of all levels.
     Grid,
+    /// Each parameter through its levels in turn, the others at their base values.
     OneAtATime,
-    LatinHypercube { samples: usize, seed: u64 },
+    /// A Latin hypercube sample.
+    LatinHypercube {
+        /// Number of variants (strata per parameter).
+        samples: usize,
+        /// Seed of the random generator; the same seed gives the same variants.
+        seed: u64,
+    },
 }
 
 /// One swept parameter, checked against the base job.
@@ -46,6 +54,7 @@ pub struct Parameter {
     pub key: String,
     /// Its value in the base job.
     pub base: ParamValue,
+    /// The values to try.
     pub levels: Levels,
 }
 

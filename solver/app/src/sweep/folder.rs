@@ -30,12 +30,14 @@ pub struct Manifest {
     pub job_file: String,
     /// Key paths of the parameters (the table's parameter columns).
     pub parameters: Vec<String>,
+    /// The variants, in plan order.
     pub variants: Vec<ManifestVariant>,
 }
 
 /// One variant in the manifest.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct ManifestVariant {
+    /// Variant name, also its folder.
     pub name: String,
     /// Its parameter values as written in its job.
     pub values: Vec<serde_json::Value>,

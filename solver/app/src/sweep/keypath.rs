@@ -15,9 +15,13 @@ use toml_edit::{DocumentMut, Item, Table, Value};
 /// One value of a swept parameter.
 #[derive(Debug, Clone, PartialEq)]
 pub enum ParamValue {
+    /// A float, e.g. a modulus or a displacement.
     Float(f64),
+    /// An integer, e.g. a number of divisions.
     Integer(i64),
+    /// A string, e.g. a model name.
     Text(String),
+    /// A boolean.
     Bool(bool),
 }
 
@@ -66,12 +70,35 @@ impl fmt::Display for ParamValue {
 /// Why a key path does not lead to a value of the base job.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum KeyPathError {
+    /// A segment names nothing in the base job.
     #[error("the base job has no `{segment}` in `{parent}`{hint}")]
-    Missing { parent: String, segment: String, hint: String },
+    Missing {
+        /// The path up to the missing segment.
+        parent: String,
+        /// The key or index not found.
+        segment: String,
+        /// A "did you mean" suggestion or the keys it holds, or empty.
+        hint: String,
+    },
+    /// The path ends at a table or array instead of a value.
     #[error("`{path}` is {what}, not a single value: add a key or index to the path{hint}")]
-    NotAValue { path: String, what: &'static str, hint: String },
+    NotAValue {
+        /// The whole key path.
+        path: String,
+        /// What it leads to, e.g. "a table".
+        what: &'static str,
+        /// What it holds, e.g. ` (it holds `a`, `b`)`, or empty.
+        hint: String,
+    },
+    /// The path goes on after reaching a value.
     #[error("`{path}` is a value, so `{segment}` cannot follow it")]
-    PastAValue { path: String, segment: String },
+    PastAValue {
+        /// The path up to the value.
+        path: String,
+        /// The first segment after it.
+        segment: String,
+    },
+    /// The key path has no segment.
     #[error("the key path is empty")]
     Empty,
 }

@@ -67,16 +67,25 @@ impl LocalSettings {
 pub enum LocalEvent<'a> {
     /// The variants to run now and those finished earlier.
     Plan {
+        /// Variants to run now.
         to_run: usize,
+        /// Variants finished by an earlier invocation (skipped).
         finished: usize,
+        /// Variants run at the same time.
         at_once: usize,
+        /// Solver threads per variant.
         threads: usize,
     },
+    /// A variant has started.
     Started {
+        /// Its name.
         variant: &'a str,
     },
+    /// A variant has ended (converged, stopped or failed).
     Finished {
+        /// Its name.
         variant: &'a str,
+        /// How it ended.
         outcome: &'a Outcome,
     },
 }

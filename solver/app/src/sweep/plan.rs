@@ -25,6 +25,7 @@ pub const DEFAULT_SEED: u64 = 1;
 /// One variant: its name (also its folder), its parameter values and its job text.
 #[derive(Debug, Clone)]
 pub struct Variant {
+    /// Variant name, also its folder name.
     pub name: String,
     /// Values in the order of [`Plan::parameters`].
     pub values: Vec<ParamValue>,
@@ -45,8 +46,11 @@ pub struct Plan {
     pub name: String,
     /// File name of the base job; every variant's job file has this name in its own folder.
     pub job_file_name: String,
+    /// The sampling design.
     pub design: Design,
+    /// The swept parameters, in sweep-file order.
     pub parameters: Vec<Parameter>,
+    /// The variants, in run order.
     pub variants: Vec<Variant>,
     /// `output` of the sweep file resolved against its folder, else `results/<name>` beside it.
     pub default_output: PathBuf,

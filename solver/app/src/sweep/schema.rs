@@ -70,7 +70,9 @@ pub struct ParameterSpec {
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct RangeSpec {
+    /// First value of the range.
     pub from: f64,
+    /// Last value of the range (included).
     pub to: f64,
     /// Number of values (grid and one-at-a-time; a Latin hypercube samples the range uniformly).
     pub count: Option<i64>,
@@ -82,8 +84,18 @@ pub struct RangeSpec {
 pub enum DistributionSpec {
     /// Every value between `min` and `max` equally likely.
     #[serde(rename = "uniform")]
-    Uniform { min: f64, max: f64 },
+    Uniform {
+        /// Smallest value.
+        min: f64,
+        /// Largest value.
+        max: f64,
+    },
     /// Gaussian with `mean` and standard deviation `std_dev` (a tolerance of ±3 `std_dev` covers 99.7 %).
     #[serde(rename = "normal")]
-    Normal { mean: f64, std_dev: f64 },
+    Normal {
+        /// Mean value.
+        mean: f64,
+        /// Standard deviation (> 0).
+        std_dev: f64,
+    },
 }
