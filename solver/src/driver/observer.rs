@@ -36,6 +36,13 @@ pub enum Event<'a> {
         iteration: usize,
         factor: FactorKind,
     },
+    /// Plain Newton failed on this increment (`reason`); it is tried again
+    /// with damped steps before any cutback.
+    DampedRetry {
+        stage: usize,
+        increment: usize,
+        reason: &'a SolveError,
+    },
     Cutback {
         stage: usize,
         load_factor: f64,
