@@ -232,6 +232,23 @@ pub enum SolveError {
 }
 
 impl SolveError {
+    /// Whether a Newton iteration ran into it (divergence, an inverted or
+    /// failed point, a singular system, contact or a fluid front that did not
+    /// settle), so the increment may be tried again differently.
+    pub fn is_numerical(&self) -> bool {
+        matches!(
+            self,
+            SolveError::InvertedElement { .. }
+                | SolveError::Element { .. }
+                | SolveError::Material { .. }
+                | SolveError::NotConverged { .. }
+                | SolveError::NonFiniteResidual
+                | SolveError::ContactNotResolved { .. }
+                | SolveError::FluidFrontNotSettled { .. }
+                | SolveError::Linear(_)
+        )
+    }
+
     /// Wraps the failure of element `element`, lifting inversion to its own variant.
     pub fn from_element(element: usize, e: impl Into<KernelError>) -> Self {
         AssemblyError::in_element(element, e).into()

@@ -133,7 +133,13 @@ impl ActiveContacts {
             if !(def.penetration_tolerance > 0.0) {
                 return Err(bad(format!("penetration tolerance {} must be positive", def.penetration_tolerance)));
             }
-            let params = ContactParameters { normal_penalty: 0.0, tangential_penalty: 0.0, friction: def.friction, smoothing: 0.0 };
+            let params = ContactParameters {
+                normal_penalty: 0.0,
+                tangential_penalty: 0.0,
+                friction: def.friction,
+                smoothing: 0.0,
+                slip_rounding: 0.0,
+            };
             let mut pair = ContactPair::new(mesh, sides, measure, params);
             // Default: 50 μ / h with the local side size h, so the penalty
             // follows mesh grading and penetration scales with the element.

@@ -15,6 +15,13 @@
 //! slip:    t = μ p s,  s = t_trial/|t_trial|
 //!          −∂t/∂x = A [μ p ε_t/|t_trial| (P − s⊗s) + μ ε_n s⊗n]   (non-symmetric)
 //! ```
+//!
+//! Between the two, over |t_trial| ∈ [(1 − δ_f), (1 + δ_f)] μ p, the
+//! magnitude is rounded (C¹, see [`rounded_friction`]):
+//!
+//! ```text
+//! t = μ p φ(|t_trial|/μ p) s
+//! ```
 
 use nalgebra::{Matrix3, Vector3};
 
@@ -34,6 +41,27 @@ pub struct ContactParameters {
     /// not flip between open and closed from one Newton iteration to the next.
     /// 0 gives the sharp law.
     pub smoothing: f64,
+    /// Relative width δ_f over which the friction law turns from stick to
+    /// slip: the shear traction follows the elastic trial value up to
+    /// (1 − δ_f) μ p and reaches μ p at (1 + δ_f) μ p with a continuous
+    /// tangent (C¹), so nodes at the friction limit of a sliding seal do not
+    /// switch between the stick and the slip tangent from one Newton iteration
+    /// to the next. The traction never exceeds μ p. 0 gives the sharp law.
+    pub slip_rounding: f64,
+}
+
+/// The rounded friction magnitude: for `x = |t_trial| / (μ p)`, the ratio
+/// `φ(x) = |t| / (μ p)` (x below 1 − δ, 1 above 1 + δ, a parabola between)
+/// and `φ'(x)`.
+pub fn rounded_friction(x: f64, delta: f64) -> (f64, f64) {
+    if x <= 1.0 - delta {
+        (x, 1.0)
+    } else if x >= 1.0 + delta {
+        (1.0, 0.0)
+    } else {
+        let d = x - (1.0 - delta);
+        (x - d * d / (4.0 * delta), 1.0 - d / (2.0 * delta))
+    }
 }
 
 /// The pressure for trial value `x = λ − ε g`, rounded over `|x| < δ`:
@@ -140,16 +168,25 @@ pub fn evaluate(
         let t_trial = -slip * params.tangential_penalty;
         let t_norm = t_trial.norm();
         let limit = params.friction * p;
-        if t_norm <= limit {
+        let x_ratio = t_norm / limit;
+        let (phi, dphi) = rounded_friction(x_ratio, params.slip_rounding);
+        if x_ratio > 1.0 {
+            status = Status::Slip;
+        }
+        if dphi == 1.0 || t_norm == 0.0 {
+            // Elastic stick: t = t_trial.
             shear = t_trial;
             stiffness += dslip * (params.tangential_penalty * area);
         } else {
-            status = Status::Slip;
+            // t = m s with m = μ p φ(x), s = t_trial / |t_trial|:
+            // −∂t/∂x = [m ε_t/|t_trial| (I − s⊗s) + φ' ε_t s⊗s] ∂slip/∂x + (φ − x φ') μ ε s⊗n.
             let s = t_trial / t_norm;
-            shear = s * limit;
+            let m = limit * phi;
+            shear = s * m;
             let ss = s * s.transpose();
-            stiffness += ((Matrix3::identity() - ss) * dslip * (limit * params.tangential_penalty / t_norm)
-                + s * n.transpose() * (params.friction * eps))
+            let eps_t = params.tangential_penalty;
+            stiffness += (((Matrix3::identity() - ss) * (m * eps_t / t_norm) + ss * (dphi * eps_t)) * dslip
+                + s * n.transpose() * ((phi - x_ratio * dphi) * params.friction * eps))
                 * area;
         }
     } else {
@@ -193,7 +230,8 @@ mod tests {
             shape: Shape::Cylinder { point: [0.0, 0.0, 0.0], axis: [0.0, 0.0, 1.0], radius: 1.0, rubber_outside: true },
             placement: Placement::default(),
         };
-        let frictionless = ContactParameters { normal_penalty: 100.0, tangential_penalty: 80.0, friction: 0.0, smoothing: 0.0 };
+        let frictionless =
+            ContactParameters { normal_penalty: 100.0, tangential_penalty: 80.0, friction: 0.0, smoothing: 0.0, slip_rounding: 0.0 };
         let rough = ContactParameters { friction: 0.3, ..frictionless };
         fd_check(&plane, Vector3::new(0.1, 0.2, -0.01), frictionless, None);
         fd_check(&shaft, Vector3::new(0.9, 0.2, 0.3), frictionless, None);
@@ -208,6 +246,32 @@ mod tests {
         let rounded = ContactParameters { smoothing: 0.5, ..rough };
         fd_check(&plane, Vector3::new(0.1, 0.2, -0.0005), rounded, Some(Vector3::new(0.099, 0.2, 0.0)));
         fd_check(&plane, Vector3::new(0.1, 0.2, 0.0012), rounded, Some(Vector3::new(0.0, 0.15, 0.0)));
+        // Inside the rounded stick–slip transition: p = 1.05, μ p = 0.315,
+        // |t_trial| = 80 × 0.0039 = 0.312 (x ≈ 0.99) and 80 × 0.0042 = 0.336 (x ≈ 1.07),
+        // on the plane and on the shaft.
+        let rounded_slip = ContactParameters { slip_rounding: 0.2, ..rough };
+        fd_check(&plane, Vector3::new(0.1, 0.2, -0.01), rounded_slip, Some(Vector3::new(0.1 - 0.0039, 0.2, 0.0)));
+        fd_check(&plane, Vector3::new(0.1, 0.2, -0.01), rounded_slip, Some(Vector3::new(0.1, 0.2 + 0.0042, 0.0)));
+        fd_check(&shaft, Vector3::new(0.9, 0.2, 0.3), rounded_slip, Some(Vector3::new(0.9, 0.2, 0.3 + 0.029)));
+    }
+
+    // The rounded friction law is continuous with a continuous slope, equals
+    // the elastic trial value below (1 − δ) and μ p above (1 + δ), and never
+    // exceeds μ p (mathematics of the rounding, no published value).
+    #[test]
+    fn rounded_friction_joins_stick_and_slip_smoothly() {
+        let d = 0.05;
+        assert_eq!(rounded_friction(0.9, d), (0.9, 1.0));
+        assert_eq!(rounded_friction(1.2, d), (1.0, 0.0));
+        for (x, side) in [(1.0 - d, 1.0), (1.0 + d, 0.0)] {
+            let (below, above) = (rounded_friction(x - 1e-12, d), rounded_friction(x + 1e-12, d));
+            assert!((below.0 - above.0).abs() < 1e-11 && (below.1 - above.1).abs() < 1e-9 && (below.1 - side).abs() < 1e-9);
+        }
+        for i in 0..=100 {
+            let x = 0.9 + 0.002 * i as f64;
+            let (phi, dphi) = rounded_friction(x, d);
+            assert!(phi <= 1.0 && phi <= x && (0.0..=1.0).contains(&dphi), "x {x}: {phi} {dphi}");
+        }
     }
 
     // Coulomb's law (Coulomb 1785, as in any statics text): in slip the
@@ -216,7 +280,8 @@ mod tests {
     fn slip_traction_is_friction_times_pressure() {
         let plane =
             RigidSurface { shape: Shape::Plane { point: [0.0, 0.0, 0.0], normal: [0.0, 0.0, 1.0] }, placement: Placement::default() };
-        let params = ContactParameters { normal_penalty: 100.0, tangential_penalty: 80.0, friction: 0.4, smoothing: 0.0 };
+        let params =
+            ContactParameters { normal_penalty: 100.0, tangential_penalty: 80.0, friction: 0.4, smoothing: 0.0, slip_rounding: 0.0 };
         let x = Vector3::new(1.0, 0.0, -0.02);
         let r = evaluate(&plane.project(&x).unwrap(), &x, 1.0, &params, &NodeState::default(), Some(Vector3::zeros()));
         assert_eq!(r.status, Status::Slip);

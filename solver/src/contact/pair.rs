@@ -21,6 +21,11 @@ pub const TANGENTIAL_RATIO: f64 = 0.1;
 /// tenth of the default penetration tolerance).
 pub const SMOOTHING_FRACTION: f64 = 1e-3;
 
+/// Relative width of the rounded stick–slip transition of the friction law
+/// (see [`ContactParameters::slip_rounding`]): the shear traction is within
+/// 5 % of the elastic trial value or of μ p everywhere outside ±5 % of the limit.
+pub const SLIP_ROUNDING: f64 = 0.05;
+
 /// How a side's length or area becomes a load-carrying area.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum AreaMeasure {
@@ -326,6 +331,7 @@ impl ContactPair {
             tangential_penalty: TANGENTIAL_RATIO * self.penalties[k],
             friction: self.params.friction,
             smoothing: SMOOTHING_FRACTION * self.penalties[k] * self.sizes[k],
+            slip_rounding: SLIP_ROUNDING,
         }
     }
 

@@ -5,7 +5,8 @@
 //!
 //! Increment control: the first increment is `controls.first` of the stage;
 //! a failed increment (divergence, NaN, an inverted integration point, too
-//! many iterations) is retried with `cutback` times the size; after a fast
+//! many iterations) is tried again with damped Newton steps, then retried
+//! with `cutback` times the size; after a fast
 //! convergence the next one grows by `growth`; below `min` the run stops
 //! cleanly, keeping every converged increment.
 

@@ -8,6 +8,15 @@
 //! `G(s) = du·r(u + s du)`: if the step overshoots (`G` changes sign and
 //! `|G(s)| > ½|G(0)|`), `s` is cut by linear interpolation of `G`.
 //!
+//! An increment on which plain Newton fails (diverges, inverts an element,
+//! runs out of iterations) is tried once more with damped steps before the
+//! driver cuts it back: pseudo-transient continuation, `(K + λ D) du = −r`
+//! with D the stabilization spring weights and λ fading with the residual
+//! (switched evolution relaxation). The damping enters the tangent only, so
+//! a converged state is the undamped equilibrium. It reaches equilibria that
+//! no smaller increment brings closer: a seal that breaks loose under fluid
+//! pressure and slides to its groove wall.
+//!
 //! Convergence needs the out-of-balance force relative to the force scale
 //! (norm of external plus reaction forces) below `force_tolerance`, and
 //! either the correction's energy `|du·r|` relative to the first one below
@@ -32,6 +41,20 @@ use crate::load::fluid::Fluids;
 use crate::load::follower::add_pressure;
 use crate::model::IncrementControls;
 use crate::results::SolveStats;
+
+/// Damping λ of the first damped step, as a multiple of the stabilization
+/// spring weights at factor 1 (μ V / h² per node: about the stiffness an
+/// element adds to its own nodes).
+pub const INITIAL_DAMPING: f64 = 1.0;
+
+/// Damping below which the steps are plain Newton again.
+pub const DAMPING_OFF: f64 = 1e-6;
+
+/// Largest damping (the steps then move little but always descend).
+pub const MAX_DAMPING: f64 = 1e6;
+
+/// Damped increments may take this many times the stage's Newton iterations.
+pub const DAMPED_BUDGET: usize = 5;
 
 /// Result of one increment attempt.
 #[derive(Debug)]
@@ -101,6 +124,12 @@ pub struct NewtonContext<'a> {
     /// The tangent `k` belongs to the last evaluation (false after a
     /// residual-only one).
     tangent_fresh: bool,
+    /// Pseudo-time damping of the Newton step: λ times [`Self::damping_weights`]
+    /// added to the tangent's diagonal only (0: plain Newton).
+    damping: f64,
+    /// Damping weight per dof (the stabilization springs' weights at factor 1),
+    /// built the first time an increment needs damped steps.
+    damping_weights: Vec<f64>,
 }
 
 /// A force characteristic of the model: the largest shear modulus times
@@ -176,6 +205,8 @@ impl<'a> NewtonContext<'a> {
             dq: Vec::new(),
             bonded_direction: vec![0.0; ndof],
             tangent_fresh: false,
+            damping: 0.0,
+            damping_weights: Vec::new(),
         }
     }
 
@@ -391,9 +422,29 @@ impl<'a> NewtonContext<'a> {
         observer: &mut dyn Observer,
         stats: &mut SolveStats,
     ) -> IncrementOutcome {
-        match self.try_increment(u, t, extrapolation, stage, increment, observer, stats) {
+        self.damping = 0.0;
+        let plain = self.try_increment(u, t, extrapolation, stage, increment, observer, stats);
+        let err = match plain {
+            Ok(o) => return o,
+            Err(e) if e.is_numerical() => e,
+            Err(e) => return IncrementOutcome::Failed(e),
+        };
+        // A load that pushes a part along a direction of little stiffness
+        // (a seal sliding to its groove wall, contact closing far away) has
+        // its equilibrium beyond Newton's reach from the last state, however
+        // small the increment. The same increment is tried again with damped
+        // steps before it is cut back.
+        observer.event(&Event::DampedRetry { stage, increment, reason: &err });
+        self.contacts.restore();
+        if self.damping_weights.is_empty() {
+            self.damping_weights = super::stabilization::dof_weights(self.disc, 1.0);
+        }
+        self.damping = INITIAL_DAMPING;
+        let damped = self.try_increment(u, t, extrapolation, stage, increment, observer, stats);
+        self.damping = 0.0;
+        match damped {
             Ok(o) => o,
-            Err(e) => IncrementOutcome::Failed(e),
+            Err(_) => IncrementOutcome::Failed(err),
         }
     }
 
@@ -453,8 +504,10 @@ impl<'a> NewtonContext<'a> {
         let mut residuals = Vec::new();
         let mut first_energy: Option<f64> = None;
         let mut iterations = 0;
-        let mut budget = c.max_iterations;
+        let per_solve = if self.damping > 0.0 { DAMPED_BUDGET * c.max_iterations } else { c.max_iterations };
+        let mut budget = per_solve;
         let mut augmentations = 0;
+        let mut previous_residual: Option<f64> = None;
         loop {
             if iterations >= budget {
                 let res = self.free_residual_norm();
@@ -469,6 +522,7 @@ impl<'a> NewtonContext<'a> {
                 // The last point was evaluated for its residual alone.
                 self.evaluate(u, t, true, false, stats)?;
             }
+            self.add_damping();
             let factorization = self.linear.factorize(SystemMatrix { lower: &self.k, skew: &self.skew })?;
             let kind = factorization.kind;
             if factorization.fallback {
@@ -551,9 +605,13 @@ impl<'a> NewtonContext<'a> {
             let scale = self.force_scale();
             let rel = res / scale;
             residuals.push(rel);
+
             observer.event(&Event::Iteration { iteration: iterations, residual: res, relative: rel, line_search: s, factor: kind });
             if !rel.is_finite() {
                 return Err(SolveError::NonFiniteResidual);
+            }
+            if let Some(before) = previous_residual.replace(res) {
+                self.update_damping(res / before);
             }
             let e0 = *first_energy.get_or_insert(energy_norm);
             let energy_ok = e0 == 0.0 || energy_norm * s <= c.energy_tolerance * e0;
@@ -578,7 +636,7 @@ impl<'a> NewtonContext<'a> {
                         return Ok(IncrementOutcome::Converged { iterations, residuals, energy });
                     }
                     // The wetted set changed: re-balance at the same load.
-                    budget = iterations + c.max_iterations;
+                    budget = iterations + per_solve;
                     first_energy = None;
                     continue;
                 }
@@ -590,7 +648,7 @@ impl<'a> NewtonContext<'a> {
                 }
                 self.contacts.augment();
                 augmentations += 1;
-                budget = iterations + c.max_iterations;
+                budget = iterations + per_solve;
                 first_energy = None;
                 self.dup.fill(0.0);
                 self.evaluate(u, t, true, false, stats)?;
@@ -607,12 +665,55 @@ impl<'a> NewtonContext<'a> {
         if !fluids.update_front(&contact, t) {
             return Ok(false);
         }
+
         if fluids.updates() > crate::load::fluid::FREE_UPDATES + fluids.facet_count() {
             return Err(SolveError::FluidFrontNotSettled { updates: fluids.updates() });
         }
         self.dup.fill(0.0);
         self.evaluate(u, t, true, false, stats)?;
         Ok(true)
+    }
+
+    /// Adds the pseudo-time damping λ·w to the diagonal of the tangent (not
+    /// to the residual: a converged state is the undamped equilibrium).
+    fn add_damping(&mut self) {
+        if self.damping <= 0.0 {
+            return;
+        }
+        for (d, &w) in self.damping_weights.iter().enumerate() {
+            let q = self.dofs.eq[d];
+            if w != 0.0 && q != NONE {
+                if let Some(slot) = self.pattern.slot(q, q) {
+                    self.k[slot] += self.damping * w;
+                }
+            }
+        }
+    }
+
+    /// Switched evolution relaxation of the damping (Mulder & van Leer 1985;
+    /// convergence shown by Kelley & Keyes 1998, "Convergence analysis of
+    /// pseudo-transient continuation", SIAM J. Numer. Anal. 35): λ follows the
+    /// ratio of successive residuals, so it fades as the iteration settles
+    /// (plain Newton, quadratic, once below [`DAMPING_OFF`]) and grows while
+    /// the residual grows.
+    fn update_damping(&mut self, ratio: f64) {
+        if self.damping_weights.is_empty() {
+            return;
+        }
+        self.damping = if self.damping == 0.0 {
+            if ratio > 10.0 {
+                INITIAL_DAMPING
+            } else {
+                0.0
+            }
+        } else {
+            let next = (self.damping * ratio).min(MAX_DAMPING);
+            if next < DAMPING_OFF {
+                0.0
+            } else {
+                next
+            }
+        };
     }
 
     /// `u = base + s·du` on the free dofs.

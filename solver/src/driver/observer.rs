@@ -54,6 +54,16 @@ pub enum Event<'a> {
         /// The factorization used instead of Cholesky.
         factor: FactorKind,
     },
+    /// Plain Newton failed on this increment (`reason`); it is tried again
+    /// with damped steps before any cutback.
+    DampedRetry {
+        /// Stage index (0-based).
+        stage: usize,
+        /// Increment of the stage (1-based).
+        increment: usize,
+        /// Why plain Newton failed.
+        reason: &'a SolveError,
+    },
     /// An increment failed and is retried smaller.
     Cutback {
         /// 0-based index of the stage.

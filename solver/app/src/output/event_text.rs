@@ -51,6 +51,9 @@ impl EventText {
                 }
                 format!("  iteration {iteration}: tangent not positive definite, solved with {factor:?}")
             }
+            Event::DampedRetry { increment, reason, .. } => {
+                format!("stage `{}` increment {increment}: retried with damped Newton steps ({reason})", self.stage)
+            }
             Event::Cutback { load_factor, step, reason, .. } => {
                 format!("stage `{}` cutback at load factor {load_factor:.4} ({reason}); retrying with increment {step:.3e}", self.stage)
             }

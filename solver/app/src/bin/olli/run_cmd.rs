@@ -106,7 +106,7 @@ impl Observer for Progress {
                         r.increment, r.load_factor, r.newton_iterations
                     ));
                 }
-                Event::LinearFallback { .. } => {}
+                Event::LinearFallback { .. } | Event::DampedRetry { .. } => {}
             },
         }
     }
