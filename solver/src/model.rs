@@ -359,6 +359,12 @@ pub const BODY_FORCE_RAMP: &str = "body_force";
 #[derive(Debug, Clone, Default)]
 pub struct Stage {
     pub name: String,
+    /// Time the stage takes (job's time unit, > 0): materials with memory
+    /// relax over it, increment by increment. `None` (default): the stage
+    /// takes no time and every material answers instantaneously. A stage
+    /// with a duration and no load change holds the motions while the
+    /// material relaxes.
+    pub duration: Option<f64>,
     pub controls: IncrementControls,
     pub supports: Vec<Support>,
     pub motions: Vec<Motion>,
