@@ -15,6 +15,9 @@
 //! Langevin function of [`langevin`]) and [`ogden`] (N terms in the principal
 //! stretches); volumetric laws in [`volumetric`]. The
 //! [`registry`] builds a [`Material`] from a model name and named constants.
+//! A [`Prony`] series ([`viscoelastic`]) makes the isochoric part of any of
+//! them viscoelastic; such a material keeps history variables per
+//! integration point ([`history`]).
 //! [`homogeneous`] computes uniaxial, equibiaxial, planar, simple-shear and
 //! volumetric responses through the general 3-D routine, and [`stability`]
 //! checks Drucker stability along them.
