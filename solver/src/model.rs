@@ -390,6 +390,12 @@ pub const BODY_FORCE_RAMP: &str = "body_force";
 pub struct Stage {
     /// Stage name (used in results and to key ramps).
     pub name: String,
+    /// Time the stage takes (job's time unit, > 0): materials with memory
+    /// relax over it, increment by increment. `None` (default): the stage
+    /// takes no time and every material answers instantaneously. A stage
+    /// with a duration and no load change holds the motions while the
+    /// material relaxes.
+    pub duration: Option<f64>,
     /// Increment sizes and growth: first, smallest and largest step of the stage.
     pub controls: IncrementControls,
     /// Components held at zero from this stage on.

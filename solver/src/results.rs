@@ -28,6 +28,23 @@ impl PointFields {
     }
 }
 
+/// History values of every element's integration points, `stride` values
+/// per element in element order (see [`crate::assembly::history`]).
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct HistoryValues {
+    /// Values per element.
+    pub stride: usize,
+    /// All values, element after element.
+    pub values: Vec<f64>,
+}
+
+impl HistoryValues {
+    /// The values of element `e`.
+    pub fn element(&self, e: usize) -> &[f64] {
+        &self.values[e * self.stride..(e + 1) * self.stride]
+    }
+}
+
 /// Point fields averaged to nodes (weighted by the integration-point volume
 /// of the elements around each node).
 #[derive(Debug, Clone, PartialEq, Default)]
@@ -58,6 +75,13 @@ pub struct IncrementResult {
     pub load_factor: f64,
     /// Size of this increment (fraction of the stage).
     pub step: f64,
+    /// Time at the end of the increment since the start of the run (job's
+    /// time unit; stages without a duration take none).
+    pub time: f64,
+    /// The converged history values of the integration points (materials
+    /// with memory): handed to observers with [`crate::driver::Event::Converged`]
+    /// so they can evaluate stresses, and dropped from the stored increments.
+    pub history: Option<HistoryValues>,
     /// Node displacements (2-D: third entry zero).
     pub displacement: Vec<[f64; 3]>,
     /// Reaction force summed over each named set (the sum of

@@ -47,7 +47,7 @@ fn mount_example_forces_match_its_note() {
     // Written history: one row per converged increment, with every column.
     let history = std::fs::read_to_string(scratch.0.join("history.csv")).unwrap();
     assert_eq!(history.lines().count(), 1 + solution.increments.len());
-    assert!(history.starts_with("stage,increment,load_factor,reaction_bottom_x,"));
+    assert!(history.starts_with("stage,increment,load_factor,time,reaction_bottom_x,"));
     // Its pictures (issue 13): each drawn at its size and not blank, the report
     // page well formed with every image present.
     let pictures = olli_verification::pictures::check_report(Some(&job), &scratch.0);

@@ -120,18 +120,18 @@ fn run_writes_history_summary_and_readable_frames() {
     let header = history.lines().next().unwrap();
     assert_eq!(
         header,
-        "stage,increment,load_factor,applied_pin_r,applied_pin_z,reaction_right_r,reaction_right_z,reaction_pin_r,reaction_pin_z,peak_max_principal_log_strain,peak_von_mises,min_volume_ratio,newton_iterations"
+        "stage,increment,load_factor,time,applied_pin_r,applied_pin_z,reaction_right_r,reaction_right_z,reaction_pin_r,reaction_pin_z,peak_max_principal_log_strain,peak_von_mises,min_volume_ratio,newton_iterations"
     );
     let rows: Vec<Vec<&str>> = history.lines().skip(1).map(|l| l.split(',').collect()).collect();
     assert!(rows.len() >= 4, "at least 1/max_increment = 4 increments");
     let last = rows.last().unwrap();
     assert_eq!(last[2].parse::<f64>().unwrap(), 1.0);
     // Equilibrium: what the pin takes, the sleeve gives back (axial, full 2π).
-    let (pin, sleeve): (f64, f64) = (last[8].parse().unwrap(), last[6].parse().unwrap());
+    let (pin, sleeve): (f64, f64) = (last[9].parse().unwrap(), last[7].parse().unwrap());
     assert!(pin > 0.0 && (pin + sleeve).abs() < 1e-6 * pin, "pin {pin}, sleeve {sleeve}");
     // The applied travel follows the linear ramp: 0.5 mm × load factor at every row.
     for row in &rows {
-        let (t, travel): (f64, f64) = (row[2].parse().unwrap(), row[4].parse().unwrap());
+        let (t, travel): (f64, f64) = (row[2].parse().unwrap(), row[5].parse().unwrap());
         assert!((travel - 0.5 * t).abs() < 1e-12, "travel {travel} at load factor {t}");
     }
 
@@ -594,10 +594,10 @@ fn insert_columns_summary_and_run_summary() {
     assert!(text(&out).contains("insert pin: z = 0.500000"), "{}", text(&out));
     let history = std::fs::read_to_string(s.out().join("history.csv")).unwrap();
     let header = history.lines().next().unwrap();
-    assert_eq!(header, "stage,increment,load_factor,reaction_right_r,reaction_right_z,insert_pin_z,insert_pin_force_z,peak_max_principal_log_strain,peak_von_mises,min_volume_ratio,newton_iterations");
+    assert_eq!(header, "stage,increment,load_factor,time,reaction_right_r,reaction_right_z,insert_pin_z,insert_pin_force_z,peak_max_principal_log_strain,peak_von_mises,min_volume_ratio,newton_iterations");
     let last: Vec<f64> = history.lines().last().unwrap().split(',').skip(1).map(|v| v.parse().unwrap()).collect();
     // The rubber pulls the pin back with what the sleeve holds (full 2π).
-    let (z, force, sleeve) = (last[4], last[5], last[3]);
+    let (z, force, sleeve) = (last[5], last[6], last[4]);
     assert_eq!(z, 0.5);
     assert!(force < 0.0 && (force - sleeve).abs() < 1e-6 * force.abs(), "pin {force}, sleeve {sleeve}");
     let summary: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(s.out().join("summary.json")).unwrap()).unwrap();
@@ -607,8 +607,8 @@ fn insert_columns_summary_and_run_summary() {
     let m = Scratch::new("insert-motion");
     assert_eq!(run(&m.job(BUSH), &m.out()).status.code(), Some(0));
     let h = std::fs::read_to_string(m.out().join("history.csv")).unwrap();
-    // Columns: stage, increment, load_factor, applied_pin_r, applied_pin_z, reaction_right_r, _z, reaction_pin_r, _z.
-    let pin: f64 = h.lines().last().unwrap().split(',').nth(8).unwrap().parse().unwrap();
+    // Columns: stage, increment, load_factor, time, applied_pin_r, applied_pin_z, reaction_right_r, _z, reaction_pin_r, _z.
+    let pin: f64 = h.lines().last().unwrap().split(',').nth(9).unwrap().parse().unwrap();
     assert!((pin + force).abs() < 1e-8 * pin, "motion {pin}, insert {force}");
 }
 
@@ -1086,4 +1086,60 @@ fn bad_rotations_are_located() {
         &BUSH.replace("displacement = { r = 0.0, z = 0.5 }", "rotation = { angle = 6.0, center = [0.0, 0.0] }"),
         &["an axisymmetric section cannot turn in its plane"],
     );
+}
+
+/// [`BUSH`] made of a viscoelastic rubber (`prony`), pushed at once and then
+/// held for 1000 time units.
+fn relaxing_bush() -> String {
+    BUSH.replace("bulk_modulus = 1000.0", "bulk_modulus = 1000.0\nprony = [[0.3, 1.0], [0.2, 50.0]]")
+        .replace("[[stage]]\nname = \"push\"", "[[stage]]\nname = \"push\"\nfirst_increment = 0.5\nmax_increment = 0.5")
+        + "\n[[stage]]\nname = \"hold\"\nduration = 1000.0\n"
+}
+
+#[test]
+fn a_held_stage_relaxes_over_its_duration_with_time_in_the_history() {
+    let s = Scratch::new("hold");
+    let out = run(&s.job(&relaxing_bush()), &s.out());
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out));
+    let history = std::fs::read_to_string(s.out().join("history.csv")).unwrap();
+    let header: Vec<&str> = history.lines().next().unwrap().split(',').collect();
+    assert_eq!(header[..4], ["stage", "increment", "load_factor", "time"]);
+    let col = header.iter().position(|c| *c == "reaction_pin_z").unwrap();
+    let rows: Vec<(String, f64, f64)> = history
+        .lines()
+        .skip(1)
+        .map(|l| {
+            let v: Vec<&str> = l.split(',').collect();
+            (v[0].to_string(), v[3].parse().unwrap(), v[col].parse().unwrap())
+        })
+        .collect();
+    // The push takes no time; the hold's time grows geometrically to its duration.
+    assert!(rows.iter().filter(|r| r.0 == "push").all(|r| r.1 == 0.0));
+    let hold: Vec<_> = rows.iter().filter(|r| r.0 == "hold").collect();
+    assert!(hold.len() > 10 && (hold.last().unwrap().1 - 1000.0).abs() < 1e-6, "{} rows", hold.len());
+    assert!(hold.windows(2).all(|w| w[1].1 > w[0].1 && w[1].2.abs() < w[0].2.abs()), "time grows and the force relaxes");
+    // After 20 times the longest relaxation time the force is the relaxed one:
+    // g∞ = 0.5 of the instantaneous force, within the redistribution of a
+    // nearly incompressible bush (common practice: a few per cent).
+    let (pushed, relaxed) = (rows.iter().rfind(|r| r.0 == "push").unwrap().2, hold.last().unwrap().2);
+    assert!((relaxed / pushed - 0.5).abs() < 0.03, "relaxed/pushed = {}", relaxed / pushed);
+}
+
+#[test]
+fn bad_prony_terms_and_durations_are_located() {
+    let prony = |terms: &str| relaxing_bush().replace("prony = [[0.3, 1.0], [0.2, 50.0]]", &format!("prony = {terms}"));
+    rejects(&prony("[[-0.1, 1.0]]"), &["job.toml:19:", "material `soft`", "prony", "positive"]);
+    rejects(&prony("[[0.6, 1.0], [0.4, 5.0]]"), &["job.toml:19:", "prony", "less than 1"]);
+    rejects(&prony("[[0.2, 0.0]]"), &["job.toml:19:", "prony", "tau_i"]);
+    rejects(&prony("[[0.2, 1.0, 3.0]]"), &["job.toml:19:", "each term is [g_i, tau_i], got 3 numbers"]);
+    rejects(
+        &relaxing_bush().replace("duration = 1000.0", "duration = -5.0"),
+        &["job.toml:", "stage `hold`", "`duration` must be a positive time"],
+    );
+}
+
+#[test]
+fn a_harmonic_stage_first_is_refused() {
+    let job = relaxing_bush().replace("name = \"push\"\n", "name = \"push\"\nharmonic = { frequencies = [1.0, 10.0] }\n");
+    rejects(&job, &["job.toml:", "stage `push`", "harmonic stage cannot come first"]);
 }

@@ -9,7 +9,8 @@ use rayon::prelude::*;
 use super::discretization::Discretization;
 use super::dofs::{DofMap, NONE};
 use super::error::AssemblyError;
-use super::kernel::{element_with_state_into, KernelError};
+use super::history::{ElementHistory, PointHistories};
+use super::kernel::{element_with_history_into, KernelError};
 use super::pattern::{Pattern, SKIP};
 use crate::element::MixedState;
 use crate::shape::MAX_NODES;
@@ -24,6 +25,8 @@ pub struct Assembler {
     status: Vec<Result<f64, KernelError>>,
     /// Stand-in states for condensed assembly, so both paths share one loop.
     unused_states: Vec<MixedState>,
+    /// Stand-in history (one value per element) for models without history.
+    unused_history: (Vec<f64>, Vec<f64>),
     /// Run the element loop on one thread (for the parallel/serial check).
     pub serial: bool,
 }
@@ -51,6 +54,10 @@ pub struct Outputs<'a> {
     /// global vectors `v` laid end to end, adds `K v_k` to `out` (same
     /// layout). Used for the rows and columns of constraint unknowns.
     pub products: Option<(&'a [f64], &'a mut [f64])>,
+    /// History variables of the integration points (materials with memory):
+    /// read at the last converged increment, written at `u`. `None`, or an
+    /// empty store, evaluates every material without history.
+    pub history: Option<&'a mut PointHistories>,
 }
 
 impl Assembler {
@@ -61,6 +68,7 @@ impl Assembler {
             fbuf: Vec::new(),
             status: vec![Ok(0.0); CHUNK],
             unused_states: vec![MixedState::default(); CHUNK],
+            unused_history: (vec![0.0; CHUNK], vec![0.0; CHUNK]),
             serial: false,
         }
     }
@@ -75,7 +83,10 @@ impl Assembler {
         u: &[f64],
         out: Outputs,
     ) -> Result<f64, AssemblyError> {
-        let Outputs { internal, mut tangent, mut predictor, mut mixed, mut products } = out;
+        let Outputs { internal, mut tangent, mut predictor, mut mixed, mut products, history } = out;
+        let mut history = history.filter(|h| !h.is_empty());
+        let time_step = history.as_ref().map_or(0.0, |h| h.time_step);
+        let hstride = history.as_ref().map_or(1, |h| h.stride());
         if let Some((_, out)) = products.as_mut() {
             out.fill(0.0);
         }
@@ -100,15 +111,21 @@ impl Assembler {
         while start < ne {
             let end = (start + CHUNK).min(ne);
             let count = end - start;
-            type Slot<'s> = (usize, (((&'s mut [f64], &'s mut [f64]), &'s mut Result<f64, KernelError>), &'s mut MixedState));
+            type Slot<'s> = (
+                usize,
+                (((((&'s mut [f64], &'s mut [f64]), &'s mut Result<f64, KernelError>), &'s mut MixedState), &'s [f64]), &'s mut [f64]),
+            );
             let carried = mixed.is_some();
-            let work = |(i, (((k, f), st), ms)): Slot| {
+            let with_history = history.is_some();
+            let work = |(i, (((((k, f), st), ms), previous), current)): Slot| {
                 let e = start + i;
                 let (mut x, mut ue) = ([[0.0; 3]; MAX_NODES], [[0.0; 3]; MAX_NODES]);
                 disc.gather(e, u, &mut x, &mut ue);
                 let ctx = disc.context(e);
                 let state = if carried { Some(ms) } else { None };
-                *st = element_with_state_into(&ctx, &x, &ue, f, if want_k { Some(k) } else { None }, state);
+                let mut element_history = ElementHistory { previous, current, time_step };
+                let history = if with_history { Some(&mut element_history) } else { None };
+                *st = element_with_history_into(&ctx, &x, &ue, f, if want_k { Some(k) } else { None }, state, history);
             };
             let kb = &mut self.kbuf[..count * kstride];
             let fb = &mut self.fbuf[..count * fstride];
@@ -117,13 +134,26 @@ impl Assembler {
                 Some(m) => &mut m[start..end],
                 None => &mut self.unused_states[..count],
             };
+            let (hp, hc): (&[f64], &mut [f64]) = match history.as_deref_mut() {
+                Some(h) => h.split(start, end),
+                None => (&self.unused_history.0[..count], &mut self.unused_history.1[..count]),
+            };
             if self.serial {
-                kb.chunks_mut(kstride).zip(fb.chunks_mut(fstride)).zip(sb.iter_mut()).zip(ms.iter_mut()).enumerate().for_each(work);
+                kb.chunks_mut(kstride)
+                    .zip(fb.chunks_mut(fstride))
+                    .zip(sb.iter_mut())
+                    .zip(ms.iter_mut())
+                    .zip(hp.chunks(hstride))
+                    .zip(hc.chunks_mut(hstride))
+                    .enumerate()
+                    .for_each(work);
             } else {
                 kb.par_chunks_mut(kstride)
                     .zip(fb.par_chunks_mut(fstride))
                     .zip(sb.par_iter_mut())
                     .zip(ms.par_iter_mut())
+                    .zip(hp.par_chunks(hstride))
+                    .zip(hc.par_chunks_mut(hstride))
                     .enumerate()
                     .for_each(work);
             }
@@ -262,7 +292,14 @@ mod tests {
                 &dofs,
                 &pattern,
                 &u,
-                Outputs { internal: &mut f, tangent: Some(&mut k), predictor: None, mixed: states.as_deref_mut(), products: None },
+                Outputs {
+                    internal: &mut f,
+                    tangent: Some(&mut k),
+                    predictor: None,
+                    mixed: states.as_deref_mut(),
+                    products: None,
+                    history: None,
+                },
             )
             .unwrap();
             (f, k, states)

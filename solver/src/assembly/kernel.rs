@@ -7,12 +7,13 @@
 
 use thiserror::Error;
 
+use super::history::ElementHistory;
 use crate::element::pressure_space::PressureSpace;
 use crate::element::{
     integrate_into, kinematics, point_states_into, Analysis, ElementError, ElementKinematics, Formulation, MixedState, PointResponse,
     PointState, Shape, VolumetricResponse, MAX_POINTS,
 };
-use crate::material::{Material, MaterialError};
+use crate::material::{Material, MaterialError, PointHistory};
 
 /// What one element needs besides its node positions and displacements.
 #[derive(Debug, Clone, Copy)]
@@ -88,11 +89,29 @@ fn volumetric(
 }
 
 /// The material's answer at every Gauss point: the isochoric part alone for
-/// the mixed form (it adds the element pressure itself), the full one otherwise.
-fn responses(material: &Material, mixed: bool, kin: &ElementKinematics, out: &mut [PointResponse]) -> Result<(), KernelError> {
+/// the mixed form (it adds the element pressure itself), the full one
+/// otherwise. A material with history reads and writes its values in
+/// `history` (point after point); one without is evaluated without it.
+fn responses(
+    material: &Material,
+    mixed: bool,
+    kin: &ElementKinematics,
+    history: Option<&mut ElementHistory>,
+    out: &mut [PointResponse],
+) -> Result<(), KernelError> {
+    let width = material.history_len();
+    let mut history = history.filter(|_| width > 0);
     for (q, (k, r)) in kin.points().iter().zip(out.iter_mut()).enumerate() {
         let c = k.right_cauchy_green();
-        let resp = if mixed { material.isochoric_response(&c) } else { material.response(&c) };
+        let resp = match history.as_deref_mut() {
+            Some(h) => {
+                let at = q * width..(q + 1) * width;
+                let mut point = PointHistory { previous: &h.previous[at.clone()], current: &mut h.current[at], time_step: h.time_step };
+                material.response_with_history(&c, !mixed, &mut point)
+            }
+            None if mixed => material.isochoric_response(&c),
+            None => material.response(&c),
+        };
         let resp = resp.map_err(|e| material_error(e, q, k.j))?;
         *r = PointResponse { energy: resp.energy, stress: resp.stress, tangent: resp.tangent };
     }
@@ -110,7 +129,13 @@ struct MaterialAt {
 }
 
 impl MaterialAt {
-    fn evaluate(ctx: &ElementContext, x: &[[f64; 3]], u: &[[f64; 3]], state: Option<&MixedState>) -> Result<Self, KernelError> {
+    fn evaluate(
+        ctx: &ElementContext,
+        x: &[[f64; 3]],
+        u: &[[f64; 3]],
+        state: Option<&MixedState>,
+        history: Option<&mut ElementHistory>,
+    ) -> Result<Self, KernelError> {
         let kinematics = kinematics(ctx.shape, ctx.analysis, x, u)?;
         let mixed = ctx.formulation == Formulation::Mixed;
         let mut out = MaterialAt {
@@ -122,7 +147,7 @@ impl MaterialAt {
         if mixed {
             out.volumetric_count = volumetric(ctx.material, &out.kinematics, state, &mut out.volumetric)?;
         }
-        responses(ctx.material, mixed, &out.kinematics, &mut out.responses)?;
+        responses(ctx.material, mixed, &out.kinematics, history, &mut out.responses)?;
         Ok(out)
     }
 
@@ -161,7 +186,21 @@ pub fn element_with_state_into(
     stiffness: Option<&mut [f64]>,
     state: Option<&mut MixedState>,
 ) -> Result<f64, KernelError> {
-    element_through(integrate_into, ctx, x, u, force, stiffness, state)
+    element_with_history_into(ctx, x, u, force, stiffness, state, None)
+}
+
+/// As [`element_with_state_into`], with the history of the element's
+/// integration points (materials with memory: see [`super::history`]).
+pub fn element_with_history_into(
+    ctx: &ElementContext,
+    x: &[[f64; 3]],
+    u: &[[f64; 3]],
+    force: &mut [f64],
+    stiffness: Option<&mut [f64]>,
+    state: Option<&mut MixedState>,
+    history: Option<&mut ElementHistory>,
+) -> Result<f64, KernelError> {
+    element_through(integrate_into, ctx, x, u, force, stiffness, state, history)
 }
 
 /// The element integration [`element_with_state_into`] hands the material's answers to.
@@ -174,7 +213,7 @@ pub(crate) type Integration = fn(
     Option<&mut MixedState>,
 ) -> Result<f64, ElementError>;
 
-/// [`element_with_state_into`] through a given element integration (the
+/// [`element_with_history_into`] through a given element integration (the
 /// kernel parity test passes the reference one).
 pub(crate) fn element_through(
     integration: Integration,
@@ -184,15 +223,31 @@ pub(crate) fn element_through(
     force: &mut [f64],
     stiffness: Option<&mut [f64]>,
     state: Option<&mut MixedState>,
+    history: Option<&mut ElementHistory>,
 ) -> Result<f64, KernelError> {
-    let at = MaterialAt::evaluate(ctx, x, u, state.as_deref())?;
+    let at = MaterialAt::evaluate(ctx, x, u, state.as_deref(), history)?;
     let state = if at.volumetric_count > 0 { state } else { None };
     Ok(integration(&at.kinematics, at.responses(), at.volumetric(), force, stiffness, state)?)
 }
 
 /// Per-point results of one element into `out` (length ≥ `shape.points()`).
 pub fn point_states(ctx: &ElementContext, x: &[[f64; 3]], u: &[[f64; 3]], out: &mut [PointState]) -> Result<(), KernelError> {
-    let at = MaterialAt::evaluate(ctx, x, u, None)?;
+    point_states_with_history(ctx, x, u, None, out)
+}
+
+/// As [`point_states`] for a converged state whose history values are
+/// `converged` (as stored for the element): the material is evaluated at a
+/// zero time step from them, which reproduces the converged stress.
+pub fn point_states_with_history(
+    ctx: &ElementContext,
+    x: &[[f64; 3]],
+    u: &[[f64; 3]],
+    converged: Option<&[f64]>,
+    out: &mut [PointState],
+) -> Result<(), KernelError> {
+    let mut scratch = converged.map(<[f64]>::to_vec);
+    let mut history = converged.zip(scratch.as_deref_mut()).map(|(previous, current)| ElementHistory { previous, current, time_step: 0.0 });
+    let at = MaterialAt::evaluate(ctx, x, u, None, history.as_mut())?;
     point_states_into(&at.kinematics, at.responses(), at.volumetric(), out)?;
     Ok(())
 }

@@ -3,8 +3,9 @@
 //! dofs ([`dofs`]), the sparse lower-triangle pattern with its
 //! element-to-storage scatter map built once per mesh and constraint set
 //! ([`pattern`]), the integration-point kernel ([`kernel`]), the carried
-//! unknowns of mixed elements ([`mixed`]) and the rayon-parallel element
-//! loop ([`assembler`]).
+//! unknowns of mixed elements ([`mixed`]), the history variables of
+//! materials with memory ([`history`]) and the rayon-parallel element loop
+//! ([`assembler`]).
 //!
 //! This is the one place where elements and materials meet: the element
 //! supplies kinematics per integration point, [`kernel`] evaluates the
@@ -15,6 +16,7 @@ pub mod discretization;
 pub mod dofs;
 pub mod error;
 pub mod global;
+pub mod history;
 pub mod kernel;
 pub mod mixed;
 pub mod pattern;
@@ -23,7 +25,10 @@ pub use assembler::Assembler;
 pub use discretization::Discretization;
 pub use dofs::DofMap;
 pub use error::AssemblyError;
-pub use kernel::{element_into, element_with_state_into, point_states, ElementContext, KernelError};
+pub use history::{ElementHistory, PointHistories};
+pub use kernel::{
+    element_into, element_with_history_into, element_with_state_into, point_states, point_states_with_history, ElementContext, KernelError,
+};
 pub use mixed::MixedUnknowns;
 pub use pattern::Pattern;
 

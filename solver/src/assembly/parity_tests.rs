@@ -43,7 +43,7 @@ fn symmetric_kernel_matches_the_full_reference() {
                     let (mut s_new, mut s_ref) = (state(()), state(()));
                     let w_new = element_with_state_into(&ctx, &x, &u, &mut f_new, Some(&mut k_new), s_new.as_mut()).unwrap();
                     let w_ref =
-                        element_through(integrate_with::<false>, &ctx, &x, &u, &mut f_ref, Some(&mut k_ref), s_ref.as_mut()).unwrap();
+                        element_through(integrate_with::<false>, &ctx, &x, &u, &mut f_ref, Some(&mut k_ref), s_ref.as_mut(), None).unwrap();
                     let what = format!("{name} {shape:?} {analysis:?} {formulation:?} carried {carried:?}");
                     assert_eq!(w_new, w_ref, "{what}: energy");
                     let (fs, ks) = (largest(&f_ref), largest(&k_ref));

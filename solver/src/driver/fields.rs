@@ -8,7 +8,7 @@ use rayon::prelude::*;
 use super::newton::NewtonContext;
 use super::stages::ReportSets;
 use crate::assembly::dofs::NONE;
-use crate::assembly::{point_states, Discretization};
+use crate::assembly::{point_states_with_history, Discretization, PointHistories};
 use crate::element::{Analysis, PointState};
 use crate::error::SolveError;
 use crate::results::{IncrementPeaks, IncrementResult, NodalFields, PointFields};
@@ -90,9 +90,15 @@ fn reaction_moments(
         .collect()
 }
 
-/// `result` with the peaks of every integration point at `u` and the
-/// point and nodal fields that the model's output settings keep.
-pub fn with_point_fields(disc: &Discretization, u: &[f64], mut result: IncrementResult) -> Result<IncrementResult, SolveError> {
+/// `result` with the peaks of every integration point at `u` (with the
+/// converged `history` of materials with memory) and the point and nodal
+/// fields that the model's output settings keep.
+pub fn with_point_fields(
+    disc: &Discretization,
+    u: &[f64],
+    history: &PointHistories,
+    mut result: IncrementResult,
+) -> Result<IncrementResult, SolveError> {
     let output = disc.model.output;
     let mesh = disc.mesh();
     let per: Vec<Result<Vec<PointState>, SolveError>> = (0..mesh.element_count())
@@ -102,7 +108,8 @@ pub fn with_point_fields(disc: &Discretization, u: &[f64], mut result: Increment
             disc.gather(e, u, &mut x, &mut ue);
             let ctx = disc.context(e);
             let mut out = vec![PointState::default(); ctx.shape.points()];
-            point_states(&ctx, &x, &ue, &mut out).map_err(|err| SolveError::from_element(e, err))?;
+            let converged = if history.is_empty() { None } else { Some(history.converged(e)) };
+            point_states_with_history(&ctx, &x, &ue, converged, &mut out).map_err(|err| SolveError::from_element(e, err))?;
             Ok(out)
         })
         .collect();

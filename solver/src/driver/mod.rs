@@ -22,7 +22,7 @@ pub use observer::{Event, Observer, Quiet};
 
 use std::time::Instant;
 
-use crate::assembly::{Discretization, DofMap, Pattern};
+use crate::assembly::{Discretization, DofMap, Pattern, PointHistories};
 use crate::contact::active::ActiveContacts;
 use crate::element::MixedState;
 use crate::error::SolveError;
@@ -30,7 +30,7 @@ use crate::insert::Inserts;
 use crate::linear::{self, LinearSolver, LinearStats, SymmetricPattern};
 use crate::load::fluid::Fluids;
 use crate::model::Model;
-use crate::results::{IncrementResult, Solution, SolveStats, Termination};
+use crate::results::{HistoryValues, IncrementResult, Solution, SolveStats, Termination};
 use newton::{IncrementOutcome, NewtonContext};
 use stages::{ReportSets, StageProgram};
 
@@ -50,6 +50,10 @@ struct RunState {
     u: Vec<f64>,
     /// Carried pressure/dilatation of the mixed elements (empty when condensed).
     mixed: Vec<MixedState>,
+    /// History variables of the integration points (empty without memory).
+    history: PointHistories,
+    /// Time at the last converged increment (job's time unit).
+    time: f64,
     contacts: ActiveContacts,
     /// Fluids whose wetted front follows the contact (may hold none).
     fluids: Fluids,
@@ -78,6 +82,8 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
     let mut run = RunState {
         u: vec![0.0; model.mesh.node_count() * disc.dim],
         mixed: Vec::new(),
+        history: PointHistories::new(&disc),
+        time: 0.0,
         contacts: ActiveContacts::new(&disc)?,
         fluids: Fluids::new(&disc)?,
         inserts: Inserts::new(&disc)?,
@@ -143,12 +149,15 @@ fn run_stage(
     if c.carry_pressure && run.mixed.is_empty() {
         run.mixed = vec![MixedState::default(); model.mesh.element_count()];
     }
-    let RunState { u, mixed, contacts, fluids, inserts, equations, increments, stats } = run;
+    let RunState { u, mixed, history: point_history, time, contacts, fluids, inserts, equations, increments, stats } = run;
+    let duration = stage.duration.unwrap_or(0.0);
+    let stage_start_time = *time;
     let eq = equations_for(disc, prog, equations, stats)?;
     observer.event(&Event::StageStart { stage: si, name: &stage.name, equations: eq.dofs.n_free });
     let mut ctx = NewtonContext::new(disc, &eq.dofs, &eq.pattern, eq.linear.as_mut(), prog, &start, c, &stage.name, contacts)
         .with_inserts(std::mem::take(inserts))
-        .with_fluids(fluids);
+        .with_fluids(fluids)
+        .with_history(std::mem::take(point_history));
     if c.carry_pressure {
         ctx = ctx.with_states(std::mem::take(mixed));
     }
@@ -160,6 +169,7 @@ fn run_stage(
     while t < 1.0 - 1e-12 {
         let step = dt.min(1.0 - t);
         observer.event(&Event::IncrementStart { stage: si, increment: count + 1, load_factor: t + step, step });
+        ctx.history.time_step = step * duration;
         let extrapolation = if c.extrapolate { history.as_ref().map(|(prev, h)| (prev.as_slice(), step / h)) } else { None };
         match ctx.increment(u, t + step, extrapolation, si, count + 1, observer, stats) {
             IncrementOutcome::Converged { iterations, residuals, energy } => {
@@ -183,17 +193,24 @@ fn run_stage(
                     increment: count,
                     load_factor: t,
                     step,
+                    time: stage_start_time + t * duration,
                     newton_iterations: iterations,
                     residual_history: residuals,
                     strain_energy: energy,
                     stabilization_share: share,
                     ..fields::increment_fields(disc, &ctx, u, t, report_sets)
                 };
-                let result = match fields::with_point_fields(disc, u, result) {
+                let mut result = match fields::with_point_fields(disc, u, &ctx.history, result) {
                     Ok(r) => r,
                     Err(e) => return Ok(Err(e)),
                 };
+                *time = result.time;
+                // Observers see the history (to evaluate stresses); stored increments do not keep it.
+                if !ctx.history.is_empty() {
+                    result.history = Some(HistoryValues { stride: ctx.history.stride(), values: ctx.history.all_converged().to_vec() });
+                }
                 observer.event(&Event::Converged(&result));
+                result.history = None;
                 if c.carry_pressure {
                     mixed.clone_from(&ctx.mixed.converged);
                 }
@@ -230,6 +247,7 @@ fn run_stage(
         }
     }
     *inserts = std::mem::take(&mut ctx.inserts);
+    *point_history = std::mem::take(&mut ctx.history);
     Ok(Ok(()))
 }
 

@@ -31,7 +31,7 @@ use super::stages::{arc_position, StageProgram, HOLD_AT_START, NO_ARC};
 use crate::assembly::assembler::Outputs;
 use crate::assembly::dofs::NONE;
 use crate::assembly::global::GlobalSystem;
-use crate::assembly::{Assembler, Discretization, DofMap, MixedUnknowns, Pattern};
+use crate::assembly::{Assembler, Discretization, DofMap, MixedUnknowns, Pattern, PointHistories};
 use crate::contact::active::{ActiveContacts, MAX_AUGMENTATIONS};
 use crate::element::MixedState;
 use crate::error::SolveError;
@@ -109,6 +109,9 @@ pub struct NewtonContext<'a> {
     pub mixed: MixedUnknowns,
     /// Bonded inserts (rigid-body constraints with their own unknowns).
     pub inserts: Inserts,
+    /// History variables of the integration points, with the time step of
+    /// the increment being solved (set by the stage loop).
+    pub history: PointHistories,
     /// Bonded dofs (driven by the inserts).
     bonded: Vec<bool>,
     /// Insert node directions J then equation weights W (each unknowns × dofs),
@@ -197,6 +200,7 @@ impl<'a> NewtonContext<'a> {
             fluids: None,
             mixed: MixedUnknowns::default(),
             inserts: Inserts::default(),
+            history: PointHistories::default(),
             bonded: vec![false; ndof],
             insert_vectors: Vec::new(),
             insert_products: Vec::new(),
@@ -227,6 +231,12 @@ impl<'a> NewtonContext<'a> {
     /// Starts from carried element states (from the previous stage).
     pub fn with_states(mut self, states: Vec<MixedState>) -> Self {
         self.mixed = MixedUnknowns::new(states);
+        self
+    }
+
+    /// Carries the history variables of materials with memory.
+    pub fn with_history(mut self, history: PointHistories) -> Self {
+        self.history = history;
         self
     }
 
@@ -282,6 +292,7 @@ impl<'a> NewtonContext<'a> {
                 predictor: if predict { Some((&self.dup, &mut self.rhs)) } else { None },
                 mixed: if self.mixed.is_empty() { None } else { Some(&mut self.mixed.current) },
                 products: if coupled { Some((&self.insert_vectors, &mut self.insert_products)) } else { None },
+                history: Some(&mut self.history),
             },
         );
         let energy = match energy {
@@ -633,6 +644,7 @@ impl<'a> NewtonContext<'a> {
                 if !self.contacts.needs_augmentation() {
                     if !self.fluid_front_moved(u, t, stats)? {
                         self.mixed.commit();
+                        self.history.commit();
                         return Ok(IncrementOutcome::Converged { iterations, residuals, energy });
                     }
                     // The wetted set changed: re-balance at the same load.

@@ -15,6 +15,9 @@
 //! Langevin function of [`langevin`]) and [`ogden`] (N terms in the principal
 //! stretches); volumetric laws in [`volumetric`]. The
 //! [`registry`] builds a [`Material`] from a model name and named constants.
+//! A [`Prony`] series ([`viscoelastic`]) makes the isochoric part of any of
+//! them viscoelastic; such a material keeps history variables per
+//! integration point ([`history`]).
 //! [`homogeneous`] computes uniaxial, equibiaxial, planar, simple-shear and
 //! volumetric responses through the general 3-D routine, and [`stability`]
 //! checks Drucker stability along them.
@@ -35,6 +38,7 @@ pub mod eight_chain;
 pub mod error;
 pub mod fd_check;
 pub mod gent;
+pub mod history;
 pub mod homogeneous;
 pub mod incompressible;
 pub mod invariants;
@@ -45,12 +49,15 @@ pub mod ogden;
 pub mod registry;
 pub mod stability;
 pub mod tensor;
+pub mod viscoelastic;
 pub mod volumetric;
 pub mod yeoh;
 
 pub use error::MaterialError;
+pub use history::PointHistory;
 pub use invariants::{isochoric_response, InvariantDerivatives, Kinematics};
 pub use tensor::{Tangent, Voigt};
+pub use viscoelastic::Prony;
 pub use volumetric::{VolumetricForm, VolumetricLaw};
 
 use nalgebra::Matrix3;
@@ -131,19 +138,35 @@ pub struct Response {
     pub tangent: Tangent,
 }
 
-/// One rubber compound: an isochoric model plus a volumetric law.
+/// One rubber compound: an isochoric model plus a volumetric law, and
+/// optionally a Prony series that makes the isochoric part viscoelastic
+/// ([`viscoelastic`]; the isochoric constants are then the instantaneous ones).
 #[derive(Debug)]
 pub struct Material {
     /// The isochoric (shape-changing) strain energy.
     pub isochoric: Box<dyn IsochoricModel>,
     /// The volumetric strain energy U(J).
     pub volumetric: VolumetricLaw,
+    /// Prony series of the isochoric part's relaxation (`None`: elastic).
+    pub viscoelastic: Option<Prony>,
 }
 
 impl Material {
-    /// A material from its two parts.
+    /// An elastic material (no history).
     pub fn new(isochoric: Box<dyn IsochoricModel>, volumetric: VolumetricLaw) -> Self {
-        Material { isochoric, volumetric }
+        Material { isochoric, volumetric, viscoelastic: None }
+    }
+
+    /// The same material with its isochoric part relaxing by `prony`.
+    pub fn with_prony(mut self, prony: Prony) -> Self {
+        self.viscoelastic = Some(prony);
+        self
+    }
+
+    /// History values per integration point (see [`history`]); 0 for an
+    /// elastic material, which is then evaluated without any.
+    pub fn history_len(&self) -> usize {
+        self.viscoelastic.as_ref().map_or(0, Prony::history_len)
     }
 
     /// Small-strain shear modulus μ.
@@ -171,10 +194,33 @@ impl Material {
     }
 
     /// The full response W, S = S_iso + J U'(J) C⁻¹ and its tangent, for
-    /// displacement-only elements and homogeneous tests.
+    /// displacement-only elements and homogeneous tests. A viscoelastic
+    /// material answers with its instantaneous (elastic) response.
     pub fn response(&self, c: &Matrix3<f64>) -> Result<Response, MaterialError> {
         let kin = Kinematics::new(c)?;
+        let r = self.isochoric.response(&kin)?;
+        self.add_volumetric(&kin, r)
+    }
+
+    /// As [`Self::isochoric_response`] (`full = false`) or
+    /// [`Self::response`] (`full = true`), with the history of the point: a
+    /// viscoelastic material relaxes its isochoric stress over
+    /// `history.time_step` and writes its trial history.
+    pub fn response_with_history(&self, c: &Matrix3<f64>, full: bool, history: &mut PointHistory) -> Result<Response, MaterialError> {
+        let kin = Kinematics::new(c)?;
         let mut r = self.isochoric.response(&kin)?;
+        if let Some(prony) = &self.viscoelastic {
+            r = prony.respond(r, history);
+        }
+        if full {
+            self.add_volumetric(&kin, r)
+        } else {
+            Ok(r)
+        }
+    }
+
+    /// `r` (an isochoric response) plus the volumetric law's energy, stress and tangent.
+    fn add_volumetric(&self, kin: &Kinematics, mut r: Response) -> Result<Response, MaterialError> {
         let (j, ci) = (kin.j, &kin.c_inv);
         let p = self.volumetric.pressure(j)?;
         let dp = self.volumetric.pressure_derivative(j)?;

@@ -18,7 +18,7 @@ use super::schema::{AnalysisKind, FormulationKind, JobFile, MaterialTable};
 use olli_solver::assembly::Discretization;
 use olli_solver::error::SolveError;
 use olli_solver::linear::LinearSettings;
-use olli_solver::material::{Material, MaterialError, VolumetricForm};
+use olli_solver::material::{Material, MaterialError, Prony, VolumetricForm};
 use olli_solver::model::{Analysis, Formulation, Model, OutputSettings, Region};
 use olli_solver::results::IncrementResult;
 
@@ -366,12 +366,27 @@ impl Builder<'_> {
         };
         let given = t.constants();
         let constants: Vec<(&str, f64)> = given.iter().map(|(k, v, _)| (*k, *v)).collect();
-        olli_solver::material::registry::material(model, &constants, form).map_err(|e| {
+        let material = olli_solver::material::registry::material(model, &constants, form).map_err(|e| {
             let span = material_error_key(&e)
                 .and_then(|k| given.iter().find(|(n, _, _)| *n == k).map(|(_, _, span)| span.clone()))
                 .unwrap_or_else(|| t.model.span());
             self.err(span, format!("material `{name}`: {e}"))
-        })
+        })?;
+        match &t.prony {
+            None => Ok(material),
+            Some(p) => {
+                let bad = |m: String| self.err(p.span(), format!("material `{name}`: {m}"));
+                let mut terms = Vec::with_capacity(p.get_ref().len());
+                for term in p.get_ref() {
+                    let &[g, tau] = term.as_slice() else {
+                        return Err(bad(format!("`prony`: each term is [g_i, tau_i], got {} numbers", term.len())));
+                    };
+                    terms.push([g, tau]);
+                }
+                let prony = Prony::new(&terms).map_err(|e| bad(e.to_string()))?;
+                Ok(material.with_prony(prony))
+            }
+        }
     }
 
     fn regions(&self, file: &JobFile, mesh: &Mesh, materials: &mut [JobMaterial]) -> Result<Vec<Region>, InputError> {

@@ -150,6 +150,10 @@ pub struct MaterialTable {
     pub bulk_modulus: Option<Spanned<f64>>,
     /// Poisson's ratio ν (just below 0.5 for rubber); give this or `bulk_modulus`.
     pub poisson_ratio: Option<Spanned<f64>>,
+    /// Prony series `[[g_i, tau_i], ...]` (modulus ratio, relaxation time in
+    /// the job's time unit) making the isochoric part viscoelastic; the
+    /// model's constants are then the instantaneous ones. Default: none.
+    pub prony: Option<Spanned<Vec<Vec<f64>>>>,
 }
 
 impl MaterialTable {
@@ -330,6 +334,13 @@ pub struct BodyForceSpec {
 pub struct StageSpec {
     /// Stage name, used by loads, motions and rigid moves to refer to it.
     pub name: Spanned<String>,
+    /// Time the stage takes (job's time unit; default: none, the stage is
+    /// instantaneous). A stage with a duration needs no load: it holds the
+    /// motions while viscoelastic materials relax.
+    pub duration: Option<Spanned<f64>>,
+    /// A small-amplitude harmonic stage about the state reached so far:
+    /// `{ frequencies = [...] }` (cycles per time unit).
+    pub harmonic: Option<Spanned<HarmonicSpec>>,
     /// First increment as a fraction of the stage (default 0.1).
     pub first_increment: Option<f64>,
     /// Smallest increment before the run stops (default 1e-5).
@@ -344,6 +355,14 @@ pub struct StageSpec {
     /// default 0: none; try 1e-3). Ties each node weakly to where it was at the
     /// last converged increment.
     pub stabilization: Option<f64>,
+}
+
+/// The frequencies of a harmonic stage.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct HarmonicSpec {
+    /// Frequencies (cycles per time unit), each positive.
+    pub frequencies: Vec<f64>,
 }
 
 /// What to write.

@@ -1,6 +1,6 @@
 //! The arrays of one result frame, computed from a converged displacement:
 //! integration-point states per element (the element kernel's own
-//! [`point_states`]), their volume-weighted element means (cell data), the
+//! [`point_states_with_history`]), their volume-weighted element means (cell data), the
 //! node averages of those means (point data), the nodal reaction forces, and
 //! the peak values the run summary reports.
 //!
@@ -11,10 +11,10 @@ use rayon::prelude::*;
 use serde::Serialize;
 
 use super::vtu::Field;
-use olli_solver::assembly::{point_states, Discretization};
+use olli_solver::assembly::{point_states_with_history, Discretization};
 use olli_solver::element::{PointState, MAX_POINTS};
 use olli_solver::error::SolveError;
-use olli_solver::results::{element_mean, nodal_average, nodal_quantities};
+use olli_solver::results::{element_mean, nodal_average, nodal_quantities, HistoryValues};
 use olli_solver::shape::MAX_NODES;
 
 pub use olli_solver::results::von_mises;
@@ -119,12 +119,20 @@ struct ElementResult {
 /// `reactions` are the solver's nodal reactions of the increment
 /// ([`olli_solver::IncrementResult::nodal_reactions`]), so the `reaction`
 /// array sums over a set to the summary's reaction of that set;
-/// `wanted` names the arrays to keep (see [`crate::job::FIELD_NAMES`]).
-pub fn frame(disc: &Discretization, u: &[f64], reactions: &[[f64; 3]], wanted: &[String]) -> Result<Frame, SolveError> {
+/// `history` holds the converged history values of materials with memory
+/// (their stresses depend on it); `wanted` names the arrays to keep (see
+/// [`crate::job::FIELD_NAMES`]).
+pub fn frame(
+    disc: &Discretization,
+    u: &[f64],
+    reactions: &[[f64; 3]],
+    history: Option<&HistoryValues>,
+    wanted: &[String],
+) -> Result<Frame, SolveError> {
     let mesh = disc.mesh();
     let dim = disc.dim;
     let per: Vec<Result<ElementResult, SolveError>> =
-        (0..mesh.element_count()).into_par_iter().map(|e| element_result(disc, e, u)).collect();
+        (0..mesh.element_count()).into_par_iter().map(|e| element_result(disc, e, u, history)).collect();
     let nn = mesh.node_count();
     let mut cell = Vec::with_capacity(per.len());
     let mut volumes = Vec::with_capacity(per.len());
@@ -190,13 +198,14 @@ fn merge(into: &mut Peaks, from: &mut Peaks) {
 }
 
 /// Point states, means and peaks of element `e`.
-fn element_result(disc: &Discretization, e: usize, u: &[f64]) -> Result<ElementResult, SolveError> {
+fn element_result(disc: &Discretization, e: usize, u: &[f64], history: Option<&HistoryValues>) -> Result<ElementResult, SolveError> {
     let (mut x, mut ue) = ([[0.0; 3]; MAX_NODES], [[0.0; 3]; MAX_NODES]);
     disc.gather(e, u, &mut x, &mut ue);
     let ctx = disc.context(e);
     let np = ctx.shape.points();
     let mut states = [PointState::default(); MAX_POINTS];
-    point_states(&ctx, &x, &ue, &mut states[..np]).map_err(|err| SolveError::from_element(e, err))?;
+    point_states_with_history(&ctx, &x, &ue, history.map(|h| h.element(e)), &mut states[..np])
+        .map_err(|err| SolveError::from_element(e, err))?;
     let (means, volume) = element_mean(&states[..np], |s| {
         let q = nodal_quantities(s);
         [q[0], q[1], q[2], q[3], q[4], q[5], q[6], q[7], q[8], q[9], von_mises(&s.cauchy)]
@@ -274,7 +283,7 @@ max_increment = 0.5
         let last = sol.last().unwrap();
         let disc = Discretization::new(&job.model).unwrap();
         let u: Vec<f64> = last.displacement.iter().flat_map(|d| d[..2].to_vec()).collect();
-        let f = frame(&disc, &u, &last.nodal_reactions, &["reaction".to_string()]).unwrap();
+        let f = frame(&disc, &u, &last.nodal_reactions, None, &["reaction".to_string()]).unwrap();
         // The top's reaction is the internal force less the applied 0.5 (x):
         // compare with the element forces summed over the top edge.
         let mut internal = [0.0; 2];

@@ -1,6 +1,8 @@
 //! `history.csv`: one row per converged increment.
 //!
-//! Columns: `stage`, `increment`, `load_factor`, then one column per named
+//! Columns: `stage`, `increment`, `load_factor`, `time` (since the start of
+//! the run, in the job's time unit: stages with a `duration` advance it),
+//! then one column per named
 //! force quantity (`reaction_<set>_<component>`, and later rigid-surface
 //! totals), then `newton_iterations`. The header row holds the column names
 //! alone so scripts can address them; units are listed in `summary.json` and
@@ -11,7 +13,7 @@ use std::fmt::Write;
 /// A growing table of increments, rewritten atomically after each one.
 #[derive(Debug, Clone, Default, PartialEq)]
 pub struct History {
-    /// Names of the value columns between `load_factor` and `newton_iterations`.
+    /// Names of the value columns between `time` and `newton_iterations`.
     pub columns: Vec<String>,
     rows: Vec<Row>,
 }
@@ -21,6 +23,7 @@ struct Row {
     stage: String,
     increment: usize,
     load_factor: f64,
+    time: f64,
     values: Vec<f64>,
     iterations: usize,
 }
@@ -31,10 +34,12 @@ impl History {
         History { columns, rows: Vec::new() }
     }
 
-    /// Appends a row; `values` follow `columns`.
-    pub fn push(&mut self, stage: &str, increment: usize, load_factor: f64, values: Vec<f64>, iterations: usize) {
+    /// Appends a row: the increment's stage, number within it, load factor
+    /// and time (`at`), then `values` following `columns`.
+    pub fn push(&mut self, stage: &str, at: (usize, f64, f64), values: Vec<f64>, iterations: usize) {
         debug_assert_eq!(values.len(), self.columns.len());
-        self.rows.push(Row { stage: stage.to_string(), increment, load_factor, values, iterations });
+        let (increment, load_factor, time) = at;
+        self.rows.push(Row { stage: stage.to_string(), increment, load_factor, time, values, iterations });
     }
 
     /// Number of rows (converged increments) recorded.
@@ -49,14 +54,14 @@ impl History {
 
     /// The CSV text.
     pub fn to_csv(&self) -> String {
-        let mut s = String::from("stage,increment,load_factor");
+        let mut s = String::from("stage,increment,load_factor,time");
         for c in &self.columns {
             s.push(',');
             s.push_str(&csv_text(c));
         }
         s.push_str(",newton_iterations\n");
         for r in &self.rows {
-            let _ = write!(s, "{},{},{:.10e}", csv_text(&r.stage), r.increment, r.load_factor);
+            let _ = write!(s, "{},{},{:.10e},{:.10e}", csv_text(&r.stage), r.increment, r.load_factor, r.time);
             for v in &r.values {
                 let _ = write!(s, ",{v:.10e}");
             }
@@ -85,11 +90,14 @@ mod tests {
     #[test]
     fn column_names_with_commas_quotes_and_newlines_are_quoted() {
         let mut h = History::new(vec!["reaction_a,b_x".into(), "reaction_say \"hi\"_y".into(), "reaction_two\nlines_z".into()]);
-        h.push("squeeze, then hold", 1, 0.5, vec![1.0, 2.0, 3.0], 4);
+        h.push("squeeze, then hold", (1, 0.5, 2.0), vec![1.0, 2.0, 3.0], 4);
         let csv = h.to_csv();
         let header =
-            "stage,increment,load_factor,\"reaction_a,b_x\",\"reaction_say \"\"hi\"\"_y\",\"reaction_two\nlines_z\",newton_iterations\n";
+            "stage,increment,load_factor,time,\"reaction_a,b_x\",\"reaction_say \"\"hi\"\"_y\",\"reaction_two\nlines_z\",newton_iterations\n";
         assert!(csv.starts_with(header), "{csv}");
-        assert!(csv.ends_with("\"squeeze, then hold\",1,5.0000000000e-1,1.0000000000e0,2.0000000000e0,3.0000000000e0,4\n"), "{csv}");
+        assert!(
+            csv.ends_with("\"squeeze, then hold\",1,5.0000000000e-1,2.0000000000e0,1.0000000000e0,2.0000000000e0,3.0000000000e0,4\n"),
+            "{csv}"
+        );
     }
 }

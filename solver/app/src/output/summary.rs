@@ -124,6 +124,7 @@ pub fn units(columns: &[String]) -> BTreeMap<String, String> {
         ("stage", "name"),
         ("increment", "count"),
         ("load_factor", "fraction of the stage (0 to 1)"),
+        ("time", "time unit of the job (prony relaxation times, stage durations)"),
         ("newton_iterations", "count"),
         ("peaks.displacement", "length"),
         ("peaks.max_principal_log_strain", "strain (ln of stretch)"),

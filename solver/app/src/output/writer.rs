@@ -189,7 +189,7 @@ impl<'m> ResultWriter<'m> {
         let p = &r.peaks;
         values.extend([p.max_principal_log_strain.value, p.von_mises.value, p.min_volume_ratio.value]);
         stage_peaks::record(&mut self.stage_peaks, r);
-        self.history.push(&r.stage_name, r.increment, r.load_factor, values, r.newton_iterations);
+        self.history.push(&r.stage_name, (r.increment, r.load_factor, r.time), values, r.newton_iterations);
         if r.stabilization_share > 0.01 && self.stabilization_share <= 0.01 {
             let line = format!(
                 "warning: stage `{}` increment {}: the stabilization springs carry {:.1} % of the force scale; lower `stabilization`",
@@ -217,7 +217,7 @@ impl<'m> ResultWriter<'m> {
         let (stage, increment, load_factor) = (r.stage, r.increment, r.load_factor);
         let dim = self.disc.dim;
         let u: Vec<f64> = r.displacement.iter().flat_map(|x| x[..dim].to_vec()).collect();
-        let mut f = frame(&self.disc, &u, &r.nodal_reactions, &self.job.output.fields).map_err(io::Error::other)?;
+        let mut f = frame(&self.disc, &u, &r.nodal_reactions, r.history.as_ref(), &self.job.output.fields).map_err(io::Error::other)?;
         if let Some(c) = r.contact_fields.as_ref().filter(|_| self.job.output.fields.iter().any(|w| w == "contact")) {
             f.point.push(Field::new("contact_pressure", 1, c.pressure.clone()));
             f.point.push(Field::new("contact_gap", 1, c.gap.clone()));
