@@ -254,6 +254,9 @@ pub struct IncrementControls {
     /// not held in every direction until contact closes (see
     /// [`crate::driver::stabilization`]). Default 0 (none).
     pub stabilization: f64,
+    /// Before an increment is cut back, solve it once more with damped
+    /// Newton steps (see [`crate::driver::newton`]). Default true.
+    pub damped_retry: bool,
 }
 
 impl Default for IncrementControls {
@@ -273,6 +276,7 @@ impl Default for IncrementControls {
             extrapolate: true,
             carry_pressure: true,
             stabilization: 0.0,
+            damped_retry: true,
         }
     }
 }

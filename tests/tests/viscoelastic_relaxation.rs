@@ -110,14 +110,15 @@ fn a_cutback_leaves_no_trace_in_the_history() {
     // ramped over the first quarter of a stage lasting 10 time units, with
     // only 3 Newton iterations allowed per increment: one run tries the whole
     // stage in one increment and cuts back until an increment converges; the
-    // other starts with that increment. From there both take the same
+    // other starts with that increment (no damped retry, so a failed
+    // attempt is cut back). From there both take the same
     // increments, so their forces must agree to the Newton tolerance, at the
     // end of the stage and of a later hold.
     let run = |first: f64| {
         let mut model = pressed_block(1.0, Some(&TERMS));
         model.stages[0].duration = Some(10.0);
         model.stages[0].ramps.insert("t1".into(), Ramp::Table(vec![(0.0, 0.0), (0.25, 1.0), (1.0, 1.0)]));
-        model.stages[0].controls = IncrementControls { first, max: 0.25, max_iterations: 3, ..Default::default() };
+        model.stages[0].controls = IncrementControls { first, max: 0.25, max_iterations: 3, damped_retry: false, ..Default::default() };
         let hold = IncrementControls { first: 1e-3, max: 0.25, ..Default::default() };
         model.stages.push(Stage { name: "hold".into(), duration: Some(100.0), controls: hold, ..Default::default() });
         let sol = solve(&model, &mut Quiet).unwrap();

@@ -437,7 +437,7 @@ impl<'a> NewtonContext<'a> {
         let plain = self.try_increment(u, t, extrapolation, stage, increment, observer, stats);
         let err = match plain {
             Ok(o) => return o,
-            Err(e) if e.is_numerical() => e,
+            Err(e) if e.is_numerical() && self.controls.damped_retry => e,
             Err(e) => return IncrementOutcome::Failed(e),
         };
         // A load that pushes a part along a direction of little stiffness
