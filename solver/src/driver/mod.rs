@@ -182,9 +182,9 @@ fn run_stage(
                 let share = ctx.stabilization_share(u);
                 ctx.last_converged.copy_from_slice(u);
                 ctx.contacts.commit();
-                let contact_pressure = ctx.contacts.fields(model.mesh.node_count()).pressure;
+                // Only a model with fluids needs the contact pressures here.
                 if let Some(f) = ctx.fluids.as_deref_mut() {
-                    f.commit(&contact_pressure);
+                    f.commit(&ctx.contacts.fields(model.mesh.node_count()).pressure);
                 }
                 ctx.inserts.commit();
                 let result = IncrementResult {
