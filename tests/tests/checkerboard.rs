@@ -12,10 +12,14 @@
 //! pressures of the cell's elements) is split into its checkerboard part
 //! c = |Σ P_ij (−1)^(i+j)| / Σ |P_ij|: about the relative amplitude of the
 //! checkerboard, and near zero for a smooth field, whose alternating sum
-//! cancels. Q1/P0 (quad4), the control, must show it; the pairs olli uses
+//! cancels. n is odd: the cavity's pressure is antisymmetric about x = 1/2
+//! (exactly so in the linear limit), and with n odd mirror cells carry the
+//! same sign, so even the large, opposite corner pressures cancel. Q1/P0 (quad4), the control, must show it; the pairs olli uses
 //! for the quadratic sections must not. The bounds are common practice for
 //! such a check (not from the paper): a checkerboard share below 5 % for the
-//! stable pairs, above 20 % for the control.
+//! stable pairs, above 20 % for the control (measured: quad4 0.995 on
+//! 15 × 15; quad9 0.003, tri6 0.010 and 0.006, quad8 0.005 on 9 × 9 and
+//! 15 × 15).
 
 use olli_mesh::ElementKind;
 use olli_solver::*;
@@ -48,7 +52,7 @@ fn checkerboard_share(kind: ElementKind, n: usize) -> f64 {
         }
     }
     let cells: Vec<f64> = pv.iter().zip(&vol).map(|(p, v)| p / v).collect();
-    let alternating: f64 = cells.iter().enumerate().map(|(k, p)| if (k / n + k % n) % 2 == 0 { *p } else { -p }).sum();
+    let alternating: f64 = cells.iter().enumerate().map(|(k, p)| if (k / n + k % n).is_multiple_of(2) { *p } else { -p }).sum();
     let share = alternating.abs() / cells.iter().map(|p| p.abs()).sum::<f64>();
     eprintln!("{kind} {n}×{n}: checkerboard share {share:.4}");
     share
@@ -56,13 +60,13 @@ fn checkerboard_share(kind: ElementKind, n: usize) -> f64 {
 
 #[test]
 fn checkerboard_quad4_constant_pressure_control_shows_it() {
-    assert!(checkerboard_share(ElementKind::Quad4, 16) > 0.2);
+    assert!(checkerboard_share(ElementKind::Quad4, 15) > 0.2);
 }
 
 #[test]
 fn checkerboard_quad9_tri6_quad8_pressures_are_smooth() {
     for kind in [ElementKind::Quad9, ElementKind::Tri6, ElementKind::Quad8] {
-        for n in [8, 16] {
+        for n in [9, 15] {
             let share = checkerboard_share(kind, n);
             assert!(share < 0.05, "{kind} {n}×{n}: checkerboard share {share}");
         }
