@@ -63,6 +63,9 @@ pub struct ContactPair {
     /// Faces whose reported pressure is recovered (see `recover_pressures`):
     /// piece index, the face's area and its nodes' shares of it.
     recovered: Vec<(usize, f64, Vec<f64>)>,
+    /// Every whole side, as local node indices in the side's own order (for
+    /// the current tributary areas, see [`ContactPair::true_pressures`]).
+    whole_sides: Vec<Vec<usize>>,
 }
 
 /// Evaluation of a whole pair at one iterate.
@@ -114,8 +117,10 @@ impl ContactPair {
         let mut sizes = vec![0.0; nodes.len()];
         let mut count = vec![0usize; nodes.len()];
         let mut recovered = Vec::new();
+        let mut whole_sides = Vec::with_capacity(sides.len());
         for &s in sides {
             let all = mesh.side_nodes(s);
+            whole_sides.push(all.iter().map(|&n| local(n)).collect());
             let x: Vec<Vector3<f64>> = all.iter().map(|&n| Vector3::from(mesh.nodes[n])).collect();
             let shares = tributary(&x, measure);
             for (&n, a) in all.iter().zip(&shares) {
@@ -144,7 +149,46 @@ impl ContactPair {
                 neighbours[k].push(e);
             }
         }
-        ContactPair { nodes, sides: polys, areas, sizes, penalties, params, states, measure, neighbours, recovered }
+        ContactPair { nodes, sides: polys, areas, sizes, penalties, params, states, measure, neighbours, recovered, whole_sides }
+    }
+
+    /// Tributary area of each node at the positions of evaluation `r`
+    /// (the deformed surface), in the same measure as [`ContactPair::areas`].
+    pub fn current_areas(&self, r: &PairResponse) -> Vec<f64> {
+        let mut areas = vec![0.0; self.nodes.len()];
+        if r.positions.len() != self.nodes.len() {
+            return areas;
+        }
+        for side in &self.whole_sides {
+            let x: Vec<Vector3<f64>> = side.iter().map(|&k| r.positions[k]).collect();
+            for (&k, a) in side.iter().zip(tributary(&x, self.measure)) {
+                areas[k] += a;
+            }
+        }
+        areas
+    }
+
+    /// The contact pressure of each node as a true (Cauchy) traction: its
+    /// force over its tributary area on the deformed surface. The law and
+    /// [`NodeResponse::pressure`] work per reference area (a nominal
+    /// pressure); where the rubber's surface stretches or shrinks in contact
+    /// the two differ by the area ratio, and a seal's contact pressure is
+    /// compared with a fluid pressure that acts on the deformed surface.
+    /// Nodes without area in either configuration keep the nominal value.
+    pub fn true_pressures(&self, r: &PairResponse) -> Vec<f64> {
+        let current = self.current_areas(r);
+        r.nodes
+            .iter()
+            .enumerate()
+            .map(|(k, n)| {
+                let (a0, a) = (self.areas[k], current[k]);
+                if a0 > 0.0 && a > 0.0 {
+                    n.pressure * a0 / a
+                } else {
+                    n.pressure
+                }
+            })
+            .collect()
     }
 
     /// Evaluates every node at the current positions (`position(node)` gives
