@@ -179,7 +179,8 @@ pub fn rigid_outlines_3d(job: &Job, current: &[[f64; 3]], time: f64, view: View)
                     continue;
                 }
                 let w = across.normalize() * *radius;
-                let (t0, t1) = corners.iter().map(|c| a.dot(&(c - origin))).fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), t| (l.min(t), h.max(t)));
+                let (t0, t1) =
+                    corners.iter().map(|c| a.dot(&(c - origin))).fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), t| (l.min(t), h.max(t)));
                 for s in [1.0, -1.0] {
                     out.push((body.name.clone(), vec![draw(&(origin + w * s + a * t0)), draw(&(origin + w * s + a * t1))]));
                 }

@@ -214,7 +214,15 @@ pub fn footprints(job: &Job, frame: &Frame, r: &RunResults, index: usize, headin
         for (name, p) in &fluids {
             title.push_str(&format!(", fluid `{name}` {} F/L²", number(*p)));
         }
-        let mut map = ContourPlot::new(title, u.clone(), v.clone(), Axis::new("contact pressure", "F/L²"), position.clone(), values.clone(), cells.clone());
+        let mut map = ContourPlot::new(
+            title,
+            u.clone(),
+            v.clone(),
+            Axis::new("contact pressure", "F/L²"),
+            position.clone(),
+            values.clone(),
+            cells.clone(),
+        );
         map.colors = colors;
         let touching: Vec<usize> = touching.iter().map(|&n| renumber(n)).collect();
         let profile_title = format!("{heading}: contact pressure on `{}` through the peak", body.name);
@@ -257,10 +265,13 @@ fn profile_chart(
         .collect();
     edges.sort_by(f64::total_cmp);
     let half = 0.5 * edges.get(edges.len() / 2).copied().unwrap_or(0.0);
-    let mut points: Vec<(f64, f64)> =
-        (0..position.len()).filter(|&n| (position[n][across] - position[peak][across]).abs() <= half).map(|n| (position[n][along], values[n])).collect();
+    let mut points: Vec<(f64, f64)> = (0..position.len())
+        .filter(|&n| (position[n][across] - position[peak][across]).abs() <= half)
+        .map(|n| (position[n][along], values[n]))
+        .collect();
     points.sort_by(|a, b| a.0.total_cmp(&b.0));
-    let mut chart = LineChart::new(title, axis, Axis::new("contact pressure", "F/L²")).with_series(Series::line("contact pressure", points.clone()));
+    let mut chart =
+        LineChart::new(title, axis, Axis::new("contact pressure", "F/L²")).with_series(Series::line("contact pressure", points.clone()));
     chart = chart.with_series(Series::points(format!("peak {} F/L²", number(values[peak])), vec![(position[peak][along], values[peak])]));
     let band: Vec<f64> = points.iter().filter(|p| p.1 > 0.0).map(|p| p.0).collect();
     if let (Some(first), Some(last)) = (band.first(), band.last()) {
