@@ -70,7 +70,8 @@ pub struct ContactSummary {
     /// Contact width (2-D: length of the touching band; 3-D: largest
     /// distance between touching nodes).
     pub contact_width: f64,
-    /// Largest contact pressure over the touching nodes (stress units).
+    /// Largest true contact pressure over the touching nodes (force per
+    /// deformed tributary area; stress units).
     pub peak_pressure: f64,
     /// Largest penetration of a node into the surface (length units, ≥ 0).
     pub max_penetration: f64,
@@ -81,7 +82,7 @@ pub struct ContactSummary {
 /// Nodal contact fields (every mesh node; zero where no contact).
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct ContactFields {
-    /// Contact pressure (force per tributary area).
+    /// True contact pressure (force per tributary area of the deformed surface).
     pub pressure: Vec<f64>,
     /// Signed gap to the nearest rigid body (0 for nodes of no contact set).
     pub gap: Vec<f64>,
@@ -297,7 +298,14 @@ impl ActiveContacts {
                 name: b.def.name.clone(),
                 force: [b.last.surface_force.x, b.last.surface_force.y, b.last.surface_force.z],
                 contact_width: b.pair.contact_width(&b.last),
-                peak_pressure: b.last.peak_pressure,
+                peak_pressure: b
+                    .pair
+                    .true_pressures(&b.last)
+                    .iter()
+                    .zip(&b.last.nodes)
+                    .filter(|(_, r)| r.status != Status::Open)
+                    .map(|(p, _)| *p)
+                    .fold(0.0, f64::max),
                 max_penetration: b.last.max_penetration,
                 touching_nodes: b.last.nodes.iter().filter(|r| r.status != Status::Open).count(),
             })
@@ -314,12 +322,13 @@ impl ActiveContacts {
         };
         let mut seen = vec![false; node_count];
         for b in &self.bodies {
+            let pressures = b.pair.true_pressures(&b.last);
             for (k, &n) in b.pair.nodes.iter().enumerate() {
-                let (Some(r), Some(&g)) = (b.last.nodes.get(k), b.last.gaps.get(k)) else { continue };
+                let (Some(r), Some(&g), Some(&p)) = (b.last.nodes.get(k), b.last.gaps.get(k), pressures.get(k)) else { continue };
                 let g = if g.is_finite() { g } else { 0.0 };
                 // A node in several pairs reports the one pressing hardest (or the nearest if none does).
-                if !seen[n] || r.pressure > f.pressure[n] || (f.pressure[n] == 0.0 && g < f.gap[n]) {
-                    f.pressure[n] = r.pressure;
+                if !seen[n] || p > f.pressure[n] || (f.pressure[n] == 0.0 && g < f.gap[n]) {
+                    f.pressure[n] = p;
                     f.gap[n] = g;
                     f.slip[n] = r.slip.norm();
                     f.status[n] = match r.status {
