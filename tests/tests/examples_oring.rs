@@ -21,7 +21,7 @@ fn oring_example_reaches_10_mpa_and_its_recorded_figures() {
     let scratch = Scratch::new("oring");
     let (solution, summary) = run_job(&job, &scratch.0);
     assert!(solution.completed(), "{:?}", solution.termination);
-    assert_eq!(summary.fluids["system"]["pressure"], 10.0);
+    assert!((summary.fluids["system"]["pressure"] - 10.0).abs() < 1e-9, "{}", summary.fluids["system"]["pressure"]);
     let bore = &summary.rigid["bore"];
     assert!(rel_diff(bore["r"], BORE_FORCE) < 2e-3, "{}", bore["r"]);
     assert!(rel_diff(bore["peak_pressure"], BORE_PEAK_PRESSURE) < 2e-3, "{}", bore["peak_pressure"]);
