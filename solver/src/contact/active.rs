@@ -11,6 +11,7 @@
 
 use nalgebra::{Matrix3, Vector3};
 
+use super::corner::CornerContacts;
 use super::law::{ContactParameters, NodeState, Status};
 use super::pair::{AreaMeasure, ContactPair, PairResponse};
 use super::surface::{Placement, RigidSurface};
@@ -58,6 +59,8 @@ struct Body {
     ramp: Ramp,
     surface: RigidSurface,
     last: PairResponse,
+    /// Convex corners of a 2-D profile against the rubber's edges.
+    corners: CornerContacts,
 }
 
 /// Per-rigid-body figures of one converged increment.
@@ -150,6 +153,13 @@ impl ActiveContacts {
             let surface = RigidSurface { shape: def.shape.clone(), placement: Placement::default() };
             pair.anchor_initial_contacts(mesh, &surface);
             let committed = pair.states.clone();
+            // The corners' penalty per unit ring length: the nodes' ε h, averaged.
+            let line_penalty = pair.penalties.iter().zip(&pair.sizes).map(|(e, h)| e * h).sum::<f64>() / pair.nodes.len().max(1) as f64;
+            let thickness = match model.analysis {
+                Analysis::PlaneStrain { thickness } => Some(thickness),
+                _ => None,
+            };
+            let corners = CornerContacts::new(mesh, sides, &def.shape, line_penalty, thickness);
             bodies.push(Body {
                 surface,
                 from: rest(&def.name),
@@ -160,6 +170,7 @@ impl ActiveContacts {
                 pair,
                 committed,
                 last: PairResponse::default(),
+                corners,
             });
         }
         // Motions must name existing bodies.
@@ -248,6 +259,16 @@ impl ActiveContacts {
                     system.add_stiffness(&gdofs[..dim], &block[..dim * dim], true);
                 }
             }
+            b.corners.evaluate(&b.surface, position);
+            for hit in &b.corners.hits {
+                let [na, nb] = hit.nodes;
+                let gdofs = [na * 2, na * 2 + 1, nb * 2, nb * 2 + 1];
+                system.add_force(&gdofs, hit.nodal_force.as_slice());
+                b.last.surface_force -= Vector3::new(hit.nodal_force[0] + hit.nodal_force[2], hit.nodal_force[1] + hit.nodal_force[3], 0.0);
+                if want_k {
+                    system.add_stiffness(&gdofs, hit.stiffness.as_slice(), true);
+                }
+            }
         }
     }
 
@@ -255,7 +276,8 @@ impl ActiveContacts {
     pub fn needs_augmentation(&self) -> bool {
         self.bodies.iter().any(|b| {
             let (pen, tol) = b.pair.worst_penetration_ratio(&b.last, b.tolerance);
-            pen > tol
+            let (corner, corner_tol) = b.corners.worst_penetration(b.tolerance);
+            pen > tol || corner > corner_tol
         })
     }
 
@@ -263,7 +285,7 @@ impl ActiveContacts {
     pub fn worst_penetration(&self) -> (f64, f64) {
         self.bodies
             .iter()
-            .map(|b| b.pair.worst_penetration_ratio(&b.last, b.tolerance))
+            .flat_map(|b| [b.pair.worst_penetration_ratio(&b.last, b.tolerance), b.corners.worst_penetration(b.tolerance)])
             .max_by(|a, b| (a.0 / a.1.max(f64::MIN_POSITIVE)).total_cmp(&(b.0 / b.1.max(f64::MIN_POSITIVE))))
             .unwrap_or((0.0, 0.0))
     }
@@ -272,6 +294,7 @@ impl ActiveContacts {
     pub fn augment(&mut self) {
         for b in &mut self.bodies {
             b.pair.augment(&b.last);
+            b.corners.augment();
         }
     }
 
@@ -280,6 +303,7 @@ impl ActiveContacts {
         for b in &mut self.bodies {
             b.pair.commit(&b.surface, &b.last);
             b.committed = b.pair.states.clone();
+            b.corners.commit();
         }
     }
 
@@ -287,6 +311,7 @@ impl ActiveContacts {
     pub fn restore(&mut self) {
         for b in &mut self.bodies {
             b.pair.states = b.committed.clone();
+            b.corners.restore();
         }
     }
 
@@ -337,6 +362,21 @@ impl ActiveContacts {
                         Status::Slip => 2,
                     };
                     seen[n] = true;
+                }
+            }
+        }
+        // A corner pressing into an edge: its force shared by the edge's
+        // nodes as a pressure on their tributary areas.
+        for b in &self.bodies {
+            for hit in &b.corners.hits {
+                for (n, share) in hit.nodes.into_iter().zip([1.0 - hit.xi, hit.xi]) {
+                    let Ok(k) = b.pair.nodes.binary_search(&n) else { continue };
+                    if b.pair.areas[k] > 0.0 && share > 0.0 {
+                        f.pressure[n] += hit.force * share / b.pair.areas[k];
+                        if f.status[n] == 0 {
+                            f.status[n] = 2;
+                        }
+                    }
                 }
             }
         }
