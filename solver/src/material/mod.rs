@@ -54,7 +54,7 @@ pub mod volumetric;
 pub mod yeoh;
 
 pub use error::MaterialError;
-pub use history::PointHistory;
+pub use history::{PointHistory, TangentKind};
 pub use invariants::{isochoric_response, InvariantDerivatives, Kinematics};
 pub use tensor::{Tangent, Voigt};
 pub use viscoelastic::Prony;
