@@ -1187,3 +1187,14 @@ fn bad_harmonic_stages_are_located() {
         &["job.toml:", "stage `vibrate`", "takes no `duration`"],
     );
 }
+
+#[test]
+fn bad_mullins_constants_are_located() {
+    let softened = |table: &str| BUSH.replace("bulk_modulus = 1000.0", &format!("bulk_modulus = 1000.0\nmullins = {table}"));
+    rejects(&softened("{ r = 1.0, m = 0.1 }"), &["job.toml:19:", "material `soft`", "mullins", "greater than 1"]);
+    rejects(&softened("{ r = 2.0, m = -0.1 }"), &["job.toml:19:", "mullins", "positive energy"]);
+    rejects(&softened("{ r = 2.0, m = 0.1, b = 0.1 }"), &["job.toml:19:", "b"]);
+    let s = Scratch::new("mullins");
+    let out = run(&s.job(&softened("{ r = 2.0, m = 0.1, beta = 0.05 }")), &s.out());
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out));
+}
