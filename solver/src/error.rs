@@ -15,6 +15,14 @@ use crate::model::ControlsError;
 /// Why a solve could not start, or why it stopped part-way.
 #[derive(Debug, Clone, PartialEq, Error)]
 pub enum SolveError {
+    /// A harmonic stage cannot be run as given.
+    #[error("harmonic stage `{stage}`: {reason}")]
+    Harmonic {
+        /// Name of the stage.
+        stage: String,
+        /// What is wrong.
+        reason: String,
+    },
     /// A stage names a set the mesh does not have.
     #[error("stage `{stage}`: no node, side or element set named `{name}`")]
     UnknownSet {

@@ -400,6 +400,9 @@ pub struct Stage {
     /// with a duration and no load change holds the motions while the
     /// material relaxes.
     pub duration: Option<f64>,
+    /// A small-amplitude harmonic stage about the state the stages before it
+    /// reached (see [`Harmonic`]); `None` (default): a static stage.
+    pub harmonic: Option<Harmonic>,
     /// Increment sizes and growth: first, smallest and largest step of the stage.
     pub controls: IncrementControls,
     /// Components held at zero from this stage on.
@@ -429,6 +432,17 @@ pub struct Stage {
     /// forces on that set; [`BODY_FORCE_RAMP`] for the body force), by
     /// rigid-body name (its motion) or by fluid name (its pressure). Loads not named here ramp linearly.
     pub ramps: std::collections::BTreeMap<String, Ramp>,
+}
+
+/// A harmonic stage: the model vibrates with small amplitudes about the
+/// converged state of the stage before it, at each frequency in turn. The
+/// stage's `motions` give the displacement amplitudes (not positions); every
+/// other prescribed dof and every insert is held; loads keep their values.
+/// The static state is left as it was, so later stages continue from it.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct Harmonic {
+    /// Frequencies (cycles per job time unit), each positive.
+    pub frequencies: Vec<f64>,
 }
 
 /// Fill-reducing ordering of the Cholesky factorization.

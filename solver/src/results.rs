@@ -231,6 +231,46 @@ pub struct Solution {
     pub termination: Termination,
     /// Counts and timings.
     pub stats: SolveStats,
+    /// The complex stiffness found by each harmonic stage, in stage order.
+    pub dynamic: Vec<DynamicResult>,
+}
+
+/// What a harmonic stage finds: the complex stiffness of every driven set
+/// and component at every frequency, about the preloaded state.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct DynamicResult {
+    /// 0-based stage index.
+    pub stage: usize,
+    /// Stage name.
+    pub stage_name: String,
+    /// Frequencies (cycles per job time unit), in the order given.
+    pub frequencies: Vec<f64>,
+    /// One entry per driven set and component.
+    pub stiffness: Vec<DynamicStiffness>,
+}
+
+/// The complex stiffness K* = K′ + i K″ of one driven set in one component:
+/// the amplitude of the force the set's nodes need (the sum of their
+/// reactions in that component) over the set's displacement amplitude in
+/// it, at each frequency. With several sets or components driven at once,
+/// each ratio includes the force the others cause (they move together).
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct DynamicStiffness {
+    /// Node set driven.
+    pub set: String,
+    /// Component index (0, 1, 2).
+    pub component: usize,
+    /// Storage stiffness K′ (in phase with the motion; force per length) per frequency.
+    pub storage: Vec<f64>,
+    /// Loss stiffness K″ (a quarter period ahead; force per length) per frequency.
+    pub loss: Vec<f64>,
+}
+
+impl DynamicStiffness {
+    /// The loss angle δ = atan2(K″, K′) in degrees at frequency index `k`.
+    pub fn loss_angle(&self, k: usize) -> f64 {
+        self.loss[k].atan2(self.storage[k]).to_degrees()
+    }
 }
 
 impl Solution {

@@ -160,3 +160,32 @@ fn plots_draw_every_mode_through_the_shared_module() {
     assert!(volumetric.contains("volumetric"));
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+#[test]
+fn a_material_with_memory_draws_relaxation_dynamic_moduli_and_a_mullins_cycle() {
+    let toml = write_toml(
+        "memory.toml",
+        "[material]\nmodel = \"neo-hookean\"\nshear_modulus = 0.8\nbulk_modulus = 2000\nprony = [[0.3, 0.01], [0.2, 10.0]]\nmullins = { r = 2.0, m = 0.1, beta = 0.05 }\n",
+    );
+    let dir = temp_path("memory-plots");
+    let out = olli(&[toml.to_str().unwrap(), "--plots", dir.to_str().unwrap(), "--format", "svg"]);
+    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
+    let read = |f: &str| std::fs::read_to_string(dir.join(f)).unwrap_or_else(|e| panic!("{f}: {e}"));
+    assert!(read("material_relaxation.svg").contains("relaxed modulus"));
+    let dynamic = read("material_dynamic_moduli.svg");
+    assert!(dynamic.contains("storage G′") && dynamic.contains("loss G″"));
+    assert!(read("material_loss_angle.svg").contains("loss angle δ"));
+    let cycle = read("material_mullins.svg");
+    for label in ["first loading to 1.5", "unloading from 1.5", "reloading to 2", "unloading from 2"] {
+        assert!(cycle.contains(label), "material_mullins.svg lacks `{label}`");
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+    // Bad memory keys are located in the file.
+    let bad = write_toml(
+        "bad-memory.toml",
+        "[material]\nmodel = \"neo-hookean\"\nshear_modulus = 0.8\nbulk_modulus = 2000\nprony = [[0.7, 1.0], [0.4, 2.0]]\n",
+    );
+    let out = olli(&[bad.to_str().unwrap()]);
+    assert_eq!(out.status.code(), Some(2), "{}", stderr(&out));
+    assert!(stderr(&out).contains(":5:") && stderr(&out).contains("less than 1"), "{}", stderr(&out));
+}

@@ -1211,4 +1211,58 @@ first_increment = 0.25
     // The profile through the peak: a flat pressure across the whole face (the deformed face is 1/√0.8 = 1.118 wide).
     let profile = std::fs::read_to_string(svg.join("contact_plate_1.svg")).unwrap();
     assert!(profile.contains("through the peak") && profile.contains("contact, 1.118 L across"), "{}", &profile[..600.min(profile.len())]);
+
+/// The relaxing bush, then vibrated in z about the relaxed push.
+fn vibrated_bush(frequencies: &str) -> String {
+    relaxing_bush()
+        + &format!(
+            "\n[[stage]]\nname = \"vibrate\"\nharmonic = {{ frequencies = {frequencies} }}\n\n[[motion]]\nnodes = \"pin\"\nstage = \"vibrate\"\ndisplacement = {{ z = 0.01 }}\n"
+        )
+}
+
+#[test]
+fn a_harmonic_stage_writes_the_dynamic_stiffness() {
+    let s = Scratch::new("vibrate");
+    let out = run(&s.job(&vibrated_bush("[0.001, 0.1, 10.0]")), &s.out());
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out));
+    let csv = std::fs::read_to_string(s.out().join("dynamic.csv")).unwrap();
+    let lines: Vec<&str> = csv.lines().collect();
+    assert_eq!(lines[0], "stage,frequency,pin_z_storage,pin_z_loss,pin_z_loss_angle");
+    assert_eq!(lines.len(), 4, "{csv}");
+    let rows: Vec<Vec<f64>> = lines[1..].iter().map(|l| l.split(',').skip(1).map(|v| v.parse().unwrap()).collect()).collect();
+    // Storage stiffness grows with frequency from the relaxed towards the
+    // instantaneous modulus (g∞ = 0.5): between 1e-3 and 10 per time unit
+    // (ωτ from 0.006 to 3000) it nearly doubles; every loss angle is positive.
+    assert!(rows.windows(2).all(|w| w[1][1] > w[0][1]), "{csv}");
+    assert!((rows[2][1] / rows[0][1] - 2.0).abs() < 0.1, "{csv}");
+    assert!(rows.iter().all(|r| r[2] > 0.0 && r[3] > 0.0 && r[3] < 45.0), "{csv}");
+    // The static history is untouched by the vibration: its last row is the hold's.
+    let history = std::fs::read_to_string(s.out().join("history.csv")).unwrap();
+    assert!(history.lines().last().unwrap().starts_with("hold,"), "{history}");
+}
+
+#[test]
+fn bad_harmonic_stages_are_located() {
+    rejects(&vibrated_bush("[]"), &["job.toml:", "stage `vibrate`", "`harmonic.frequencies` is empty"]);
+    rejects(&vibrated_bush("[1.0, -2.0]"), &["job.toml:", "stage `vibrate`", "must all be positive", "-2"]);
+    rejects(&vibrated_bush("[0.0]"), &["job.toml:", "stage `vibrate`", "must all be positive"]);
+    rejects(
+        &vibrated_bush("[1.0]").replace("displacement = { z = 0.01 }", "displacement = { z = 0.0 }"),
+        &["job.toml:", "harmonic stage `vibrate` drives nothing"],
+    );
+    rejects(
+        &vibrated_bush("[1.0]").replace("name = \"vibrate\"\n", "name = \"vibrate\"\nduration = 5.0\n"),
+        &["job.toml:", "stage `vibrate`", "takes no `duration`"],
+    );
+}
+
+#[test]
+fn bad_mullins_constants_are_located() {
+    let softened = |table: &str| BUSH.replace("bulk_modulus = 1000.0", &format!("bulk_modulus = 1000.0\nmullins = {table}"));
+    rejects(&softened("{ r = 1.0, m = 0.1 }"), &["job.toml:19:", "material `soft`", "mullins", "greater than 1"]);
+    rejects(&softened("{ r = 2.0, m = -0.1 }"), &["job.toml:19:", "mullins", "positive energy"]);
+    rejects(&softened("{ r = 2.0, m = 0.1, b = 0.1 }"), &["job.toml:19:", "b"]);
+    let s = Scratch::new("mullins");
+    let out = run(&s.job(&softened("{ r = 2.0, m = 0.1, beta = 0.05 }")), &s.out());
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out));
 }

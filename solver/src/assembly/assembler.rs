@@ -86,6 +86,7 @@ impl Assembler {
         let Outputs { internal, mut tangent, mut predictor, mut mixed, mut products, history } = out;
         let mut history = history.filter(|h| !h.is_empty());
         let time_step = history.as_ref().map_or(0.0, |h| h.time_step);
+        let tangent_kind = history.as_ref().map_or(Default::default(), |h| h.tangent);
         let hstride = history.as_ref().map_or(1, |h| h.stride());
         if let Some((_, out)) = products.as_mut() {
             out.fill(0.0);
@@ -123,7 +124,7 @@ impl Assembler {
                 disc.gather(e, u, &mut x, &mut ue);
                 let ctx = disc.context(e);
                 let state = if carried { Some(ms) } else { None };
-                let mut element_history = ElementHistory { previous, current, time_step };
+                let mut element_history = ElementHistory { previous, current, time_step, tangent: tangent_kind };
                 let history = if with_history { Some(&mut element_history) } else { None };
                 *st = element_with_history_into(&ctx, &x, &ue, f, if want_k { Some(k) } else { None }, state, history);
             };

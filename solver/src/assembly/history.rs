@@ -14,6 +14,7 @@
 //! cut-back increment never changes the history the next attempt starts from.
 
 use super::discretization::Discretization;
+use crate::material::TangentKind;
 
 /// History values of every element, at the last converged increment and at
 /// the current trial state.
@@ -26,6 +27,9 @@ pub struct PointHistories {
     /// Time from the last converged increment to the trial state (job's
     /// time unit); 0 for an instantaneous (load-only) stage.
     pub time_step: f64,
+    /// What the isochoric tangent of relaxing materials stands for
+    /// (default: the step's consistent tangent).
+    pub tangent: TangentKind,
 }
 
 /// One element's history for one evaluation.
@@ -37,6 +41,8 @@ pub struct ElementHistory<'a> {
     pub current: &'a mut [f64],
     /// Time of the increment (job's time unit; 0 in a stage without duration).
     pub time_step: f64,
+    /// What the isochoric tangent of a relaxing material stands for.
+    pub tangent: TangentKind,
 }
 
 impl PointHistories {
@@ -45,7 +51,13 @@ impl PointHistories {
     pub fn new(disc: &Discretization) -> Self {
         let n = disc.mesh().element_count();
         let stride = (0..n).map(|e| disc.context(e).material.history_len() * disc.shapes[e].points()).max().unwrap_or(0);
-        PointHistories { stride, converged: vec![0.0; stride * n], current: vec![0.0; stride * n], time_step: 0.0 }
+        PointHistories {
+            stride,
+            converged: vec![0.0; stride * n],
+            current: vec![0.0; stride * n],
+            time_step: 0.0,
+            tangent: TangentKind::Step,
+        }
     }
 
     /// Whether no material of the model keeps a history.

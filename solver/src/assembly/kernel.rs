@@ -106,7 +106,12 @@ fn responses(
         let resp = match history.as_deref_mut() {
             Some(h) => {
                 let at = q * width..(q + 1) * width;
-                let mut point = PointHistory { previous: &h.previous[at.clone()], current: &mut h.current[at], time_step: h.time_step };
+                let mut point = PointHistory {
+                    previous: &h.previous[at.clone()],
+                    current: &mut h.current[at],
+                    time_step: h.time_step,
+                    tangent: h.tangent,
+                };
                 material.response_with_history(&c, !mixed, &mut point)
             }
             None if mixed => material.isochoric_response(&c),
@@ -246,7 +251,12 @@ pub fn point_states_with_history(
     out: &mut [PointState],
 ) -> Result<(), KernelError> {
     let mut scratch = converged.map(<[f64]>::to_vec);
-    let mut history = converged.zip(scratch.as_deref_mut()).map(|(previous, current)| ElementHistory { previous, current, time_step: 0.0 });
+    let mut history = converged.zip(scratch.as_deref_mut()).map(|(previous, current)| ElementHistory {
+        previous,
+        current,
+        time_step: 0.0,
+        tangent: Default::default(),
+    });
     let at = MaterialAt::evaluate(ctx, x, u, None, history.as_mut())?;
     point_states_into(&at.kinematics, at.responses(), at.volumetric(), out)?;
     Ok(())

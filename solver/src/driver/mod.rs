@@ -11,6 +11,7 @@
 //! cleanly, keeping every converged increment.
 
 pub mod fields;
+pub mod harmonic;
 pub mod held;
 pub mod limit_point;
 pub mod newton;
@@ -30,7 +31,7 @@ use crate::insert::Inserts;
 use crate::linear::{self, LinearSolver, LinearStats, SymmetricPattern};
 use crate::load::fluid::Fluids;
 use crate::model::Model;
-use crate::results::{HistoryValues, IncrementResult, Solution, SolveStats, Termination};
+use crate::results::{DynamicResult, HistoryValues, IncrementResult, Solution, SolveStats, Termination};
 use newton::{IncrementOutcome, NewtonContext};
 use stages::{ReportSets, StageProgram};
 
@@ -61,6 +62,8 @@ struct RunState {
     inserts: Inserts,
     equations: Option<Equations>,
     increments: Vec<IncrementResult>,
+    /// What the harmonic stages found.
+    dynamic: Vec<DynamicResult>,
     stats: SolveStats,
 }
 
@@ -89,6 +92,7 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
         inserts: Inserts::new(&disc)?,
         equations: None,
         increments: Vec::new(),
+        dynamic: Vec::new(),
         stats: SolveStats::default(),
     };
     for (si, prog) in programs.iter().enumerate() {
@@ -146,10 +150,13 @@ fn run_stage(
     run.contacts.begin_stage(&stage.rigid_motions, &stage.ramps);
     run.fluids.begin_stage(stage);
     run.inserts.begin_stage(stage);
+    if stage.harmonic.is_some() {
+        return run_harmonic(disc, si, prog, run, observer);
+    }
     if c.carry_pressure && run.mixed.is_empty() {
         run.mixed = vec![MixedState::default(); model.mesh.element_count()];
     }
-    let RunState { u, mixed, history: point_history, time, contacts, fluids, inserts, equations, increments, stats } = run;
+    let RunState { u, mixed, history: point_history, time, contacts, fluids, inserts, equations, increments, stats, .. } = run;
     let duration = stage.duration.unwrap_or(0.0);
     let stage_start_time = *time;
     let eq = equations_for(disc, prog, equations, stats)?;
@@ -251,12 +258,31 @@ fn run_stage(
     Ok(Ok(()))
 }
 
+/// Runs harmonic stage `si` about the converged state ([`harmonic`]),
+/// leaving that state as it was.
+fn run_harmonic(
+    disc: &Discretization,
+    si: usize,
+    prog: &StageProgram,
+    run: &mut RunState,
+    observer: &mut dyn Observer,
+) -> Result<Result<(), SolveError>, SolveError> {
+    let name = &disc.model.stages[si].name;
+    observer.event(&Event::StageStart { stage: si, name, equations: 0 });
+    let preload =
+        harmonic::Preload { u: &run.u, contacts: &mut run.contacts, fluids: &run.fluids, inserts: &run.inserts, history: &mut run.history };
+    let result = harmonic::run(disc, si, prog, preload)?;
+    observer.event(&Event::Harmonic(&result));
+    run.dynamic.push(result);
+    Ok(Ok(()))
+}
+
 impl RunState {
     fn finish(mut self, termination: Termination) -> Solution {
         if let Some(eq) = self.equations.take() {
             add_linear_stats(&mut self.stats.linear, eq.linear.stats());
         }
-        Solution { increments: self.increments, termination, stats: self.stats }
+        Solution { increments: self.increments, termination, stats: self.stats, dynamic: self.dynamic }
     }
 }
 

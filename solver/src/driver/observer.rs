@@ -3,7 +3,7 @@
 
 use crate::error::SolveError;
 use crate::linear::FactorKind;
-use crate::results::IncrementResult;
+use crate::results::{DynamicResult, IncrementResult};
 
 /// One progress event.
 #[derive(Debug)]
@@ -77,6 +77,8 @@ pub enum Event<'a> {
     },
     /// An increment converged, with its results.
     Converged(&'a IncrementResult),
+    /// A harmonic stage finished, with the complex stiffness it found.
+    Harmonic(&'a DynamicResult),
 }
 
 /// Receives progress events.

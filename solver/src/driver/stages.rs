@@ -161,6 +161,11 @@ pub fn resolve(disc: &Discretization) -> Result<(Vec<StageProgram>, ReportSets),
         }
         for m in &stage.motions {
             let nodes = mesh.nodes_of_set(&m.set).ok_or_else(|| unknown(&m.set))?;
+            if stage.harmonic.is_some() {
+                // Amplitudes of the vibration, not positions: the static program holds.
+                report.insert(m.set.clone(), nodes);
+                continue;
+            }
             let ramp = ramp_for(&m.set);
             let r = if ramp == Ramp::Linear {
                 0

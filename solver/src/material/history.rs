@@ -21,4 +21,26 @@ pub struct PointHistory<'a> {
     /// Time elapsed since the last converged increment (job's time unit;
     /// 0 for a stage without duration: the response is instantaneous).
     pub time_step: f64,
+    /// What the isochoric tangent of a relaxing material stands for.
+    pub tangent: TangentKind,
+}
+
+/// What the isochoric tangent of a viscoelastic material stands for. Elastic
+/// materials ignore it. The frequency-domain kinds read the instantaneous
+/// tangent D⁰ of the converged state (evaluate them at a zero time step)
+/// and scale it by a part of the Prony series' complex modulus
+/// g*(ω) = g′ + i g″ ([`super::Prony::complex_modulus`]), so that a harmonic
+/// analysis assembles the storage stiffness with `Storage` and the loss
+/// stiffness as `Loss` minus `Without`.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub enum TangentKind {
+    /// The consistent tangent of the time step (Newton iterations). Default.
+    #[default]
+    Step,
+    /// D⁰ times the storage part g′(ω) (ω in rad per time unit).
+    Storage(f64),
+    /// D⁰ times the loss part g″(ω) (ω in rad per time unit).
+    Loss(f64),
+    /// No isochoric material tangent at all (D⁰ times 0).
+    Without,
 }

@@ -16,8 +16,9 @@
 //! stretches); volumetric laws in [`volumetric`]. The
 //! [`registry`] builds a [`Material`] from a model name and named constants.
 //! A [`Prony`] series ([`viscoelastic`]) makes the isochoric part of any of
-//! them viscoelastic; such a material keeps history variables per
-//! integration point ([`history`]).
+//! them viscoelastic, and [`Mullins`] softening ([`mullins`], Ogden–Roxburgh)
+//! softens it after its first loading; such a material keeps history
+//! variables per integration point ([`history`]).
 //! [`homogeneous`] computes uniaxial, equibiaxial, planar, simple-shear and
 //! volumetric responses through the general 3-D routine, and [`stability`]
 //! checks Drucker stability along them.
@@ -44,6 +45,7 @@ pub mod incompressible;
 pub mod invariants;
 pub mod langevin;
 pub mod mooney_rivlin;
+pub mod mullins;
 pub mod neo_hookean;
 pub mod ogden;
 pub mod registry;
@@ -54,8 +56,9 @@ pub mod volumetric;
 pub mod yeoh;
 
 pub use error::MaterialError;
-pub use history::PointHistory;
+pub use history::{PointHistory, TangentKind};
 pub use invariants::{isochoric_response, InvariantDerivatives, Kinematics};
+pub use mullins::Mullins;
 pub use tensor::{Tangent, Voigt};
 pub use viscoelastic::Prony;
 pub use volumetric::{VolumetricForm, VolumetricLaw};
@@ -149,12 +152,15 @@ pub struct Material {
     pub volumetric: VolumetricLaw,
     /// Prony series of the isochoric part's relaxation (`None`: elastic).
     pub viscoelastic: Option<Prony>,
+    /// Mullins softening of the isochoric part (`None`: none). Applied to
+    /// the elastic response before any relaxation.
+    pub mullins: Option<Mullins>,
 }
 
 impl Material {
     /// An elastic material (no history).
     pub fn new(isochoric: Box<dyn IsochoricModel>, volumetric: VolumetricLaw) -> Self {
-        Material { isochoric, volumetric, viscoelastic: None }
+        Material { isochoric, volumetric, viscoelastic: None, mullins: None }
     }
 
     /// The same material with its isochoric part relaxing by `prony`.
@@ -163,10 +169,25 @@ impl Material {
         self
     }
 
+    /// The same material softened after its first loading by `mullins`.
+    pub fn with_mullins(mut self, mullins: Mullins) -> Self {
+        self.mullins = Some(mullins);
+        self
+    }
+
     /// History values per integration point (see [`history`]); 0 for an
-    /// elastic material, which is then evaluated without any.
+    /// elastic material, which is then evaluated without any. Mullins
+    /// softening keeps its value first, then the Prony series its own.
     pub fn history_len(&self) -> usize {
-        self.viscoelastic.as_ref().map_or(0, Prony::history_len)
+        self.mullins_len() + self.viscoelastic.as_ref().map_or(0, Prony::history_len)
+    }
+
+    fn mullins_len(&self) -> usize {
+        if self.mullins.is_some() {
+            mullins::HISTORY_LEN
+        } else {
+            0
+        }
     }
 
     /// Small-strain shear modulus μ.
@@ -209,8 +230,20 @@ impl Material {
     pub fn response_with_history(&self, c: &Matrix3<f64>, full: bool, history: &mut PointHistory) -> Result<Response, MaterialError> {
         let kin = Kinematics::new(c)?;
         let mut r = self.isochoric.response(&kin)?;
+        let skip = self.mullins_len();
+        if let Some(m) = &self.mullins {
+            let (softened, w_max) = m.respond(r, history.previous[0]);
+            history.current[0] = w_max;
+            r = softened;
+        }
         if let Some(prony) = &self.viscoelastic {
-            r = prony.respond(r, history);
+            let mut rest = PointHistory {
+                previous: &history.previous[skip..],
+                current: &mut history.current[skip..],
+                time_step: history.time_step,
+                tangent: history.tangent,
+            };
+            r = prony.respond(r, &mut rest);
         }
         if full {
             self.add_volumetric(&kin, r)

@@ -34,7 +34,7 @@
 //! increment, then hᵢ of every term (each a symmetric tensor, 6 Voigt values).
 
 use super::error::MaterialError;
-use super::history::PointHistory;
+use super::history::{PointHistory, TangentKind};
 use super::tensor::{from_voigt, to_voigt, Voigt};
 use super::Response;
 
@@ -131,6 +131,12 @@ impl Prony {
             stress += h * p.ratio;
             tangent_factor += p.ratio * gamma;
         }
+        let tangent_factor = match history.tangent {
+            TangentKind::Step => tangent_factor,
+            TangentKind::Storage(omega) => self.complex_modulus(omega).0,
+            TangentKind::Loss(omega) => self.complex_modulus(omega).1,
+            TangentKind::Without => 0.0,
+        };
         Response { energy: elastic.energy, stress: from_voigt(&stress), tangent: elastic.tangent * tangent_factor }
     }
 }
@@ -154,9 +160,9 @@ mod tests {
     fn respond(m: &Material, c_prev: &Matrix3<f64>, c: &Matrix3<f64>, dt: f64, full: bool) -> Response {
         let n = m.history_len();
         let (zero, mut h1, mut h2) = (vec![0.0; n], vec![0.0; n], vec![0.0; n]);
-        let mut first = PointHistory { previous: &zero, current: &mut h1, time_step: 0.3 };
+        let mut first = PointHistory { previous: &zero, current: &mut h1, time_step: 0.3, tangent: TangentKind::Step };
         m.response_with_history(c_prev, full, &mut first).unwrap();
-        let mut second = PointHistory { previous: &h1, current: &mut h2, time_step: dt };
+        let mut second = PointHistory { previous: &h1, current: &mut h2, time_step: dt, tangent: TangentKind::Step };
         m.response_with_history(c, full, &mut second).unwrap()
     }
 
@@ -223,7 +229,7 @@ mod tests {
             // Steps grow geometrically, as in a hold stage; the first is the instantaneous load.
             for (k, dt) in std::iter::once(0.0).chain((0..40).map(|k| 1e-3 * 1.4f64.powi(k))).enumerate() {
                 t += dt;
-                let mut h = PointHistory { previous: &previous, current: &mut current, time_step: dt };
+                let mut h = PointHistory { previous: &previous, current: &mut current, time_step: dt, tangent: TangentKind::Step };
                 let s = m.response_with_history(&c, true, &mut h).unwrap().stress;
                 let sigma = f * s * f.transpose();
                 let expected = mu * gamma * (1.0 - 0.5 + terms.iter().map(|p| p[0] * (-t / p[1]).exp()).sum::<f64>());

@@ -18,7 +18,7 @@ use super::schema::{AnalysisKind, FormulationKind, JobFile, MaterialTable};
 use olli_solver::assembly::Discretization;
 use olli_solver::error::SolveError;
 use olli_solver::linear::LinearSettings;
-use olli_solver::material::{Material, MaterialError, Prony, VolumetricForm};
+use olli_solver::material::{Material, MaterialError, Mullins, Prony, VolumetricForm};
 use olli_solver::model::{Analysis, Formulation, Model, OutputSettings, Region};
 use olli_solver::results::IncrementResult;
 
@@ -372,6 +372,15 @@ impl Builder<'_> {
                 .unwrap_or_else(|| t.model.span());
             self.err(span, format!("material `{name}`: {e}"))
         })?;
+        let material = match &t.mullins {
+            None => material,
+            Some(spec) => {
+                let m = spec.get_ref();
+                let mullins =
+                    Mullins::new(m.r, m.m, m.beta).map_err(|e| self.err(spec.span(), format!("material `{name}`: `mullins`: {e}")))?;
+                material.with_mullins(mullins)
+            }
+        };
         match &t.prony {
             None => Ok(material),
             Some(p) => {

@@ -154,6 +154,22 @@ pub struct MaterialTable {
     /// the job's time unit) making the isochoric part viscoelastic; the
     /// model's constants are then the instantaneous ones. Default: none.
     pub prony: Option<Spanned<Vec<Vec<f64>>>>,
+    /// Mullins softening after the first loading (Ogden–Roxburgh 1999):
+    /// `{ r = ..., m = ..., beta = ... }`. Default: none.
+    pub mullins: Option<Spanned<MullinsSpec>>,
+}
+
+/// The constants of Ogden–Roxburgh softening (their names in the paper).
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct MullinsSpec {
+    /// r (> 1): the largest softening leaves 1 − 1/r of the stress.
+    pub r: f64,
+    /// m (stress units, > 0): the energy scale of the softening.
+    pub m: f64,
+    /// β (≥ 0, default 0): softening that grows with the largest energy.
+    #[serde(default)]
+    pub beta: f64,
 }
 
 impl MaterialTable {

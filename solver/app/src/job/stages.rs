@@ -11,7 +11,9 @@ use toml::Spanned;
 use super::build::Builder;
 use super::diagnostics::{nearest, InputError};
 use super::schema::{AnalysisKind, JobFile, RampSpec, RotationSpec, StageSpec};
-use olli_solver::model::{Force, IncrementControls, Insert, Motion, Pressure, Ramp, RotationMotion, Stage, Support, BODY_FORCE_RAMP};
+use olli_solver::model::{
+    Force, Harmonic, IncrementControls, Insert, Motion, Pressure, Ramp, RotationMotion, Stage, Support, BODY_FORCE_RAMP,
+};
 
 /// Default first increment of a stage with a duration (fraction of the
 /// stage): relaxation is fastest at the start, and increments then grow by
@@ -173,8 +175,9 @@ impl Builder<'_> {
             if file.stage[..i].iter().any(|o| o.get_ref().name.get_ref() == spec.name.get_ref()) {
                 return Err(self.err(spec.name.span(), format!("two stages are named `{}`", spec.name.get_ref())));
             }
-            let duration = self.duration(s, i == 0)?;
-            stages.push(Stage { name: spec.name.get_ref().clone(), duration, controls: self.controls(s)?, ..Default::default() });
+            let duration = self.duration(s)?;
+            let harmonic = self.harmonic(s, i == 0)?;
+            stages.push(Stage { name: spec.name.get_ref().clone(), duration, harmonic, controls: self.controls(s)?, ..Default::default() });
         }
         // A stage with a duration holds the loads while time passes.
         let mut loaded: Vec<bool> = stages.iter().map(|s| s.duration.is_some()).collect();
@@ -280,6 +283,7 @@ impl Builder<'_> {
         self.fluid_pressures(file, &mut stages, &mut loaded)?;
         let inserts = self.inserts(file, mesh, kind, &mut stages, &mut loaded)?;
         self.check_conflicts(file, mesh, kind, &stages, &inserts)?;
+        self.check_harmonic(file, &stages)?;
         if let Some(i) = loaded.iter().position(|&l| !l) {
             let name = &stages[i].name;
             return Err(self.err(
@@ -290,24 +294,75 @@ impl Builder<'_> {
         Ok((stages, inserts))
     }
 
-    /// The stage's `duration`, checked; a `harmonic` stage is refused here.
-    fn duration(&self, s: &Spanned<StageSpec>, first: bool) -> Result<Option<f64>, InputError> {
+    /// The stage's `duration`, checked.
+    fn duration(&self, s: &Spanned<StageSpec>) -> Result<Option<f64>, InputError> {
         let spec = s.get_ref();
         let name = spec.name.get_ref();
-        if let Some(h) = &spec.harmonic {
-            let message = if first {
-                format!("stage `{name}`: a harmonic stage cannot come first; it vibrates about the state a static stage before it reaches")
-            } else {
-                format!("stage `{name}`: harmonic stages are not available in this version of olli")
-            };
-            return Err(self.err(h.span(), message));
-        }
         let Some(d) = &spec.duration else { return Ok(None) };
         let value = *d.get_ref();
         if !(value.is_finite() && value > 0.0) {
             return Err(self.err(d.span(), format!("stage `{name}`: `duration` must be a positive time, got {value}")));
         }
         Ok(Some(value))
+    }
+
+    /// The stage's `harmonic` table, checked: not the first stage, no
+    /// duration, at least one frequency, each positive and finite.
+    fn harmonic(&self, s: &Spanned<StageSpec>, first: bool) -> Result<Option<Harmonic>, InputError> {
+        let spec = s.get_ref();
+        let name = spec.name.get_ref();
+        let Some(h) = &spec.harmonic else { return Ok(None) };
+        let bad = |m: String| Err(self.err(h.span(), format!("stage `{name}`: {m}")));
+        if first {
+            return bad("a harmonic stage cannot come first; it vibrates about the state a static stage before it reaches".into());
+        }
+        if spec.duration.is_some() {
+            return bad("a harmonic stage takes no `duration` (it vibrates about a state; give the hold as a stage before it)".into());
+        }
+        let frequencies = &h.get_ref().frequencies;
+        if frequencies.is_empty() {
+            return bad("`harmonic.frequencies` is empty; give at least one frequency (cycles per time unit)".into());
+        }
+        if let Some(f) = frequencies.iter().find(|f| !(f.is_finite() && **f > 0.0)) {
+            return bad(format!("`harmonic.frequencies` must all be positive (cycles per time unit), got {f}"));
+        }
+        Ok(Some(Harmonic { frequencies: frequencies.clone() }))
+    }
+
+    /// A harmonic stage is driven by motions alone (their displacements are
+    /// amplitudes): no other load, turn, release or rigid move, and at least
+    /// one non-zero amplitude.
+    fn check_harmonic(&self, file: &JobFile, stages: &[Stage]) -> Result<(), InputError> {
+        for (i, st) in stages.iter().enumerate().filter(|(_, st)| st.harmonic.is_some()) {
+            let other = [
+                (!st.pressures.is_empty(), "a [[pressure]]"),
+                (!st.forces.is_empty(), "a [[force]]"),
+                (st.body_force.is_some(), "a [[body_force]]"),
+                (!st.fluid_pressures.is_empty(), "a [[fluid]] pressure"),
+                (!st.rigid_motions.is_empty(), "a [[rigid]] move"),
+                (!st.inserts.is_empty(), "an [[insert]] drive (not supported yet: drive a set bonded to it)"),
+                (!st.rotations.is_empty(), "a turning [[motion]]"),
+                (!st.releases.is_empty(), "a release"),
+            ];
+            let span = file.stage[i].span();
+            if let Some((_, what)) = other.iter().find(|(has, _)| *has) {
+                return Err(self.err(
+                    span,
+                    format!("harmonic stage `{}` has {what}; a harmonic stage is driven by [[motion]] amplitudes alone", st.name),
+                ));
+            }
+            let driven = st.motions.iter().any(|m| m.displacement.iter().any(|v| v.is_some_and(|a| a != 0.0)));
+            if !driven {
+                return Err(self.err(
+                    span,
+                    format!(
+                        "harmonic stage `{}` drives nothing: give a [[motion]] with `stage = \"{}\"` and a non-zero `displacement` (the amplitude)",
+                        st.name, st.name
+                    ),
+                ));
+            }
+        }
+        Ok(())
     }
 
     fn controls(&self, s: &Spanned<StageSpec>) -> Result<IncrementControls, InputError> {

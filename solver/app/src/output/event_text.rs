@@ -57,6 +57,10 @@ impl EventText {
             Event::Cutback { load_factor, step, reason, .. } => {
                 format!("stage `{}` cutback at load factor {load_factor:.4} ({reason}); retrying with increment {step:.3e}", self.stage)
             }
+            Event::Harmonic(d) => {
+                let driven = d.stiffness.len();
+                format!("harmonic stage `{}`: {} frequencies, {driven} driven set components", d.stage_name, d.frequencies.len())
+            }
             Event::Converged(r) => {
                 let res = r.residual_history.last().copied().unwrap_or(0.0);
                 format!(

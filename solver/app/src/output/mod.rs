@@ -1,5 +1,6 @@
 //! Result files: `.vtu` per saved increment with a `.pvd` collection over the
-//! load factor, `history.csv`, `summary.json` and the run log.
+//! load factor, `history.csv`, `summary.json`, the run log, and
+//! `dynamic.csv` when the job has harmonic stages ([`dynamic`]).
 //!
 //! Every file is written atomically ([`atomic::write_atomic`]): to a temporary
 //! file in the same folder, then renamed into place, so an interrupted run
@@ -7,6 +8,7 @@
 //! solver observer that writes them as increments converge.
 
 pub mod atomic;
+pub mod dynamic;
 pub mod event_text;
 pub mod fields;
 pub mod history;

@@ -11,6 +11,7 @@ use std::io::{self, BufWriter, Write};
 use std::path::{Path, PathBuf};
 
 use super::atomic::write_atomic;
+use super::dynamic::{dynamic_csv, DYNAMIC_FILE};
 use super::event_text::EventText;
 use super::fields::{frame, Peaks};
 use super::history::History;
@@ -24,7 +25,7 @@ use crate::job::Job;
 use olli_solver::assembly::Discretization;
 use olli_solver::driver::{Event, Observer};
 use olli_solver::error::SolveError;
-use olli_solver::results::{IncrementResult, Solution, Termination};
+use olli_solver::results::{DynamicResult, IncrementResult, Solution, Termination};
 
 /// Names of the files in the output folder.
 pub const HISTORY_FILE: &str = "history.csv";
@@ -54,6 +55,8 @@ pub struct ResultWriter<'m> {
     last_increment: Option<IncrementRef>,
     /// Each stage's peaks over its converged increments so far.
     stage_peaks: BTreeMap<String, StagePeaks>,
+    /// What the harmonic stages found so far (`dynamic.csv`).
+    dynamic: Vec<DynamicResult>,
 }
 
 impl<'m> ResultWriter<'m> {
@@ -82,6 +85,7 @@ impl<'m> ResultWriter<'m> {
             stabilization_share: 0.0,
             last_increment: None,
             stage_peaks: BTreeMap::new(),
+            dynamic: Vec::new(),
         };
         w.log_line(&format!("olli {} run of {} ({})", env!("CARGO_PKG_VERSION"), job.path.display(), job.title));
         w.flush(|w| w.write(HISTORY_FILE, w.history.to_csv().as_bytes()));
@@ -400,7 +404,7 @@ fn is_result_name(name: &str, stem: &str) -> bool {
         .and_then(|r| r.strip_prefix('_'))
         .and_then(|r| r.strip_suffix(".vtu"))
         .is_some_and(|n| !n.is_empty() && n.bytes().all(|b| b.is_ascii_digit()));
-    frame || [SUMMARY_FILE, HISTORY_FILE, LOG_FILE].contains(&name) || name == format!("{stem}.pvd")
+    frame || [SUMMARY_FILE, HISTORY_FILE, LOG_FILE, DYNAMIC_FILE].contains(&name) || name == format!("{stem}.pvd")
 }
 
 /// True for a temporary file of [`write_atomic`] for a listed file (`.<name>.<pid>.tmp`).
@@ -494,6 +498,11 @@ impl Observer for ResultWriter<'_> {
         }
         match event {
             Event::Converged(r) => self.converged(r),
+            Event::Harmonic(d) => {
+                self.dynamic.push((*d).clone());
+                let text = dynamic_csv(&self.dynamic, self.job.components());
+                self.flush(|w| w.write(DYNAMIC_FILE, text.as_bytes()));
+            }
             Event::Cutback { .. } => self.flush(|w| w.log.flush()),
             _ => {}
         }

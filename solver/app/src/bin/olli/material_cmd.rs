@@ -9,6 +9,7 @@
 //! [`olli_solver::material::stability`]); this module only reads input and
 //! writes output. Exit codes: 0 success, 2 bad input or unwritable output.
 
+mod memory_plots;
 mod output;
 mod plots;
 mod spec;
@@ -133,6 +134,10 @@ pub fn run(args: Args) -> ExitCode {
     }
     if let Some(dir) = &args.plots {
         match plots::write_plots(dir, &spec.describe(), &results, args.format) {
+            Ok(files) => files.iter().for_each(|f| println!("wrote {}", dir.join(f).display())),
+            Err(e) => return fail(e),
+        }
+        match memory_plots::write_memory_plots(dir, &spec.describe(), &material, args.format) {
             Ok(files) => files.iter().for_each(|f| println!("wrote {}", dir.join(f).display())),
             Err(e) => return fail(e),
         }

@@ -106,6 +106,9 @@ impl Observer for Progress {
                         r.increment, r.load_factor, r.newton_iterations
                     ));
                 }
+                Event::Harmonic(d) => {
+                    bar.set_position(((d.stage + 1) * 1000) as u64);
+                }
                 Event::LinearFallback { .. } | Event::DampedRetry { .. } => {}
             },
         }

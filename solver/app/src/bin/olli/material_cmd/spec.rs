@@ -9,12 +9,12 @@ use std::ops::Range;
 use olli_app::job::build::material_error_key;
 use olli_app::job::diagnostics::{line_column, nearest};
 use olli_solver::material::registry::{self, ALL_CONSTANTS, LIST_CONSTANTS, MODEL_NAMES};
-use olli_solver::material::{Material, MaterialError, VolumetricForm};
+use olli_solver::material::{Material, MaterialError, Mullins, Prony, VolumetricForm};
 use thiserror::Error;
 use toml::de::{DeTable, DeValue};
 
 /// Keys of a `[material]` table besides the constants.
-const TABLE_KEYS: &[&str] = &["model", "volumetric"];
+const TABLE_KEYS: &[&str] = &["model", "volumetric", "prony", "mullins"];
 const VOLUMETRIC_NAMES: &str = "quadratic, logarithmic, simo-taylor";
 
 /// A material as given by the user, before it is built.
@@ -27,6 +27,10 @@ pub struct MaterialSpec {
     origins: Vec<(&'static str, String)>,
     /// Where the whole material came from (a file path or "options").
     pub source: String,
+    /// Prony terms `[g_i, tau_i]` (file key `prony`), if given.
+    pub prony: Option<Vec<[f64; 2]>>,
+    /// Ogden–Roxburgh constants r, m, beta (file key `mullins`), if given.
+    pub mullins: Option<[f64; 3]>,
 }
 
 /// Bad input: the message names the file (or option), the position and the key.
@@ -119,6 +123,7 @@ impl MaterialSpec {
         let mut volumetric = VolumetricForm::Quadratic;
         let mut constants = Vec::new();
         let mut origins = Vec::new();
+        let (mut prony, mut mullins) = (None, None);
         for (key, value) in entries {
             let name = key.get_ref().as_ref();
             let here = at(key.span());
@@ -134,6 +139,35 @@ impl MaterialSpec {
                     }
                     origins.push(("model", here));
                     model = Some(m);
+                }
+                "prony" => {
+                    let terms: Option<Vec<[f64; 2]>> = match value.get_ref() {
+                        DeValue::Array(items) if !items.is_empty() => items
+                            .iter()
+                            .map(|t| match t.get_ref() {
+                                DeValue::Array(pair) if pair.len() == 2 => {
+                                    Some([toml_number(pair[0].get_ref())?, toml_number(pair[1].get_ref())?])
+                                }
+                                _ => None,
+                            })
+                            .collect(),
+                        _ => None,
+                    };
+                    let expected = "an array of [g_i, tau_i] pairs";
+                    prony = Some(terms.ok_or_else(|| SpecError::WrongType { at: here.clone(), key: name.to_string(), expected })?);
+                    origins.push(("prony", here));
+                }
+                "mullins" => {
+                    let expected = "a table { r = ..., m = ..., beta = ... } of numbers";
+                    let wrong = || SpecError::WrongType { at: here.clone(), key: name.to_string(), expected };
+                    let DeValue::Table(t) = value.get_ref() else { return Err(wrong()) };
+                    let mut c = [f64::NAN, f64::NAN, 0.0];
+                    for (k, v) in t.iter() {
+                        let i = ["r", "m", "beta"].iter().position(|n| *n == k.get_ref().as_ref()).ok_or_else(wrong)?;
+                        c[i] = toml_number(v.get_ref()).ok_or_else(wrong)?;
+                    }
+                    mullins = Some(c);
+                    origins.push(("mullins", here));
                 }
                 "volumetric" => {
                     let v = text_value("a string: quadratic, logarithmic or simo-taylor")?;
@@ -171,7 +205,7 @@ impl MaterialSpec {
             }
         }
         let model = model.ok_or_else(|| SpecError::MissingModel { at: at(table_span) })?;
-        Ok(MaterialSpec { model, constants, volumetric, origins, source: path.to_string() })
+        Ok(MaterialSpec { model, constants, volumetric, origins, source: path.to_string(), prony, mullins })
     }
 
     /// A material from `--model NAME --param KEY=VALUE ...`.
@@ -203,17 +237,28 @@ impl MaterialSpec {
             constants.push((constant, value));
             origins.push((constant, format!("option --param {text}")));
         }
-        Ok(MaterialSpec { model: model.to_string(), constants, volumetric, origins, source: "options".into() })
+        Ok(MaterialSpec { model: model.to_string(), constants, volumetric, origins, source: "options".into(), prony: None, mullins: None })
     }
 
     /// Builds the material; a bad constant is reported where it was given.
     pub fn build(&self) -> Result<Material, SpecError> {
-        registry::material(&self.model, &self.constants, self.volumetric).map_err(|source| {
-            let at = material_error_key(&source)
+        let located = |key: Option<&str>, source: MaterialError| {
+            let at = key
                 .and_then(|k| self.origins.iter().rev().find(|(n, _)| *n == k).map(|(_, o)| o.clone()))
                 .unwrap_or_else(|| self.source.clone());
             SpecError::Material { at, source }
-        })
+        };
+        let mut material = registry::material(&self.model, &self.constants, self.volumetric).map_err(|e| {
+            let key = material_error_key(&e).map(str::to_string);
+            located(key.as_deref(), e)
+        })?;
+        if let Some([r, m, beta]) = self.mullins {
+            material = material.with_mullins(Mullins::new(r, m, beta).map_err(|e| located(Some("mullins"), e))?);
+        }
+        if let Some(terms) = &self.prony {
+            material = material.with_prony(Prony::new(terms).map_err(|e| located(Some("prony"), e))?);
+        }
+        Ok(material)
     }
 
     /// The constants as `name = value` for the report header (a list
