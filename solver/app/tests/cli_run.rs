@@ -1211,6 +1211,7 @@ first_increment = 0.25
     // The profile through the peak: a flat pressure across the whole face (the deformed face is 1/√0.8 = 1.118 wide).
     let profile = std::fs::read_to_string(svg.join("contact_plate_1.svg")).unwrap();
     assert!(profile.contains("through the peak") && profile.contains("contact, 1.118 L across"), "{}", &profile[..600.min(profile.len())]);
+}
 
 /// The relaxing bush, then vibrated in z about the relaxed push.
 fn vibrated_bush(frequencies: &str) -> String {
