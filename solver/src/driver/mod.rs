@@ -29,7 +29,7 @@ use crate::error::SolveError;
 use crate::insert::Inserts;
 use crate::linear::{self, LinearSolver, LinearStats, SymmetricPattern};
 use crate::load::fluid::Fluids;
-use crate::model::{Model, Stage};
+use crate::model::{Model, SettingsError, Stage};
 use crate::results::{HistoryValues, IncrementResult, Solution, SolveStats, Termination};
 use newton::{IncrementOutcome, NewtonContext};
 use stages::{ReportSets, StageProgram};
@@ -72,9 +72,10 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
     if model.stages.is_empty() {
         return Err(SolveError::NoStages);
     }
-    for stage in &model.stages {
-        stage.controls.validate().map_err(|source| SolveError::BadControls { stage: stage.name.clone(), source })?;
-    }
+    model.validate().map_err(|e| match e {
+        SettingsError::Controls { stage, source } => SolveError::BadControls { stage, source },
+        other => SolveError::BadSettings(other),
+    })?;
     let (programs, report_sets) = stages::resolve(&disc)?;
     if let Some(free) = held::unheld(&disc, &programs) {
         return Err(free.into());

@@ -719,12 +719,7 @@ impl<'a> NewtonContext<'a> {
                     }
                     return Ok((w, s));
                 }
-                Err(
-                    e @ (SolveError::InvertedElement { .. }
-                    | SolveError::Element { .. }
-                    | SolveError::Material { .. }
-                    | SolveError::NonFiniteResidual),
-                ) => {
+                Err(e) if e.is_point_failure() || e == SolveError::NonFiniteResidual => {
                     if tries >= 6 {
                         return Err(e);
                     }
