@@ -26,7 +26,7 @@
 use nalgebra::{Matrix3, Vector3};
 
 use super::surface::Projection;
-use crate::model::SettingsError;
+use crate::model::{settings, SettingsError};
 
 /// Parameters of one contact pair.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -56,13 +56,7 @@ impl ContactParameters {
     /// and finite (a zero penalty is filled in per node by the pair), the
     /// slip rounding in [0, 1).
     pub fn validate(&self) -> Result<(), SettingsError> {
-        let check = |field: &'static str, value: f64, ok: bool, requirement: &'static str| {
-            if ok && value.is_finite() {
-                Ok(())
-            } else {
-                Err(SettingsError::OutOfRange { owner: "contact parameters".into(), field, value, requirement })
-            }
-        };
+        let check = |field, value, ok, requirement| settings::check(|| "contact parameters".into(), field, value, ok, requirement);
         check("normal_penalty", self.normal_penalty, self.normal_penalty >= 0.0, "non-negative")?;
         check("tangential_penalty", self.tangential_penalty, self.tangential_penalty >= 0.0, "non-negative")?;
         check("friction", self.friction, self.friction >= 0.0, "non-negative")?;

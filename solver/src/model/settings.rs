@@ -62,8 +62,15 @@ pub enum SettingsError {
     },
 }
 
-/// A check of one number: `ok` and finite, else [`SettingsError::OutOfRange`].
-fn check(owner: impl Fn() -> String, field: &'static str, value: f64, ok: bool, requirement: &'static str) -> Result<(), SettingsError> {
+/// A check of one number: `ok` and finite, else [`SettingsError::OutOfRange`]
+/// naming `owner()`.
+pub(crate) fn check(
+    owner: impl Fn() -> String,
+    field: &'static str,
+    value: f64,
+    ok: bool,
+    requirement: &'static str,
+) -> Result<(), SettingsError> {
     if ok && value.is_finite() {
         Ok(())
     } else {
