@@ -5,12 +5,10 @@ use thiserror::Error;
 
 use crate::assembly::{AssemblyError, KernelError};
 use crate::contact::active::ContactError;
-use crate::element::ElementError;
 use crate::insert::InsertError;
 use crate::linear::LinearError;
 use crate::load::fluid::FluidError;
-use crate::material::MaterialError;
-use crate::model::ControlsError;
+use crate::model::{ControlsError, SettingsError};
 
 /// Why a solve could not start, or why it stopped part-way.
 #[derive(Debug, Clone, PartialEq, Error)]
@@ -39,55 +37,11 @@ pub enum SolveError {
         /// The set name as given.
         name: String,
     },
-    /// The solver has no element for this kind in this analysis.
-    #[error("element {element} ({kind}) is not supported in {analysis} analysis: {hint}")]
-    UnsupportedElement {
-        /// Index of the element in the mesh (0-based).
-        element: usize,
-        /// Element kind, e.g. `tet10`.
-        kind: String,
-        /// Analysis kind in words.
-        analysis: &'static str,
-        /// What to use instead.
-        hint: &'static str,
-    },
-    /// An element is in no material region.
-    #[error("element {element} belongs to no material region")]
-    MissingRegion {
-        /// Index of the element in the mesh (0-based).
-        element: usize,
-    },
-    /// An element is in two material regions.
-    #[error("element {element} belongs to regions `{first}` and `{second}`")]
-    OverlappingRegions {
-        /// Index of the element in the mesh (0-based).
-        element: usize,
-        /// The first region holding it.
-        first: String,
-        /// The second region holding it.
-        second: String,
-    },
-    /// A region names an element the mesh does not have.
-    #[error("region `{region}` names element {element}, but the mesh has {count}")]
-    ElementOutOfRange {
-        /// Name of the region.
-        region: String,
-        /// The element index the region names (0-based).
-        element: usize,
-        /// Number of elements in the mesh.
-        count: usize,
-    },
-    /// A 2-D mesh for a 3-D analysis, or the other way round.
-    #[error("mesh dimension {mesh} does not match the {analysis} analysis")]
-    DimensionMismatch {
-        /// Spatial dimension of the mesh.
-        mesh: usize,
-        /// Analysis kind in words.
-        analysis: &'static str,
-    },
-    /// The plane-strain thickness (length units) is not positive and finite.
-    #[error("plane strain thickness must be positive and finite, got {0}")]
-    BadThickness(f64),
+    /// The elements could not be set up (unsupported kinds, regions, the
+    /// mesh against the analysis) or evaluated (an inverted element, a bad
+    /// reference element, a material out of its range).
+    #[error(transparent)]
+    Assembly(#[from] AssemblyError),
     /// There is nothing to solve.
     #[error("the model has no stages")]
     NoStages,
@@ -99,34 +53,11 @@ pub enum SolveError {
         /// What is wrong with the controls.
         source: ControlsError,
     },
-    /// An element could not be evaluated.
-    #[error("element {element}: {source}")]
-    Element {
-        /// Index of the element in the mesh (0-based).
-        element: usize,
-        /// What went wrong in the element.
-        source: ElementError,
-    },
-    /// The material could not be evaluated at an integration point (e.g. past the locking stretch).
-    #[error("element {element}, integration point {point}: {source}")]
-    Material {
-        /// Index of the element in the mesh (0-based).
-        element: usize,
-        /// Index of the integration point in the element (0-based).
-        point: usize,
-        /// What the material reported.
-        source: MaterialError,
-    },
-    /// An element turned inside out; the increment is cut back.
-    #[error("element {element} inverted at integration point {point} (J = {j:.3e})")]
-    InvertedElement {
-        /// Index of the element in the mesh (0-based).
-        element: usize,
-        /// Index of the integration point in the element (0-based).
-        point: usize,
-        /// Volume ratio J = det F there (≤ 0).
-        j: f64,
-    },
+    /// Another setting of the model cannot drive a run (contact, fluid,
+    /// insert, stage loads and ramps, linear-solver ordering; see
+    /// [`crate::model::Model::validate`]).
+    #[error("{0}")]
+    BadSettings(SettingsError),
     /// Newton–Raphson did not converge within the iteration limit; the increment is cut back.
     #[error("stage `{stage}` increment {increment}: no convergence, residual {residual:.3e} (relative {relative:.3e})")]
     NotConverged {
@@ -234,9 +165,6 @@ pub enum SolveError {
     /// The out-of-balance force became NaN or infinite; the increment is cut back.
     #[error("the residual is not finite")]
     NonFiniteResidual,
-    /// The tangent has more stored entries (the field) than the 32-bit scatter map can address.
-    #[error("sparse pattern too large: {0} stored entries exceed the 32-bit scatter map")]
-    PatternTooLarge(usize),
 }
 
 impl SolveError {
@@ -244,41 +172,26 @@ impl SolveError {
     /// failed point, a singular system, contact or a fluid front that did not
     /// settle), so the increment may be tried again differently.
     pub fn is_numerical(&self) -> bool {
-        matches!(
-            self,
-            SolveError::InvertedElement { .. }
-                | SolveError::Element { .. }
-                | SolveError::Material { .. }
-                | SolveError::NotConverged { .. }
-                | SolveError::NonFiniteResidual
-                | SolveError::ContactNotResolved { .. }
-                | SolveError::FluidFrontNotSettled { .. }
-                | SolveError::Linear(_)
-        )
+        self.is_point_failure()
+            || matches!(
+                self,
+                SolveError::NotConverged { .. }
+                    | SolveError::NonFiniteResidual
+                    | SolveError::ContactNotResolved { .. }
+                    | SolveError::FluidFrontNotSettled { .. }
+                    | SolveError::Linear(_)
+            )
+    }
+
+    /// Whether an element or one of its material points failed (inverted,
+    /// a bad element, a material out of its range): a shorter step may avoid it.
+    pub fn is_point_failure(&self) -> bool {
+        matches!(self, SolveError::Assembly(e) if e.is_point_failure())
     }
 
     /// Wraps the failure of element `element`, lifting inversion to its own variant.
     pub fn from_element(element: usize, e: impl Into<KernelError>) -> Self {
         AssemblyError::in_element(element, e).into()
-    }
-}
-
-impl From<AssemblyError> for SolveError {
-    fn from(e: AssemblyError) -> Self {
-        match e {
-            AssemblyError::UnsupportedElement { element, kind, analysis, hint } => {
-                SolveError::UnsupportedElement { element, kind, analysis, hint }
-            }
-            AssemblyError::MissingRegion { element } => SolveError::MissingRegion { element },
-            AssemblyError::OverlappingRegions { element, first, second } => SolveError::OverlappingRegions { element, first, second },
-            AssemblyError::ElementOutOfRange { region, element, count } => SolveError::ElementOutOfRange { region, element, count },
-            AssemblyError::DimensionMismatch { mesh, analysis } => SolveError::DimensionMismatch { mesh, analysis },
-            AssemblyError::BadThickness(t) => SolveError::BadThickness(t),
-            AssemblyError::InvertedElement { element, point, j } => SolveError::InvertedElement { element, point, j },
-            AssemblyError::Element { element, source } => SolveError::Element { element, source },
-            AssemblyError::Material { element, point, source } => SolveError::Material { element, point, source },
-            AssemblyError::PatternTooLarge(n) => SolveError::PatternTooLarge(n),
-        }
     }
 }
 

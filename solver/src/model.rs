@@ -16,6 +16,9 @@ use thiserror::Error;
 pub use crate::element::{Analysis, Formulation};
 use crate::material::Material;
 pub use crate::rigid_surface::Shape as RigidShape;
+pub use settings::SettingsError;
+
+pub mod settings;
 
 /// One material region.
 #[derive(Debug, Clone)]

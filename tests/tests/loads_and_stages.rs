@@ -112,7 +112,7 @@ fn unknown_set_names_and_wrong_elements_are_typed_errors() {
     let mut model = column(Analysis::Axisymmetric);
     model.analysis = Analysis::Solid3d;
     model.stages.push(Stage::default());
-    assert!(matches!(solve(&model, &mut Quiet), Err(SolveError::DimensionMismatch { .. })));
+    assert!(matches!(solve(&model, &mut Quiet), Err(SolveError::Assembly(olli_solver::assembly::AssemblyError::DimensionMismatch { .. }))));
     // No stages.
     let model = column(Analysis::Solid3d);
     assert!(matches!(solve(&model, &mut Quiet), Err(SolveError::NoStages)));

@@ -93,6 +93,13 @@ pub enum AssemblyError {
 }
 
 impl AssemblyError {
+    /// Whether an element or one of its material points failed during an
+    /// evaluation (inverted, a bad element, a material out of its range),
+    /// rather than the model's set-up.
+    pub fn is_point_failure(&self) -> bool {
+        matches!(self, AssemblyError::InvertedElement { .. } | AssemblyError::Element { .. } | AssemblyError::Material { .. })
+    }
+
     /// Wraps the failure of element `element`, lifting inversion to its own variant.
     pub fn in_element(element: usize, e: impl Into<KernelError>) -> Self {
         match e.into() {

@@ -143,7 +143,9 @@ impl ActiveContacts {
                 friction: def.friction,
                 smoothing: 0.0,
                 slip_rounding: 0.0,
-            };
+            }
+            .checked()
+            .map_err(|e| bad(e.to_string()))?;
             let mut pair = ContactPair::new(mesh, sides, measure, params);
             // Default: 50 μ / h with the local side size h, so the penalty
             // follows mesh grading and penetration scales with the element.

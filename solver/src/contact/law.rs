@@ -26,6 +26,7 @@
 use nalgebra::{Matrix3, Vector3};
 
 use super::surface::Projection;
+use crate::model::{settings, SettingsError};
 
 /// Parameters of one contact pair.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -48,6 +49,25 @@ pub struct ContactParameters {
     /// switch between the stick and the slip tangent from one Newton iteration
     /// to the next. The traction never exceeds μ p. 0 gives the sharp law.
     pub slip_rounding: f64,
+}
+
+impl ContactParameters {
+    /// Checks the parameters: penalties, friction and smoothing non-negative
+    /// and finite (a zero penalty is filled in per node by the pair), the
+    /// slip rounding in [0, 1).
+    pub fn validate(&self) -> Result<(), SettingsError> {
+        let check = |field, value, ok, requirement| settings::check(|| "contact parameters".into(), field, value, ok, requirement);
+        check("normal_penalty", self.normal_penalty, self.normal_penalty >= 0.0, "non-negative")?;
+        check("tangential_penalty", self.tangential_penalty, self.tangential_penalty >= 0.0, "non-negative")?;
+        check("friction", self.friction, self.friction >= 0.0, "non-negative")?;
+        check("smoothing", self.smoothing, self.smoothing >= 0.0, "non-negative")?;
+        check("slip_rounding", self.slip_rounding, (0.0..1.0).contains(&self.slip_rounding), "in [0, 1)")
+    }
+
+    /// The parameters, if [`Self::validate`] accepts them.
+    pub fn checked(self) -> Result<Self, SettingsError> {
+        self.validate().map(|_| self)
+    }
 }
 
 /// The rounded friction magnitude: for `x = |t_trial| / (μ p)`, the ratio
@@ -288,5 +308,20 @@ mod tests {
         assert!((r.pressure - 2.0).abs() < 1e-12);
         assert!((r.shear.norm() - 0.4 * 2.0).abs() < 1e-12);
         assert!(r.shear.x < 0.0, "friction opposes the slip");
+    }
+
+    #[test]
+    fn contact_parameters_refuse_nan_negative_and_out_of_range_values() {
+        let ok = ContactParameters { normal_penalty: 10.0, tangential_penalty: 1.0, friction: 0.3, smoothing: 0.0, slip_rounding: 0.05 };
+        assert_eq!(ok.checked(), Ok(ok));
+        let field = |p: ContactParameters| match p.validate() {
+            Err(SettingsError::OutOfRange { field, .. }) => field,
+            other => panic!("{other:?}"),
+        };
+        assert_eq!(field(ContactParameters { normal_penalty: -1.0, ..ok }), "normal_penalty");
+        assert_eq!(field(ContactParameters { tangential_penalty: f64::NAN, ..ok }), "tangential_penalty");
+        assert_eq!(field(ContactParameters { friction: -0.1, ..ok }), "friction");
+        assert_eq!(field(ContactParameters { smoothing: f64::INFINITY, ..ok }), "smoothing");
+        assert_eq!(field(ContactParameters { slip_rounding: 1.0, ..ok }), "slip_rounding");
     }
 }

@@ -6,7 +6,9 @@
 use nalgebra::Vector3;
 use olli_mesh::{Mesh, Side};
 
-use crate::shape::{rule, ShapeKind};
+use crate::element::side::{self, for_each_point, SideRule};
+use crate::element::Analysis;
+use crate::shape::ShapeKind;
 
 use super::law::{evaluate, smoothed_pressure, ContactParameters, NodeResponse, NodeState, Status};
 use super::surface::RigidSurface;
@@ -38,6 +40,17 @@ pub enum AreaMeasure {
     },
     /// Axisymmetric: edge length × 2π r (the full ring).
     Axisymmetric,
+}
+
+impl AreaMeasure {
+    /// The analysis whose sides this measure integrates.
+    pub fn analysis(self) -> Analysis {
+        match self {
+            AreaMeasure::Solid => Analysis::Solid3d,
+            AreaMeasure::PlaneStrain { thickness } => Analysis::PlaneStrain { thickness },
+            AreaMeasure::Axisymmetric => Analysis::Axisymmetric,
+        }
+    }
 }
 
 /// Contact of a set of rubber nodes with one rigid surface.
@@ -458,30 +471,18 @@ fn tributary(x: &[Vector3<f64>], measure: AreaMeasure) -> Vec<f64> {
 /// axisymmetry keeps its consistent areas, zero at the axis corner: that
 /// node carries no ring and follows its side (`follow_on_the_axis`).
 fn lumped_areas(side: ShapeKind, x: &[Vector3<f64>], measure: AreaMeasure) -> Vec<f64> {
-    let def = side.def();
-    // N_a² is of degree 4 per coordinate and the axisymmetric radius adds one.
-    let rule = rule::rule(def.domain, 5).expect("a degree-5 rule on every side domain");
     let nn = x.len();
-    let (mut n, mut dn) = (vec![0.0; nn], vec![[0.0; 3]; nn]);
     let (mut consistent, mut diagonal) = (vec![0.0; nn], vec![0.0; nn]);
     let mut area = 0.0;
-    for (xi, w) in rule.points.iter().zip(&rule.weights) {
-        (def.eval)(*xi, &mut n, &mut dn);
-        let tangent = |k: usize| (0..nn).map(|a| x[a] * dn[a][k]).sum::<Vector3<f64>>();
-        let da = w * match measure {
-            AreaMeasure::Solid => tangent(0).cross(&tangent(1)).norm(),
-            AreaMeasure::PlaneStrain { thickness } => thickness * tangent(0).norm(),
-            AreaMeasure::Axisymmetric => {
-                let r: f64 = (0..nn).map(|a| n[a] * x[a].x).sum();
-                std::f64::consts::TAU * r * tangent(0).norm()
-            }
-        };
+    // N_a² is of degree 4 per coordinate and the axisymmetric radius adds one.
+    for_each_point(measure.analysis(), x, SideRule::Degree(5), |p| {
+        let da = p.area();
         area += da;
-        for a in 0..nn {
-            consistent[a] += n[a] * da;
-            diagonal[a] += n[a] * n[a] * da;
+        for (a, n) in p.values.iter().enumerate() {
+            consistent[a] += n * da;
+            diagonal[a] += n * n * da;
         }
-    }
+    });
     // A corner on the axis has no consistent ring area (see
     // `follow_on_the_axis`); rounding may leave a trace of either sign.
     let floor = 1e-12 * area.abs();
@@ -492,29 +493,17 @@ fn lumped_areas(side: ShapeKind, x: &[Vector3<f64>], measure: AreaMeasure) -> Ve
     diagonal.iter().map(|m| if total > 0.0 { area * m / total } else { 0.0 }).collect()
 }
 
-/// Tributary areas of a linear side: its corners' shares.
+/// Tributary areas of a linear side: on an edge its consistent shares
+/// ∫ N_a dA (half the length × thickness each in plane strain; the ring
+/// shares 2πL(2r₀ + r₁)/6, 2πL(r₀ + 2r₁)/6 in axisymmetry), on a face its
+/// area split equally among the corners.
 fn linear_tributary(x: &[Vector3<f64>], measure: AreaMeasure) -> Vec<f64> {
-    match measure {
-        AreaMeasure::PlaneStrain { thickness } => {
-            let half = 0.5 * (x[1] - x[0]).norm() * thickness;
-            vec![half, half]
-        }
-        AreaMeasure::Axisymmetric => {
-            // ∫ 2π r N_i ds over the edge, with r linear: exact for the ring area.
-            let len = (x[1] - x[0]).norm();
-            let (r0, r1) = (x[0].x, x[1].x);
-            let tau = std::f64::consts::TAU;
-            vec![tau * len * (2.0 * r0 + r1) / 6.0, tau * len * (r0 + 2.0 * r1) / 6.0]
-        }
-        AreaMeasure::Solid => {
-            let area = if x.len() == 3 {
-                0.5 * (x[1] - x[0]).cross(&(x[2] - x[0])).norm()
-            } else {
-                0.5 * (x[2] - x[0]).cross(&(x[3] - x[1])).norm()
-            };
-            vec![area / x.len() as f64; x.len()]
-        }
+    let mut shares = vec![0.0; x.len()];
+    let area = side::nodal_areas(measure.analysis(), x, &mut shares);
+    if measure == AreaMeasure::Solid {
+        shares.fill(area / x.len() as f64);
     }
+    shares
 }
 
 #[cfg(test)]

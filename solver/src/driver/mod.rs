@@ -30,7 +30,7 @@ use crate::error::SolveError;
 use crate::insert::Inserts;
 use crate::linear::{self, LinearSolver, LinearStats, SymmetricPattern};
 use crate::load::fluid::Fluids;
-use crate::model::Model;
+use crate::model::{Model, SettingsError, Stage};
 use crate::results::{DynamicResult, HistoryValues, IncrementResult, Solution, SolveStats, Termination};
 use newton::{IncrementOutcome, NewtonContext};
 use stages::{ReportSets, StageProgram};
@@ -75,9 +75,10 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
     if model.stages.is_empty() {
         return Err(SolveError::NoStages);
     }
-    for stage in &model.stages {
-        stage.controls.validate().map_err(|source| SolveError::BadControls { stage: stage.name.clone(), source })?;
-    }
+    model.validate().map_err(|e| match e {
+        SettingsError::Controls { stage, source } => SolveError::BadControls { stage, source },
+        other => SolveError::BadSettings(other),
+    })?;
     let (programs, report_sets) = stages::resolve(&disc)?;
     if let Some(free) = held::unheld(&disc, &programs) {
         return Err(free.into());
@@ -139,22 +140,10 @@ fn run_stage(
     let stage = &model.stages[si];
     let c = &stage.controls;
     let start: Vec<f64> = run.u.clone();
-    let released;
-    let prog = if prog.released.is_empty() {
-        prog
-    } else {
-        let reactions = run.increments.last().map(|r| r.nodal_reactions.as_slice()).unwrap_or_default();
-        released = prog.with_release_loads(reactions, disc.dim);
-        &released
-    };
-    run.contacts.begin_stage(&stage.rigid_motions, &stage.ramps);
-    run.fluids.begin_stage(stage);
-    run.inserts.begin_stage(stage);
+    let released = begin_stage(disc, si, prog, run);
+    let prog = released.as_ref().unwrap_or(prog);
     if stage.harmonic.is_some() {
         return run_harmonic(disc, si, prog, run, observer);
-    }
-    if c.carry_pressure && run.mixed.is_empty() {
-        run.mixed = vec![MixedState::default(); model.mesh.element_count()];
     }
     let RunState { u, mixed, history: point_history, time, contacts, fluids, inserts, equations, increments, stats, .. } = run;
     let duration = stage.duration.unwrap_or(0.0);
@@ -185,39 +174,12 @@ fn run_stage(
                 t += step;
                 history = Some((ctx.last_converged.clone(), step));
                 path.record(step, &ctx.last_converged, u);
-                // Springs pull toward the previous increment: measure before replacing it.
-                let share = ctx.stabilization_share(u);
-                ctx.last_converged.copy_from_slice(u);
-                ctx.contacts.commit();
-                // Only a model with fluids needs the contact pressures here.
-                if let Some(f) = ctx.fluids.as_deref_mut() {
-                    f.commit(&ctx.contacts.fields(model.mesh.node_count()).pressure);
-                }
-                ctx.inserts.commit();
-                let result = IncrementResult {
-                    stage: si,
-                    stage_name: stage.name.clone(),
-                    increment: count,
-                    load_factor: t,
-                    step,
-                    time: stage_start_time + t * duration,
-                    newton_iterations: iterations,
-                    residual_history: residuals,
-                    strain_energy: energy,
-                    stabilization_share: share,
-                    ..fields::increment_fields(disc, &ctx, u, t, report_sets)
-                };
-                let mut result = match fields::with_point_fields(disc, u, &ctx.history, result) {
+                let done = Converged { stage: si, increment: count, load_factor: t, step, iterations, residuals, energy };
+                let result = match commit_increment(disc, &mut ctx, u, done, stage_start_time, report_sets, observer) {
                     Ok(r) => r,
                     Err(e) => return Ok(Err(e)),
                 };
                 *time = result.time;
-                // Observers see the history (to evaluate stresses); stored increments do not keep it.
-                if !ctx.history.is_empty() {
-                    result.history = Some(HistoryValues { stride: ctx.history.stride(), values: ctx.history.all_converged().to_vec() });
-                }
-                observer.event(&Event::Converged(&result));
-                result.history = None;
                 if c.carry_pressure {
                     mixed.clone_from(&ctx.mixed.converged);
                 }
@@ -230,22 +192,8 @@ fn run_stage(
                 ctx.contacts.restore();
                 let next = step * c.cutback;
                 if next < c.min {
-                    if let Some(ratio) = path.ratio().filter(|&r| load_driven && r < limit_point::LIMIT_STIFFNESS_RATIO) {
-                        return Ok(Err(SolveError::LimitPoint {
-                            stage: stage.name.clone(),
-                            load_factor: t,
-                            load: limit_point::loads_at(prog, t),
-                            percent: 100.0 * ratio,
-                        }));
-                    }
-                    let reason = err.to_string();
-                    return Ok(Err(SolveError::IncrementTooSmall {
-                        stage: stage.name.clone(),
-                        load_factor: t,
-                        step: next,
-                        min: c.min,
-                        reason,
-                    }));
+                    let limit = path.ratio().filter(|&r| load_driven && r < limit_point::LIMIT_STIFFNESS_RATIO);
+                    return Ok(Err(stopped(stage, prog, t, next, limit, &err)));
                 }
                 observer.event(&Event::Cutback { stage: si, load_factor: t, step: next, reason: &err });
                 // The extrapolation belongs to the old step size; it is kept, scaled by the new ratio.
@@ -275,6 +223,100 @@ fn run_harmonic(
     observer.event(&Event::Harmonic(&result));
     run.dynamic.push(result);
     Ok(Ok(()))
+}
+
+/// Starts stage `si` in the run's contact, fluids, inserts and carried
+/// pressures; returns the program with its release loads when the stage
+/// lets go of held dofs.
+fn begin_stage(disc: &Discretization, si: usize, prog: &StageProgram, run: &mut RunState) -> Option<StageProgram> {
+    let stage = &disc.model.stages[si];
+    let released = (!prog.released.is_empty()).then(|| {
+        let reactions = run.increments.last().map(|r| r.nodal_reactions.as_slice()).unwrap_or_default();
+        prog.with_release_loads(reactions, disc.dim)
+    });
+    run.contacts.begin_stage(&stage.rigid_motions, &stage.ramps);
+    run.fluids.begin_stage(stage);
+    run.inserts.begin_stage(stage);
+    if stage.controls.carry_pressure && run.mixed.is_empty() {
+        run.mixed = vec![MixedState::default(); disc.mesh().element_count()];
+    }
+    released
+}
+
+/// A converged increment as the Newton driver reports it.
+struct Converged {
+    stage: usize,
+    increment: usize,
+    load_factor: f64,
+    step: f64,
+    iterations: usize,
+    residuals: Vec<f64>,
+    energy: f64,
+}
+
+/// Makes the converged state at `u` the new start (contact, fluids,
+/// inserts committed) and forms its results, shown to the observer.
+fn commit_increment(
+    disc: &Discretization,
+    ctx: &mut NewtonContext,
+    u: &[f64],
+    done: Converged,
+    stage_start_time: f64,
+    report_sets: &ReportSets,
+    observer: &mut dyn Observer,
+) -> Result<IncrementResult, SolveError> {
+    let stage = &disc.model.stages[done.stage];
+    // Springs pull toward the previous increment: measure before replacing it.
+    let share = ctx.stabilization_share(u);
+    ctx.last_converged.copy_from_slice(u);
+    ctx.contacts.commit();
+    // Only a model with fluids needs the contact pressures here.
+    if let Some(f) = ctx.fluids.as_deref_mut() {
+        f.commit(&ctx.contacts.fields(disc.mesh().node_count()).pressure);
+    }
+    ctx.inserts.commit();
+    let result = IncrementResult {
+        stage: done.stage,
+        stage_name: stage.name.clone(),
+        increment: done.increment,
+        load_factor: done.load_factor,
+        step: done.step,
+        time: stage_start_time + done.load_factor * stage.duration.unwrap_or(0.0),
+        newton_iterations: done.iterations,
+        residual_history: done.residuals,
+        strain_energy: done.energy,
+        stabilization_share: share,
+        ..fields::increment_fields(disc, ctx, u, done.load_factor, report_sets)
+    };
+    let mut result = fields::with_point_fields(disc, u, &ctx.history, result)?;
+    // Observers see the history (to evaluate stresses); stored increments do not keep it.
+    if !ctx.history.is_empty() {
+        result.history = Some(HistoryValues { stride: ctx.history.stride(), values: ctx.history.all_converged().to_vec() });
+    }
+    observer.event(&Event::Converged(&result));
+    result.history = None;
+    Ok(result)
+}
+
+/// Why a run stops at stage fraction `t` when the next step `next` would be
+/// below the smallest: a limit load (the load path's stiffness fell to
+/// `limit` of its initial value on a load-driven stage), or the increment too small.
+fn stopped(stage: &Stage, prog: &StageProgram, t: f64, next: f64, limit: Option<f64>, err: &SolveError) -> SolveError {
+    match limit {
+        Some(ratio) => SolveError::LimitPoint {
+            stage: stage.name.clone(),
+            load_factor: t,
+            load: limit_point::loads_at(prog, t),
+            percent: 100.0 * ratio,
+        },
+        None => SolveError::IncrementTooSmall {
+            stage: stage.name.clone(),
+            load_factor: t,
+            step: next,
+            min: stage.controls.min,
+            reason: err.to_string(),
+        },
+    }
 }
 
 impl RunState {

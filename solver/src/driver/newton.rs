@@ -72,6 +72,78 @@ pub enum IncrementOutcome {
     Failed(SolveError),
 }
 
+/// The increment an attempt solves (for the observer's events).
+#[derive(Debug, Clone, Copy)]
+struct Attempt {
+    stage: usize,
+    increment: usize,
+}
+
+impl Attempt {
+    /// This attempt after `iteration` Newton corrections.
+    fn at(self, iteration: usize) -> IterationAt {
+        IterationAt { stage: self.stage, increment: self.increment, iteration }
+    }
+}
+
+/// An attempt after `iteration` Newton corrections.
+#[derive(Debug, Clone, Copy)]
+struct IterationAt {
+    stage: usize,
+    increment: usize,
+    iteration: usize,
+}
+
+/// A solved Newton direction (`du` itself stays in the context).
+#[derive(Debug, Clone, Copy)]
+struct Direction {
+    /// `G(0) = du·r` with the inserts' work (negative for a descent direction).
+    g0: f64,
+    /// The factorization that solved it.
+    kind: FactorKind,
+    /// Whether a line search may shorten the step.
+    line_search: bool,
+}
+
+/// Where the Newton iterations of one increment attempt stand.
+#[derive(Debug)]
+struct IterationLog {
+    /// Corrections so far.
+    iterations: usize,
+    /// Corrections allowed before the attempt fails (extended by each re-balance).
+    budget: usize,
+    /// Corrections allowed per equilibrium solve.
+    per_solve: usize,
+    /// Relative out-of-balance force after each correction.
+    residuals: Vec<f64>,
+    /// `|du·r|` of the first correction since the last (re-)balance.
+    first_energy: Option<f64>,
+    /// Free residual norm after the last correction.
+    previous_residual: Option<f64>,
+    /// Augmented-Lagrangian updates of the contact multipliers.
+    augmentations: usize,
+}
+
+impl IterationLog {
+    fn new(per_solve: usize) -> Self {
+        IterationLog {
+            iterations: 0,
+            budget: per_solve,
+            per_solve,
+            residuals: Vec::new(),
+            first_energy: None,
+            previous_residual: None,
+            augmentations: 0,
+        }
+    }
+
+    /// A new equilibrium solve at the same load: a fresh budget and energy reference.
+    fn rebalance(&mut self) {
+        self.budget = self.iterations + self.per_solve;
+        self.first_energy = None;
+    }
+}
+
 /// Buffers and references for the increments of one stage.
 pub struct NewtonContext<'a> {
     disc: &'a Discretization<'a>,
@@ -434,7 +506,8 @@ impl<'a> NewtonContext<'a> {
         stats: &mut SolveStats,
     ) -> IncrementOutcome {
         self.damping = 0.0;
-        let plain = self.try_increment(u, t, extrapolation, stage, increment, observer, stats);
+        let attempt = Attempt { stage, increment };
+        let plain = self.try_increment(u, t, extrapolation, attempt, observer, stats);
         let err = match plain {
             Ok(o) => return o,
             Err(e) if e.is_numerical() && self.controls.damped_retry => e,
@@ -451,7 +524,7 @@ impl<'a> NewtonContext<'a> {
             self.damping_weights = super::stabilization::dof_weights(self.disc, 1.0);
         }
         self.damping = INITIAL_DAMPING;
-        let damped = self.try_increment(u, t, extrapolation, stage, increment, observer, stats);
+        let damped = self.try_increment(u, t, extrapolation, attempt, observer, stats);
         self.damping = 0.0;
         match damped {
             Ok(o) => o,
@@ -459,213 +532,251 @@ impl<'a> NewtonContext<'a> {
         }
     }
 
-    #[allow(clippy::too_many_arguments)]
+    /// One attempt at the increment: the predictor, then Newton corrections
+    /// with a line search until the convergence criteria hold at a settled
+    /// contact and fluid front.
     fn try_increment(
         &mut self,
         u: &mut [f64],
         t: f64,
         extrapolation: Option<(&[f64], f64)>,
-        stage: usize,
-        increment: usize,
+        attempt: Attempt,
         observer: &mut dyn Observer,
         stats: &mut SolveStats,
     ) -> Result<IncrementOutcome, SolveError> {
-        let c = self.controls.clone();
-        let ndof = u.len();
-        // Predictor: extrapolated start, then the remaining prescribed change through the tangent.
-        let mut extrapolated = false;
+        self.predict(u, t, extrapolation, stats)?;
+        let max_iterations = self.controls.max_iterations;
+        let mut log = IterationLog::new(if self.damping > 0.0 { DAMPED_BUDGET * max_iterations } else { max_iterations });
+        loop {
+            if log.iterations >= log.budget {
+                return Err(self.not_converged(attempt.increment));
+            }
+            let direction = self.solve_direction(u, t, attempt.at(log.iterations), observer, stats)?;
+            log.iterations += 1;
+            let energy_norm = direction.g0.abs();
+            // The tangent is assembled only where the next iteration may
+            // need it: not at a rejected line-search trial's successor, and
+            // not where the last residuals predict convergence.
+            let likely_converged = predicts_convergence(&log.residuals, self.controls.force_tolerance);
+            let (energy, s) = self.search_line(u, t, &direction, likely_converged, stats)?;
+            let res = self.free_residual_norm();
+            let rel = res / self.force_scale();
+            log.residuals.push(rel);
+            let iteration =
+                Event::Iteration { iteration: log.iterations, residual: res, relative: rel, line_search: s, factor: direction.kind };
+            observer.event(&iteration);
+            if !rel.is_finite() {
+                return Err(SolveError::NonFiniteResidual);
+            }
+            if let Some(before) = log.previous_residual.replace(res) {
+                self.update_damping(res / before);
+            }
+            let e0 = *log.first_energy.get_or_insert(energy_norm);
+            let energy_ok = e0 == 0.0 || energy_norm * s <= self.controls.energy_tolerance * e0;
+            if rel <= self.controls.force_tolerance && (energy_ok || self.correction_small(u, s)) && self.settle(u, t, &mut log, stats)? {
+                self.mixed.commit();
+                self.history.commit();
+                return Ok(IncrementOutcome::Converged { iterations: log.iterations, residuals: log.residuals, energy });
+            }
+        }
+    }
+
+    /// The predictor: the last converged state (extrapolated from the
+    /// previous increment when asked; a start that fails to evaluate falls
+    /// back to the last converged state), evaluated with the remaining
+    /// prescribed change `dup` carried through the tangent into the
+    /// right-hand side, then moved by `dup`.
+    fn predict(&mut self, u: &mut [f64], t: f64, extrapolation: Option<(&[f64], f64)>, stats: &mut SolveStats) -> Result<(), SolveError> {
         u.copy_from_slice(&self.last_converged);
         self.mixed.restart();
         if let Some(fluids) = self.fluids.as_deref_mut() {
             fluids.begin_increment(t);
         }
         self.inserts.restore();
+        let mut extrapolated = false;
         if let Some((prev, ratio)) = extrapolation {
-            for d in 0..ndof {
-                u[d] += ratio * (self.last_converged[d] - prev[d]);
+            for (d, ud) in u.iter_mut().enumerate() {
+                *ud += ratio * (self.last_converged[d] - prev[d]);
             }
             extrapolated = true;
         }
         loop {
-            for d in 0..ndof {
-                self.dup[d] = if self.dofs.eq[d] == NONE { self.prescribed_at(t, d) - u[d] } else { 0.0 };
-            }
-            if !self.inserts.is_empty() {
-                let mut moved = u.to_vec();
-                self.inserts.prescribe(t, &mut moved);
-                for d in 0..ndof {
-                    if self.bonded[d] {
-                        self.dup[d] = moved[d] - u[d];
-                    }
-                }
-            }
+            self.prescribed_change(u, t);
             match self.evaluate(u, t, true, true, stats) {
                 Ok(_) => break,
-                Err(e) if extrapolated => {
-                    let _ = e;
+                Err(_) if extrapolated => {
                     u.copy_from_slice(&self.last_converged);
                     extrapolated = false;
                 }
                 Err(e) => return Err(e),
             }
         }
-        for d in 0..ndof {
-            u[d] += self.dup[d];
+        for (ud, dp) in u.iter_mut().zip(&self.dup) {
+            *ud += dp;
         }
-        let mut residuals = Vec::new();
-        let mut first_energy: Option<f64> = None;
-        let mut iterations = 0;
-        let per_solve = if self.damping > 0.0 { DAMPED_BUDGET * c.max_iterations } else { c.max_iterations };
-        let mut budget = per_solve;
-        let mut augmentations = 0;
-        let mut previous_residual: Option<f64> = None;
-        loop {
-            if iterations >= budget {
-                let res = self.free_residual_norm();
-                return Err(SolveError::NotConverged {
-                    stage: self.stage_name.to_string(),
-                    increment,
-                    residual: res,
-                    relative: res / self.force_scale(),
-                });
-            }
-            if !self.tangent_fresh {
-                // The last point was evaluated for its residual alone.
-                self.evaluate(u, t, true, false, stats)?;
-            }
-            self.add_damping();
-            let factorization = self.linear.factorize(SystemMatrix { lower: &self.k, skew: &self.skew })?;
-            let kind = factorization.kind;
-            if factorization.fallback {
-                observer.event(&Event::LinearFallback { stage, increment, iteration: iterations + 1, factor: kind });
-            }
-            self.du.copy_from_slice(&self.rhs);
-            self.linear.solve(&mut self.du)?;
-            let insert_work = self.couple_inserts(iterations == 0)?;
-            self.inserts.save_base();
-            iterations += 1;
-            self.mixed.directions(
-                self.disc,
-                self.dofs,
-                &self.du,
-                &self.bonded_direction,
-                if iterations == 1 { Some(&self.dup) } else { None },
-            );
-            stats.newton_iterations += 1;
-            // G(0) = du·r = −du·rhs (negative for a descent direction).
-            let g0: f64 = -self.du.iter().zip(&self.rhs).map(|(a, b)| a * b).sum::<f64>() + insert_work;
-            let energy_norm = g0.abs();
-            self.base.copy_from_slice(u);
-            let mut s = 1.0;
-            let mut tries = 0;
-            // The line search assumes the Newton direction descends an energy:
-            // not so with friction (it dissipates) or an indefinite tangent, so
-            // then only full steps are taken (still halved when an element
-            // would invert). A fluid's follower load is not conservative
-            // either, but its skew part is small next to the rubber's
-            // stiffness, so its direction still descends.
-            // Insert unknowns make the system unsymmetric: full steps too.
-            let nonconservative_fluid =
-                factorization.kind == FactorKind::LuNonsymmetric && self.fluids.is_some() && !self.contacts.has_friction();
-            let line_search = c.line_search
-                && !self.contacts.has_friction()
-                && (factorization.positive_definite || nonconservative_fluid)
-                && self.dq.is_empty();
-            // The tangent is assembled only where the next iteration may
-            // need it: not at a rejected line-search trial's successor, and
-            // not where the last residuals predict convergence.
-            let likely_converged = predicts_convergence(&residuals, c.force_tolerance);
-            let energy = loop {
-                let want_k = tries == 0 && !likely_converged;
-                self.apply(u, s);
-                if !self.inserts.is_empty() {
-                    self.inserts.step(&self.dq, s, u);
-                }
-                let evaluated =
-                    self.mixed.apply(self.disc, s).map_err(SolveError::from).and_then(|_| self.evaluate(u, t, want_k, false, stats));
-                match evaluated {
-                    Ok(w) => {
-                        if !line_search || tries >= 4 {
-                            break w;
-                        }
-                        let gs: f64 = self.dofs_dot_du();
-                        if gs > 0.5 * g0.abs() && g0 < 0.0 {
-                            let next = (s * g0 / (g0 - gs)).clamp(0.1 * s, 0.9 * s);
-                            s = next;
-                            tries += 1;
-                            continue;
-                        }
-                        break w;
-                    }
-                    Err(
-                        e @ (SolveError::InvertedElement { .. }
-                        | SolveError::Element { .. }
-                        | SolveError::Material { .. }
-                        | SolveError::NonFiniteResidual),
-                    ) => {
-                        if tries >= 6 {
-                            return Err(e);
-                        }
-                        s *= 0.5;
-                        tries += 1;
-                    }
-                    Err(e) => return Err(e),
-                }
-            };
-            let res = self.free_residual_norm();
-            let scale = self.force_scale();
-            let rel = res / scale;
-            residuals.push(rel);
+        Ok(())
+    }
 
-            observer.event(&Event::Iteration { iteration: iterations, residual: res, relative: rel, line_search: s, factor: kind });
-            if !rel.is_finite() {
-                return Err(SolveError::NonFiniteResidual);
-            }
-            if let Some(before) = previous_residual.replace(res) {
-                self.update_damping(res / before);
-            }
-            let e0 = *first_energy.get_or_insert(energy_norm);
-            let energy_ok = e0 == 0.0 || energy_norm * s <= c.energy_tolerance * e0;
-            // The correction against the larger of the increment's and the
-            // total displacement (a held stage has no increment to compare with).
-            let (mut step2, mut inc2, mut tot2) = (0.0, 0.0, 0.0);
-            for d in 0..ndof {
-                let q = self.dofs.eq[d];
-                if q != NONE {
-                    step2 += (s * self.du[q]).powi(2);
-                } else {
-                    step2 += (u[d] - self.base[d]).powi(2);
+    /// `dup`: what the prescribed and bonded dofs still have to move from
+    /// `u` to their values at stage fraction `t` (zero at free dofs).
+    fn prescribed_change(&mut self, u: &[f64], t: f64) {
+        for d in 0..u.len() {
+            self.dup[d] = if self.dofs.eq[d] == NONE { self.prescribed_at(t, d) - u[d] } else { 0.0 };
+        }
+        if !self.inserts.is_empty() {
+            let mut moved = u.to_vec();
+            self.inserts.prescribe(t, &mut moved);
+            for d in 0..u.len() {
+                if self.bonded[d] {
+                    self.dup[d] = moved[d] - u[d];
                 }
-                inc2 += (u[d] - self.last_converged[d]).powi(2);
-                tot2 += u[d] * u[d];
-            }
-            let disp_ok = step2.sqrt() <= c.displacement_tolerance * inc2.max(tot2).sqrt().max(f64::MIN_POSITIVE);
-            if rel <= c.force_tolerance && (energy_ok || disp_ok) {
-                if !self.contacts.needs_augmentation() {
-                    if !self.fluid_front_moved(u, t, stats)? {
-                        self.mixed.commit();
-                        self.history.commit();
-                        return Ok(IncrementOutcome::Converged { iterations, residuals, energy });
-                    }
-                    // The wetted set changed: re-balance at the same load.
-                    budget = iterations + per_solve;
-                    first_energy = None;
-                    continue;
-                }
-                // Augmented Lagrangian: move the multipliers toward the contact
-                // pressure and re-balance at the same load.
-                if augmentations >= MAX_AUGMENTATIONS {
-                    let (penetration, tolerance) = self.contacts.worst_penetration();
-                    return Err(SolveError::ContactNotResolved { penetration, tolerance, augmentations });
-                }
-                self.contacts.augment();
-                augmentations += 1;
-                budget = iterations + per_solve;
-                first_energy = None;
-                self.dup.fill(0.0);
-                self.evaluate(u, t, true, false, stats)?;
             }
         }
+    }
+
+    /// The Newton direction `du` at `u`: the tangent (assembled again when
+    /// the last evaluation was residual-only), damped on a retry, factorized
+    /// and solved, with the insert unknowns condensed out and the mixed
+    /// unknowns' directions formed.
+    fn solve_direction(
+        &mut self,
+        u: &[f64],
+        t: f64,
+        at: IterationAt,
+        observer: &mut dyn Observer,
+        stats: &mut SolveStats,
+    ) -> Result<Direction, SolveError> {
+        if !self.tangent_fresh {
+            // The last point was evaluated for its residual alone.
+            self.evaluate(u, t, true, false, stats)?;
+        }
+        self.add_damping();
+        let factorization = self.linear.factorize(SystemMatrix { lower: &self.k, skew: &self.skew })?;
+        if factorization.fallback {
+            let iteration = at.iteration + 1;
+            observer.event(&Event::LinearFallback { stage: at.stage, increment: at.increment, iteration, factor: factorization.kind });
+        }
+        self.du.copy_from_slice(&self.rhs);
+        self.linear.solve(&mut self.du)?;
+        let first = at.iteration == 0;
+        let insert_work = self.couple_inserts(first)?;
+        self.inserts.save_base();
+        self.mixed.directions(self.disc, self.dofs, &self.du, &self.bonded_direction, if first { Some(&self.dup) } else { None });
+        stats.newton_iterations += 1;
+        // G(0) = du·r = −du·rhs (negative for a descent direction).
+        let g0: f64 = -self.du.iter().zip(&self.rhs).map(|(a, b)| a * b).sum::<f64>() + insert_work;
+        // The line search assumes the Newton direction descends an energy:
+        // not so with friction (it dissipates) or an indefinite tangent, so
+        // then only full steps are taken (still halved when an element
+        // would invert). A fluid's follower load is not conservative
+        // either, but its skew part is small next to the rubber's
+        // stiffness, so its direction still descends.
+        // Insert unknowns make the system unsymmetric: full steps too.
+        let nonconservative_fluid =
+            factorization.kind == FactorKind::LuNonsymmetric && self.fluids.is_some() && !self.contacts.has_friction();
+        let line_search = self.controls.line_search
+            && !self.contacts.has_friction()
+            && (factorization.positive_definite || nonconservative_fluid)
+            && self.dq.is_empty();
+        Ok(Direction { g0, kind: factorization.kind, line_search })
+    }
+
+    /// Steps from `u` along the direction and evaluates there: a full step,
+    /// shortened by backtracking when `G(s) = du·r(u + s du)` overshoots
+    /// (where the direction allows a line search, at most 4 times), halved
+    /// when an element would invert or the residual is not finite (at most 6
+    /// times). Returns the strain energy at the new `u` and the step length `s`.
+    fn search_line(
+        &mut self,
+        u: &mut [f64],
+        t: f64,
+        direction: &Direction,
+        likely_converged: bool,
+        stats: &mut SolveStats,
+    ) -> Result<(f64, f64), SolveError> {
+        let g0 = direction.g0;
+        self.base.copy_from_slice(u);
+        let mut s = 1.0;
+        let mut tries = 0;
+        loop {
+            let want_k = tries == 0 && !likely_converged;
+            self.apply(u, s);
+            if !self.inserts.is_empty() {
+                self.inserts.step(&self.dq, s, u);
+            }
+            let evaluated =
+                self.mixed.apply(self.disc, s).map_err(SolveError::from).and_then(|_| self.evaluate(u, t, want_k, false, stats));
+            match evaluated {
+                Ok(w) => {
+                    if !direction.line_search || tries >= 4 {
+                        return Ok((w, s));
+                    }
+                    let gs: f64 = self.dofs_dot_du();
+                    if gs > 0.5 * g0.abs() && g0 < 0.0 {
+                        s = (s * g0 / (g0 - gs)).clamp(0.1 * s, 0.9 * s);
+                        tries += 1;
+                        continue;
+                    }
+                    return Ok((w, s));
+                }
+                Err(e) if e.is_point_failure() || e == SolveError::NonFiniteResidual => {
+                    if tries >= 6 {
+                        return Err(e);
+                    }
+                    s *= 0.5;
+                    tries += 1;
+                }
+                Err(e) => return Err(e),
+            }
+        }
+    }
+
+    /// Whether the last correction (length `s`) is small next to the larger
+    /// of the increment's and the total displacement (a held stage has no
+    /// increment to compare with): the displacement criterion.
+    fn correction_small(&self, u: &[f64], s: f64) -> bool {
+        let (mut step2, mut inc2, mut tot2) = (0.0, 0.0, 0.0);
+        for d in 0..u.len() {
+            let q = self.dofs.eq[d];
+            if q != NONE {
+                step2 += (s * self.du[q]).powi(2);
+            } else {
+                step2 += (u[d] - self.base[d]).powi(2);
+            }
+            inc2 += (u[d] - self.last_converged[d]).powi(2);
+            tot2 += u[d] * u[d];
+        }
+        step2.sqrt() <= self.controls.displacement_tolerance * inc2.max(tot2).sqrt().max(f64::MIN_POSITIVE)
+    }
+
+    /// At an equilibrium of the current load: true when the increment is
+    /// done. Otherwise the contact multipliers move toward the contact
+    /// pressure (augmented Lagrangian) or the fluids' wetted front moved, and
+    /// the iterations re-balance at the same load (false).
+    fn settle(&mut self, u: &[f64], t: f64, log: &mut IterationLog, stats: &mut SolveStats) -> Result<bool, SolveError> {
+        if !self.contacts.needs_augmentation() {
+            if !self.fluid_front_moved(u, t, stats)? {
+                return Ok(true);
+            }
+            log.rebalance();
+            return Ok(false);
+        }
+        if log.augmentations >= MAX_AUGMENTATIONS {
+            let (penetration, tolerance) = self.contacts.worst_penetration();
+            return Err(SolveError::ContactNotResolved { penetration, tolerance, augmentations: log.augmentations });
+        }
+        self.contacts.augment();
+        log.augmentations += 1;
+        log.rebalance();
+        self.dup.fill(0.0);
+        self.evaluate(u, t, true, false, stats)?;
+        Ok(false)
+    }
+
+    /// The failure of an increment that used up its iterations.
+    fn not_converged(&self, increment: usize) -> SolveError {
+        let residual = self.free_residual_norm();
+        SolveError::NotConverged { stage: self.stage_name.to_string(), increment, residual, relative: residual / self.force_scale() }
     }
 
     /// After an equilibrium: finds the fluids' front from the current contact

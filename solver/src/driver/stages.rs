@@ -12,7 +12,7 @@ use crate::assembly::Discretization;
 use crate::error::SolveError;
 use crate::insert::rotation;
 use crate::load::dead::{add_body_force, add_node_force, add_side_force};
-use crate::model::{Ramp, RotationMotion, BODY_FORCE_RAMP};
+use crate::model::{Ramp, RotationMotion, Stage, BODY_FORCE_RAMP};
 
 /// [`StageProgram::arc_of_dof`] of a dof that follows no arc.
 pub const NO_ARC: u32 = u32::MAX;
@@ -105,22 +105,68 @@ pub type ReportSets = BTreeMap<String, Vec<usize>>;
 
 /// Resolves all stages, and the sets whose reactions are reported.
 pub fn resolve(disc: &Discretization) -> Result<(Vec<StageProgram>, ReportSets), SolveError> {
-    let model = disc.model;
-    let mesh = disc.mesh();
-    let dim = disc.dim;
-    let ndof = mesh.node_count() * dim;
-    let mut report: BTreeMap<String, Vec<usize>> = mesh.node_sets.clone();
-    let mut prescribed = vec![false; ndof];
-    let mut target = vec![0.0; ndof];
-    let mut pressures: BTreeMap<String, f64> = BTreeMap::new();
-    let mut forces: BTreeMap<String, [f64; 3]> = BTreeMap::new();
-    let mut body: Option<[f64; 3]> = None;
-    let mut dead_prev = vec![0.0; ndof];
-    // Dofs an earlier stage turned: held at their stage-start value until re-prescribed.
-    let mut turned = vec![false; ndof];
-    let mut programs = Vec::new();
-    let inserts = crate::insert::Inserts::new(disc)?;
-    for stage in &model.stages {
+    let mut state = Resolver::new(disc)?;
+    let programs = disc.model.stages.iter().map(|stage| state.stage(stage)).collect::<Result<Vec<_>, _>>()?;
+    Ok((programs, state.report))
+}
+
+/// What the stages resolved so far leave to the next one.
+struct Resolver<'d> {
+    disc: &'d Discretization<'d>,
+    inserts: crate::insert::Inserts,
+    /// Sets whose reactions are reported.
+    report: ReportSets,
+    prescribed: Vec<bool>,
+    target: Vec<f64>,
+    /// Pressure of every side set loaded so far.
+    pressures: BTreeMap<String, f64>,
+    /// Total force of every set loaded so far.
+    forces: BTreeMap<String, [f64; 3]>,
+    body: Option<[f64; 3]>,
+    /// Dead load at the end of the last stage.
+    dead: Vec<f64>,
+    /// Dofs an earlier stage turned: held at their stage-start value until re-prescribed.
+    turned: Vec<bool>,
+}
+
+/// The dofs' ramps of one stage: the ramps (index 0 linear) and each dof's.
+struct DofRamps {
+    ramps: Vec<Ramp>,
+    of_dof: Vec<u32>,
+}
+
+impl DofRamps {
+    /// The index of `ramp`, added unless linear.
+    fn index(&mut self, ramp: Ramp) -> u32 {
+        if ramp == Ramp::Linear {
+            0
+        } else {
+            self.ramps.push(ramp);
+            (self.ramps.len() - 1) as u32
+        }
+    }
+}
+
+impl<'d> Resolver<'d> {
+    fn new(disc: &'d Discretization<'d>) -> Result<Self, SolveError> {
+        let ndof = disc.mesh().node_count() * disc.dim;
+        Ok(Resolver {
+            disc,
+            inserts: crate::insert::Inserts::new(disc)?,
+            report: disc.mesh().node_sets.clone(),
+            prescribed: vec![false; ndof],
+            target: vec![0.0; ndof],
+            pressures: BTreeMap::new(),
+            forces: BTreeMap::new(),
+            body: None,
+            dead: vec![0.0; ndof],
+            turned: vec![false; ndof],
+        })
+    }
+
+    /// The program of the next stage.
+    fn stage(&mut self, stage: &Stage) -> Result<StageProgram, SolveError> {
+        let model = self.disc.model;
         for drive in &stage.inserts {
             if !model.inserts.iter().any(|i| i.name == drive.insert) {
                 return Err(SolveError::BadInsert {
@@ -129,118 +175,165 @@ pub fn resolve(disc: &Discretization) -> Result<(Vec<StageProgram>, ReportSets),
                 });
             }
         }
-        let unknown = |name: &str| SolveError::UnknownSet { stage: stage.name.clone(), name: name.to_string() };
-        let ramp_for = |set: &str| stage.ramps.get(set).cloned().unwrap_or_default();
-        let mut ramps = vec![Ramp::Linear];
-        let mut ramp_of_dof = vec![0u32; ndof];
+        let ndof = self.prescribed.len();
+        let mut ramps = DofRamps { ramps: vec![Ramp::Linear], of_dof: vec![0u32; ndof] };
+        let released = self.release(stage)?;
+        self.hold(stage)?;
+        self.move_sets(stage, &mut ramps)?;
+        let arc_of_dof = self.turn_sets(stage, &mut ramps)?;
+        self.inserts.mark_bonded(&mut self.prescribed);
+        let pressures = self.pressure_programs(stage)?;
+        let dead_changes = self.dead_changes(stage)?;
+        let mut dead = self.dead.clone();
+        for (_, change) in &dead_changes {
+            for (d, c) in dead.iter_mut().zip(change) {
+                *d += c;
+            }
+        }
+        Ok(StageProgram {
+            prescribed: self.prescribed.clone(),
+            target: self.target.clone(),
+            ramp_of_dof: ramps.of_dof,
+            arc_of_dof,
+            arcs: stage.rotations.clone(),
+            ramps: ramps.ramps,
+            pressures,
+            dead_start: std::mem::replace(&mut self.dead, dead),
+            dead_changes,
+            released,
+        })
+    }
+
+    /// The nodes of set `name`, or the stage's unknown-set error.
+    fn nodes(&self, stage: &Stage, name: &str) -> Result<Vec<usize>, SolveError> {
+        self.disc.mesh().nodes_of_set(name).ok_or_else(|| unknown_set(stage, name))
+    }
+
+    /// Lets go of the released dofs; returns those that were held.
+    fn release(&mut self, stage: &Stage) -> Result<Vec<usize>, SolveError> {
+        let dim = self.disc.dim;
         let mut released = Vec::new();
         for r in &stage.releases {
-            let nodes = mesh.nodes_of_set(&r.set).ok_or_else(|| unknown(&r.set))?;
-            for &n in &nodes {
+            for n in self.nodes(stage, &r.set)? {
                 for i in (0..dim).filter(|&i| r.components[i]) {
                     let d = n * dim + i;
-                    turned[d] = false;
-                    if std::mem::replace(&mut prescribed[d], false) {
+                    self.turned[d] = false;
+                    if std::mem::replace(&mut self.prescribed[d], false) {
                         released.push(d);
                     }
                 }
             }
         }
+        Ok(released)
+    }
+
+    /// Holds the supported dofs at zero.
+    fn hold(&mut self, stage: &Stage) -> Result<(), SolveError> {
+        let dim = self.disc.dim;
         for s in &stage.supports {
-            let nodes = mesh.nodes_of_set(&s.set).ok_or_else(|| unknown(&s.set))?;
+            let nodes = self.nodes(stage, &s.set)?;
             for &n in &nodes {
-                for i in 0..dim {
-                    if s.components[i] {
-                        prescribed[n * dim + i] = true;
-                        target[n * dim + i] = 0.0;
-                        turned[n * dim + i] = false;
-                    }
+                for d in (0..dim).filter(|&i| s.components[i]).map(|i| n * dim + i) {
+                    self.prescribed[d] = true;
+                    self.target[d] = 0.0;
+                    self.turned[d] = false;
                 }
             }
-            report.insert(s.set.clone(), nodes);
+            self.report.insert(s.set.clone(), nodes);
         }
+        Ok(())
+    }
+
+    /// Prescribes the moved sets' displacements with their ramps.
+    fn move_sets(&mut self, stage: &Stage, ramps: &mut DofRamps) -> Result<(), SolveError> {
+        let dim = self.disc.dim;
         for m in &stage.motions {
-            let nodes = mesh.nodes_of_set(&m.set).ok_or_else(|| unknown(&m.set))?;
+            let nodes = self.nodes(stage, &m.set)?;
             if stage.harmonic.is_some() {
                 // Amplitudes of the vibration, not positions: the static program holds.
-                report.insert(m.set.clone(), nodes);
+                self.report.insert(m.set.clone(), nodes);
                 continue;
             }
-            let ramp = ramp_for(&m.set);
-            let r = if ramp == Ramp::Linear {
-                0
-            } else {
-                ramps.push(ramp);
-                (ramps.len() - 1) as u32
-            };
+            let r = ramps.index(ramp_for(stage, &m.set));
             for &n in &nodes {
                 for i in 0..dim {
                     if let Some(v) = m.displacement[i] {
-                        prescribed[n * dim + i] = true;
-                        target[n * dim + i] = v;
-                        turned[n * dim + i] = false;
-                        ramp_of_dof[n * dim + i] = r;
+                        let d = n * dim + i;
+                        self.prescribed[d] = true;
+                        self.target[d] = v;
+                        self.turned[d] = false;
+                        ramps.of_dof[d] = r;
                     }
                 }
             }
-            report.insert(m.set.clone(), nodes);
+            self.report.insert(m.set.clone(), nodes);
         }
-        let mut arc_of_dof: Vec<u32> = turned.iter().map(|&h| if h { HOLD_AT_START } else { NO_ARC }).collect();
+        Ok(())
+    }
+
+    /// Prescribes the turned sets along their arcs; returns every dof's arc.
+    fn turn_sets(&mut self, stage: &Stage, ramps: &mut DofRamps) -> Result<Vec<u32>, SolveError> {
+        let dim = self.disc.dim;
+        let mut arc_of_dof: Vec<u32> = self.turned.iter().map(|&h| if h { HOLD_AT_START } else { NO_ARC }).collect();
         for (k, m) in stage.rotations.iter().enumerate() {
-            let nodes = mesh.nodes_of_set(&m.set).ok_or_else(|| unknown(&m.set))?;
-            let ramp = ramp_for(&m.set);
-            let r = if ramp == Ramp::Linear {
-                0
-            } else {
-                ramps.push(ramp);
-                (ramps.len() - 1) as u32
-            };
+            let nodes = self.nodes(stage, &m.set)?;
+            let r = ramps.index(ramp_for(stage, &m.set));
             for &n in &nodes {
                 for d in n * dim..(n + 1) * dim {
-                    prescribed[d] = true;
+                    self.prescribed[d] = true;
                     arc_of_dof[d] = k as u32;
-                    ramp_of_dof[d] = r;
-                    turned[d] = true;
+                    ramps.of_dof[d] = r;
+                    self.turned[d] = true;
                 }
             }
-            report.insert(m.set.clone(), nodes);
+            self.report.insert(m.set.clone(), nodes);
         }
-        inserts.mark_bonded(&mut prescribed);
-        let before = pressures.clone();
+        Ok(arc_of_dof)
+    }
+
+    /// Every side set pressurised so far, from its pressure at the stage start to its new one.
+    fn pressure_programs(&mut self, stage: &Stage) -> Result<Vec<PressureProgram>, SolveError> {
+        let mesh = self.disc.mesh();
+        let before = self.pressures.clone();
         for p in &stage.pressures {
             if !mesh.side_sets.contains_key(&p.set) {
                 return Err(if mesh.nodes_of_set(&p.set).is_some() {
                     SolveError::NotASideSet { stage: stage.name.clone(), name: p.set.clone() }
                 } else {
-                    unknown(&p.set)
+                    unknown_set(stage, &p.set)
                 });
             }
-            pressures.insert(p.set.clone(), p.value);
+            self.pressures.insert(p.set.clone(), p.value);
         }
-        let pressure_programs = pressures
+        Ok(self
+            .pressures
             .iter()
             .map(|(name, &end)| PressureProgram {
                 name: name.clone(),
                 sides: mesh.side_sets[name].clone(),
                 start: before.get(name).copied().unwrap_or(0.0),
                 end,
-                ramp: ramp_for(name),
+                ramp: ramp_for(stage, name),
             })
-            .collect();
-        let forces_before = forces.clone();
+            .collect())
+    }
+
+    /// The changes of the dead load over the stage, each changed force and
+    /// the body force with its own ramp.
+    fn dead_changes(&mut self, stage: &Stage) -> Result<Vec<(Ramp, Vec<f64>)>, SolveError> {
+        let (disc, mesh) = (self.disc, self.disc.mesh());
+        let (dim, ndof) = (disc.dim, self.dead.len());
+        let forces_before = self.forces.clone();
         for f in &stage.forces {
-            if mesh.nodes_of_set(&f.set).is_none() {
-                return Err(unknown(&f.set));
-            }
-            forces.insert(f.set.clone(), f.total);
+            self.nodes(stage, &f.set)?;
+            self.forces.insert(f.set.clone(), f.total);
         }
-        let body_before = body;
+        let body_before = self.body;
         if stage.body_force.is_some() {
-            body = stage.body_force;
+            self.body = stage.body_force;
         }
-        // Each changed load contributes its change with its own ramp.
         let mut dead_changes = Vec::new();
-        for (name, total) in &forces {
+        for (name, total) in &self.forces {
             let old = forces_before.get(name).copied().unwrap_or([0.0; 3]);
             if old == *total {
                 continue;
@@ -248,36 +341,27 @@ pub fn resolve(disc: &Discretization) -> Result<(Vec<StageProgram>, ReportSets),
             let delta = [total[0] - old[0], total[1] - old[1], total[2] - old[2]];
             let mut change = vec![0.0; ndof];
             if let Some(sides) = mesh.side_sets.get(name) {
-                add_side_force(mesh, model.analysis, dim, sides, delta, &mut change);
+                add_side_force(mesh, disc.model.analysis, dim, sides, delta, &mut change);
             } else if let Some(nodes) = mesh.nodes_of_set(name) {
                 add_node_force(dim, &nodes, delta, &mut change);
             }
-            dead_changes.push((ramp_for(name), change));
+            dead_changes.push((ramp_for(stage, name), change));
         }
-        if body != body_before {
-            let (new, old) = (body.unwrap_or([0.0; 3]), body_before.unwrap_or([0.0; 3]));
+        if self.body != body_before {
+            let (new, old) = (self.body.unwrap_or([0.0; 3]), body_before.unwrap_or([0.0; 3]));
             let mut change = vec![0.0; ndof];
             add_body_force(disc, [new[0] - old[0], new[1] - old[1], new[2] - old[2]], &mut change);
-            dead_changes.push((ramp_for(BODY_FORCE_RAMP), change));
+            dead_changes.push((ramp_for(stage, BODY_FORCE_RAMP), change));
         }
-        let mut dead = dead_prev.clone();
-        for (_, change) in &dead_changes {
-            for (d, c) in dead.iter_mut().zip(change) {
-                *d += c;
-            }
-        }
-        programs.push(StageProgram {
-            prescribed: prescribed.clone(),
-            target: target.clone(),
-            ramp_of_dof,
-            arc_of_dof,
-            arcs: stage.rotations.clone(),
-            ramps,
-            pressures: pressure_programs,
-            dead_start: std::mem::replace(&mut dead_prev, dead),
-            dead_changes,
-            released,
-        });
+        Ok(dead_changes)
     }
-    Ok((programs, report))
+}
+
+/// The stage's ramp for set `set` (linear unless named).
+fn ramp_for(stage: &Stage, set: &str) -> Ramp {
+    stage.ramps.get(set).cloned().unwrap_or_default()
+}
+
+fn unknown_set(stage: &Stage, name: &str) -> SolveError {
+    SolveError::UnknownSet { stage: stage.name.clone(), name: name.to_string() }
 }

@@ -33,6 +33,7 @@
 pub mod geometry;
 pub mod kernel;
 pub mod pressure_space;
+pub mod side;
 
 pub use geometry::{PointGeometry, Shape};
 pub use kernel::{

@@ -148,6 +148,7 @@ fn shear_modulus_estimate(data: &[DataPoint], weights: &[f64]) -> f64 {
 /// Fits `model` to the shear-mode points of `data` (volumetric points are
 /// ignored here).
 pub fn fit(model: FitModel, data: &[DataPoint], settings: &Settings) -> Result<FitResult, FitError> {
+    settings.validate()?;
     let data: Vec<DataPoint> = data.iter().copied().filter(|p| p.mode != Mode::Volumetric).collect();
     if data.is_empty() {
         return Err(FitError::NoShearData);

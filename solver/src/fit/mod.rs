@@ -86,6 +86,25 @@ impl Default for Settings {
     }
 }
 
+impl Settings {
+    /// Checks the settings: a positive finite tolerance below 1, a patience of at least 1.
+    pub fn validate(&self) -> Result<(), FitError> {
+        let bad = |field: &'static str, value: f64, requirement: &'static str| FitError::BadSettings { field, value, requirement };
+        if !(self.tolerance > 0.0 && self.tolerance < 1.0) {
+            return Err(bad("tolerance", self.tolerance, "between 0 and 1 (exclusive)"));
+        }
+        if self.patience == 0 {
+            return Err(bad("patience", 0.0, "at least 1"));
+        }
+        Ok(())
+    }
+
+    /// The settings, if [`Self::validate`] accepts them.
+    pub fn checked(self) -> Result<Self, FitError> {
+        self.validate().map(|_| self)
+    }
+}
+
 /// Why a fit could not be made.
 #[derive(Debug, Clone, PartialEq, Error)]
 pub enum FitError {
@@ -125,4 +144,14 @@ pub enum FitError {
     /// No volumetric data for the bulk modulus.
     #[error("no volumetric data to fit the bulk modulus")]
     NoVolumetricData,
+    /// A [`Settings`] value out of range (NaN included).
+    #[error("fit settings: `{field}` must be {requirement}, got {value}")]
+    BadSettings {
+        /// The field of [`Settings`].
+        field: &'static str,
+        /// The value given.
+        value: f64,
+        /// What it must be.
+        requirement: &'static str,
+    },
 }

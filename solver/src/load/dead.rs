@@ -1,45 +1,30 @@
 //! Dead (configuration-independent) loads as a nodal force vector: a total
 //! force on a set, and a body force per unit reference volume.
 
-use std::f64::consts::PI;
-
 use nalgebra::Vector3;
 use olli_mesh::{Mesh, Side};
 
 use crate::assembly::Discretization;
 use crate::element::geometry::point_geometry;
-use crate::element::Analysis;
-use crate::shape::ShapeKind;
+use crate::element::{side, Analysis};
+use crate::shape::MAX_SIDE_NODES;
 
 /// Reference-area weights ∫ N_a dA of the nodes of one side (2πR·ds
 /// axisymmetric, t·ds plane strain), integrated with the side shape's own
-/// functions and added into `weights` by global node. On quadratic sides
-/// these are the consistent shares (zero at tri6 corners, negative at quad8
-/// corners), so a force spread by them is statically equivalent and exact
-/// for uniform traction.
+/// functions ([`side::nodal_areas`]) and added into `weights` by global node.
+/// On quadratic sides these are the consistent shares (zero at tri6 corners,
+/// negative at quad8 corners), so a force spread by them is statically
+/// equivalent and exact for uniform traction.
 pub fn side_weights(mesh: &Mesh, analysis: Analysis, side: Side, weights: &mut [f64]) {
     let nodes = mesh.side_nodes(side);
-    let dim = if analysis == Analysis::Solid3d { 3 } else { 2 };
-    let Some(shape) = ShapeKind::side_with_nodes(dim, nodes.len()) else { return };
-    let table = shape.table();
-    let x = |a: usize| Vector3::from(mesh.nodes[nodes[a]]);
-    for q in 0..table.len() {
-        let (n, d) = (table.values(q), table.derivatives(q));
-        let (mut ta, mut tb, mut r) = (Vector3::zeros(), Vector3::zeros(), 0.0);
-        for a in 0..nodes.len() {
-            ta += x(a) * d[a][0];
-            tb += x(a) * d[a][1];
-            r += x(a)[0] * n[a];
-        }
-        let da = table.weights[q]
-            * match analysis {
-                Analysis::Solid3d => ta.cross(&tb).norm(),
-                Analysis::Axisymmetric => 2.0 * PI * r * ta.norm(),
-                Analysis::PlaneStrain { thickness } => thickness * ta.norm(),
-            };
-        for (a, &node) in nodes.iter().enumerate() {
-            weights[node] += n[a] * da;
-        }
+    let x: Vec<Vector3<f64>> = nodes.iter().map(|&n| Vector3::from(mesh.nodes[n])).collect();
+    let mut shares = [0.0; MAX_SIDE_NODES];
+    if nodes.len() > MAX_SIDE_NODES {
+        return;
+    }
+    side::nodal_areas(analysis, &x, &mut shares);
+    for (&node, share) in nodes.iter().zip(shares) {
+        weights[node] += share;
     }
 }
 

@@ -21,13 +21,15 @@
 //! as many further updates as the set has facets (a front that would
 //! oscillate between two sets settles on their union).
 
+use nalgebra::Vector3;
 use olli_mesh::{select::boundary_sides, Side};
 
 use super::pressure::{pressure_side_into, MAX_SIDE_DOFS};
 use crate::assembly::global::GlobalSystem;
 use crate::assembly::Discretization;
-use crate::element::Analysis;
+use crate::element::{side, Analysis};
 use crate::model::{Ramp, Stage};
+use crate::shape::MAX_SIDE_NODES;
 
 /// A fluid that cannot be set up: an unknown or empty side set, a source
 /// off its sides, a stage pressure that is not finite.
@@ -43,12 +45,26 @@ pub struct FluidError {
 /// Front updates per increment that may also dry facets; later updates only wet.
 pub const FREE_UPDATES: usize = 4;
 
+/// One side of a fluid's set: its nodes in the side shape's order, corners first.
+#[derive(Debug, Clone, PartialEq)]
+struct Facet {
+    nodes: Vec<usize>,
+    /// Number of corner nodes (2 on an edge, 3 or 4 on a face).
+    corners: usize,
+}
+
+impl Facet {
+    fn corners(&self) -> &[usize] {
+        &self.nodes[..self.corners]
+    }
+}
+
 /// One fluid during the run.
 #[derive(Debug, Clone)]
 struct FluidFront {
     name: String,
-    /// Corner nodes of each facet (2 in 2-D, 4 in 3-D).
-    facets: Vec<[usize; 4]>,
+    /// The facets the fluid may wet (every node loaded, mid-side nodes included).
+    facets: Vec<Facet>,
     /// Facets sharing a corner (2-D) or an edge (3-D) with each facet.
     neighbours: Vec<Vec<usize>>,
     /// The facet the fluid enters through.
@@ -79,7 +95,6 @@ pub struct FluidSummary {
 pub struct Fluids {
     fluids: Vec<FluidFront>,
     dim: usize,
-    corners: usize,
     analysis: Option<Analysis>,
     /// Contact pressure per mesh node at the last converged increment.
     committed_contact: Vec<f64>,
@@ -95,7 +110,6 @@ impl Fluids {
         let model = disc.model;
         let mesh = disc.mesh();
         let dim = disc.dim;
-        let corners = if dim == 3 { 4 } else { 2 };
         let boundary = if model.fluids.is_empty() { Vec::new() } else { boundary_sides(mesh) };
         let mut fluids = Vec::new();
         for def in &model.fluids {
@@ -105,22 +119,22 @@ impl Fluids {
             if free.is_empty() {
                 return Err(bad(format!("side set `{}` has no free facet (no side on the surface of the rubber)", def.sides)));
             }
-            let facets: Vec<[usize; 4]> = free
+            let facets: Vec<Facet> = free
                 .iter()
                 .map(|&s| {
                     let nodes = mesh.side_nodes(s);
-                    let mut f = [usize::MAX; 4];
-                    f[..corners].copy_from_slice(&nodes[..corners]);
-                    f
+                    let corners = side::side_kind(model.analysis, nodes.len()).map_or(nodes.len(), |k| k.def().corners);
+                    Facet { nodes, corners }
                 })
                 .collect();
-            let neighbours = neighbours(&facets, corners, mesh.node_count());
+            let neighbours = neighbours(&facets, dim, mesh.node_count());
             let (source, distance, size) = facets
                 .iter()
                 .enumerate()
                 .map(|(i, f)| {
-                    let x: Vec<[f64; 3]> = f[..corners].iter().map(|&n| mesh.nodes[n]).collect();
-                    (i, distance_to_facet(&x, def.source), facet_size(&x))
+                    let corners: Vec<[f64; 3]> = f.corners().iter().map(|&n| mesh.nodes[n]).collect();
+                    let x: Vec<Vector3<f64>> = f.nodes.iter().map(|&n| Vector3::from(mesh.nodes[n])).collect();
+                    (i, distance_to_facet(&corners, def.source), facet_size(model.analysis, &x))
                 })
                 .min_by(|a, b| a.1.total_cmp(&b.1))
                 .expect("at least one facet");
@@ -159,7 +173,7 @@ impl Fluids {
                 }
             }
         }
-        Ok(Fluids { fluids, dim, corners, analysis: Some(model.analysis), committed_contact: vec![0.0; mesh.node_count()], updates: 0 })
+        Ok(Fluids { fluids, dim, analysis: Some(model.analysis), committed_contact: vec![0.0; mesh.node_count()], updates: 0 })
     }
 
     /// Whether the model has no fluid.
@@ -191,7 +205,7 @@ impl Fluids {
         self.updates = 0;
         for i in 0..self.fluids.len() {
             let p = self.pressure(i, t);
-            let wet = flood(&self.fluids[i], &self.committed_contact, p, self.corners);
+            let wet = flood(&self.fluids[i], &self.committed_contact, p);
             self.fluids[i].wetted = wet;
         }
     }
@@ -203,7 +217,7 @@ impl Fluids {
         let mut changed = false;
         for i in 0..self.fluids.len() {
             let p = self.pressure(i, t);
-            let wet = flood(&self.fluids[i], contact, p, self.corners);
+            let wet = flood(&self.fluids[i], contact, p);
             let f = &mut self.fluids[i];
             for (old, new) in f.wetted.iter_mut().zip(wet) {
                 let next = if grow_only { *old || new } else { new };
@@ -236,9 +250,8 @@ impl Fluids {
     /// `t` to `system`: the force, and `−∂f/∂u` to the tangent with its skew
     /// part kept (a wetted front on a sliding seal is not conservative).
     pub fn add_loads(&self, nodes: &[[f64; 3]], u: &[f64], t: f64, system: &mut GlobalSystem) {
-        let (dim, nn) = (self.dim, self.corners);
+        let dim = self.dim;
         let Some(analysis) = self.analysis else { return };
-        let nd = nn * dim;
         let mut fs = [0.0; MAX_SIDE_DOFS];
         let mut ks = [0.0; MAX_SIDE_DOFS * MAX_SIDE_DOFS];
         let mut gdofs = [0usize; MAX_SIDE_DOFS];
@@ -250,12 +263,14 @@ impl Fluids {
             }
             let f = &self.fluids[i];
             for (facet, _) in f.facets.iter().zip(&f.wetted).filter(|(_, &w)| w) {
-                let (mut x, mut us) = ([[0.0; 3]; 4], [[0.0; 3]; 4]);
-                for a in 0..nn {
-                    x[a] = nodes[facet[a]];
+                let nn = facet.nodes.len();
+                let nd = nn * dim;
+                let (mut x, mut us) = ([[0.0; 3]; MAX_SIDE_NODES], [[0.0; 3]; MAX_SIDE_NODES]);
+                for (a, &node) in facet.nodes.iter().enumerate() {
+                    x[a] = nodes[node];
                     for c in 0..dim {
-                        us[a][c] = u[facet[a] * dim + c];
-                        gdofs[a * dim + c] = facet[a] * dim + c;
+                        us[a][c] = u[node * dim + c];
+                        gdofs[a * dim + c] = node * dim + c;
                     }
                 }
                 pressure_side_into(analysis, &x[..nn], &us[..nn], p, &mut fs, if want_k { Some(&mut ks) } else { None });
@@ -271,9 +286,10 @@ impl Fluids {
 
     /// Figures of every fluid at displacement `u` and stage fraction `t`.
     pub fn summaries(&self, nodes: &[[f64; 3]], u: &[f64], t: f64) -> Vec<FluidSummary> {
-        let (dim, nn) = (self.dim, self.corners);
+        let dim = self.dim;
+        let analysis = self.analysis.unwrap_or(Analysis::Solid3d);
         let position = |n: usize| {
-            let mut x = nodes[n];
+            let mut x = Vector3::from(nodes[n]);
             for c in 0..dim {
                 x[c] += u[n * dim + c];
             }
@@ -285,8 +301,8 @@ impl Fluids {
             .map(|(i, f)| {
                 let mut measure = 0.0;
                 for (facet, _) in f.facets.iter().zip(&f.wetted).filter(|(_, &w)| w) {
-                    let x: Vec<[f64; 3]> = facet[..nn].iter().map(|&n| position(n)).collect();
-                    measure += facet_measure(&x);
+                    let x: Vec<Vector3<f64>> = facet.nodes.iter().map(|&n| position(n)).collect();
+                    measure += side::measure(analysis, &x);
                 }
                 FluidSummary {
                     name: f.name.clone(),
@@ -305,7 +321,7 @@ impl Fluids {
         for (i, f) in self.fluids.iter().enumerate() {
             let p = self.pressure(i, t);
             for (facet, _) in f.facets.iter().zip(&f.wetted).filter(|(_, &w)| w) {
-                for &n in &facet[..self.corners] {
+                for &n in &facet.nodes {
                     out[n] = f64::max(out[n], p);
                 }
             }
@@ -316,9 +332,9 @@ impl Fluids {
 
 /// Facets reachable from the source through facets none of whose corners is
 /// pressed (`contact`, per node) at least as hard as the fluid pressure `p`.
-fn flood(f: &FluidFront, contact: &[f64], p: f64, corners: usize) -> Vec<bool> {
+fn flood(f: &FluidFront, contact: &[f64], p: f64) -> Vec<bool> {
     let mut wet = vec![false; f.facets.len()];
-    let open = |i: usize| p > 0.0 && f.facets[i][..corners].iter().all(|&n| contact[n] < p);
+    let open = |i: usize| p > 0.0 && f.facets[i].corners().iter().all(|&n| contact[n] < p);
     if !open(f.source) {
         return wet;
     }
@@ -335,24 +351,24 @@ fn flood(f: &FluidFront, contact: &[f64], p: f64, corners: usize) -> Vec<bool> {
     wet
 }
 
-/// Facets sharing at least `corners − 1` nodes (a corner in 2-D, an edge in 3-D).
-fn neighbours(facets: &[[usize; 4]], corners: usize, node_count: usize) -> Vec<Vec<usize>> {
+/// Facets sharing `dim − 1` corners (a corner in 2-D, an edge in 3-D).
+fn neighbours(facets: &[Facet], dim: usize, node_count: usize) -> Vec<Vec<usize>> {
     let mut at_node = vec![Vec::new(); node_count];
     for (i, f) in facets.iter().enumerate() {
-        for &n in &f[..corners] {
+        for &n in f.corners() {
             at_node[n].push(i);
         }
     }
-    let need = corners.min(3) - 1;
+    let need = dim - 1;
     facets
         .iter()
         .enumerate()
         .map(|(i, f)| {
             let mut out: Vec<usize> = Vec::new();
-            for &n in &f[..corners] {
+            for &n in f.corners() {
                 for &j in &at_node[n] {
                     if j != i && !out.contains(&j) {
-                        let shared = f[..corners].iter().filter(|a| facets[j][..corners].contains(a)).count();
+                        let shared = f.corners().iter().filter(|a| facets[j].corners().contains(a)).count();
                         if shared >= need {
                             out.push(j);
                         }
@@ -372,41 +388,28 @@ fn dot(a: [f64; 3], b: [f64; 3]) -> f64 {
     a[0] * b[0] + a[1] * b[1] + a[2] * b[2]
 }
 
-fn cross(a: [f64; 3], b: [f64; 3]) -> [f64; 3] {
-    [a[1] * b[2] - a[2] * b[1], a[2] * b[0] - a[0] * b[2], a[0] * b[1] - a[1] * b[0]]
-}
-
-/// Length (2 corners) or area (4 corners, as two triangles) of a facet.
-fn facet_measure(x: &[[f64; 3]]) -> f64 {
-    if x.len() == 2 {
-        let d = sub(x[1], x[0]);
-        dot(d, d).sqrt()
-    } else {
-        let n = cross(sub(x[2], x[0]), sub(x[3], x[1]));
-        0.5 * dot(n, n).sqrt()
-    }
-}
-
 /// Size of a facet: its length, or the square root of its area.
-fn facet_size(x: &[[f64; 3]]) -> f64 {
-    let m = facet_measure(x);
-    if x.len() == 2 {
-        m
-    } else {
+fn facet_size(analysis: Analysis, x: &[Vector3<f64>]) -> f64 {
+    let m = side::measure(analysis, x);
+    if analysis == Analysis::Solid3d {
         m.sqrt()
+    } else {
+        m
     }
 }
 
-/// Distance from `p` to a facet: to the segment (2 corners) or to the
-/// nearer of the face's two triangles (4 corners).
+/// Distance from `p` to the corner polygon of a facet: to the segment (2
+/// corners), the triangle (3) or the nearer of the face's two triangles (4).
 fn distance_to_facet(x: &[[f64; 3]], p: [f64; 3]) -> f64 {
-    if x.len() == 2 {
-        let d = sub(x[1], x[0]);
-        let s = (dot(sub(p, x[0]), d) / dot(d, d).max(f64::MIN_POSITIVE)).clamp(0.0, 1.0);
-        let q = [x[0][0] + s * d[0], x[0][1] + s * d[1], x[0][2] + s * d[2]];
-        dot(sub(p, q), sub(p, q)).sqrt()
-    } else {
-        distance_to_triangle(p, x[0], x[1], x[2]).min(distance_to_triangle(p, x[0], x[2], x[3]))
+    match x.len() {
+        2 => {
+            let d = sub(x[1], x[0]);
+            let s = (dot(sub(p, x[0]), d) / dot(d, d).max(f64::MIN_POSITIVE)).clamp(0.0, 1.0);
+            let q = [x[0][0] + s * d[0], x[0][1] + s * d[1], x[0][2] + s * d[2]];
+            dot(sub(p, q), sub(p, q)).sqrt()
+        }
+        3 => distance_to_triangle(p, x[0], x[1], x[2]),
+        _ => distance_to_triangle(p, x[0], x[1], x[2]).min(distance_to_triangle(p, x[0], x[2], x[3])),
     }
 }
 
@@ -453,7 +456,7 @@ mod tests {
 
     fn front(n: usize) -> FluidFront {
         // A chain of n edges on nodes 0..=n.
-        let facets: Vec<[usize; 4]> = (0..n).map(|i| [i, i + 1, usize::MAX, usize::MAX]).collect();
+        let facets: Vec<Facet> = (0..n).map(|i| Facet { nodes: vec![i, i + 1], corners: 2 }).collect();
         let neighbours = neighbours(&facets, 2, n + 1);
         FluidFront { name: "f".into(), facets, neighbours, source: 0, start: 0.0, end: 1.0, ramp: Ramp::Linear, wetted: vec![false; n] }
     }
@@ -463,18 +466,18 @@ mod tests {
         let f = front(6);
         // Node 3 pressed at 2.0: edges 2 (nodes 2–3) and 3 (3–4) stay dry, and so does all beyond.
         let contact = [0.0, 0.0, 0.5, 2.0, 0.0, 0.0, 0.0];
-        assert_eq!(flood(&f, &contact, 1.0, 2), [true, true, false, false, false, false]);
+        assert_eq!(flood(&f, &contact, 1.0), [true, true, false, false, false, false]);
         // Above the contact pressure, the fluid passes.
-        assert_eq!(flood(&f, &contact, 2.5, 2), [true; 6]);
+        assert_eq!(flood(&f, &contact, 2.5), [true; 6]);
         // No pressure, no wetting.
-        assert_eq!(flood(&f, &[0.0; 7], 0.0, 2), [false; 6]);
+        assert_eq!(flood(&f, &[0.0; 7], 0.0), [false; 6]);
     }
 
     #[test]
     fn quad_faces_connect_through_edges_not_corners() {
         // Three unit squares in a row plus one touching only at a corner.
-        let facets = [[0, 1, 5, 4], [1, 2, 6, 5], [2, 3, 7, 6], [7, 8, 9, 10]];
-        let nb = neighbours(&facets, 4, 11);
+        let facets = [[0, 1, 5, 4], [1, 2, 6, 5], [2, 3, 7, 6], [7, 8, 9, 10]].map(|n| Facet { nodes: n.to_vec(), corners: 4 });
+        let nb = neighbours(&facets, 3, 11);
         assert_eq!(nb[0], [1]);
         assert_eq!(nb[1], [0, 2]);
         assert_eq!(nb[3], Vec::<usize>::new());
@@ -522,6 +525,136 @@ mod tests {
         let quad = [[0.0, 0.0, 0.0], [1.0, 0.0, 0.0], [1.0, 1.0, 0.0], [0.0, 1.0, 0.0]];
         assert!((distance_to_facet(&quad, [0.3, 0.8, 0.2]) - 0.2).abs() < 1e-15);
         assert!((distance_to_facet(&quad, [2.0, 0.5, 0.0]) - 1.0).abs() < 1e-15);
-        assert!((facet_measure(&quad) - 1.0).abs() < 1e-15);
+        let tri = [[0.0, 0.0, 0.0], [1.0, 0.0, 0.0], [0.0, 1.0, 0.0]];
+        assert!((distance_to_facet(&tri, [0.8, 0.8, 0.0]) - 0.6 / 2f64.sqrt()).abs() < 1e-15);
+    }
+
+    /// A fluid at pressure `p` on the "top" side set of a one-element
+    /// quadratic mesh (quad8 in plane strain, thickness 1, or hex20), wetted
+    /// from the set's centre, with every dof free.
+    fn quadratic_fluid(analysis: Analysis, p: f64) -> (olli_mesh::Mesh, Fluids) {
+        use crate::material::{registry, VolumetricForm};
+        use crate::model::{Fluid, FluidPressure, Formulation, Model};
+        use olli_mesh::generate::{block, rectangle, BlockParams, Order, RectangleParams};
+        let (mesh, source) = if analysis == Analysis::Solid3d {
+            let params = BlockParams { size: [2.0, 1.5, 1.0], divisions: [1, 1, 1], order: Order::Quadratic, ..Default::default() };
+            (block(&params).unwrap(), [1.0, 0.75, 1.0])
+        } else {
+            let params = RectangleParams { size: [2.0, 1.0], divisions: [1, 1], order: Order::Quadratic, ..Default::default() };
+            (rectangle(&params).unwrap(), [1.0, 1.0, 0.0])
+        };
+        let mat = registry::material("neo-hookean", &[("shear_modulus", 1.0), ("bulk_modulus", 100.0)], VolumetricForm::Quadratic).unwrap();
+        let mut model = Model::single_region(mesh.clone(), analysis, std::sync::Arc::new(mat), Formulation::Mixed);
+        model.fluids.push(Fluid { name: "oil".into(), sides: "top".into(), source });
+        model.stages.push(Stage { fluid_pressures: vec![FluidPressure { fluid: "oil".into(), value: p }], ..Default::default() });
+        let disc = Discretization::new(&model).unwrap();
+        let mut fluids = Fluids::new(&disc).unwrap();
+        fluids.begin_stage(&model.stages[0]);
+        fluids.begin_increment(1.0);
+        (mesh, fluids)
+    }
+
+    /// The fluid's external force at `u`, and (if asked) its tangent
+    /// `−∂f/∂u` as a dense matrix (symmetric part and skew part).
+    fn fluid_system(mesh: &olli_mesh::Mesh, fluids: &Fluids, u: &[f64], want_k: bool) -> (Vec<f64>, Vec<f64>) {
+        use crate::assembly::{DofMap, Pattern};
+        let model = crate::model::Model::single_region(
+            mesh.clone(),
+            fluids.analysis.unwrap(),
+            std::sync::Arc::new(
+                crate::material::registry::material(
+                    "neo-hookean",
+                    &[("shear_modulus", 1.0), ("bulk_modulus", 100.0)],
+                    crate::material::VolumetricForm::Quadratic,
+                )
+                .unwrap(),
+            ),
+            crate::model::Formulation::Mixed,
+        );
+        let disc = Discretization::new(&model).unwrap();
+        let n = u.len();
+        let dofs = DofMap::new(fluids.dim, &vec![false; n]);
+        let pattern = Pattern::build(&disc, &dofs).unwrap();
+        let (mut external, mut values, mut skew) = (vec![0.0; n], vec![0.0; pattern.nnz()], Vec::new());
+        let mut system = GlobalSystem {
+            dofs: &dofs,
+            pattern: &pattern,
+            external: &mut external,
+            tangent: if want_k { Some(&mut values) } else { None },
+            skew: Some(&mut skew),
+            predictor: None,
+        };
+        fluids.add_loads(&mesh.nodes, u, 1.0, &mut system);
+        let mut dense = vec![0.0; n * n];
+        let mut at_slot = vec![(0, 0); pattern.nnz()];
+        for c in 0..n {
+            for r in c..n {
+                if let Some(slot) = pattern.slot(r, c) {
+                    dense[r * n + c] = values[slot];
+                    dense[c * n + r] = values[slot];
+                    at_slot[slot] = (r, c);
+                }
+            }
+        }
+        for (slot, w) in skew {
+            let (r, c) = at_slot[slot];
+            dense[r * n + c] += w;
+            dense[c * n + r] -= w;
+        }
+        (external, dense)
+    }
+
+    /// Quadratic facets carry the fluid on every node: on an undeformed
+    /// line3 edge of length L the consistent loads pL/6, pL/6, 2pL/3 (Simpson's
+    /// rule), on a flat quad8 face −pA/12 at the corners and pA/3 at the
+    /// mid-side nodes (Zienkiewicz & Taylor, *The Finite Element Method*,
+    /// vol. 1, equivalent nodal forces of quadratic elements under uniform
+    /// load; from memory, and each set sums to pA); and the follower
+    /// tangent, skew part included, equals central differences of the force.
+    #[test]
+    fn quadratic_facets_take_consistent_loads_and_their_exact_tangent() {
+        let p = 1.5;
+        for analysis in [Analysis::PlaneStrain { thickness: 1.0 }, Analysis::Solid3d] {
+            let (mesh, fluids) = quadratic_fluid(analysis, p);
+            let dim = fluids.dim;
+            let n = mesh.node_count() * dim;
+            let (force, _) = fluid_system(&mesh, &fluids, &vec![0.0; n], false);
+            let top = &fluids.fluids[0].facets[0];
+            let area = if dim == 3 { 2.0 * 1.5 } else { 2.0 };
+            let normal = dim - 1;
+            for (a, &node) in top.nodes.iter().enumerate() {
+                let corner = a < top.corners;
+                let share = match (dim, corner) {
+                    (2, true) => 1.0 / 6.0,
+                    (2, false) => 2.0 / 3.0,
+                    (_, true) => -1.0 / 12.0,
+                    (_, false) => 1.0 / 3.0,
+                };
+                let got = force[node * dim + normal];
+                assert!((got + p * area * share).abs() < 1e-12, "{analysis:?} node {a}: {got} vs {}", -p * area * share);
+            }
+            let total: f64 = (0..mesh.node_count()).map(|k| force[k * dim + normal]).sum();
+            assert!((total + p * area).abs() < 1e-12, "{analysis:?}: total {total}");
+            // Wetted measure: the undeformed top side.
+            let summary = &fluids.summaries(&mesh.nodes, &vec![0.0; n], 1.0)[0];
+            assert!((summary.wetted_measure - area).abs() < 1e-12 && summary.wetted_facets == 1);
+            // The tangent at a deformed state against central differences.
+            let u: Vec<f64> = (0..n).map(|d| 0.04 * ((d * 7 % 11) as f64 - 5.0) / 5.0).collect();
+            let (_, k) = fluid_system(&mesh, &fluids, &u, true);
+            let kmax = k.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+            assert!(kmax > 0.0);
+            let h = 1e-6;
+            for c in 0..n {
+                let (mut up, mut um) = (u.clone(), u.clone());
+                up[c] += h;
+                um[c] -= h;
+                let (fp, _) = fluid_system(&mesh, &fluids, &up, false);
+                let (fm, _) = fluid_system(&mesh, &fluids, &um, false);
+                for r in 0..n {
+                    let fd = -(fp[r] - fm[r]) / (2.0 * h);
+                    assert!((fd - k[r * n + c]).abs() <= 1e-6 * kmax, "{analysis:?} K[{r},{c}] = {} vs {fd}", k[r * n + c]);
+                }
+            }
+        }
     }
 }

@@ -9,12 +9,11 @@
 //! whose boundary is held, Schweizerhof & Ramm 1984, from memory).
 //! Pressure is positive when it pushes on the surface (compression).
 
-use std::f64::consts::PI;
-
 use nalgebra::Vector3;
 
+use crate::element::side::{for_each_point, side_kind, SideRule};
 use crate::element::Analysis;
-use crate::shape::{ShapeKind, MAX_SIDE_NODES};
+use crate::shape::MAX_SIDE_NODES;
 
 /// Largest number of side degrees of freedom (quad9 face: 9 × 3).
 pub const MAX_SIDE_DOFS: usize = 3 * MAX_SIDE_NODES;
@@ -24,8 +23,8 @@ pub const MAX_SIDE_DOFS: usize = 3 * MAX_SIDE_NODES;
 /// positions and `u` the displacements of the side's nodes in the side order
 /// of the mesh model; their number fixes the side shape (line2/line3 edges in
 /// 2-D; tri3, quad4, tri6, quad8, quad9 faces in 3-D), whose own shape
-/// functions and quadrature rule integrate the load, so mid-side nodes get
-/// their consistent share.
+/// functions and quadrature rule integrate the load
+/// ([`crate::element::side`]), so mid-side nodes get their consistent share.
 pub fn pressure_side_into(
     analysis: Analysis,
     x: &[[f64; 3]],
@@ -34,78 +33,38 @@ pub fn pressure_side_into(
     force: &mut [f64],
     mut stiffness: Option<&mut [f64]>,
 ) {
-    let solid = analysis == Analysis::Solid3d;
-    let dim = if solid { 3 } else { 2 };
-    let side = ShapeKind::side_with_nodes(dim, x.len()).expect("a side of a supported element");
-    let table = side.table();
+    let dim = if analysis == Analysis::Solid3d { 3 } else { 2 };
+    side_kind(analysis, x.len()).expect("a side of a supported element");
     let nn = x.len();
     let nd = nn * dim;
-    let cur = |a: usize| Vector3::new(x[a][0] + u[a][0], x[a][1] + u[a][1], x[a][2] + u[a][2]);
+    let mut current = [Vector3::zeros(); MAX_SIDE_NODES];
+    for a in 0..nn {
+        current[a] = Vector3::new(x[a][0] + u[a][0], x[a][1] + u[a][1], x[a][2] + u[a][2]);
+    }
     force[..nd].fill(0.0);
     if let Some(k) = stiffness.as_deref_mut() {
         k[..nd * nd].fill(0.0);
     }
-    for q in 0..table.len() {
-        let (n, d, w) = (table.values(q), table.derivatives(q), table.weights[q]);
-        let (mut ta, mut tb, mut r) = (Vector3::zeros(), Vector3::zeros(), 0.0);
+    for_each_point(analysis, &current[..nn], SideRule::Own, |point| {
+        let (n, area) = (point.values, point.area_vector());
         for a in 0..nn {
-            let c = cur(a);
-            ta += c * d[a][0];
-            tb += c * d[a][1];
-            r += c[0] * n[a];
-        }
-        if solid {
-            let area = ta.cross(&tb) * w;
-            for a in 0..nn {
-                for i in 0..3 {
-                    force[3 * a + i] -= p * n[a] * area[i];
-                }
-            }
-            if let Some(k) = stiffness.as_deref_mut() {
-                for b in 0..nn {
-                    for m in 0..3 {
-                        let e = Vector3::from_fn(|row, _| if row == m { 1.0 } else { 0.0 });
-                        let dn = (e.cross(&tb) * d[b][0] + ta.cross(&e) * d[b][1]) * w;
-                        let col = 3 * b + m;
-                        for a in 0..nn {
-                            for i in 0..3 {
-                                k[col * nd + 3 * a + i] -= p * n[a] * dn[i];
-                            }
-                        }
-                    }
-                }
-            }
-            continue;
-        }
-        // Outward normal of a counter-clockwise element: the edge direction
-        // turned clockwise.
-        let nv = [ta[1] * w, -ta[0] * w];
-        let (scale, dscale_dr) = match analysis {
-            Analysis::Axisymmetric => (2.0 * PI * r, 2.0 * PI),
-            Analysis::PlaneStrain { thickness } => (thickness, 0.0),
-            Analysis::Solid3d => unreachable!(),
-        };
-        for a in 0..nn {
-            for i in 0..2 {
-                force[2 * a + i] -= p * n[a] * scale * nv[i];
+            for i in 0..dim {
+                force[dim * a + i] -= p * n[a] * area[i];
             }
         }
-        if let Some(k) = stiffness.as_deref_mut() {
-            for b in 0..nn {
-                for m in 0..2 {
-                    // ∂(scale·nv)/∂x_bm
-                    let dnv = if m == 0 { [0.0, -d[b][0] * w] } else { [d[b][0] * w, 0.0] };
-                    let ds = if m == 0 { dscale_dr * n[b] } else { 0.0 };
-                    let col = 2 * b + m;
-                    for a in 0..nn {
-                        for i in 0..2 {
-                            k[col * nd + 2 * a + i] -= p * n[a] * (ds * nv[i] + scale * dnv[i]);
-                        }
+        let Some(k) = stiffness.as_deref_mut() else { return };
+        for b in 0..nn {
+            for m in 0..dim {
+                let da = point.area_vector_derivative(b, m);
+                let col = dim * b + m;
+                for a in 0..nn {
+                    for i in 0..dim {
+                        k[col * nd + dim * a + i] -= p * n[a] * da[i];
                     }
                 }
             }
         }
-    }
+    });
 }
 
 #[cfg(test)]

@@ -93,6 +93,25 @@ impl Default for Settings {
     }
 }
 
+impl Settings {
+    /// Checks the settings: a positive finite tolerance, at least one iteration.
+    pub fn validate(&self) -> Result<(), HomogeneousError> {
+        let bad = |field: &'static str, value: f64, requirement: &'static str| HomogeneousError::BadSettings { field, value, requirement };
+        if !(self.tolerance > 0.0 && self.tolerance.is_finite()) {
+            return Err(bad("tolerance", self.tolerance, "positive and finite"));
+        }
+        if self.max_iterations == 0 {
+            return Err(bad("max_iterations", 0.0, "at least 1"));
+        }
+        Ok(())
+    }
+
+    /// The settings, if [`Self::validate`] accepts them.
+    pub fn checked(self) -> Result<Self, HomogeneousError> {
+        self.validate().map(|_| self)
+    }
+}
+
 /// One point of a homogeneous response.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Point {
@@ -141,6 +160,16 @@ pub enum HomogeneousError {
         residual: f64,
         /// Iterations made.
         iterations: usize,
+    },
+    /// A [`Settings`] value out of range (NaN included).
+    #[error("homogeneous test settings: `{field}` must be {requirement}, got {value}")]
+    BadSettings {
+        /// The field of [`Settings`].
+        field: &'static str,
+        /// The value given.
+        value: f64,
+        /// What it must be.
+        requirement: &'static str,
     },
     /// The stretch is not positive and finite.
     #[error("{mode}: stretch {stretch} must be positive and finite")]
@@ -237,6 +266,7 @@ fn solve_lateral(material: &Material, mode: Mode, stretch: f64, t0: f64, setting
 /// the lateral stretch (`None`: the incompressible value).
 pub fn point(material: &Material, mode: Mode, stretch: f64, guess: Option<f64>, settings: &Settings) -> Result<Point, HomogeneousError> {
     let name = mode.name();
+    settings.validate()?;
     if !(stretch.is_finite() && stretch > 0.0) {
         return Err(HomogeneousError::BadStretch { mode: name, stretch });
     }
