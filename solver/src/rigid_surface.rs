@@ -298,11 +298,30 @@ impl Shape {
     /// it. Lets job files describe a groove or a cover without caring about
     /// the direction in which they list its points.
     pub fn facing(&self, point: [f64; 3]) -> Shape {
-        let x = v3(point);
-        let flip = match self.project_local(&x) {
-            Some(p) => p.gap < 0.0,
-            None => false,
-        };
+        let flip = self.project_local(&v3(point)).is_some_and(|p| p.gap < 0.0);
+        self.flipped_if(flip)
+    }
+
+    /// The same geometry with the rubber side chosen by a vote of `points`
+    /// (points inside the rubber, e.g. just inside each touching side):
+    /// flipped when more of them lie behind the surface than in front of
+    /// it. Unlike a single centroid, the vote cannot be decided by rounding
+    /// when the touching face lies on the surface (a plate resting on a
+    /// block) and is not misled by a ring whose centroid is on the axis.
+    pub fn facing_most(&self, points: &[[f64; 3]]) -> Shape {
+        let (mut front, mut behind) = (0usize, 0usize);
+        for p in points.iter().filter_map(|&x| self.project_local(&v3(x))) {
+            if p.gap < 0.0 {
+                behind += 1;
+            } else if p.gap > 0.0 {
+                front += 1;
+            }
+        }
+        self.flipped_if(behind > front)
+    }
+
+    /// This shape with its rubber side turned over when `flip`.
+    fn flipped_if(&self, flip: bool) -> Shape {
         if !flip {
             return self.clone();
         }

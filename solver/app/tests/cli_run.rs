@@ -1261,3 +1261,72 @@ fn a_harmonic_stage_first_is_refused() {
     let job = relaxing_bush().replace("name = \"push\"\n", "name = \"push\"\nharmonic = { frequencies = [1.0, 10.0] }\n");
     rejects(&job, &["job.toml:", "stage `push`", "harmonic stage cannot come first"]);
 }
+
+/// A cube on three symmetry planes pressed 20 % by a frictionless rigid plane:
+/// a homogeneous uniaxial compression, so the contact pressure is the same
+/// everywhere and equals the closed-form Cauchy stress of the nearly
+/// incompressible neo-Hookean solid, σ = μ (λ² − 1/λ) (Treloar 1975, "The
+/// Physics of Rubber Elasticity", ch. 5; Holzapfel 2000, "Nonlinear Solid
+/// Mechanics", §6.5), λ = 0.8. The 3-D pictures carry the plane over the
+/// outer surface and a footprint of the contact laid flat on it.
+#[test]
+fn pressed_cube_3d_footprint_and_plane_in_the_pictures() {
+    let s = Scratch::new("plots-3d");
+    let job = s.job(
+        r#"
+title = "pressed cube"
+analysis = "3d"
+[mesh]
+generate = "block"
+size = [1.0, 1.0, 1.0]
+divisions = [3, 3, 2]
+[materials.soft]
+model = "neo-hookean"
+shear_modulus = 0.5
+bulk_modulus = 5000.0
+[[region]]
+elements = "all"
+material = "soft"
+[[support]]
+nodes = "left"
+fix = ["x"]
+[[support]]
+nodes = "front"
+fix = ["y"]
+[[support]]
+nodes = "bottom"
+fix = ["z"]
+[[rigid]]
+name = "plate"
+touches = "top"
+plane = { point = [0.0, 0.0, 1.0], normal = [0.0, 0.0, -1.0] }
+move = { press = [0.0, 0.0, -0.2] }
+[[stage]]
+name = "press"
+first_increment = 0.25
+"#,
+    );
+    let out = s.out();
+    let run = olli(&["run", job.to_str().unwrap(), "--output", out.to_str().unwrap(), "--quiet"]);
+    assert_eq!(run.status.code(), Some(0), "{}", text(&run));
+    let svg = s.0.join("svg");
+    let plot = olli(&["plot", out.to_str().unwrap(), "--output", svg.to_str().unwrap(), "--format", "svg", "--view", "y"]);
+    assert_eq!(plot.status.code(), Some(0), "{}", text(&plot));
+    let section = std::fs::read_to_string(svg.join("section_1.svg")).unwrap();
+    assert!(section.contains("rigid `plate`"), "the plane is drawn over the 3-D view");
+    let footprint = std::fs::read_to_string(svg.join("footprint_plate_1.svg")).unwrap();
+    assert!(footprint.contains("contact pressure") && footprint.contains("on the plane, along"), "labelled axes");
+    // The peak in the title against the closed form (penalty contact: within 1 %).
+    let (mu, stretch): (f64, f64) = (0.5, 0.8);
+    let exact = mu * (stretch * stretch - 1.0 / stretch);
+    let peak: f64 = footprint
+        .split("peak ")
+        .nth(1)
+        .and_then(|t| t.split(' ').next())
+        .and_then(|t| t.parse().ok())
+        .unwrap_or_else(|| panic!("no peak in the footprint title: {}", &footprint[..400.min(footprint.len())]));
+    assert!((peak - exact.abs()).abs() < 0.01 * exact.abs(), "peak {peak} against {:.5}", exact.abs());
+    // The profile through the peak: a flat pressure across the whole face (the deformed face is 1/√0.8 = 1.118 wide).
+    let profile = std::fs::read_to_string(svg.join("contact_plate_1.svg")).unwrap();
+    assert!(profile.contains("through the peak") && profile.contains("contact, 1.118 L across"), "{}", &profile[..600.min(profile.len())]);
+}

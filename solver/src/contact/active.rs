@@ -11,6 +11,7 @@
 
 use nalgebra::{Matrix3, Vector3};
 
+use super::corner::CornerContacts;
 use super::law::{ContactParameters, NodeState, Status};
 use super::pair::{AreaMeasure, ContactPair, PairResponse};
 use super::surface::{Placement, RigidSurface};
@@ -58,6 +59,8 @@ struct Body {
     ramp: Ramp,
     surface: RigidSurface,
     last: PairResponse,
+    /// Convex corners of a 2-D profile against the rubber's edges.
+    corners: CornerContacts,
 }
 
 /// Per-rigid-body figures of one converged increment.
@@ -70,7 +73,8 @@ pub struct ContactSummary {
     /// Contact width (2-D: length of the touching band; 3-D: largest
     /// distance between touching nodes).
     pub contact_width: f64,
-    /// Largest contact pressure over the touching nodes (stress units).
+    /// Largest true contact pressure over the touching nodes (force per
+    /// deformed tributary area; stress units).
     pub peak_pressure: f64,
     /// Largest penetration of a node into the surface (length units, ≥ 0).
     pub max_penetration: f64,
@@ -81,7 +85,7 @@ pub struct ContactSummary {
 /// Nodal contact fields (every mesh node; zero where no contact).
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct ContactFields {
-    /// Contact pressure (force per tributary area).
+    /// True contact pressure (force per tributary area of the deformed surface).
     pub pressure: Vec<f64>,
     /// Signed gap to the nearest rigid body (0 for nodes of no contact set).
     pub gap: Vec<f64>,
@@ -149,6 +153,13 @@ impl ActiveContacts {
             let surface = RigidSurface { shape: def.shape.clone(), placement: Placement::default() };
             pair.anchor_initial_contacts(mesh, &surface);
             let committed = pair.states.clone();
+            // The corners' penalty per unit ring length: the nodes' ε h, averaged.
+            let line_penalty = pair.penalties.iter().zip(&pair.sizes).map(|(e, h)| e * h).sum::<f64>() / pair.nodes.len().max(1) as f64;
+            let thickness = match model.analysis {
+                Analysis::PlaneStrain { thickness } => Some(thickness),
+                _ => None,
+            };
+            let corners = CornerContacts::new(mesh, sides, &def.shape, line_penalty, thickness);
             bodies.push(Body {
                 surface,
                 from: rest(&def.name),
@@ -159,6 +170,7 @@ impl ActiveContacts {
                 pair,
                 committed,
                 last: PairResponse::default(),
+                corners,
             });
         }
         // Motions must name existing bodies.
@@ -247,6 +259,16 @@ impl ActiveContacts {
                     system.add_stiffness(&gdofs[..dim], &block[..dim * dim], true);
                 }
             }
+            b.corners.evaluate(&b.surface, position);
+            for hit in &b.corners.hits {
+                let [na, nb] = hit.nodes;
+                let gdofs = [na * 2, na * 2 + 1, nb * 2, nb * 2 + 1];
+                system.add_force(&gdofs, hit.nodal_force.as_slice());
+                b.last.surface_force -= Vector3::new(hit.nodal_force[0] + hit.nodal_force[2], hit.nodal_force[1] + hit.nodal_force[3], 0.0);
+                if want_k {
+                    system.add_stiffness(&gdofs, hit.stiffness.as_slice(), true);
+                }
+            }
         }
     }
 
@@ -254,7 +276,8 @@ impl ActiveContacts {
     pub fn needs_augmentation(&self) -> bool {
         self.bodies.iter().any(|b| {
             let (pen, tol) = b.pair.worst_penetration_ratio(&b.last, b.tolerance);
-            pen > tol
+            let (corner, corner_tol) = b.corners.worst_penetration(b.tolerance);
+            pen > tol || corner > corner_tol
         })
     }
 
@@ -262,7 +285,7 @@ impl ActiveContacts {
     pub fn worst_penetration(&self) -> (f64, f64) {
         self.bodies
             .iter()
-            .map(|b| b.pair.worst_penetration_ratio(&b.last, b.tolerance))
+            .flat_map(|b| [b.pair.worst_penetration_ratio(&b.last, b.tolerance), b.corners.worst_penetration(b.tolerance)])
             .max_by(|a, b| (a.0 / a.1.max(f64::MIN_POSITIVE)).total_cmp(&(b.0 / b.1.max(f64::MIN_POSITIVE))))
             .unwrap_or((0.0, 0.0))
     }
@@ -271,6 +294,7 @@ impl ActiveContacts {
     pub fn augment(&mut self) {
         for b in &mut self.bodies {
             b.pair.augment(&b.last);
+            b.corners.augment();
         }
     }
 
@@ -279,6 +303,7 @@ impl ActiveContacts {
         for b in &mut self.bodies {
             b.pair.commit(&b.surface, &b.last);
             b.committed = b.pair.states.clone();
+            b.corners.commit();
         }
     }
 
@@ -286,6 +311,7 @@ impl ActiveContacts {
     pub fn restore(&mut self) {
         for b in &mut self.bodies {
             b.pair.states = b.committed.clone();
+            b.corners.restore();
         }
     }
 
@@ -297,7 +323,14 @@ impl ActiveContacts {
                 name: b.def.name.clone(),
                 force: [b.last.surface_force.x, b.last.surface_force.y, b.last.surface_force.z],
                 contact_width: b.pair.contact_width(&b.last),
-                peak_pressure: b.last.peak_pressure,
+                peak_pressure: b
+                    .pair
+                    .true_pressures(&b.last)
+                    .iter()
+                    .zip(&b.last.nodes)
+                    .filter(|(_, r)| r.status != Status::Open)
+                    .map(|(p, _)| *p)
+                    .fold(0.0, f64::max),
                 max_penetration: b.last.max_penetration,
                 touching_nodes: b.last.nodes.iter().filter(|r| r.status != Status::Open).count(),
             })
@@ -314,12 +347,13 @@ impl ActiveContacts {
         };
         let mut seen = vec![false; node_count];
         for b in &self.bodies {
+            let pressures = b.pair.true_pressures(&b.last);
             for (k, &n) in b.pair.nodes.iter().enumerate() {
-                let (Some(r), Some(&g)) = (b.last.nodes.get(k), b.last.gaps.get(k)) else { continue };
+                let (Some(r), Some(&g), Some(&p)) = (b.last.nodes.get(k), b.last.gaps.get(k), pressures.get(k)) else { continue };
                 let g = if g.is_finite() { g } else { 0.0 };
                 // A node in several pairs reports the one pressing hardest (or the nearest if none does).
-                if !seen[n] || r.pressure > f.pressure[n] || (f.pressure[n] == 0.0 && g < f.gap[n]) {
-                    f.pressure[n] = r.pressure;
+                if !seen[n] || p > f.pressure[n] || (f.pressure[n] == 0.0 && g < f.gap[n]) {
+                    f.pressure[n] = p;
                     f.gap[n] = g;
                     f.slip[n] = r.slip.norm();
                     f.status[n] = match r.status {
@@ -328,6 +362,21 @@ impl ActiveContacts {
                         Status::Slip => 2,
                     };
                     seen[n] = true;
+                }
+            }
+        }
+        // A corner pressing into an edge: its force shared by the edge's
+        // nodes as a pressure on their tributary areas.
+        for b in &self.bodies {
+            for hit in &b.corners.hits {
+                for (n, share) in hit.nodes.into_iter().zip([1.0 - hit.xi, hit.xi]) {
+                    let Ok(k) = b.pair.nodes.binary_search(&n) else { continue };
+                    if b.pair.areas[k] > 0.0 && share > 0.0 {
+                        f.pressure[n] += hit.force * share / b.pair.areas[k];
+                        if f.status[n] == 0 {
+                            f.status[n] = 2;
+                        }
+                    }
                 }
             }
         }

@@ -63,6 +63,10 @@ pub struct ContactPair {
     /// Faces whose reported pressure is recovered (see `recover_pressures`):
     /// piece index, the face's area and its nodes' shares of it.
     recovered: Vec<(usize, f64, Vec<f64>)>,
+    /// Every whole side, as local node indices in the side's own order, with
+    /// its nodes' reference shares of its area (for the current tributary
+    /// areas, see [`ContactPair::current_areas`]).
+    whole_sides: Vec<(Vec<usize>, Vec<f64>)>,
 }
 
 /// Evaluation of a whole pair at one iterate.
@@ -114,6 +118,7 @@ impl ContactPair {
         let mut sizes = vec![0.0; nodes.len()];
         let mut count = vec![0usize; nodes.len()];
         let mut recovered = Vec::new();
+        let mut whole_sides = Vec::with_capacity(sides.len());
         for &s in sides {
             let all = mesh.side_nodes(s);
             let x: Vec<Vector3<f64>> = all.iter().map(|&n| Vector3::from(mesh.nodes[n])).collect();
@@ -121,6 +126,7 @@ impl ContactPair {
             for (&n, a) in all.iter().zip(&shares) {
                 areas[local(n)] += a;
             }
+            whole_sides.push((all.iter().map(|&n| local(n)).collect(), shares.clone()));
             if mesh.dimension == 3 && matches!(all.len(), 6 | 8) {
                 recovered.push((polys.len(), shares.iter().sum(), shares));
             }
@@ -144,7 +150,50 @@ impl ContactPair {
                 neighbours[k].push(e);
             }
         }
-        ContactPair { nodes, sides: polys, areas, sizes, penalties, params, states, measure, neighbours, recovered }
+        ContactPair { nodes, sides: polys, areas, sizes, penalties, params, states, measure, neighbours, recovered, whole_sides }
+    }
+
+    /// Tributary area of each node at the positions of evaluation `r` (the
+    /// deformed surface): each side's reference shares scaled by the ratio
+    /// of its deformed to its reference area, so the split between a
+    /// quadratic side's nodes stays the one the law uses.
+    pub fn current_areas(&self, r: &PairResponse) -> Vec<f64> {
+        let mut areas = vec![0.0; self.nodes.len()];
+        if r.positions.len() != self.nodes.len() {
+            return areas;
+        }
+        for (side, shares) in &self.whole_sides {
+            let x: Vec<Vector3<f64>> = side.iter().map(|&k| r.positions[k]).collect();
+            let reference: f64 = shares.iter().sum();
+            let stretch = if reference > 0.0 { tributary(&x, self.measure).iter().sum::<f64>() / reference } else { 1.0 };
+            for (&k, a) in side.iter().zip(shares) {
+                areas[k] += a * stretch;
+            }
+        }
+        areas
+    }
+
+    /// The contact pressure of each node as a true (Cauchy) traction: its
+    /// force over its tributary area on the deformed surface. The law and
+    /// [`NodeResponse::pressure`] work per reference area (a nominal
+    /// pressure); where the rubber's surface stretches or shrinks in contact
+    /// the two differ by the area ratio, and a seal's contact pressure is
+    /// compared with a fluid pressure that acts on the deformed surface.
+    /// Nodes without area in either configuration keep the nominal value.
+    pub fn true_pressures(&self, r: &PairResponse) -> Vec<f64> {
+        let current = self.current_areas(r);
+        r.nodes
+            .iter()
+            .enumerate()
+            .map(|(k, n)| {
+                let (a0, a) = (self.areas[k], current[k]);
+                if a0 > 0.0 && a > 0.0 {
+                    n.pressure * a0 / a
+                } else {
+                    n.pressure
+                }
+            })
+            .collect()
     }
 
     /// Evaluates every node at the current positions (`position(node)` gives
@@ -478,6 +527,38 @@ mod tests {
         let refs = side.def().reference_nodes;
         let x: Vec<Vector3<f64>> = refs.iter().map(|r| Vector3::new(2.0 + 1.5 * (r[0] + 1.0), 0.5 * r[1], 0.0)).collect();
         (refs.to_vec(), tributary(&x, measure))
+    }
+
+    /// A uniformly stretched face carries the same force on a larger area:
+    /// the true pressure is the nominal one over the area stretch (here a
+    /// quad8 face stretched 1.25 × 1.6 = 2 in its plane, a line3 edge 1.25).
+    #[test]
+    fn true_pressure_is_force_over_the_deformed_area() {
+        use olli_mesh::generate::Order;
+        use olli_mesh::generate::{block, rectangle, BlockParams, RectangleParams};
+        let params =
+            ContactParameters { normal_penalty: 100.0, tangential_penalty: 80.0, friction: 0.0, smoothing: 0.0, slip_rounding: 0.0 };
+        let cases = [
+            (block(&BlockParams { divisions: [2, 2, 1], order: Order::Quadratic, ..Default::default() }).unwrap(), AreaMeasure::Solid, 2.0),
+            (
+                rectangle(&RectangleParams { divisions: [3, 1], order: Order::Quadratic, ..Default::default() }).unwrap(),
+                AreaMeasure::PlaneStrain { thickness: 1.0 },
+                1.25,
+            ),
+        ];
+        for (mesh, measure, stretch) in cases {
+            let sides = &mesh.side_sets["top"];
+            let pair = ContactPair::new(&mesh, sides, measure, params);
+            let positions =
+                pair.nodes.iter().map(|&n| Vector3::new(1.25 * mesh.nodes[n][0], 1.6 * mesh.nodes[n][1], mesh.nodes[n][2])).collect();
+            let nodes = pair.nodes.iter().map(|_| NodeResponse { pressure: 3.0, ..NodeResponse::open() }).collect();
+            let r = PairResponse { nodes, positions, ..Default::default() };
+            for (k, p) in pair.true_pressures(&r).iter().enumerate() {
+                if pair.areas[k] > 0.0 {
+                    assert!((p - 3.0 / stretch).abs() < 1e-12, "node {k}: {p}");
+                }
+            }
+        }
     }
 
     /// Hand-integrated HRZ areas of flat sides (M_aa by the product formulas

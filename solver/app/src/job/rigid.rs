@@ -99,27 +99,18 @@ impl Builder<'_> {
                     format!("`{key}` is a {} shape; this is a {} analysis", if three_d { "3-D" } else { "2-D" }, kind.name()),
                 ));
             }
-            // The rubber side: the given point, or the centroid of the touching nodes.
-            let point = match &spec.rubber_point {
+            // The rubber side: the given point, or a vote of points just inside the touching sides.
+            let shape = match &spec.rubber_point {
                 Some(p) if p.iter().any(|c| !c.is_finite()) => {
                     return Err(bad(r.span(), format!("`rubber_point` must be finite numbers, got {p:?}")));
                 }
-                Some(p) if p.len() == if solid { 3 } else { 2 } => [p[0], p[1], if solid { p[2] } else { 0.0 }],
+                Some(p) if p.len() == if solid { 3 } else { 2 } => shape.facing([p[0], p[1], if solid { p[2] } else { 0.0 }]),
                 Some(p) => {
                     return Err(bad(r.span(), format!("`rubber_point` needs {} coordinates, got {}", if solid { 3 } else { 2 }, p.len())))
                 }
-                None => {
-                    let nodes = mesh.side_set_nodes(sides).unwrap_or_default();
-                    let mut c = [0.0; 3];
-                    for &n in &nodes {
-                        for k in 0..3 {
-                            c[k] += mesh.nodes[n][k] / nodes.len().max(1) as f64;
-                        }
-                    }
-                    c
-                }
+                None => shape.facing_most(&inside_points(mesh, sides)),
             };
-            let mut body = RigidBody::new(name.clone(), shape.facing(point), sides.clone());
+            let mut body = RigidBody::new(name.clone(), shape, sides.clone());
             if !(spec.friction >= 0.0 && spec.friction.is_finite()) {
                 return Err(bad(r.span(), format!("`friction` must be ≥ 0, got {}", spec.friction)));
             }
@@ -209,4 +200,29 @@ impl Builder<'_> {
         }
         Ok(())
     }
+}
+
+/// A point just inside the rubber beside each side of the set `sides`: a
+/// quarter of the way from the side's centroid to its element's centroid.
+fn inside_points(mesh: &Mesh, sides: &str) -> Vec<[f64; 3]> {
+    let centroid = |nodes: &[usize]| {
+        let mut c = [0.0; 3];
+        for &n in nodes {
+            for k in 0..3 {
+                c[k] += mesh.nodes[n][k] / nodes.len().max(1) as f64;
+            }
+        }
+        c
+    };
+    mesh.side_sets
+        .get(sides)
+        .map(|set| {
+            set.iter()
+                .map(|side| {
+                    let (s, e) = (centroid(&mesh.side_nodes(*side)), centroid(mesh.element_nodes(side.element)));
+                    [0, 1, 2].map(|k| s[k] + 0.25 * (e[k] - s[k]))
+                })
+                .collect()
+        })
+        .unwrap_or_default()
 }

@@ -167,13 +167,19 @@ pub(crate) type Chart2d<'a, DB> = ChartContext<'a, DB, Cartesian2d<RangedCoordf6
 
 /// Draws the axes of `chart` with their labels and tick numbers, and a light grid when `grid`.
 pub(crate) fn draw_axes<DB: DrawingBackend>(chart: &mut Chart2d<'_, DB>, x: &Axis, y: &Axis, grid: bool) -> Result<(), PlotError> {
+    // A tick at a rounding error from zero (−1.1e-16) reads as 0.
+    let (xr, yr) = (chart.x_range(), chart.y_range());
+    let (x_span, y_span) = ((xr.end - xr.start).abs(), (yr.end - yr.start).abs());
+    let tick = |v: f64, span: f64| number(if v.abs() <= 1e-9 * span { 0.0 } else { v });
+    let x_tick = |v: &f64| tick(*v, x_span);
+    let y_tick = |v: &f64| tick(*v, y_span);
     let mut mesh = chart.configure_mesh();
     mesh.x_desc(x.label())
         .y_desc(y.label())
         .label_style((FONT, 14))
         .axis_desc_style((FONT, 16))
-        .x_label_formatter(&|v| number(*v))
-        .y_label_formatter(&|v| number(*v))
+        .x_label_formatter(&x_tick)
+        .y_label_formatter(&y_tick)
         .light_line_style(RGBColor(238, 238, 238))
         .bold_line_style(RGBColor(210, 210, 210));
     if !grid {

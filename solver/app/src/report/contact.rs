@@ -12,6 +12,7 @@ use olli_solver::contact::{Piece2, Placement, RigidSurface, Shape};
 use olli_solver::model::RigidBody;
 
 use super::results::{Frame, RunResults};
+use super::section::View;
 use crate::job::Job;
 use crate::plot::{number, Axis, Corner, LineChart, Series};
 
@@ -48,7 +49,7 @@ fn shape_points(shape: &Shape, near: [f64; 2], reach: f64) -> Vec<[f64; 2]> {
 /// Where `body` stands at `.pvd` time `time` (stage index + load factor):
 /// from its position at the end of the previous stage toward this stage's
 /// target along this stage's ramp, as the driver moves it.
-fn placement(job: &Job, body: &RigidBody, time: f64) -> Placement {
+pub(crate) fn placement(job: &Job, body: &RigidBody, time: f64) -> Placement {
     let stages = &job.model.stages;
     let index = ((time - 1e-9).floor().max(0.0) as usize).min(stages.len().saturating_sub(1));
     let t = time - index as f64;
@@ -91,6 +92,106 @@ pub fn rigid_outlines(job: &Job, mesh: &Mesh, time: f64) -> Vec<(String, Vec<[f6
             (body.name.clone(), points.collect())
         })
         .collect()
+}
+
+/// Points of a circle of `radius` about `centre` in the drawing plane.
+fn circle(centre: [f64; 2], radius: f64) -> Vec<[f64; 2]> {
+    (0..=64)
+        .map(|k| {
+            let t = std::f64::consts::TAU * k as f64 / 64.0;
+            [centre[0] + radius * t.cos(), centre[1] + radius * t.sin()]
+        })
+        .collect()
+}
+
+/// Each 3-D rigid surface where it stands at `time`, as polylines in the
+/// drawing plane of `view` (right, up), cut to the deformed part's box
+/// widened by a tenth: a plane as its cut through that box, a cylinder as
+/// its two silhouette lines (a circle when seen along its axis), a sphere
+/// as its outline circle. A surface may give several polylines under one name.
+pub fn rigid_outlines_3d(job: &Job, current: &[[f64; 3]], time: f64, view: View) -> Vec<(String, Vec<[f64; 2]>)> {
+    let (right, up, depth, _) = view.axes();
+    let mut lo = [f64::INFINITY; 3];
+    let mut hi = [f64::NEG_INFINITY; 3];
+    for x in current.iter().filter(|x| x.iter().all(|v| v.is_finite())) {
+        for k in 0..3 {
+            lo[k] = lo[k].min(x[k]);
+            hi[k] = hi[k].max(x[k]);
+        }
+    }
+    if lo[0] > hi[0] {
+        return Vec::new();
+    }
+    let pad = 0.1 * (0..3).map(|k| hi[k] - lo[k]).fold(0.0, f64::max);
+    let (lo, hi) = (lo.map(|v| v - pad), hi.map(|v| v + pad));
+    let corners: Vec<Vector3<f64>> =
+        (0..8).map(|i| Vector3::new([lo[0], hi[0]][i & 1], [lo[1], hi[1]][(i >> 1) & 1], [lo[2], hi[2]][(i >> 2) & 1])).collect();
+    let draw = |x: &Vector3<f64>| [x[right], x[up]];
+    let view_dir = Vector3::ith(depth, 1.0);
+    let mut out = Vec::new();
+    for body in &job.model.rigid {
+        let p = placement(job, body, time);
+        let turn = |v: [f64; 3]| p.rotation * Vector3::from(v);
+        match &body.shape {
+            Shape::Plane { point, normal } => {
+                let (origin, n) = (p.apply(&Vector3::from(*point)), turn(*normal));
+                if n.norm() == 0.0 {
+                    continue;
+                }
+                let n = n.normalize();
+                // Where the box's 12 edges cross the plane, in order around it.
+                let side = |x: &Vector3<f64>| n.dot(&(x - origin));
+                let mut cut: Vec<Vector3<f64>> = Vec::new();
+                for a in 0..8 {
+                    for bit in [1, 2, 4] {
+                        let b = a | bit;
+                        if b == a {
+                            continue;
+                        }
+                        let (sa, sb) = (side(&corners[a]), side(&corners[b]));
+                        if (sa <= 0.0) != (sb <= 0.0) {
+                            cut.push(corners[a] + (corners[b] - corners[a]) * (sa / (sa - sb)));
+                        }
+                    }
+                }
+                if cut.len() < 3 {
+                    continue;
+                }
+                let centre = cut.iter().sum::<Vector3<f64>>() / cut.len() as f64;
+                let e1 = (cut[0] - centre).normalize();
+                let e2 = n.cross(&e1);
+                cut.sort_by(|a, b| {
+                    let angle = |x: &Vector3<f64>| (x - centre).dot(&e2).atan2((x - centre).dot(&e1));
+                    angle(a).total_cmp(&angle(b))
+                });
+                cut.push(cut[0]);
+                out.push((body.name.clone(), cut.iter().map(draw).collect()));
+            }
+            Shape::Cylinder { point, axis, radius, .. } => {
+                let (origin, a) = (p.apply(&Vector3::from(*point)), turn(*axis));
+                if a.norm() == 0.0 {
+                    continue;
+                }
+                let a = a.normalize();
+                let across = view_dir.cross(&a);
+                if across.norm() < 1e-3 {
+                    out.push((body.name.clone(), circle(draw(&origin), *radius)));
+                    continue;
+                }
+                let w = across.normalize() * *radius;
+                let (t0, t1) =
+                    corners.iter().map(|c| a.dot(&(c - origin))).fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), t| (l.min(t), h.max(t)));
+                for s in [1.0, -1.0] {
+                    out.push((body.name.clone(), vec![draw(&(origin + w * s + a * t0)), draw(&(origin + w * s + a * t1))]));
+                }
+            }
+            Shape::Sphere { center, radius, .. } => {
+                out.push((body.name.clone(), circle(draw(&p.apply(&Vector3::from(*center))), *radius)));
+            }
+            _ => {}
+        }
+    }
+    out
 }
 
 /// The nodes of a 2-D side set in order along its edge chain (the longest

@@ -1,7 +1,8 @@
 //! Pictures of a run and its report page, drawn from the results folder
 //! alone (plus the job, when at hand, for the rigid surfaces and the contact
 //! sets): force–travel and stiffness charts ([`forces`]), contact pressure
-//! along each rigid surface ([`contact`]), contour pictures of the deformed
+//! along each rigid surface ([`contact`]; in 3-D the footprint laid flat,
+//! [`footprint`]), contour pictures of the deformed
 //! shape ([`section`]) and `index.html` ([`page`]).
 //!
 //! A run that stopped early has the same files up to its last converged
@@ -9,6 +10,7 @@
 //! summary leaves out only what needs it.
 
 pub mod contact;
+pub mod footprint;
 pub mod forces;
 pub mod page;
 pub mod results;
@@ -191,10 +193,14 @@ pub fn draw_all(folder: &Path, out: &Path, job: Option<&Job>, options: &Options)
         let frame = Frame::read(&r.frames[i].file)?;
         let (stage, load) = stage_of(r.frames[i].time, &stages);
         let when = format!("stage `{stage}`, load factor {}", plot::number(load));
-        let rigid = job.map(|j| contact::rigid_outlines(j, &frame.mesh, r.frames[i].time)).unwrap_or_default();
+        let view = (frame.mesh.dimension == 3).then(|| options.view.unwrap_or_else(|| View::choose(&frame.mesh, &frame.deformed())));
+        let rigid = match (job, view) {
+            (Some(j), Some(v)) => contact::rigid_outlines_3d(j, &frame.deformed(), r.frames[i].time, v),
+            (Some(j), None) => contact::rigid_outlines(j, &frame.mesh, r.frames[i].time),
+            (None, _) => Vec::new(),
+        };
         let heading = format!("{title}: {when}");
-        if let Some((contour, _)) = section::section_plot(&frame, options.field, &heading, &analysis, options.colors, options.view, &rigid)
-        {
+        if let Some((contour, _)) = section::section_plot(&frame, options.field, &heading, &analysis, options.colors, view, &rigid) {
             let caption = format!("{} on the deformed shape, {when}", options.field.axis().quantity);
             save(&format!("section_{}", k + 1), caption, &|p| plot::write(&contour, p, options.format))?;
         }
@@ -202,6 +208,12 @@ pub fn draw_all(folder: &Path, out: &Path, job: Option<&Job>, options: &Options)
             for (name, chart) in contact::pressure_charts(job, &frame, &r, i, &heading) {
                 let caption = format!("contact pressure along `{name}`, {when}");
                 save(&format!("contact_{name}_{}", k + 1), caption, &|p| plot::write(&chart, p, options.format))?;
+            }
+            for (name, print) in footprint::footprints(job, &frame, &r, i, &heading, options.colors) {
+                let caption = format!("contact pressure on the rubber faces facing `{name}`, laid flat, {when}");
+                save(&format!("footprint_{name}_{}", k + 1), caption, &|p| plot::write(&print.map, p, options.format))?;
+                let caption = format!("contact pressure through the peak on `{name}`, {when}");
+                save(&format!("contact_{name}_{}", k + 1), caption, &|p| plot::write(&print.profile, p, options.format))?;
             }
         }
     }

@@ -58,7 +58,7 @@ pub enum View {
 
 impl View {
     /// (right, up, depth) coordinate indices and the sign making larger depth nearer.
-    fn axes(self) -> (usize, usize, usize, f64) {
+    pub(crate) fn axes(self) -> (usize, usize, usize, f64) {
         match self {
             View::X => (1, 2, 0, 1.0),
             // Seen from −y so that x runs right and z up.
@@ -111,8 +111,19 @@ fn face_corners(nodes: &[usize]) -> &[usize] {
     }
 }
 
+/// Draws the rigid-surface polylines over `plot`, naming each surface once
+/// in the legend (a surface may come as several polylines).
+fn add_rigid(plot: &mut ContourPlot, rigid: &[(String, Vec<[f64; 2]>)]) {
+    for (i, (name, points)) in rigid.iter().enumerate() {
+        let first = rigid[..i].iter().all(|(other, _)| other != name);
+        let label = if first { format!("rigid `{name}`") } else { String::new() };
+        plot.outlines.push(Outline { points: points.clone(), kind: LineKind::Rigid, label });
+    }
+}
+
 /// The contour picture of `field` on `frame`; `None` when the frame lacks the field.
-/// `rigid` are rigid-surface polylines (2-D drawing coordinates) with their names.
+/// `rigid` are rigid-surface polylines in drawing coordinates with their
+/// names (in 3-D, drawn for the plane of `view`: pass the view they were made for).
 pub fn section_plot(
     frame: &Frame,
     field: Field,
@@ -145,9 +156,7 @@ pub fn section_plot(
                 label: String::new(),
             });
         }
-        for (name, points) in rigid {
-            plot.outlines.push(Outline { points: points.clone(), kind: LineKind::Rigid, label: format!("rigid `{name}`") });
-        }
+        add_rigid(&mut plot, rigid);
         plot.colors = colors;
         return Some((plot, None));
     }
@@ -175,6 +184,7 @@ pub fn section_plot(
         values,
         cells,
     );
+    add_rigid(&mut plot, rigid);
     plot.colors = colors;
     Some((plot, Some(view)))
 }
