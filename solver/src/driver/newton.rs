@@ -344,7 +344,7 @@ impl<'a> NewtonContext<'a> {
         stats.assembly_time += clock.elapsed().as_secs_f64();
         stats.assemblies += 1;
         self.tangent_fresh = want_k;
-        self.roundoff_floor = super::roundoff::floor(self.pattern, &self.k, self.dofs, u, self.controls.force_tolerance);
+        self.roundoff_floor = super::roundoff::floor(self.disc, self.dofs, u, self.controls.force_tolerance);
         if !finite {
             return Err(SolveError::NonFiniteResidual);
         }
