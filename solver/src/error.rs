@@ -88,7 +88,7 @@ pub enum SolveError {
     #[error(
         "stage `{stage}`: the load cannot be increased past {load} at load factor {load_factor:.4}: a limit point \
          (the stiffness along the load fell to {percent:.1} % of its value at the start of the stage); \
-         drive the stage by a motion instead of a load"
+         drive the stage by a motion or use arc-length control (`control = \"arc-length\"`)"
     )]
     LimitPoint {
         /// Name of the stage.
@@ -99,6 +99,59 @@ pub enum SolveError {
         load: String,
         /// Stiffness along the load at the stop, percent of its value at the stage start.
         percent: f64,
+    },
+    /// An arc-length stage took its increments without reaching the end of its loads.
+    #[error(
+        "stage `{stage}` (arc-length): {increments} increments reached load factor {load_factor:.4} \
+         (at most {peak:.4}, {peak_load}) without reaching the end of the stage's loads; \
+         the part cannot carry them along this path, or the stage needs more increments (`max_increments`)"
+    )]
+    ArcLengthUnfinished {
+        /// Name of the stage.
+        stage: String,
+        /// Increments the stage took.
+        increments: usize,
+        /// Load factor of the last converged increment.
+        load_factor: f64,
+        /// Largest load factor the stage reached.
+        peak: f64,
+        /// The loads at that largest load factor, in words.
+        peak_load: String,
+    },
+    /// An arc-length stage whose path came back to no load at all.
+    #[error("stage `{stage}` (arc-length): the path came back to load factor {load_factor:.4} after {increments} increments: the part unloads along it")]
+    ArcLengthUnloaded {
+        /// Name of the stage.
+        stage: String,
+        /// Increments the stage took.
+        increments: usize,
+        /// Load factor of the last converged increment.
+        load_factor: f64,
+    },
+    /// Cut-backs shortened the arc below its minimum: the run stops here.
+    #[error(
+        "stage `{stage}` (arc-length): the arc fell to {ratio:.3e} of the first arc, below the minimum {min:.3e}, \
+         at load factor {load_factor:.4} ({reason})"
+    )]
+    ArcTooShort {
+        /// Name of the stage.
+        stage: String,
+        /// Load factor of the last converged state of the stage.
+        load_factor: f64,
+        /// The arc that failed last, relative to the stage's first arc.
+        ratio: f64,
+        /// The smallest arc allowed, relative to the first one.
+        min: f64,
+        /// Why the last attempt failed.
+        reason: String,
+    },
+    /// Arc-length control asked of a stage it cannot drive.
+    #[error("stage `{stage}`: arc-length control needs {needs}")]
+    ArcLengthNotApplicable {
+        /// Name of the stage.
+        stage: String,
+        /// What the stage lacks, in words.
+        needs: String,
     },
     /// A connected part that nothing holds against a rigid motion.
     #[error(

@@ -388,6 +388,27 @@ impl Ramp {
     }
 }
 
+/// How the increments of a stage are driven.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum Control {
+    /// Each increment prescribes its load factor (stage fraction). Default.
+    #[default]
+    Load,
+    /// Each increment prescribes a length along the equilibrium path and
+    /// finds its load factor, which may fall past a limit point (Crisfield's
+    /// cylindrical arc-length method, see [`crate::driver::arc_length`]).
+    /// Only for stages driven by loads (forces, pressures, fluids, body
+    /// force) that move nothing.
+    ArcLength {
+        /// The stage stops (the run with it) after this many increments
+        /// without reaching load factor 1.
+        max_increments: usize,
+    },
+}
+
+/// Default of [`Control::ArcLength::max_increments`] in job files.
+pub const ARC_LENGTH_MAX_INCREMENTS: usize = 100;
+
 /// Name under which [`Stage::ramps`] gives the body force's ramp.
 pub const BODY_FORCE_RAMP: &str = "body_force";
 
@@ -408,6 +429,8 @@ pub struct Stage {
     pub harmonic: Option<Harmonic>,
     /// Increment sizes and growth: first, smallest and largest step of the stage.
     pub controls: IncrementControls,
+    /// What drives the increments: the load factor (default) or an arc length.
+    pub control: Control,
     /// Components held at zero from this stage on.
     pub supports: Vec<Support>,
     /// Prescribed displacements reached at the end of the stage.

@@ -205,4 +205,55 @@ mod tests {
         assert_eq!(free_of(&block(vec![wall])), ["translation along y"]);
         assert_eq!(free_of(&block(vec![])).len(), 3);
     }
+
+    /// Two unit squares of different materials, the left one held along its
+    /// bottom: `joined` says whether the right square uses the left one's
+    /// nodes where they meet (`corner`: they meet at one corner, else along
+    /// the edge x = 1) or has nodes of its own there.
+    fn two_squares(joined: bool, corner: bool) -> Model {
+        let mut mesh = olli_mesh::Mesh::new(2);
+        for p in [[0.0, 0.0], [1.0, 0.0], [1.0, 1.0], [0.0, 1.0]] {
+            mesh.add_node([p[0], p[1], 0.0]);
+        }
+        let (y0, y1) = if corner { (1.0, 2.0) } else { (0.0, 1.0) };
+        let own = |mesh: &mut olli_mesh::Mesh, x: f64, y: f64| mesh.add_node([x, y, 0.0]);
+        let a = if joined && !corner { 1 } else { own(&mut mesh, 1.0, y0) };
+        let b = own(&mut mesh, 2.0, y0);
+        let c = own(&mut mesh, 2.0, y1);
+        let d = if joined { 2 } else { own(&mut mesh, 1.0, y1) };
+        mesh.add_element(olli_mesh::ElementKind::Quad4, &[0, 1, 2, 3]);
+        mesh.add_element(olli_mesh::ElementKind::Quad4, &[a, b, c, d]);
+        mesh.node_sets.insert("base".into(), vec![0, 1]);
+        let law = |mu: f64| {
+            std::sync::Arc::new(
+                registry::material("neo-hookean", &[("shear_modulus", mu), ("bulk_modulus", 100.0 * mu)], VolumetricForm::Quadratic)
+                    .unwrap(),
+            )
+        };
+        let mut model = Model::single_region(mesh, Analysis::PlaneStrain { thickness: 1.0 }, law(1.0), Formulation::Mixed);
+        model.regions[0].elements = vec![0];
+        let mut stiff = model.regions[0].clone();
+        (stiff.name, stiff.elements, stiff.material) = ("stiff".into(), vec![1], law(10.0));
+        model.regions.push(stiff);
+        let base = Support { set: "base".into(), components: [true, true, false] };
+        model.stages.push(Stage { name: "s".into(), supports: vec![base], ..Default::default() });
+        model
+    }
+
+    /// Regions meet through shared nodes only (no element holds nodes of
+    /// both): sharing the edge's nodes, or a single corner node, makes one
+    /// part, held through its left square; with nodes of its own at the
+    /// interface the right square is a part of its own and free in every
+    /// rigid motion of a plane body.
+    #[test]
+    fn parts_joined_only_through_shared_nodes_count_as_one() {
+        assert!(free_of(&two_squares(true, false)).is_empty());
+        assert!(free_of(&two_squares(true, true)).is_empty());
+        let split = two_squares(false, false);
+        let disc = Discretization::new(&split).unwrap();
+        let (programs, _) = super::super::stages::resolve(&disc).unwrap();
+        let free = unheld(&disc, &programs).expect("the right square is free");
+        assert_eq!((free.nodes, free.first_node), (4, 4));
+        assert_eq!(free.free, ["translation along x", "translation along y", "rotation about z"]);
+    }
 }

@@ -10,12 +10,14 @@
 //! convergence the next one grows by `growth`; below `min` the run stops
 //! cleanly, keeping every converged increment.
 
+pub mod arc_length;
 pub mod fields;
 pub mod harmonic;
 pub mod held;
 pub mod limit_point;
 pub mod newton;
 pub mod observer;
+pub mod roundoff;
 pub mod stabilization;
 pub mod stages;
 
@@ -30,7 +32,7 @@ use crate::error::SolveError;
 use crate::insert::Inserts;
 use crate::linear::{self, LinearSolver, LinearStats, SymmetricPattern};
 use crate::load::fluid::Fluids;
-use crate::model::{Model, SettingsError, Stage};
+use crate::model::{Control, Model, SettingsError, Stage};
 use crate::results::{DynamicResult, HistoryValues, IncrementResult, Solution, SolveStats, Termination};
 use newton::{IncrementOutcome, NewtonContext};
 use stages::{ReportSets, StageProgram};
@@ -145,9 +147,10 @@ fn run_stage(
     if stage.harmonic.is_some() {
         return run_harmonic(disc, si, prog, run, observer);
     }
+    if let Control::ArcLength { .. } = stage.control {
+        arc_length::check_applicable(disc, stage, prog, &start)?;
+    }
     let RunState { u, mixed, history: point_history, time, contacts, fluids, inserts, equations, increments, stats, .. } = run;
-    let duration = stage.duration.unwrap_or(0.0);
-    let stage_start_time = *time;
     let eq = equations_for(disc, prog, equations, stats)?;
     observer.event(&Event::StageStart { stage: si, name: &stage.name, equations: eq.dofs.n_free });
     let mut ctx = NewtonContext::new(disc, &eq.dofs, &eq.pattern, eq.linear.as_mut(), prog, &start, c, &stage.name, contacts)
@@ -157,33 +160,62 @@ fn run_stage(
     if c.carry_pressure {
         ctx = ctx.with_states(std::mem::take(mixed));
     }
+    let mut recorder = Recorder {
+        disc,
+        si,
+        report_sets,
+        stage_start_time: *time,
+        duration: stage.duration.unwrap_or(0.0),
+        carry_pressure: c.carry_pressure,
+        mixed,
+        time,
+        increments,
+    };
+    let outcome = match stage.control {
+        Control::Load => load_steps(&mut ctx, u, &mut recorder, &start, stats, observer)?,
+        Control::ArcLength { max_increments } => arc_length::run_stage(&mut ctx, u, &mut recorder, max_increments, stats, observer)?,
+    };
+    if outcome.is_err() {
+        return Ok(outcome);
+    }
+    *inserts = std::mem::take(&mut ctx.inserts);
+    *point_history = std::mem::take(&mut ctx.history);
+    Ok(Ok(()))
+}
+
+/// The increments of a load-controlled stage: each prescribes its load
+/// factor; a failed one is cut back, a fast one lets the next grow.
+fn load_steps(
+    ctx: &mut NewtonContext,
+    u: &mut [f64],
+    recorder: &mut Recorder,
+    start: &[f64],
+    stats: &mut SolveStats,
+    observer: &mut dyn Observer,
+) -> Result<Result<(), SolveError>, SolveError> {
+    let (si, disc) = (recorder.si, recorder.disc);
+    let stage = &disc.model.stages[si];
+    let (c, prog) = (&stage.controls, ctx.parts().1);
     let (mut t, mut dt) = (0.0f64, c.first.clamp(c.min, c.max).min(1.0));
     let mut history: Option<(Vec<f64>, f64)> = None;
     let mut count = 0;
-    let load_driven = limit_point::load_driven(stage, prog, &start);
+    let load_driven = limit_point::load_driven(stage, prog, start);
     let mut path = limit_point::LoadPath::default();
     while t < 1.0 - 1e-12 {
         let step = dt.min(1.0 - t);
         observer.event(&Event::IncrementStart { stage: si, increment: count + 1, load_factor: t + step, step });
-        ctx.history.time_step = step * duration;
+        ctx.history.time_step = step * recorder.duration;
         let extrapolation = if c.extrapolate { history.as_ref().map(|(prev, h)| (prev.as_slice(), step / h)) } else { None };
         match ctx.increment(u, t + step, extrapolation, si, count + 1, observer, stats) {
             IncrementOutcome::Converged { iterations, residuals, energy } => {
                 count += 1;
-                stats.increments += 1;
                 t += step;
                 history = Some((ctx.last_converged.clone(), step));
                 path.record(step, &ctx.last_converged, u);
-                let done = Converged { stage: si, increment: count, load_factor: t, step, iterations, residuals, energy };
-                let result = match commit_increment(disc, &mut ctx, u, done, stage_start_time, report_sets, observer) {
-                    Ok(r) => r,
-                    Err(e) => return Ok(Err(e)),
-                };
-                *time = result.time;
-                if c.carry_pressure {
-                    mixed.clone_from(&ctx.mixed.converged);
+                let done = Converged { increment: count, t, step, iterations, residuals, energy };
+                if let Err(e) = recorder.record(ctx, u, done, stats, observer) {
+                    return Ok(Err(e));
                 }
-                increments.push(result);
                 dt = if iterations <= c.fast_iterations { (step * c.growth).min(c.max) } else { step.min(c.max) };
             }
             IncrementOutcome::Failed(err) => {
@@ -201,8 +233,6 @@ fn run_stage(
             }
         }
     }
-    *inserts = std::mem::take(&mut ctx.inserts);
-    *point_history = std::mem::take(&mut ctx.history);
     Ok(Ok(()))
 }
 
@@ -243,59 +273,17 @@ fn begin_stage(disc: &Discretization, si: usize, prog: &StageProgram, run: &mut 
     released
 }
 
-/// A converged increment as the Newton driver reports it.
+/// A converged increment as a stage loop hands it to [`Recorder::record`].
 struct Converged {
-    stage: usize,
+    /// 1-based increment of the stage.
     increment: usize,
-    load_factor: f64,
+    /// Stage fraction (load factor) reached.
+    t: f64,
+    /// Change of the load factor over the increment.
     step: f64,
     iterations: usize,
     residuals: Vec<f64>,
     energy: f64,
-}
-
-/// Makes the converged state at `u` the new start (contact, fluids,
-/// inserts committed) and forms its results, shown to the observer.
-fn commit_increment(
-    disc: &Discretization,
-    ctx: &mut NewtonContext,
-    u: &[f64],
-    done: Converged,
-    stage_start_time: f64,
-    report_sets: &ReportSets,
-    observer: &mut dyn Observer,
-) -> Result<IncrementResult, SolveError> {
-    let stage = &disc.model.stages[done.stage];
-    // Springs pull toward the previous increment: measure before replacing it.
-    let share = ctx.stabilization_share(u);
-    ctx.last_converged.copy_from_slice(u);
-    ctx.contacts.commit();
-    // Only a model with fluids needs the contact pressures here.
-    if let Some(f) = ctx.fluids.as_deref_mut() {
-        f.commit(&ctx.contacts.fields(disc.mesh().node_count()).pressure);
-    }
-    ctx.inserts.commit();
-    let result = IncrementResult {
-        stage: done.stage,
-        stage_name: stage.name.clone(),
-        increment: done.increment,
-        load_factor: done.load_factor,
-        step: done.step,
-        time: stage_start_time + done.load_factor * stage.duration.unwrap_or(0.0),
-        newton_iterations: done.iterations,
-        residual_history: done.residuals,
-        strain_energy: done.energy,
-        stabilization_share: share,
-        ..fields::increment_fields(disc, ctx, u, done.load_factor, report_sets)
-    };
-    let mut result = fields::with_point_fields(disc, u, &ctx.history, result)?;
-    // Observers see the history (to evaluate stresses); stored increments do not keep it.
-    if !ctx.history.is_empty() {
-        result.history = Some(HistoryValues { stride: ctx.history.stride(), values: ctx.history.all_converged().to_vec() });
-    }
-    observer.event(&Event::Converged(&result));
-    result.history = None;
-    Ok(result)
 }
 
 /// Why a run stops at stage fraction `t` when the next step `next` would be
@@ -316,6 +304,70 @@ fn stopped(stage: &Stage, prog: &StageProgram, t: f64, next: f64, limit: Option<
             min: stage.controls.min,
             reason: err.to_string(),
         },
+    }
+}
+
+/// Keeps the converged increments of a stage: commits the state the
+/// context carries, forms the results, tells the observer and stores them.
+struct Recorder<'r> {
+    disc: &'r Discretization<'r>,
+    si: usize,
+    report_sets: &'r ReportSets,
+    stage_start_time: f64,
+    duration: f64,
+    carry_pressure: bool,
+    mixed: &'r mut Vec<MixedState>,
+    time: &'r mut f64,
+    increments: &'r mut Vec<IncrementResult>,
+}
+
+impl Recorder<'_> {
+    fn record(
+        &mut self,
+        ctx: &mut NewtonContext,
+        u: &[f64],
+        done: Converged,
+        stats: &mut SolveStats,
+        observer: &mut dyn Observer,
+    ) -> Result<(), SolveError> {
+        let (disc, model) = (self.disc, self.disc.model);
+        let stage = &model.stages[self.si];
+        stats.increments += 1;
+        // Springs pull toward the previous increment: measure before replacing it.
+        let share = ctx.stabilization_share(u);
+        ctx.last_converged.copy_from_slice(u);
+        ctx.contacts.commit();
+        // Only a model with fluids needs the contact pressures here.
+        if let Some(f) = ctx.fluids.as_deref_mut() {
+            f.commit(&ctx.contacts.fields(model.mesh.node_count()).pressure);
+        }
+        ctx.inserts.commit();
+        let result = IncrementResult {
+            stage: self.si,
+            stage_name: stage.name.clone(),
+            increment: done.increment,
+            load_factor: done.t,
+            step: done.step,
+            time: self.stage_start_time + done.t * self.duration,
+            newton_iterations: done.iterations,
+            residual_history: done.residuals,
+            strain_energy: done.energy,
+            stabilization_share: share,
+            ..fields::increment_fields(disc, ctx, u, done.t, self.report_sets)
+        };
+        let mut result = fields::with_point_fields(disc, u, &ctx.history, result)?;
+        *self.time = result.time;
+        // Observers see the history (to evaluate stresses); stored increments do not keep it.
+        if !ctx.history.is_empty() {
+            result.history = Some(HistoryValues { stride: ctx.history.stride(), values: ctx.history.all_converged().to_vec() });
+        }
+        observer.event(&Event::Converged(&result));
+        result.history = None;
+        if self.carry_pressure {
+            self.mixed.clone_from(&ctx.mixed.converged);
+        }
+        self.increments.push(result);
+        Ok(())
     }
 }
 

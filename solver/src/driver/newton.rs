@@ -175,6 +175,8 @@ pub struct NewtonContext<'a> {
     pub fluids: Option<&'a mut Fluids>,
     /// Smallest force scale: 1e-10 × the model's force unit μ·L² (see [`force_unit`]).
     force_floor: f64,
+    /// Smallest force scale the round-off at the last evaluated state allows ([`super::roundoff`]).
+    roundoff_floor: f64,
     /// Stabilization spring per dof (empty when the stage has none).
     stabilization: Vec<f64>,
     /// Element pressure/dilatation unknowns (three-field form; empty when condensed).
@@ -263,6 +265,7 @@ impl<'a> NewtonContext<'a> {
             base: vec![0.0; ndof],
             last_converged: start.to_vec(),
             force_floor: 1e-10 * force_unit(disc),
+            roundoff_floor: 0.0,
             stabilization: if controls.stabilization > 0.0 {
                 super::stabilization::dof_weights(disc, controls.stabilization)
             } else {
@@ -413,6 +416,7 @@ impl<'a> NewtonContext<'a> {
         stats.assembly_time += clock.elapsed().as_secs_f64();
         stats.assemblies += 1;
         self.tangent_fresh = want_k;
+        self.roundoff_floor = super::roundoff::floor(self.disc, self.dofs, u, self.controls.force_tolerance);
         if !finite {
             return Err(SolveError::NonFiniteResidual);
         }
@@ -455,7 +459,7 @@ impl<'a> NewtonContext<'a> {
         };
         // When every load vanishes (a seal released, a plate moved back) the
         // scale would vanish with it; the model's own force unit bounds it below.
-        s.max(self.force_floor)
+        s.max(self.force_floor).max(self.roundoff_floor)
     }
 
     fn free_residual_norm(&self) -> f64 {
@@ -850,6 +854,53 @@ impl<'a> NewtonContext<'a> {
     /// du·r over the free dofs with the current residual.
     fn dofs_dot_du(&self) -> f64 {
         self.residual.iter().zip(&self.dofs.eq).filter(|(_, q)| **q != NONE).map(|(r, q)| r * self.du[*q]).sum()
+    }
+}
+
+/// What the arc-length driver ([`super::arc_length`]) uses of a Newton
+/// context: its evaluation, factorization and measures, without the
+/// load-controlled iteration around them.
+impl<'a> NewtonContext<'a> {
+    /// Residual (and tangent, if `want_k`) at `u` and stage fraction `t`,
+    /// with no prescribed change (arc-length stages move nothing).
+    pub(super) fn evaluate_fixed(&mut self, u: &[f64], t: f64, want_k: bool, stats: &mut SolveStats) -> Result<f64, SolveError> {
+        self.dup.fill(0.0);
+        self.evaluate(u, t, want_k, false, stats)
+    }
+
+    /// Factorizes the tangent of the last evaluation.
+    pub(super) fn factorize_tangent(&mut self) -> Result<crate::linear::Factorization, SolveError> {
+        Ok(self.linear.factorize(SystemMatrix { lower: &self.k, skew: &self.skew })?)
+    }
+
+    /// Solves `K x = b` in place with the last factorization.
+    pub(super) fn solve_tangent(&mut self, x: &mut [f64]) -> Result<(), SolveError> {
+        Ok(self.linear.solve(x)?)
+    }
+
+    /// `−r` at the free equations after the last evaluation.
+    pub(super) fn free_rhs(&self) -> &[f64] {
+        &self.rhs
+    }
+
+    /// The out-of-balance force at the free dofs and the force scale it is measured against.
+    pub(super) fn residual_and_scale(&self) -> (f64, f64) {
+        (self.free_residual_norm(), self.force_scale())
+    }
+
+    /// After an equilibrium: whether the fluids' front moved (then re-evaluated).
+    pub(super) fn front_moved(&mut self, u: &[f64], t: f64, stats: &mut SolveStats) -> Result<bool, SolveError> {
+        self.fluid_front_moved(u, t, stats)
+    }
+
+    /// The discretization, the stage's load program, the tangent's pattern and the equation numbering.
+    pub(super) fn parts(&self) -> (&'a Discretization<'a>, &'a StageProgram, &'a Pattern, &'a DofMap) {
+        (self.disc, self.prog, self.pattern, self.dofs)
+    }
+
+    /// The stage's increment controls and name.
+    pub(super) fn stage_controls(&self) -> (&'a IncrementControls, &'a str) {
+        (self.controls, self.stage_name)
     }
 }
 

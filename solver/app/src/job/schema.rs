@@ -371,6 +371,13 @@ pub struct StageSpec {
     /// default 0: none; try 1e-3). Ties each node weakly to where it was at the
     /// last converged increment.
     pub stabilization: Option<f64>,
+    /// What drives the increments: `"load"` (default, the load factor) or
+    /// `"arc-length"` (a length along the equilibrium path, past limit
+    /// points), the latter for stages driven by forces, pressures or fluids.
+    pub control: Option<Spanned<String>>,
+    /// Arc-length stages: increments allowed before the run stops short of
+    /// the stage's loads (default 100).
+    pub max_increments: Option<Spanned<usize>>,
 }
 
 /// The frequencies of a harmonic stage.

@@ -12,7 +12,8 @@ use super::build::Builder;
 use super::diagnostics::{nearest, InputError};
 use super::schema::{AnalysisKind, JobFile, RampSpec, RotationSpec, StageSpec};
 use olli_solver::model::{
-    Force, Harmonic, IncrementControls, Insert, Motion, Pressure, Ramp, RotationMotion, Stage, Support, BODY_FORCE_RAMP,
+    Control, Force, Harmonic, IncrementControls, Insert, Motion, Pressure, Ramp, RotationMotion, Stage, Support, ARC_LENGTH_MAX_INCREMENTS,
+    BODY_FORCE_RAMP,
 };
 
 /// Default first increment of a stage with a duration (fraction of the
@@ -177,7 +178,15 @@ impl Builder<'_> {
             }
             let duration = self.duration(s)?;
             let harmonic = self.harmonic(s, i == 0)?;
-            stages.push(Stage { name: spec.name.get_ref().clone(), duration, harmonic, controls: self.controls(s)?, ..Default::default() });
+            let control = self.control(s)?;
+            stages.push(Stage {
+                name: spec.name.get_ref().clone(),
+                duration,
+                harmonic,
+                controls: self.controls(s)?,
+                control,
+                ..Default::default()
+            });
         }
         // A stage with a duration holds the loads while time passes.
         let mut loaded: Vec<bool> = stages.iter().map(|s| s.duration.is_some()).collect();
@@ -291,7 +300,65 @@ impl Builder<'_> {
                 format!("stage `{name}` has no loads: give it a [[motion]], [[pressure]], [[fluid]], [[force]] or [[body_force]] with `stage = \"{name}\"`, or move a [[rigid]] surface or an [[insert]] in it"),
             ));
         }
+        self.check_arc_length(file, &stages, &inserts)?;
         Ok((stages, inserts))
+    }
+
+    /// The stage's `control` (and `max_increments`, which only arc-length stages take).
+    fn control(&self, s: &Spanned<StageSpec>) -> Result<Control, InputError> {
+        let spec = s.get_ref();
+        let name = spec.name.get_ref();
+        let arc = match &spec.control {
+            None => false,
+            Some(c) => match c.get_ref().as_str() {
+                "load" => false,
+                "arc-length" => true,
+                other => {
+                    let hint = nearest(other, ["load", "arc-length"]).map(|k| format!("; did you mean `{k}`?")).unwrap_or_default();
+                    return Err(
+                        self.err(c.span(), format!("stage `{name}`: unknown `control` `{other}` (use \"load\" or \"arc-length\"){hint}"))
+                    );
+                }
+            },
+        };
+        match (&spec.max_increments, arc) {
+            (Some(m), false) => {
+                Err(self
+                    .err(m.span(), format!("stage `{name}`: `max_increments` belongs to arc-length stages (`control = \"arc-length\"`)")))
+            }
+            (Some(m), true) if *m.get_ref() == 0 => Err(self.err(m.span(), format!("stage `{name}`: `max_increments` must be at least 1"))),
+            (m, true) => Ok(Control::ArcLength { max_increments: m.as_ref().map_or(ARC_LENGTH_MAX_INCREMENTS, |m| *m.get_ref()) }),
+            (None, false) => Ok(Control::Load),
+        }
+    }
+
+    /// Arc-length stages scale their loads by the load factor they find:
+    /// they must be driven by loads alone, ramped linearly, with no time
+    /// and no bonded inserts in the model.
+    fn check_arc_length(&self, file: &JobFile, stages: &[Stage], inserts: &[Insert]) -> Result<(), InputError> {
+        for (spec, stage) in file.stage.iter().zip(stages) {
+            let Control::ArcLength { .. } = stage.control else { continue };
+            let span = spec.get_ref().control.as_ref().map(|c| c.span()).unwrap_or(spec.span());
+            let refuse = |why: &str| Err(self.err(span.clone(), format!("stage `{}`: `control = \"arc-length\"` {why}", stage.name)));
+            if !stage.motions.is_empty() || !stage.rotations.is_empty() || !stage.rigid_motions.is_empty() || !stage.inserts.is_empty() {
+                return refuse("drives stages loaded by forces, pressures or fluids; this stage moves a set, a rigid surface or an insert (use load control)");
+            }
+            let loads =
+                !stage.pressures.is_empty() || !stage.forces.is_empty() || !stage.fluid_pressures.is_empty() || stage.body_force.is_some();
+            if !loads {
+                return refuse("needs a [[pressure]], [[force]], [[fluid]] or [[body_force]] changing in this stage");
+            }
+            if stage.duration.is_some() {
+                return refuse("cannot be combined with `duration` (the load factor it finds is not the time)");
+            }
+            if stage.ramps.values().any(|r| *r != Ramp::Linear) {
+                return refuse("scales all loads of the stage together: give them no `ramp`");
+            }
+            if !inserts.is_empty() {
+                return refuse("is not available in a model with [[insert]]s");
+            }
+        }
+        Ok(())
     }
 
     /// The stage's `duration`, checked.

@@ -62,7 +62,8 @@ impl EventText {
                 format!("harmonic stage `{}`: {} frequencies, {driven} driven set components", d.stage_name, d.frequencies.len())
             }
             Event::Converged(r) => {
-                let res = r.residual_history.last().copied().unwrap_or(0.0);
+                // + 0.0: an empty sum (a stage with no free equations) is −0.0, printed "-0.00e0".
+                let res = r.residual_history.last().copied().unwrap_or(0.0) + 0.0;
                 format!(
                     "stage `{}` increment {}: load factor {:.4} (increment {:.4}), {} iterations, residual {res:.2e}",
                     r.stage_name, r.increment, r.load_factor, r.step, r.newton_iterations

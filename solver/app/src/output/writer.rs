@@ -274,7 +274,10 @@ impl<'m> ResultWriter<'m> {
                 let stage = match e {
                     SolveError::IncrementTooSmall { stage, .. }
                     | SolveError::NotConverged { stage, .. }
-                    | SolveError::LimitPoint { stage, .. } => stage.clone(),
+                    | SolveError::LimitPoint { stage, .. }
+                    | SolveError::ArcLengthUnfinished { stage, .. }
+                    | SolveError::ArcLengthUnloaded { stage, .. }
+                    | SolveError::ArcTooShort { stage, .. } => stage.clone(),
                     _ => last.map(|r| r.stage_name.clone()).unwrap_or_else(|| stages[0].name.clone()),
                 };
                 ("stopped", Some(e.to_string()), Some(stage))
