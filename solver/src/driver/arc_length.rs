@@ -113,19 +113,7 @@ pub(super) fn run_stage(
         }
         // The increment's load factor is found on the arc; the last one's change is the guess told.
         observer.event(&Event::IncrementStart { stage: si, increment: count + 1, load_factor: t + last_step, step: last_step });
-        let attempt = match arc_increment(ctx, u, t, &mut arc, (si, count + 1), observer, stats) {
-            Ok(step) if step.t > 1.0 => {
-                // Past the stage's end: land on it under load control instead.
-                u.copy_from_slice(&ctx.last_converged);
-                ctx.contacts.restore();
-                match ctx.increment(u, 1.0, None, si, count + 1, observer, stats) {
-                    IncrementOutcome::Converged { iterations, residuals, energy } => Ok(ArcStep { t: 1.0, iterations, residuals, energy }),
-                    IncrementOutcome::Failed(e) => Err(e),
-                }
-            }
-            other => other,
-        };
-        match attempt {
+        match attempt(ctx, u, t, &mut arc, (si, count + 1), observer, stats) {
             Ok(step) => {
                 count += 1;
                 let change: Vec<f64> = free_change(ctx, u);
@@ -152,28 +140,64 @@ pub(super) fn run_stage(
                 }
             }
             Err(err) => {
-                stats.cutbacks += 1;
-                u.copy_from_slice(&ctx.last_converged);
-                ctx.contacts.restore();
-                if arc.length == 0.0 {
-                    return Err(err);
+                if let Some(stop) = shorten(ctx, u, &mut arc, (si, t), err, stats, observer)? {
+                    return Ok(Err(stop));
                 }
-                arc.length *= c.cutback;
-                let (ratio, min) = (arc.length / arc.first, c.min / c.first);
-                if ratio < min {
-                    return Ok(Err(SolveError::ArcTooShort {
-                        stage: name.to_string(),
-                        load_factor: t,
-                        ratio,
-                        min,
-                        reason: err.to_string(),
-                    }));
-                }
-                observer.event(&Event::Cutback { stage: si, load_factor: t, step: ratio * c.first, reason: &err });
             }
         }
     }
     Ok(Ok(()))
+}
+
+/// One increment on the arc from load factor `t`; an increment that would
+/// pass the stage's end lands on it under load control instead.
+fn attempt(
+    ctx: &mut NewtonContext,
+    u: &mut [f64],
+    t: f64,
+    arc: &mut Arc,
+    (si, increment): (usize, usize),
+    observer: &mut dyn Observer,
+    stats: &mut SolveStats,
+) -> Result<ArcStep, SolveError> {
+    let step = arc_increment(ctx, u, t, arc, (si, increment), observer, stats)?;
+    if step.t <= 1.0 {
+        return Ok(step);
+    }
+    u.copy_from_slice(&ctx.last_converged);
+    ctx.contacts.restore();
+    match ctx.increment(u, 1.0, None, si, increment, observer, stats) {
+        IncrementOutcome::Converged { iterations, residuals, energy } => Ok(ArcStep { t: 1.0, iterations, residuals, energy }),
+        IncrementOutcome::Failed(e) => Err(e),
+    }
+}
+
+/// After a failed increment at load factor `t`: back to the last converged
+/// state with the arc cut back; `Some` stop when the arc became shorter than
+/// the stage's smallest increment allows.
+fn shorten(
+    ctx: &mut NewtonContext,
+    u: &mut [f64],
+    arc: &mut Arc,
+    (si, t): (usize, f64),
+    err: SolveError,
+    stats: &mut SolveStats,
+    observer: &mut dyn Observer,
+) -> Result<Option<SolveError>, SolveError> {
+    let (c, name) = ctx.stage_controls();
+    stats.cutbacks += 1;
+    u.copy_from_slice(&ctx.last_converged);
+    ctx.contacts.restore();
+    if arc.length == 0.0 {
+        return Err(err);
+    }
+    arc.length *= c.cutback;
+    let (ratio, min) = (arc.length / arc.first, c.min / c.first);
+    if ratio < min {
+        return Ok(Some(SolveError::ArcTooShort { stage: name.to_string(), load_factor: t, ratio, min, reason: err.to_string() }));
+    }
+    observer.event(&Event::Cutback { stage: si, load_factor: t, step: ratio * c.first, reason: &err });
+    Ok(None)
 }
 
 /// The change of the free dofs since the last converged increment.
@@ -201,32 +225,7 @@ fn arc_increment(
 ) -> Result<ArcStep, SolveError> {
     let (c, name) = ctx.stage_controls();
     let n = ctx.dofs().n_free;
-    u.copy_from_slice(&ctx.last_converged);
-    ctx.mixed.restart();
-    if let Some(f) = ctx.fluids.as_deref_mut() {
-        f.begin_increment(t0);
-    }
-    // Predictor along the tangent at the last converged state.
-    ctx.evaluate_fixed(u, t0, true, stats)?;
-    ctx.factorize_tangent()?;
-    let mut dq = load_rate(ctx, u);
-    ctx.solve_tangent(&mut dq)?;
-    let rate = norm(&dq);
-    if !(rate.is_finite() && rate > 0.0) {
-        return Err(SolveError::ArcLengthNotApplicable {
-            stage: name.to_string(),
-            needs: "loads that move the free nodes (the stage's loads act on held nodes only)".into(),
-        });
-    }
-    if arc.length == 0.0 {
-        arc.length = c.first * rate;
-        arc.first = arc.length;
-    }
-    let forward = arc.previous.is_empty() || dot(&arc.previous, &dq) >= 0.0;
-    let dt = if forward { arc.length / rate } else { -arc.length / rate };
-    let mut change: Vec<f64> = dq.iter().map(|v| dt * v).collect();
-    let mut t = t0 + dt;
-    step_by(ctx, u, &change)?;
+    let (mut change, mut t) = predict(ctx, u, t0, arc, stats)?;
     let mut residuals = Vec::new();
     let (mut iterations, mut budget, mut augmentations) = (0, c.max_iterations, 0);
     let mut correction = vec![0.0; n];
@@ -279,6 +278,39 @@ fn arc_increment(
         step_by(ctx, u, &correction)?;
         iterations += 1;
     }
+}
+
+/// The predictor from the last converged state at load factor `t0`: along
+/// the tangent, the arc's length, forward unless the path turned back.
+/// Leaves `u` at the predicted state; returns the free dofs' change and
+/// the predicted load factor.
+fn predict(ctx: &mut NewtonContext, u: &mut [f64], t0: f64, arc: &mut Arc, stats: &mut SolveStats) -> Result<(Vec<f64>, f64), SolveError> {
+    let (c, name) = ctx.stage_controls();
+    u.copy_from_slice(&ctx.last_converged);
+    ctx.mixed.restart();
+    if let Some(f) = ctx.fluids.as_deref_mut() {
+        f.begin_increment(t0);
+    }
+    ctx.evaluate_fixed(u, t0, true, stats)?;
+    ctx.factorize_tangent()?;
+    let mut dq = load_rate(ctx, u);
+    ctx.solve_tangent(&mut dq)?;
+    let rate = norm(&dq);
+    if !(rate.is_finite() && rate > 0.0) {
+        return Err(SolveError::ArcLengthNotApplicable {
+            stage: name.to_string(),
+            needs: "loads that move the free nodes (the stage's loads act on held nodes only)".into(),
+        });
+    }
+    if arc.length == 0.0 {
+        arc.length = c.first * rate;
+        arc.first = arc.length;
+    }
+    let forward = arc.previous.is_empty() || dot(&arc.previous, &dq) >= 0.0;
+    let dt = if forward { arc.length / rate } else { -arc.length / rate };
+    let change: Vec<f64> = dq.iter().map(|v| dt * v).collect();
+    step_by(ctx, u, &change)?;
+    Ok((change, t0 + dt))
 }
 
 /// One correction on the arc with the factorized tangent at the current
