@@ -901,6 +901,35 @@ fn released_block_relaxes_to_zero_force_and_its_original_shape() {
     assert!(summary["reactions"]["bottom"]["y"].as_f64().unwrap().abs() < 1e-6 * squeezed.abs());
 }
 
+/// A support added in a later stage holds its nodes where they are at that
+/// stage's start: the squeezed block's top, let go by its motion in `relax`
+/// but held there by a support starting in `relax`, stays at −0.05, so the
+/// block's state, and with it the ground's reaction, does not change at all
+/// (statics of an unchanged configuration; before, a support could only
+/// hold at zero from the first stage).
+#[test]
+fn support_added_in_a_later_stage_holds_the_nodes_where_they_are() {
+    let s = Scratch::new("support-later");
+    let job = format!("{SQUEEZE_RELAX}\n[[support]]\nnodes = \"top\"\nfix = [\"x\", \"y\"]\nstage = \"relax\"\n");
+    let out = run(&s.job(&job), &s.out());
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out));
+    let history = std::fs::read_to_string(s.out().join("history.csv")).unwrap();
+    let mut lines = history.lines();
+    let header: Vec<&str> = lines.next().unwrap().split(',').collect();
+    let col = header.iter().position(|h| *h == "reaction_bottom_y").unwrap();
+    let rows: Vec<Vec<&str>> = lines.map(|l| l.split(',').collect()).collect();
+    let squeezed: f64 = rows.iter().rfind(|r| r[0] == "squeeze").unwrap()[col].parse().unwrap();
+    assert!(squeezed.abs() > 0.3, "the squeeze loads the ground: {squeezed}");
+    for r in rows.iter().filter(|r| r[0] == "relax") {
+        let got: f64 = r[col].parse().unwrap();
+        assert!((got - squeezed).abs() <= 1e-6 * squeezed.abs(), "held in place: {got} vs {squeezed}");
+    }
+    let summary: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(s.out().join("summary.json")).unwrap()).unwrap();
+    assert_eq!(summary["status"], "converged", "{summary}");
+    // Held at zero instead, the block would spring back and the ground's reaction vanish.
+    assert!((summary["reactions"]["bottom"]["y"].as_f64().unwrap() - squeezed).abs() <= 1e-6 * squeezed.abs());
+}
+
 #[test]
 fn release_in_an_unknown_or_earlier_stage_is_located() {
     rejects(

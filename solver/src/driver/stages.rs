@@ -125,8 +125,11 @@ struct Resolver<'d> {
     body: Option<[f64; 3]>,
     /// Dead load at the end of the last stage.
     dead: Vec<f64>,
-    /// Dofs an earlier stage turned: held at their stage-start value until re-prescribed.
+    /// Dofs an earlier stage turned, or a support added after the first
+    /// stage holds: held at their stage-start value until re-prescribed.
     turned: Vec<bool>,
+    /// Stages resolved so far.
+    resolved: usize,
 }
 
 /// The dofs' ramps of one stage: the ramps (index 0 linear) and each dof's.
@@ -161,6 +164,7 @@ impl<'d> Resolver<'d> {
             body: None,
             dead: vec![0.0; ndof],
             turned: vec![false; ndof],
+            resolved: 0,
         })
     }
 
@@ -184,6 +188,7 @@ impl<'d> Resolver<'d> {
         self.inserts.mark_bonded(&mut self.prescribed);
         let pressures = self.pressure_programs(stage)?;
         let dead_changes = self.dead_changes(stage)?;
+        self.resolved += 1;
         let mut dead = self.dead.clone();
         for (_, change) in &dead_changes {
             for (d, c) in dead.iter_mut().zip(change) {
@@ -227,16 +232,22 @@ impl<'d> Resolver<'d> {
         Ok(released)
     }
 
-    /// Holds the supported dofs at zero.
+    /// Holds the supported dofs: at zero in the first stage; a support that
+    /// a later stage adds holds its dofs where they are at that stage's
+    /// start (one listed again on dofs already held changes nothing).
     fn hold(&mut self, stage: &Stage) -> Result<(), SolveError> {
         let dim = self.disc.dim;
+        let later = self.resolved > 0;
         for s in &stage.supports {
             let nodes = self.nodes(stage, &s.set)?;
             for &n in &nodes {
                 for d in (0..dim).filter(|&i| s.components[i]).map(|i| n * dim + i) {
+                    if later && self.prescribed[d] {
+                        continue;
+                    }
                     self.prescribed[d] = true;
                     self.target[d] = 0.0;
-                    self.turned[d] = false;
+                    self.turned[d] = later;
                 }
             }
             self.report.insert(s.set.clone(), nodes);

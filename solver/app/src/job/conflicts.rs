@@ -89,7 +89,10 @@ impl Builder<'_> {
             let mut claims: BTreeMap<usize, Vec<Holder>> = BTreeMap::new();
             for sup in &file.support {
                 let spec = sup.get_ref();
-                if self.release_stage(&file.stage, &spec.release, 0)?.is_some_and(|r| r <= si) {
+                let from = self.stage_index(&file.stage, &spec.stage)?;
+                // A support starting in a later stage holds its nodes where they
+                // are then, which agrees with any value they were held at before.
+                if from > 0 || self.release_stage(&file.stage, &spec.release, from)?.is_some_and(|r| r <= si) {
                     continue;
                 }
                 let names = kind.components();

@@ -232,6 +232,9 @@ pub struct SupportSpec {
     pub fix: Spanned<Vec<String>>,
     /// Report the moment of the reaction about this point (3-D, plane strain).
     pub moment_about: Option<Spanned<Vec<f64>>>,
+    /// Stage from whose start the components are held (default: the first
+    /// stage, held at zero); a later stage holds them where they are then.
+    pub stage: Option<Spanned<String>>,
     /// Stage (after the first) at whose start the components are let go,
     /// their reaction ramped to zero over that stage (default: held throughout).
     pub release: Option<Spanned<String>>,

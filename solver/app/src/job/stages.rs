@@ -208,11 +208,12 @@ impl Builder<'_> {
             if !components.iter().any(|&c| c) {
                 return Err(self.err(spec.fix.span(), "`fix` names no component"));
             }
-            if let Some(at) = self.release_stage(&file.stage, &spec.release, 0)? {
+            let from = self.stage_index(&file.stage, &spec.stage)?;
+            if let Some(at) = self.release_stage(&file.stage, &spec.release, from)? {
                 stages[at].releases.push(Support { set: set.clone(), components });
                 loaded[at] = true;
             }
-            stages[0].supports.push(Support { set, components });
+            stages[from].supports.push(Support { set, components });
         }
         for m in &file.motion {
             let spec = m.get_ref();
