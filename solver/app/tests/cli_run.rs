@@ -930,6 +930,31 @@ fn support_added_in_a_later_stage_holds_the_nodes_where_they_are() {
     assert!((summary["reactions"]["bottom"]["y"].as_f64().unwrap() - squeezed).abs() <= 1e-6 * squeezed.abs());
 }
 
+/// A support that starts in a stage where a motion moves the same
+/// component disagrees with it: a located error, nothing written.
+#[test]
+fn support_added_where_a_motion_moves_is_located() {
+    let s = Scratch::new("support-later-moved");
+    let job =
+        SQUEEZE_RELAX.replace("stage = \"squeeze\"\ndisplacement", "stage = \"relax\"\ndisplacement").replace("release = \"relax\"\n", "")
+            + "\n[[support]]\nnodes = \"top\"\nfix = [\"y\"]\nstage = \"relax\"\n";
+    let job = job.replace("[[stage]]\nname = \"squeeze\"\n", "[[stage]]\nname = \"squeeze\"\nduration = 1.0\n");
+    let o = olli(&["check", s.job(&job).to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    assert!(text(&o).contains("held where it is at the stage start"), "{}", text(&o));
+}
+
+/// An output folder that cannot be written (here below /proc, which even
+/// root cannot write) is found by `olli check`, before any run.
+#[test]
+fn an_output_folder_that_cannot_be_written_fails_olli_check() {
+    let s = Scratch::new("folder-unwritable");
+    let job = s.job(&format!("{BUSH}\n[output]\nfolder = \"/proc/olli-results\"\n"));
+    let o = olli(&["check", job.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    assert!(text(&o).contains("/proc/olli-results cannot be written"), "{}", text(&o));
+}
+
 #[test]
 fn release_in_an_unknown_or_earlier_stage_is_located() {
     rejects(

@@ -19,6 +19,8 @@ use super::schema::{AnalysisKind, JobFile};
 enum Claim {
     /// Held at a value that does not change in the stage.
     Held(f64),
+    /// Held where it is at the start of the stage (a support that a later stage adds).
+    HeldInPlace,
     /// Moved to a value by the end of the stage, along a ramp (by name of its key).
     Moved { to: f64, ramp: String },
     /// Anything else (a rotating or loaded insert, a turned set).
@@ -43,6 +45,8 @@ fn agree(a: &Claim, b: &Claim) -> bool {
         (Claim::Moved { to: x, ramp: r }, Claim::Moved { to: y, ramp: s }) => x == y && r == s,
         // A component held at x starts the stage at x: moving it to x keeps it there.
         (Claim::Held(x), Claim::Moved { to: y, .. }) | (Claim::Moved { to: y, .. }, Claim::Held(x)) => x == y,
+        // Held where it is agrees with anything else that holds it still.
+        (Claim::HeldInPlace, Claim::Held(_) | Claim::HeldInPlace) | (Claim::Held(_), Claim::HeldInPlace) => true,
         _ => false,
     }
 }
@@ -50,6 +54,7 @@ fn agree(a: &Claim, b: &Claim) -> bool {
 fn describe(c: &Claim) -> String {
     match c {
         Claim::Held(v) => format!("held at {v}"),
+        Claim::HeldInPlace => "held where it is at the stage start".into(),
         Claim::Moved { to, .. } => format!("moved to {to}"),
         Claim::Other => "moved with its rotation or load".into(),
     }
@@ -90,17 +95,17 @@ impl Builder<'_> {
             for sup in &file.support {
                 let spec = sup.get_ref();
                 let from = self.stage_index(&file.stage, &spec.stage)?;
-                // A support starting in a later stage holds its nodes where they
-                // are then, which agrees with any value they were held at before.
-                if from > 0 || self.release_stage(&file.stage, &spec.release, from)?.is_some_and(|r| r <= si) {
+                if si < from || self.release_stage(&file.stage, &spec.release, from)?.is_some_and(|r| r <= si) {
                     continue;
                 }
+                // From the first stage a support holds at zero; from a later one, where the nodes are then.
+                let claim = if from == 0 { Claim::Held(0.0) } else { Claim::HeldInPlace };
                 let names = kind.components();
                 for n in mesh.nodes_of_set(spec.nodes.get_ref()).unwrap_or_default() {
                     for (i, c) in names.iter().enumerate() {
                         if spec.fix.get_ref().iter().any(|f| f == c) {
                             let what = format!("the support on `{}`", spec.nodes.get_ref());
-                            claims.entry(n * dim + i).or_default().push(Holder { what, span: spec.fix.span(), claim: Claim::Held(0.0) });
+                            claims.entry(n * dim + i).or_default().push(Holder { what, span: spec.fix.span(), claim: claim.clone() });
                         }
                     }
                 }
