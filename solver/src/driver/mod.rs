@@ -379,7 +379,7 @@ fn extrusion_stop(disc: &Discretization, r: &IncrementResult) -> Option<SolveErr
     let (gap, e) = disc.model.extrusion_gaps.iter().zip(&r.extrusions).find(|(g, e)| g.max_depth.is_some_and(|m| e.depth > m))?;
     let loads: String = r.fluids.iter().map(|f| format!(", fluid `{}` at {:.4}", f.name, f.pressure)).collect();
     let at: Vec<String> = e.at[..disc.dim].iter().map(|v| format!("{v:.4}")).collect();
-    Some(SolveError::Extruded {
+    Some(SolveError::Extruded(Box::new(crate::error::ExtrusionStop {
         stage: r.stage_name.clone(),
         increment: r.increment,
         load_factor: r.load_factor,
@@ -389,7 +389,7 @@ fn extrusion_stop(disc: &Discretization, r: &IncrementResult) -> Option<SolveErr
         node: e.node,
         at: format!("({})", at.join(", ")),
         limit: gap.max_depth.unwrap_or(0.0),
-    })
+    })))
 }
 
 impl RunState {

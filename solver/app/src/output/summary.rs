@@ -158,9 +158,7 @@ pub fn units(columns: &[String]) -> BTreeMap<String, String> {
             "count"
         } else if c.ends_with("_fill") || c.ends_with("_squeeze") {
             "percent"
-        } else if c.starts_with("extrusion_") && c.ends_with("_depth") {
-            "length"
-        } else if c.ends_with("_contact_width") || c.ends_with("_wetted_length") {
+        } else if c.ends_with("_contact_width") || c.ends_with("_wetted_length") || (c.starts_with("extrusion_") && c.ends_with("_depth")) {
             "length"
         } else if c.ends_with("_wetted_area") {
             "area (length²)"

@@ -284,8 +284,8 @@ impl<'m> ResultWriter<'m> {
                     | SolveError::LimitPoint { stage, .. }
                     | SolveError::ArcLengthUnfinished { stage, .. }
                     | SolveError::ArcLengthUnloaded { stage, .. }
-                    | SolveError::ArcTooShort { stage, .. }
-                    | SolveError::Extruded { stage, .. } => stage.clone(),
+                    | SolveError::ArcTooShort { stage, .. } => stage.clone(),
+                    SolveError::Extruded(stop) => stop.stage.clone(),
                     _ => last.map(|r| r.stage_name.clone()).unwrap_or_else(|| stages[0].name.clone()),
                 };
                 ("stopped", Some(e.to_string()), Some(stage))
