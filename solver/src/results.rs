@@ -7,6 +7,7 @@ use std::f64::consts::PI;
 pub use crate::contact::active::{ContactFields, ContactSummary};
 use olli_mesh::Mesh;
 
+pub use crate::driver::seal_figures::{ExtrusionSummary, GlandSummary};
 use crate::element::PointState;
 use crate::error::SolveError;
 use crate::linear::LinearStats;
@@ -119,6 +120,10 @@ pub struct IncrementResult {
     pub fluids: Vec<FluidSummary>,
     /// Fluid pressure at every node of a wetted facet, 0 elsewhere (when the model has fluids).
     pub fluid_pressure: Option<Vec<f64>>,
+    /// Per gland: fill and squeeze.
+    pub glands: Vec<GlandSummary>,
+    /// Per extrusion gap: the rubber's largest intrusion past its edge.
+    pub extrusions: Vec<ExtrusionSummary>,
     /// Extremes over every integration point of the mesh at this increment.
     pub peaks: IncrementPeaks,
 }

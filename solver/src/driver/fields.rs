@@ -46,7 +46,11 @@ pub fn increment_fields(disc: &Discretization, ctx: &NewtonContext, u: &[f64], t
             (name.clone(), r)
         })
         .collect();
+    let current: Vec<nalgebra::Vector3<f64>> =
+        displacement.iter().zip(&mesh.nodes).map(|(d, x)| nalgebra::Vector3::new(x[0] + d[0], x[1] + d[1], x[2] + d[2])).collect();
     IncrementResult {
+        glands: super::seal_figures::glands(&disc.model.glands, mesh, &current, ctx.contacts),
+        extrusions: super::seal_figures::extrusions(&disc.model.extrusion_gaps, mesh, &current, ctx.contacts),
         reaction_moments: reaction_moments(disc, &nodal_reactions, u, report_sets),
         displacement,
         reactions,

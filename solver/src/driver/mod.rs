@@ -18,6 +18,7 @@ pub mod limit_point;
 pub mod newton;
 pub mod observer;
 pub mod roundoff;
+pub mod seal_figures;
 pub mod stabilization;
 pub mod stages;
 
@@ -363,12 +364,32 @@ impl Recorder<'_> {
         }
         observer.event(&Event::Converged(&result));
         result.history = None;
+        let extruded = extrusion_stop(disc, &result);
         if self.carry_pressure {
             self.mixed.clone_from(&ctx.mixed.converged);
         }
         self.increments.push(result);
-        Ok(())
+        extruded.map_or(Ok(()), Err)
     }
+}
+
+/// The stop when increment `r` takes the rubber past an extrusion gap's
+/// `max_depth` (the first such gap in model order).
+fn extrusion_stop(disc: &Discretization, r: &IncrementResult) -> Option<SolveError> {
+    let (gap, e) = disc.model.extrusion_gaps.iter().zip(&r.extrusions).find(|(g, e)| g.max_depth.is_some_and(|m| e.depth > m))?;
+    let loads: String = r.fluids.iter().map(|f| format!(", fluid `{}` at {:.4}", f.name, f.pressure)).collect();
+    let at: Vec<String> = e.at[..disc.dim].iter().map(|v| format!("{v:.4}")).collect();
+    Some(SolveError::Extruded(Box::new(crate::error::ExtrusionStop {
+        stage: r.stage_name.clone(),
+        increment: r.increment,
+        load_factor: r.load_factor,
+        loads,
+        gap: gap.name.clone(),
+        depth: e.depth,
+        node: e.node,
+        at: format!("({})", at.join(", ")),
+        limit: gap.max_depth.unwrap_or(0.0),
+    })))
 }
 
 impl RunState {
