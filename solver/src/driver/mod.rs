@@ -266,7 +266,10 @@ fn begin_stage(disc: &Discretization, si: usize, prog: &StageProgram, run: &mut 
     });
     run.contacts.begin_stage(&stage.rigid_motions, &stage.ramps);
     run.fluids.begin_stage(stage);
-    run.inserts.begin_stage(stage);
+    if stage.harmonic.is_none() {
+        // A harmonic stage's insert drives are amplitudes: the static modes stay.
+        run.inserts.begin_stage(stage);
+    }
     if stage.controls.carry_pressure && run.mixed.is_empty() {
         run.mixed = vec![MixedState::default(); disc.mesh().element_count()];
     }
