@@ -252,6 +252,26 @@ fn run_harmonic(
     let result = harmonic::run(disc, si, prog, preload)?;
     observer.event(&Event::Harmonic(&result));
     run.dynamic.push(result);
+    // The history shows every stage: a harmonic stage's row is the static
+    // state it vibrated about, under its own name (no time passes, no iteration).
+    if let Some(last) = run.increments.last() {
+        let mut row = IncrementResult {
+            stage: si,
+            stage_name: name.clone(),
+            increment: 1,
+            load_factor: 1.0,
+            step: 1.0,
+            newton_iterations: 0,
+            residual_history: Vec::new(),
+            ..last.clone()
+        };
+        if !run.history.is_empty() {
+            row.history = Some(HistoryValues { stride: run.history.stride(), values: run.history.all_converged().to_vec() });
+        }
+        observer.event(&Event::Converged(&row));
+        row.history = None;
+        run.increments.push(row);
+    }
     Ok(Ok(()))
 }
 
