@@ -261,10 +261,14 @@ pub struct DynamicResult {
 /// each ratio includes the force the others cause (they move together).
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct DynamicStiffness {
-    /// Node set driven.
+    /// Node set driven (or the insert's name, when `insert`).
     pub set: String,
-    /// Component index (0, 1, 2).
+    /// Component index (0, 1, 2; an insert's 0..6: x, y, z, rx, ry, rz).
     pub component: usize,
+    /// Whether `set` names an insert: the stiffness is then the amplitude
+    /// of the force (or moment) the insert applies to the rubber over that
+    /// of its translation (or rotation, in radians).
+    pub insert: bool,
     /// Storage stiffness K′ (in phase with the motion; force per length) per frequency.
     pub storage: Vec<f64>,
     /// Loss stiffness K″ (a quarter period ahead; force per length) per frequency.

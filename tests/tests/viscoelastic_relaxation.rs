@@ -138,6 +138,9 @@ fn a_cutback_leaves_no_trace_in_the_history() {
     }
 }
 
+/// Named constants of a material.
+type Constants = Vec<(&'static str, f64)>;
+
 /// Nominal stress of the instantaneous (elastic) isochoric model in
 /// incompressible uniaxial tension: P⁰(λ) = 2 (λ − λ⁻²) (∂W/∂Ī1 + ∂W/∂Ī2 / λ).
 fn yeoh_uniaxial(c: [f64; 3], l: f64) -> f64 {
@@ -176,7 +179,7 @@ fn uniaxial_step_stretch_relaxes_as_the_prony_series_times_the_elastic_stress() 
     // hold; 1e-3 of P⁰ covers it with margin, while the relaxation from
     // P⁰ to g∞ P⁰ = P⁰/2 is 500 times larger.
     let l = 1.5;
-    let cases: [(&str, Vec<(&str, f64)>, f64); 2] = [
+    let cases: [(&str, Constants, f64); 2] = [
         ("neo-hookean", vec![("shear_modulus", 0.8)], 0.8 * (l - 1.0 / (l * l))),
         ("yeoh", vec![("c10", 0.5), ("c20", -0.05), ("c30", 0.004)], yeoh_uniaxial([0.5, -0.05, 0.004], l)),
     ];
@@ -209,8 +212,15 @@ fn uniaxial_step_stretch_relaxes_as_the_prony_series_times_the_elastic_stress() 
             worst = worst.max((force - expected).abs() / p0);
             assert!((force - expected).abs() < 1e-3 * p0, "{model} t = {}: P {force} vs g(t) P⁰ = {expected}", r.time);
         }
-        println!("{model}: P⁰ {p0:.6}, instantaneous {instantaneous:.6}, {} hold increments, largest |P − g(t) P⁰| / P⁰ = {worst:.2e}", hold.len());
+        println!(
+            "{model}: P⁰ {p0:.6}, instantaneous {instantaneous:.6}, {} hold increments, largest |P − g(t) P⁰| / P⁰ = {worst:.2e}",
+            hold.len()
+        );
         let last = hold.last().unwrap().reactions["x1"][0];
-        assert!((last / instantaneous - 0.5).abs() < 2e-3, "{model}: relaxed to g∞ = 0.5 of the instantaneous stress: {}", last / instantaneous);
+        assert!(
+            (last / instantaneous - 0.5).abs() < 2e-3,
+            "{model}: relaxed to g∞ = 0.5 of the instantaneous stress: {}",
+            last / instantaneous
+        );
     }
 }

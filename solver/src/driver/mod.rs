@@ -253,6 +253,26 @@ fn run_harmonic(
     let result = harmonic::run(disc, si, prog, preload)?;
     observer.event(&Event::Harmonic(&result));
     run.dynamic.push(result);
+    // The history shows every stage: a harmonic stage's row is the static
+    // state it vibrated about, under its own name (no time passes, no iteration).
+    if let Some(last) = run.increments.last() {
+        let mut row = IncrementResult {
+            stage: si,
+            stage_name: name.clone(),
+            increment: 1,
+            load_factor: 1.0,
+            step: 1.0,
+            newton_iterations: 0,
+            residual_history: Vec::new(),
+            ..last.clone()
+        };
+        if !run.history.is_empty() {
+            row.history = Some(HistoryValues { stride: run.history.stride(), values: run.history.all_converged().to_vec() });
+        }
+        observer.event(&Event::Converged(&row));
+        row.history = None;
+        run.increments.push(row);
+    }
     Ok(Ok(()))
 }
 
@@ -267,7 +287,10 @@ fn begin_stage(disc: &Discretization, si: usize, prog: &StageProgram, run: &mut 
     });
     run.contacts.begin_stage(&stage.rigid_motions, &stage.ramps);
     run.fluids.begin_stage(stage);
-    run.inserts.begin_stage(stage);
+    if stage.harmonic.is_none() {
+        // A harmonic stage's insert drives are amplitudes: the static modes stay.
+        run.inserts.begin_stage(stage);
+    }
     if stage.controls.carry_pressure && run.mixed.is_empty() {
         run.mixed = vec![MixedState::default(); disc.mesh().element_count()];
     }
