@@ -71,7 +71,7 @@ pub enum SolveError {
         relative: f64,
     },
     /// Cut-backs reached the smallest increment: the run stops here.
-    #[error("stage `{stage}`: increment {step:.3e} fell below the minimum {min:.3e} at load factor {load_factor:.4} ({reason})")]
+    #[error("stage `{stage}`: increment {step:.3e} fell below the minimum {min:.3e} at load factor {load_factor:.4} ({reason}){context}")]
     IncrementTooSmall {
         /// Name of the stage.
         stage: String,
@@ -83,6 +83,10 @@ pub enum SolveError {
         min: f64,
         /// Why the last attempt failed.
         reason: String,
+        /// What the last converged increment shows about the stop, as a
+        /// sentence starting with `; ` (the rubber flowing into an
+        /// extrusion gap), or empty.
+        context: String,
     },
     /// The rubber passed an extrusion gap's `max_depth`: the run stops after
     /// that increment, keeping it and every one before.

@@ -215,3 +215,34 @@ impl Groups {
         self.0[ra] = rb;
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::contact::surface::filleted_polyline;
+
+    /// Positions along a groove profile are arc lengths from its end with
+    /// the smaller x, whichever way it is listed (hand geometry: a point on
+    /// the bottom at x = 1.5 of a groove 1 deep with sharp corners is
+    /// 1 + 1.5 from the left top corner), and a line counts toward +x.
+    #[test]
+    fn positions_run_from_the_end_with_the_smaller_x() {
+        let points = [[0.0, 1.0], [0.0, 0.0], [3.0, 0.0], [3.0, 1.0]];
+        let forward = Shape::Profile(filleted_polyline(&points, 0.0).unwrap());
+        let mut reversed = points;
+        reversed.reverse();
+        let backward = Shape::Profile(filleted_polyline(&reversed, 0.0).unwrap());
+        let x = Vector3::new(1.5, -0.01, 0.0);
+        for shape in [forward, backward] {
+            assert!((position_along(&shape, &x) - 2.5).abs() < 1e-12);
+        }
+        let line = Shape::Line { point: [0.0, 0.0], direction: [-2.0, 0.0] };
+        assert!((position_along(&line, &Vector3::new(4.0, 1.0, 0.0)) - 4.0).abs() < 1e-12);
+        // A fillet arc: a quarter circle of radius 0.5 at the left bottom corner
+        // shortens the profile by (2 − π/2) · 0.5 before the bottom.
+        let filleted = Shape::Profile(filleted_polyline(&points, 0.5).unwrap());
+        // Wall down to the fillet (0.5), the quarter arc (π/2 · 0.5), the bottom on to x = 1.5 (1.0).
+        let before = 0.5 + std::f64::consts::FRAC_PI_2 * 0.5 + 1.0;
+        assert!((position_along(&filleted, &x) - before).abs() < 1e-9, "{}", position_along(&filleted, &x));
+    }
+}

@@ -226,7 +226,9 @@ fn load_steps(
                 let next = step * c.cutback;
                 if next < c.min {
                     let limit = path.ratio().filter(|&r| load_driven && r < limit_point::LIMIT_STIFFNESS_RATIO);
-                    return Ok(Err(stopped(stage, prog, t, next, limit, &err)));
+                    let context =
+                        recorder.increments.last().filter(|r| r.stage == si).map(|r| extrusion_context(disc, r)).unwrap_or_default();
+                    return Ok(Err(stopped(stage, prog, (t, next), limit, &err, context)));
                 }
                 observer.event(&Event::Cutback { stage: si, load_factor: t, step: next, reason: &err });
                 // The extrapolation belongs to the old step size; it is kept, scaled by the new ratio.
@@ -313,7 +315,7 @@ struct Converged {
 /// Why a run stops at stage fraction `t` when the next step `next` would be
 /// below the smallest: a limit load (the load path's stiffness fell to
 /// `limit` of its initial value on a load-driven stage), or the increment too small.
-fn stopped(stage: &Stage, prog: &StageProgram, t: f64, next: f64, limit: Option<f64>, err: &SolveError) -> SolveError {
+fn stopped(stage: &Stage, prog: &StageProgram, (t, next): (f64, f64), limit: Option<f64>, err: &SolveError, context: String) -> SolveError {
     match limit {
         Some(ratio) => SolveError::LimitPoint {
             stage: stage.name.clone(),
@@ -327,6 +329,7 @@ fn stopped(stage: &Stage, prog: &StageProgram, t: f64, next: f64, limit: Option<
             step: next,
             min: stage.controls.min,
             reason: err.to_string(),
+            context,
         },
     }
 }
@@ -394,6 +397,28 @@ impl Recorder<'_> {
         self.increments.push(result);
         extruded.map_or(Ok(()), Err)
     }
+}
+
+/// What increment `r`, the last to converge before a stop, shows when the
+/// rubber has entered an extrusion gap: how far, where, at which fluid
+/// pressure, and where the strain peaks; empty otherwise.
+fn extrusion_context(disc: &Discretization, r: &IncrementResult) -> String {
+    let Some(e) = r.extrusions.iter().filter(|e| e.depth > 0.0).max_by(|a, b| a.depth.total_cmp(&b.depth)) else { return String::new() };
+    let xy = |p: &[f64; 3]| p[..disc.dim].iter().map(|v| format!("{v:.4}")).collect::<Vec<_>>().join(", ");
+    let fluids: String = r.fluids.iter().map(|f| format!(" at fluid `{}` {:.4}", f.name, f.pressure)).collect();
+    let strain = &r.peaks.max_principal_log_strain;
+    format!(
+        "; at the last converged increment{fluids} the rubber had flowed {:.4} past the edge of extrusion gap `{}` (node {} at ({})), \
+         with the largest log strain {:.3} in element {} (reference position ({})): the seal is extruding into the gap. Narrow the \
+         gap, add a back-up ring or choose a harder compound",
+        e.depth,
+        e.name,
+        e.node,
+        xy(&e.at),
+        strain.value,
+        strain.element,
+        xy(&strain.at),
+    )
 }
 
 /// The stop when increment `r` takes the rubber past an extrusion gap's

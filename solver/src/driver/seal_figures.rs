@@ -187,3 +187,55 @@ pub fn extrusions(gaps: &[ExtrusionGap], mesh: &Mesh, x: &[Vector3<f64>], contac
         })
         .collect()
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::contact::surface::{filleted_polyline, Placement};
+    use olli_mesh::{ElementKind, Mesh};
+
+    fn placed(shape: Shape, t: [f64; 2]) -> RigidSurface {
+        RigidSurface { shape, placement: Placement::new(Vector3::new(t[0], t[1], 0.0), Vector3::z(), 0.0, Vector3::zeros()) }
+    }
+
+    /// A rectangular groove W × D with fillet radius r at its two bottom
+    /// corners, closed by a line at its top: W D − 2 (1 − π/4) r² (each
+    /// fillet removes a square r² less a quarter circle; hand geometry).
+    /// The groove moved by (1, 2) and the cover brought down to depth 0.9 D
+    /// change nothing but the depth.
+    #[test]
+    fn free_area_of_a_filleted_rectangular_groove() {
+        let (w, d, r) = (3.0, 1.5, 0.2);
+        let pieces = filleted_polyline(&[[0.0, d], [0.0, 0.0], [w, 0.0], [w, d]], r).unwrap();
+        let corner = 2.0 * (1.0 - std::f64::consts::FRAC_PI_4) * r * r;
+        for (shift, depth) in [([0.0, 0.0], d), ([1.0, 2.0], 0.9 * d)] {
+            let groove = placed(Shape::Profile(pieces.clone()), shift);
+            let cover = placed(Shape::Line { point: [0.0, depth + shift[1]], direction: [1.0, 0.0] }, [0.0, 0.0]);
+            let area = free_area(&pieces, &groove, &cover);
+            assert!((area - (w * depth - corner)).abs() < 1e-12, "{area} vs {}", w * depth - corner);
+            let (found, normal) = super::depth(&pieces, &groove, &cover).unwrap();
+            assert!((found - depth).abs() < 1e-12 && normal.y.abs() > 1.0 - 1e-12, "{found} {normal:?}");
+        }
+    }
+
+    /// A quad9 square 2 × 2 with its top edge's mid-side node lifted by h:
+    /// the edge is a parabola, and the area gains (2/3) · 2 · h (Archimedes'
+    /// quadrature of the parabola); a quad4 of the same corners is 4.
+    #[test]
+    fn section_area_is_exact_for_parabolic_sides() {
+        let h = 0.3;
+        let mut mesh = Mesh::new(2);
+        for p in [[0.0, 0.0], [2.0, 0.0], [2.0, 2.0], [0.0, 2.0], [1.0, 0.0], [2.0, 1.0], [1.0, 2.0 + h], [0.0, 1.0], [1.0, 1.0]] {
+            mesh.add_node([p[0], p[1], 0.0]);
+        }
+        mesh.add_element(ElementKind::Quad9, &[0, 1, 2, 3, 4, 5, 6, 7, 8]);
+        let x: Vec<Vector3<f64>> = mesh.nodes.iter().map(|&p| Vector3::from(p)).collect();
+        assert!((section_area(&mesh, &x) - (4.0 + 2.0 / 3.0 * 2.0 * h)).abs() < 1e-12);
+        let mut linear = Mesh::new(2);
+        for p in &mesh.nodes[..4] {
+            linear.add_node(*p);
+        }
+        linear.add_element(ElementKind::Quad4, &[0, 1, 2, 3]);
+        assert!((section_area(&linear, &x[..4]) - 4.0).abs() < 1e-12);
+    }
+}
