@@ -7,7 +7,6 @@ use std::f64::consts::PI;
 pub use crate::contact::active::{ContactFields, ContactSummary};
 use olli_mesh::Mesh;
 
-pub use crate::driver::seal_figures::{ExtrusionSummary, GlandSummary};
 use crate::element::PointState;
 use crate::error::SolveError;
 use crate::linear::LinearStats;
@@ -354,4 +353,36 @@ impl NodalFields {
             energy_density: nodal.iter().map(|v| v[9]).collect(),
         }
     }
+}
+
+/// Fill and squeeze of one gland at one increment.
+#[derive(Debug, Clone, PartialEq)]
+pub struct GlandSummary {
+    /// Name of the gland.
+    pub name: String,
+    /// Rubber section area over the gland's free area, in percent.
+    pub fill: f64,
+    /// (free height − gland depth) / free height, in percent (negative
+    /// while the gland is deeper than the rubber is high).
+    pub squeeze: f64,
+    /// Current section area of the rubber (length²).
+    pub rubber_area: f64,
+    /// Current free area of the gland (length²).
+    pub free_area: f64,
+    /// Current depth of the gland (length).
+    pub depth: f64,
+}
+
+/// The rubber's extrusion into one clearance gap at one increment.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ExtrusionSummary {
+    /// Name of the gap.
+    pub name: String,
+    /// Largest distance of a rubber node past the edge, along the direction
+    /// into the gap (length, ≥ 0).
+    pub depth: f64,
+    /// The node that reaches furthest (0-based mesh index).
+    pub node: usize,
+    /// Its current position.
+    pub at: [f64; 3],
 }

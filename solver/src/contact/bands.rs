@@ -58,9 +58,10 @@ pub fn bands(pair: &ContactPair, r: &PairResponse, pressures: &[f64], surface: &
         band_of[k] = band_of_root[root];
         members[band_of[k]].push(k);
     }
-    let widths = match pair.pieces().first().map(Vec::len) {
-        Some(2) if !pair.is_solid() => band_lengths(pair, r, members.len(), |k| band_of[k]),
-        _ => members.iter().map(|m| extent(m.iter().map(|&k| r.positions[k]))).collect(),
+    let widths = if pair.is_solid() {
+        members.iter().map(|m| extent(m.iter().map(|&k| r.positions[k]))).collect()
+    } else {
+        band_lengths(pair, r, members.len(), |k| band_of[k])
     };
     let mut out: Vec<ContactBand> = members
         .iter()

@@ -19,38 +19,7 @@ use olli_mesh::Mesh;
 use crate::contact::active::ActiveContacts;
 use crate::contact::surface::{Piece2, RigidSurface, Shape};
 use crate::model::{ExtrusionGap, Gland};
-
-/// Fill and squeeze of one gland at one increment.
-#[derive(Debug, Clone, PartialEq)]
-pub struct GlandSummary {
-    /// Name of the gland.
-    pub name: String,
-    /// Rubber section area over the gland's free area, in percent.
-    pub fill: f64,
-    /// (free height − gland depth) / free height, in percent (negative
-    /// while the gland is deeper than the rubber is high).
-    pub squeeze: f64,
-    /// Current section area of the rubber (length²).
-    pub rubber_area: f64,
-    /// Current free area of the gland (length²).
-    pub free_area: f64,
-    /// Current depth of the gland (length).
-    pub depth: f64,
-}
-
-/// The rubber's extrusion into one clearance gap at one increment.
-#[derive(Debug, Clone, PartialEq)]
-pub struct ExtrusionSummary {
-    /// Name of the gap.
-    pub name: String,
-    /// Largest distance of a rubber node past the edge, along the direction
-    /// into the gap (length, ≥ 0).
-    pub depth: f64,
-    /// The node that reaches furthest (0-based mesh index).
-    pub node: usize,
-    /// Its current position.
-    pub at: [f64; 3],
-}
+use crate::results::{ExtrusionSummary, GlandSummary};
 
 /// Figures of every gland of the model at displaced nodes `x`.
 pub fn glands(glands: &[Gland], mesh: &Mesh, x: &[Vector3<f64>], contacts: &ActiveContacts) -> Vec<GlandSummary> {
@@ -128,7 +97,8 @@ fn free_area(pieces: &[Piece2], groove: &RigidSurface, closing: &RigidSurface) -
 }
 
 /// Depth of the gland (largest distance of the profile from the closing
-/// surface) and the closing surface's unit normal at the point nearest the
+/// surface, over nine points of each piece: exact for the straight bottom of
+/// a groove) and the closing surface's unit normal at the point nearest the
 /// deepest one (global frame, for the rubber's reference extent).
 fn depth(pieces: &[Piece2], groove: &RigidSurface, closing: &RigidSurface) -> Option<(f64, Vector3<f64>)> {
     let mut best: Option<(f64, Vector3<f64>)> = None;
