@@ -6,6 +6,7 @@
 use super::discretization::Discretization;
 use super::dofs::{DofMap, NONE};
 use super::error::AssemblyError;
+use crate::element::taylor_hood::MAX_PRESSURE_NODES;
 use crate::element::MAX_DOFS;
 
 /// Marks an element matrix entry that is not stored (upper triangle or a prescribed dof).
@@ -26,6 +27,9 @@ pub struct Pattern {
     pub scatter_offset: Vec<usize>,
     /// Mesh node of each equation (for node-level orderings).
     pub eq_node: Vec<usize>,
+    /// Free pressure unknowns (continuous pressure): the negative pivots
+    /// a stable tangent has.
+    pub negative: usize,
 }
 
 impl Pattern {
@@ -36,16 +40,24 @@ impl Pattern {
         // Node adjacency, each list sorted: with node-major equation numbers
         // the rows of every column then come out sorted.
         let mut adj: Vec<Vec<usize>> = vec![Vec::new(); mesh.node_count()];
+        // The pressure unknowns each node's dofs couple with (Taylor–Hood
+        // elements only), sorted; they are numbered after every displacement.
+        let mut padj: Vec<Vec<usize>> = vec![Vec::new(); if disc.pressures.is_empty() { 0 } else { mesh.node_count() }];
         for e in 0..mesh.element_count() {
             let nodes = mesh.element_nodes(e);
             for &a in nodes {
                 adj[a].extend_from_slice(nodes);
             }
+            let np = disc.element_pressures(e);
+            for &a in nodes {
+                padj[a].extend(nodes[..np].iter().map(|&c| disc.pressures.of_node[c]));
+            }
         }
-        for list in &mut adj {
+        for list in adj.iter_mut().chain(padj.iter_mut()) {
             list.sort_unstable();
             list.dedup();
         }
+        let pressure_base = mesh.node_count() * dim;
         let n = dofs.n_free;
         let mut col_ptr = Vec::with_capacity(n + 1);
         col_ptr.push(0);
@@ -66,24 +78,35 @@ impl Pattern {
                         }
                     }
                 }
+                if let Some(pl) = padj.get(node) {
+                    row_idx.extend(pl.iter().map(|&k| dofs.eq[pressure_base + k]).filter(|&r| r != NONE));
+                }
                 col_ptr.push(row_idx.len());
             }
+        }
+        for (k, &node) in disc.pressures.node.iter().enumerate() {
+            let c = dofs.eq[pressure_base + k];
+            if c == NONE {
+                continue;
+            }
+            eq_node.push(node);
+            row_idx.extend(padj[node].iter().map(|&l| dofs.eq[pressure_base + l]).filter(|&r| r != NONE && r >= c));
+            col_ptr.push(row_idx.len());
         }
         if row_idx.len() >= SKIP as usize {
             return Err(AssemblyError::PatternTooLarge(row_idx.len()));
         }
         drop(adj);
+        drop(padj);
         let mut scatter_offset = Vec::with_capacity(mesh.element_count() + 1);
         scatter_offset.push(0);
         let mut scatter = Vec::new();
-        let mut gdof = [0usize; MAX_DOFS];
+        let mut gdof = [0usize; MAX_DOFS + MAX_PRESSURE_NODES];
+        let mut global = [0usize; MAX_DOFS + MAX_PRESSURE_NODES];
         for e in 0..mesh.element_count() {
-            let nodes = mesh.element_nodes(e);
-            let nd = nodes.len() * dim;
-            for (a, &node) in nodes.iter().enumerate() {
-                for i in 0..dim {
-                    gdof[a * dim + i] = dofs.eq[node * dim + i];
-                }
+            let nd = disc.element_dofs(e, &mut global);
+            for (g, &d) in gdof.iter_mut().zip(&global[..nd]) {
+                *g = dofs.eq[d];
             }
             for c in 0..nd {
                 for r in 0..nd {
@@ -98,7 +121,8 @@ impl Pattern {
             }
             scatter_offset.push(scatter.len());
         }
-        Ok(Pattern { n, col_ptr, row_idx, scatter, scatter_offset, eq_node })
+        let negative = (0..disc.pressures.count()).filter(|&k| dofs.eq[pressure_base + k] != NONE).count();
+        Ok(Pattern { n, col_ptr, row_idx, scatter, scatter_offset, eq_node, negative })
     }
 
     /// Storage slot of entry (row, col) with row ≥ col, if in the pattern.

@@ -86,7 +86,7 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
         return Err(free.into());
     }
     let mut run = RunState {
-        u: vec![0.0; model.mesh.node_count() * disc.dim],
+        u: vec![0.0; disc.dof_count()],
         mixed: Vec::new(),
         history: PointHistories::new(&disc),
         time: 0.0,
@@ -382,7 +382,7 @@ impl RunState {
 
 /// The sparsity the linear solver analyses, borrowed from the assembly pattern.
 fn linear_pattern(p: &Pattern) -> SymmetricPattern<'_> {
-    SymmetricPattern { n: p.n, col_ptr: &p.col_ptr, row_idx: &p.row_idx, eq_node: &p.eq_node }
+    SymmetricPattern { n: p.n, col_ptr: &p.col_ptr, row_idx: &p.row_idx, eq_node: &p.eq_node, negative: p.negative }
 }
 
 fn add_linear_stats(total: &mut LinearStats, s: &LinearStats) {
