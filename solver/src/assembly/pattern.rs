@@ -49,8 +49,10 @@ impl Pattern {
                 adj[a].extend_from_slice(nodes);
             }
             let np = disc.element_pressures(e);
-            for &a in nodes {
-                padj[a].extend(nodes[..np].iter().map(|&c| disc.pressures.of_node[c]));
+            if np > 0 {
+                for &a in nodes {
+                    padj[a].extend(nodes[..np].iter().map(|&c| disc.pressures.of_node[c]));
+                }
             }
         }
         for list in adj.iter_mut().chain(padj.iter_mut()) {
