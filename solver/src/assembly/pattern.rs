@@ -38,68 +38,60 @@ impl Pattern {
         let mesh = disc.mesh();
         let dim = dofs.dim;
         // Node adjacency, each list sorted: with node-major equation numbers
-        // the rows of every column then come out sorted.
+        // (a node's pressure unknown, if any, after its displacements; see
+        // `DofMap::with_pressures`) the rows of every column come out sorted.
+        // A pressure couples with every node beside its own (a superset of
+        // its Taylor–Hood elements' nodes where kinds are mixed: zeros).
         let mut adj: Vec<Vec<usize>> = vec![Vec::new(); mesh.node_count()];
-        // The pressure unknowns each node's dofs couple with (Taylor–Hood
-        // elements only), sorted; they are numbered after every displacement.
-        let mut padj: Vec<Vec<usize>> = vec![Vec::new(); if disc.pressures.is_empty() { 0 } else { mesh.node_count() }];
         for e in 0..mesh.element_count() {
             let nodes = mesh.element_nodes(e);
             for &a in nodes {
                 adj[a].extend_from_slice(nodes);
             }
-            let np = disc.element_pressures(e);
-            if np > 0 {
-                for &a in nodes {
-                    padj[a].extend(nodes[..np].iter().map(|&c| disc.pressures.of_node[c]));
-                }
-            }
         }
-        for list in adj.iter_mut().chain(padj.iter_mut()) {
+        for list in adj.iter_mut() {
             list.sort_unstable();
             list.dedup();
         }
         let pressure_base = mesh.node_count() * dim;
+        let pressure_eq = |node: usize| match disc.pressures.of_node.get(node) {
+            Some(&k) if k != NONE => dofs.eq[pressure_base + k],
+            _ => NONE,
+        };
         let n = dofs.n_free;
-        let mut col_ptr = Vec::with_capacity(n + 1);
-        col_ptr.push(0);
+        let mut col_ptr = vec![0; n + 1];
         let mut row_idx = Vec::new();
-        let mut eq_node = Vec::with_capacity(n);
-        for (node, list) in adj.iter().enumerate() {
-            for i in 0..dim {
-                let c = dofs.eq[node * dim + i];
-                if c == NONE {
-                    continue;
-                }
-                eq_node.push(node);
-                for &m in list {
-                    for j in 0..dim {
-                        let r = dofs.eq[m * dim + j];
-                        if r != NONE && r >= c {
-                            row_idx.push(r);
-                        }
+        let mut eq_node = vec![0; n];
+        let column = |c: usize, node: usize, row_idx: &mut Vec<usize>| {
+            for &m in &adj[node] {
+                for j in 0..dim {
+                    let r = dofs.eq[m * dim + j];
+                    if r != NONE && r >= c {
+                        row_idx.push(r);
                     }
                 }
-                if let Some(pl) = padj.get(node) {
-                    row_idx.extend(pl.iter().map(|&k| dofs.eq[pressure_base + k]).filter(|&r| r != NONE));
+                let r = pressure_eq(m);
+                if r != NONE && r >= c {
+                    row_idx.push(r);
                 }
-                col_ptr.push(row_idx.len());
             }
-        }
-        for (k, &node) in disc.pressures.node.iter().enumerate() {
-            let c = dofs.eq[pressure_base + k];
-            if c == NONE {
-                continue;
+        };
+        // Columns in equation order (node-major).
+        let mut next = 0;
+        for node in 0..mesh.node_count() {
+            let own = (0..dim).map(|i| dofs.eq[node * dim + i]).chain(std::iter::once(pressure_eq(node)));
+            for c in own.filter(|&c| c != NONE) {
+                debug_assert_eq!(c, next, "equations are node-major");
+                eq_node[c] = node;
+                column(c, node, &mut row_idx);
+                col_ptr[c + 1] = row_idx.len();
+                next += 1;
             }
-            eq_node.push(node);
-            row_idx.extend(padj[node].iter().map(|&l| dofs.eq[pressure_base + l]).filter(|&r| r != NONE && r >= c));
-            col_ptr.push(row_idx.len());
         }
         if row_idx.len() >= SKIP as usize {
             return Err(AssemblyError::PatternTooLarge(row_idx.len()));
         }
         drop(adj);
-        drop(padj);
         let mut scatter_offset = Vec::with_capacity(mesh.element_count() + 1);
         scatter_offset.push(0);
         let mut scatter = Vec::new();
@@ -123,7 +115,7 @@ impl Pattern {
             }
             scatter_offset.push(scatter.len());
         }
-        let negative = (0..disc.pressures.count()).filter(|&k| dofs.eq[pressure_base + k] != NONE).count();
+        let negative = (0..disc.pressures.count()).filter(|&k| dofs.eq.get(pressure_base + k).is_some_and(|&q| q != NONE)).count();
         Ok(Pattern { n, col_ptr, row_idx, scatter, scatter_offset, eq_node, negative })
     }
 

@@ -119,7 +119,7 @@ fn equations_for<'r>(
             add_linear_stats(&mut stats.linear, old.linear.stats());
         }
         let t = Instant::now();
-        let dofs = DofMap::new(disc.dim, &prog.prescribed);
+        let dofs = DofMap::with_pressures(disc.dim, &prog.prescribed, &disc.pressures.of_node);
         let pattern = Pattern::build(disc, &dofs)?;
         stats.pattern_time += t.elapsed().as_secs_f64();
         let linear = linear::analyse(&linear_pattern(&pattern), &disc.model.linear)?;

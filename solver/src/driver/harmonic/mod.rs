@@ -213,7 +213,7 @@ pub fn run(disc: &Discretization, si: usize, prog: &StageProgram, preload: Prelo
         return Err(harmonic_error(stage, format!("frequencies must be positive, got {f}")));
     }
     let drive = Drive::new(disc, si, &prog.prescribed)?;
-    let dofs = DofMap::new(disc.dim, &drive.prescribed);
+    let dofs = DofMap::with_pressures(disc.dim, &drive.prescribed, &disc.pressures.of_node);
     let pattern = Pattern::build(disc, &dofs)?;
     let mut block = BlockSystem::new(&pattern, &model.linear)?;
     let ndof = preload.u.len();
