@@ -84,6 +84,12 @@ pub struct IncrementResult {
     pub history: Option<HistoryValues>,
     /// Node displacements (2-D: third entry zero).
     pub displacement: Vec<[f64; 3]>,
+    /// The solution's unknowns after the displacements: the continuous
+    /// (Taylor–Hood) pressure of tet10 elements at their corner nodes, as
+    /// carried (p = s π, s = `Discretization::pressures.scale`), in the
+    /// order of `Discretization::pressures.node`; empty without them.
+    /// [`Self::solution_vector`] puts both back together.
+    pub pressure_unknowns: Vec<f64>,
     /// Reaction force summed over each named set (the sum of
     /// [`Self::nodal_reactions`] over its nodes); axisymmetric: over the full 2π.
     pub reactions: BTreeMap<String, [f64; 3]>,
@@ -191,6 +197,16 @@ pub fn von_mises(s: &nalgebra::Matrix3<f64>) -> f64 {
 }
 
 impl IncrementResult {
+    /// The global solution vector of the increment for a model whose nodes
+    /// have `dim` displacement components: every node's displacements,
+    /// then the pressure unknowns (what `Discretization::gather` and
+    /// `Discretization::gather_pressures` read).
+    pub fn solution_vector(&self, dim: usize) -> Vec<f64> {
+        let mut u: Vec<f64> = self.displacement.iter().flat_map(|d| d[..dim].to_vec()).collect();
+        u.extend_from_slice(&self.pressure_unknowns);
+        u
+    }
+
     /// Reaction on a set per radian of revolution (axisymmetric), else the reaction itself.
     pub fn reaction_per_radian(&self, set: &str) -> Option<[f64; 3]> {
         let r = *self.reactions.get(set)?;

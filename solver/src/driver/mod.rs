@@ -87,7 +87,7 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
         return Err(free.into());
     }
     let mut run = RunState {
-        u: vec![0.0; model.mesh.node_count() * disc.dim],
+        u: vec![0.0; disc.dof_count()],
         mixed: Vec::new(),
         history: PointHistories::new(&disc),
         time: 0.0,
@@ -120,7 +120,7 @@ fn equations_for<'r>(
             add_linear_stats(&mut stats.linear, old.linear.stats());
         }
         let t = Instant::now();
-        let dofs = DofMap::new(disc.dim, &prog.prescribed);
+        let dofs = DofMap::with_pressures(disc.dim, &prog.prescribed, &disc.pressures.of_node);
         let pattern = Pattern::build(disc, &dofs)?;
         stats.pattern_time += t.elapsed().as_secs_f64();
         let linear = linear::analyse(&linear_pattern(&pattern), &disc.model.linear)?;
@@ -451,7 +451,7 @@ impl RunState {
 
 /// The sparsity the linear solver analyses, borrowed from the assembly pattern.
 fn linear_pattern(p: &Pattern) -> SymmetricPattern<'_> {
-    SymmetricPattern { n: p.n, col_ptr: &p.col_ptr, row_idx: &p.row_idx, eq_node: &p.eq_node }
+    SymmetricPattern { n: p.n, col_ptr: &p.col_ptr, row_idx: &p.row_idx, eq_node: &p.eq_node, negative: p.negative }
 }
 
 fn add_linear_stats(total: &mut LinearStats, s: &LinearStats) {

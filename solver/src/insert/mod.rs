@@ -177,7 +177,7 @@ impl Inserts {
                 applied: [0.0; 6],
             });
         }
-        Ok(Inserts { bodies, dim, ndof: mesh.node_count() * dim })
+        Ok(Inserts { bodies, dim, ndof: disc.dof_count() })
     }
 
     /// Whether the model has no insert.

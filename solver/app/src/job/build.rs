@@ -452,6 +452,7 @@ impl Builder<'_> {
             let formulation = match spec.formulation {
                 FormulationKind::Mixed => Formulation::Mixed,
                 FormulationKind::Displacement => Formulation::Displacement,
+                FormulationKind::ElementPressure => Formulation::ElementPressure,
             };
             mat.used_by.push(set.clone());
             mat.formulations.push(formulation);

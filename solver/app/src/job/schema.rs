@@ -212,7 +212,9 @@ pub struct RegionSpec {
     pub elements: Spanned<String>,
     /// Name of a table under `[materials]`.
     pub material: Spanned<String>,
-    /// `"mixed"` (u–p, default: no volumetric locking) or `"displacement"`.
+    /// `"mixed"` (u–p, default: no volumetric locking), `"element-pressure"`
+    /// (u–p with the pressure condensed per element, tet10 as P2/P0) or
+    /// `"displacement"`.
     #[serde(default)]
     pub formulation: FormulationKind,
 }
@@ -221,11 +223,14 @@ pub struct RegionSpec {
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq, Deserialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum FormulationKind {
-    /// Displacement with a pressure per element (default; for nearly incompressible rubber).
+    /// Displacement with the element's own pressure (default; for nearly incompressible rubber): per element, continuous for tet10.
     #[default]
     Mixed,
     /// Displacement only (locks when the material is nearly incompressible).
     Displacement,
+    /// Mixed with the pressure condensed in every element (tet10 as P2/P0
+    /// instead of its continuous Taylor–Hood pressure).
+    ElementPressure,
 }
 
 /// Components held at zero for the whole run.

@@ -227,7 +227,7 @@ impl<'m> ResultWriter<'m> {
     fn write_frame(&mut self, r: &IncrementResult) -> io::Result<()> {
         let (stage, increment, load_factor) = (r.stage, r.increment, r.load_factor);
         let dim = self.disc.dim;
-        let u: Vec<f64> = r.displacement.iter().flat_map(|x| x[..dim].to_vec()).collect();
+        let u = r.solution_vector(dim);
         let mut f = frame(&self.disc, &u, &r.nodal_reactions, r.history.as_ref(), &self.job.output.fields).map_err(io::Error::other)?;
         if let Some(c) = r.contact_fields.as_ref().filter(|_| self.job.output.fields.iter().any(|w| w == "contact")) {
             f.point.push(Field::new("contact_pressure", 1, c.pressure.clone()));

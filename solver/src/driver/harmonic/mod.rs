@@ -376,7 +376,7 @@ pub fn run(disc: &Discretization, si: usize, prog: &StageProgram, preload: Prelo
     }
     let bodies = preload.inserts;
     let drive = Drive::new(disc, si, &prog.prescribed, bodies)?;
-    let dofs = DofMap::new(disc.dim, &drive.prescribed);
+    let dofs = DofMap::with_pressures(disc.dim, &drive.prescribed, &disc.pressures.of_node);
     let pattern = Pattern::build(disc, &dofs)?;
     let mut block = BlockSystem::new(&pattern, &model.linear)?;
     let ndof = preload.u.len();
