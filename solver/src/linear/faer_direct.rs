@@ -504,6 +504,9 @@ mod tests {
                 assert_eq!(f.kind, FactorKind::Ldlt, "{ordering:?}");
                 assert_eq!(f.negative_pivots, Some(m - 1), "{ordering:?}");
                 assert!(!f.fallback && residual < 1e-8, "{ordering:?}: {f:?} {residual:e}");
+                assert_eq!(f.check_inertia(m - 1), Ok(()));
+                // Fewer negative pivots than pressures: the step is refused.
+                assert_eq!(f.check_inertia(m + 1), Err(LinearError::Inertia { expected: m + 1, found: m - 1 }));
             }
             let (n, a) = saddle(m, 1e4, -2.2);
             let expected = negative_eigenvalues(n, &a);
@@ -513,6 +516,8 @@ mod tests {
                 assert_eq!(f.negative_pivots, Some(expected));
             }
             assert!(f.fallback, "{f:?}");
+            // More negative pivots (lost stability) is reported, not refused.
+            assert_eq!(f.check_inertia(m - 1), Ok(()));
         }
     }
 }
