@@ -27,7 +27,19 @@ fn every_example_checks_and_has_a_note_and_a_test() {
     names.sort();
     assert_eq!(
         names,
-        ["bush", "bush-3d", "mount", "mount-dynamic", "oring", "piston-seal", "radial-seal", "seal", "seal-relaxation", "seal-tri6", "spring-tet10"]
+        [
+            "bush",
+            "bush-3d",
+            "mount",
+            "mount-dynamic",
+            "oring",
+            "piston-seal",
+            "radial-seal",
+            "seal",
+            "seal-relaxation",
+            "seal-tri6",
+            "spring-tet10"
+        ]
     );
 }
 

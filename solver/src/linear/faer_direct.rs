@@ -188,7 +188,10 @@ impl FaerDirect {
                     Default::default(),
                 );
                 if ldlt.is_ok() && self.l_values.iter().all(|v| v.is_finite()) {
-                    self.stats.ldlt_fallbacks += 1;
+                    // An indefinite (pressure) system uses LDLᵀ by design, not as a fallback.
+                    if self.expected_negative == 0 {
+                        self.stats.ldlt_fallbacks += 1;
+                    }
                     self.negative_pivots = Some(negative_pivots(&self.symbolic, &self.l_values));
                     FactorKind::Ldlt
                 } else {

@@ -191,7 +191,8 @@ pub struct LinearStats {
     pub numeric_count: usize,
     /// Factorizations that fell back to LU.
     pub lu_fallbacks: usize,
-    /// Factorizations that fell back to LDLᵀ.
+    /// Factorizations that fell back to LDLᵀ (a system with pressure
+    /// unknowns uses LDLᵀ by design and is not counted).
     pub ldlt_fallbacks: usize,
     /// LU factorizations of non-symmetric (frictional) tangents.
     pub lu_nonsymmetric: usize,
