@@ -12,6 +12,7 @@ use nalgebra::Matrix3;
 use olli_mesh::ElementKind;
 use olli_solver::assembly::Discretization;
 use olli_solver::driver::{Event, Observer};
+use olli_solver::model::Control;
 use olli_solver::*;
 use olli_verification::*;
 
@@ -198,4 +199,48 @@ fn newton_quadratic_tet10_taylor_hood_large_strain_block() {
     }
     assert!(checked >= 1, "no iteration in the asymptotic range: {h:?}");
     assert!(*h.last().unwrap() < 1e-11);
+}
+
+/// A stage driven by arc length (Crisfield 1981, "A fast incremental/
+/// iterative solution procedure that handles snap-through", Computers &
+/// Structures 13:55–62) on a mesh whose pressures are global unknowns,
+/// pressed and sheared by a dead force on its top:
+/// the constraint measures displacements only, the pressures follow. On a
+/// path with no limit point the state reached at load factor 1 is the
+/// equilibrium state under the full load, whatever the path control, so it
+/// must equal the load-controlled run's: displacements and corner
+/// pressures to the Newton tolerance (1e-6 of their largest value).
+#[test]
+fn arc_length_tet10_taylor_hood_reaches_the_load_controlled_state() {
+    let run = |control: Control| {
+        let mesh = generated_block(ElementKind::Tet10, [2, 2, 1], curved);
+        let mut model = Model::single_region(mesh, Analysis::Solid3d, neo_hookean(MU, 100.0 * MU), Formulation::Mixed);
+        model.stages.push(Stage {
+            name: "press".into(),
+            control,
+            controls: IncrementControls { first: 0.2, max: 0.2, force_tolerance: 1e-10, ..Default::default() },
+            supports: vec![support("bottom", [true, true, true])],
+            forces: vec![Force { set: "top".into(), total: [0.05 * MU, 0.0, -0.4 * MU] }],
+            ..Default::default()
+        });
+        let mut watch = Watch::default();
+        let sol = solve(&model, &mut watch).unwrap();
+        assert!(sol.completed(), "{control:?}: {:?}", sol.termination);
+        let most = sol.increments.iter().map(|i| i.newton_iterations).max().unwrap();
+        assert!(most <= 5, "{control:?}: an increment took {most} Newton iterations");
+        assert_eq!(watch.fallbacks, 0, "{control:?}: every tangent had the expected inertia");
+        let last = sol.last().unwrap();
+        assert!((last.load_factor - 1.0).abs() < 1e-12, "{control:?}: load factor {}", last.load_factor);
+        (last.displacement.clone(), last.pressure_unknowns.clone(), sol.increments.len())
+    };
+    let (u_load, p_load, _) = run(Control::Load);
+    let (u_arc, p_arc, n_arc) = run(Control::ArcLength { max_increments: 40 });
+    assert!(n_arc >= 3, "the arc-length stage took {n_arc} increments");
+    let u_max = u_load.iter().flatten().fold(0.0f64, |m, v| m.max(v.abs()));
+    let p_max = p_load.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+    assert!(u_max > 0.05 && p_max > 0.0 && p_load.len() == p_arc.len());
+    let du = u_load.iter().flatten().zip(u_arc.iter().flatten()).fold(0.0f64, |m, (a, b)| m.max((a - b).abs()));
+    let dp = p_load.iter().zip(&p_arc).fold(0.0f64, |m, (a, b)| m.max((a - b).abs()));
+    assert!(du < 1e-6 * u_max, "displacements differ by {du:e} (largest {u_max:e})");
+    assert!(dp < 1e-6 * p_max, "pressures differ by {dp:e} (largest {p_max:e})");
 }
