@@ -93,3 +93,45 @@ impl GlobalSystem<'_> {
         }
     }
 }
+
+/// Relative size below which a slot's summed skew entries count as
+/// cancelled: the sides of a closed surface give skew parts that sum to
+/// round-off, which must not force the non-symmetric factorization.
+pub const SKEW_CANCELLED: f64 = 1e-9;
+
+/// Sums the skew entries of each slot and drops the slots whose sum is
+/// below [`SKEW_CANCELLED`] times the largest entry that went into it.
+pub fn consolidate_skew(skew: &mut Vec<(usize, f64)>) {
+    if skew.is_empty() {
+        return;
+    }
+    skew.sort_unstable_by_key(|e| e.0);
+    let mut out = 0;
+    let mut i = 0;
+    while i < skew.len() {
+        let slot = skew[i].0;
+        let (mut sum, mut largest) = (0.0, 0.0f64);
+        while i < skew.len() && skew[i].0 == slot {
+            sum += skew[i].1;
+            largest = largest.max(skew[i].1.abs());
+            i += 1;
+        }
+        if sum.abs() > SKEW_CANCELLED * largest {
+            skew[out] = (slot, sum);
+            out += 1;
+        }
+    }
+    skew.truncate(out);
+}
+
+#[cfg(test)]
+mod skew_tests {
+    use super::consolidate_skew;
+
+    #[test]
+    fn cancelled_slots_are_dropped_and_the_rest_summed() {
+        let mut skew = vec![(4, 1.0), (2, 0.5), (4, -1.0 + 1e-13), (2, 0.25), (7, -3.0)];
+        consolidate_skew(&mut skew);
+        assert_eq!(skew, vec![(2, 0.75), (7, -3.0)]);
+    }
+}

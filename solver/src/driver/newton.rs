@@ -30,7 +30,7 @@ use super::stabilization::add_springs;
 use super::stages::{arc_position, StageProgram, HOLD_AT_START, NO_ARC};
 use crate::assembly::assembler::Outputs;
 use crate::assembly::dofs::NONE;
-use crate::assembly::global::GlobalSystem;
+use crate::assembly::global::{consolidate_skew, GlobalSystem};
 use crate::assembly::{Assembler, Discretization, DofMap, MixedUnknowns, Pattern, PointHistories};
 use crate::contact::active::{ActiveContacts, MAX_AUGMENTATIONS};
 use crate::element::MixedState;
@@ -399,6 +399,7 @@ impl<'a> NewtonContext<'a> {
         }
         // Stabilization springs to the last converged state (free dofs only).
         add_springs(&self.stabilization, u, &self.last_converged, &mut system);
+        consolidate_skew(&mut self.skew);
         let mut finite = true;
         for d in 0..self.residual.len() {
             let r = self.f_int[d] - self.f_ext[d];
@@ -674,11 +675,12 @@ impl<'a> NewtonContext<'a> {
         // not so with friction (it dissipates) or an indefinite tangent, so
         // then only full steps are taken (still halved when an element
         // would invert). A fluid's follower load is not conservative
-        // either, but its skew part is small next to the rubber's
-        // stiffness, so its direction still descends.
+        // either (nor a follower pressure on a surface with a free edge),
+        // but its skew part is small next to the rubber's stiffness, so
+        // its direction still descends.
         // Insert unknowns make the system unsymmetric: full steps too.
-        let nonconservative_fluid =
-            factorization.kind == FactorKind::LuNonsymmetric && self.fluids.is_some() && !self.contacts.has_friction();
+        let follower_load = self.fluids.is_some() || !self.prog.pressures.is_empty();
+        let nonconservative_fluid = factorization.kind == FactorKind::LuNonsymmetric && follower_load && !self.contacts.has_friction();
         let line_search = self.controls.line_search
             && !self.contacts.has_friction()
             && (factorization.positive_definite || nonconservative_fluid)

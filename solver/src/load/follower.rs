@@ -1,8 +1,11 @@
 //! Follower pressure on a set of element sides, added to a Newton
 //! evaluation's global system: the force of every side
-//! ([`super::pressure::pressure_side_into`]) and the symmetric part of its
-//! load stiffness (the tangent is `K_int − ∂f_ext/∂u`; the skew part is
-//! dropped so the Cholesky path applies, exact for closed or held surfaces).
+//! ([`super::pressure::pressure_side_into`]) and its full load stiffness
+//! (the tangent is `K_int − ∂f_ext/∂u`). The skew part goes to the skew
+//! entries: on a surface whose edge is free (a pressed top face) it keeps
+//! Newton quadratic; on a closed or edge-held surface the sides' skew parts
+//! cancel ([`crate::assembly::global::consolidate_skew`] drops them) and the
+//! symmetric (Cholesky) path applies.
 
 use olli_mesh::{Mesh, Side};
 
@@ -42,7 +45,7 @@ pub fn add_pressure(mesh: &Mesh, analysis: Analysis, sides: &[Side], p: f64, u: 
         if want_k {
             // The tangent holds −∂f/∂u.
             ks[..nd * nd].iter_mut().for_each(|v| *v = -*v);
-            system.add_stiffness(&gdofs[..nd], &ks[..nd * nd], false);
+            system.add_stiffness(&gdofs[..nd], &ks[..nd * nd], true);
         }
     }
 }
