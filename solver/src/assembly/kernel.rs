@@ -5,12 +5,14 @@
 //! at the element's dilatation); the element integrates the answers
 //! ([`integrate_into`], [`point_states_into`]).
 
+use std::cell::RefCell;
+
 use thiserror::Error;
 
 use super::history::ElementHistory;
 use crate::element::pressure_space::PressureSpace;
 use crate::element::{
-    integrate_into, kinematics, point_states_into, Analysis, ElementError, ElementKinematics, Formulation, MixedState, PointResponse,
+    integrate_into, kinematics_into, point_states_into, Analysis, ElementError, ElementKinematics, Formulation, MixedState, PointResponse,
     PointState, Shape, VolumetricResponse, MAX_POINTS,
 };
 use crate::material::{Material, MaterialError, PointHistory};
@@ -123,6 +125,16 @@ fn responses(
     Ok(())
 }
 
+thread_local! {
+    /// Each thread's [`MaterialAt`] buffer, reused element after element.
+    static SCRATCH: RefCell<Box<MaterialAt>> = RefCell::new(Box::new(MaterialAt::blank()));
+}
+
+/// Runs `f` with this thread's element buffer.
+fn with_scratch<R>(f: impl FnOnce(&mut MaterialAt) -> R) -> R {
+    SCRATCH.with(|s| f(&mut s.borrow_mut()))
+}
+
 /// One element's kinematics with the material evaluated at its points.
 struct MaterialAt {
     kinematics: ElementKinematics,
@@ -134,26 +146,33 @@ struct MaterialAt {
 }
 
 impl MaterialAt {
+    fn blank() -> Self {
+        MaterialAt {
+            kinematics: ElementKinematics::blank(),
+            volumetric: [VolumetricResponse::default(); MAX_POINTS],
+            volumetric_count: 0,
+            responses: [PointResponse::default(); MAX_POINTS],
+        }
+    }
+
+    /// Fills `self` for one element, in place (no copy of the buffers,
+    /// which are sized for the largest element).
     fn evaluate(
+        &mut self,
         ctx: &ElementContext,
         x: &[[f64; 3]],
         u: &[[f64; 3]],
         state: Option<&MixedState>,
         history: Option<&mut ElementHistory>,
-    ) -> Result<Self, KernelError> {
-        let kinematics = kinematics(ctx.shape, ctx.analysis, x, u)?;
+    ) -> Result<(), KernelError> {
+        kinematics_into(ctx.shape, ctx.analysis, x, u, &mut self.kinematics)?;
         let mixed = ctx.formulation == Formulation::Mixed;
-        let mut out = MaterialAt {
-            kinematics,
-            volumetric: [VolumetricResponse::default(); MAX_POINTS],
-            volumetric_count: 0,
-            responses: [PointResponse::default(); MAX_POINTS],
-        };
+        self.volumetric_count = 0;
         if mixed {
-            out.volumetric_count = volumetric(ctx.material, &out.kinematics, state, &mut out.volumetric)?;
+            self.volumetric_count = volumetric(ctx.material, &self.kinematics, state, &mut self.volumetric)?;
         }
-        responses(ctx.material, mixed, &out.kinematics, history, &mut out.responses)?;
-        Ok(out)
+        let points = self.kinematics.points().len();
+        responses(ctx.material, mixed, &self.kinematics, history, &mut self.responses[..points])
     }
 
     fn volumetric(&self) -> &[VolumetricResponse] {
@@ -230,9 +249,11 @@ pub(crate) fn element_through(
     state: Option<&mut MixedState>,
     history: Option<&mut ElementHistory>,
 ) -> Result<f64, KernelError> {
-    let at = MaterialAt::evaluate(ctx, x, u, state.as_deref(), history)?;
-    let state = if at.volumetric_count > 0 { state } else { None };
-    Ok(integration(&at.kinematics, at.responses(), at.volumetric(), force, stiffness, state)?)
+    with_scratch(|at| {
+        at.evaluate(ctx, x, u, state.as_deref(), history)?;
+        let state = if at.volumetric_count > 0 { state } else { None };
+        Ok(integration(&at.kinematics, at.responses(), at.volumetric(), force, stiffness, state)?)
+    })
 }
 
 /// Per-point results of one element into `out` (length ≥ `shape.points()`).
@@ -257,7 +278,9 @@ pub fn point_states_with_history(
         time_step: 0.0,
         tangent: Default::default(),
     });
-    let at = MaterialAt::evaluate(ctx, x, u, None, history.as_mut())?;
-    point_states_into(&at.kinematics, at.responses(), at.volumetric(), out)?;
-    Ok(())
+    with_scratch(|at| {
+        at.evaluate(ctx, x, u, None, history.as_mut())?;
+        point_states_into(&at.kinematics, at.responses(), at.volumetric(), out)?;
+        Ok(())
+    })
 }

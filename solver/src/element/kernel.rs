@@ -12,7 +12,7 @@ use nalgebra::{Matrix3, SMatrix, SVector};
 
 use nalgebra::Vector4;
 
-use super::geometry::{point_geometry, PointGeometry};
+use super::geometry::{point_geometry_into, PointGeometry};
 use super::pressure_space::{Gram, PressureBasis, PressureSpace, MAX_PRESSURES};
 use super::{Analysis, ElementError, Shape};
 
@@ -288,20 +288,54 @@ impl LinearPressure {
 /// positions `x` and displacements `u` (three entries per node, the third
 /// ignored in 2-D). Fails on a bad reference element or an inverted point.
 pub fn kinematics(shape: Shape, analysis: Analysis, x: &[[f64; 3]], u: &[[f64; 3]]) -> Result<ElementKinematics, ElementError> {
+    let mut out = ElementKinematics::blank();
+    kinematics_into(shape, analysis, x, u, &mut out)?;
+    Ok(out)
+}
+
+impl ElementKinematics {
+    /// An element of no points, to be filled by [`kinematics_into`].
+    pub fn blank() -> Self {
+        ElementKinematics {
+            shape: Shape::Hex8,
+            analysis: Analysis::Solid3d,
+            points: [PointKinematics::default(); MAX_POINTS],
+            basis: PressureBasis::new(PressureSpace::Constant, 3, &[]),
+            volume: 0.0,
+            deformed_volume: 0.0,
+        }
+    }
+}
+
+/// [`kinematics`] written in place: only the element's own points and nodes
+/// are written, so one buffer, sized for the largest element, serves every
+/// element of an assembly without being copied or cleared (what made the
+/// per-element cost of small meshes).
+pub fn kinematics_into(
+    shape: Shape,
+    analysis: Analysis,
+    x: &[[f64; 3]],
+    u: &[[f64; 3]],
+    out: &mut ElementKinematics,
+) -> Result<(), ElementError> {
     let axisymmetric = analysis == Analysis::Axisymmetric;
     let dim = shape.dimension();
     if dim < 2 {
         return Err(ElementError::NotAnElement { shape: shape.name() });
     }
     let nodes = shape.nodes();
-    let basis = PressureBasis::new(PressureSpace::of_shape(shape), dim, &x[..nodes]);
-    let mut out =
-        ElementKinematics { shape, analysis, points: [PointKinematics::default(); MAX_POINTS], basis, volume: 0.0, deformed_volume: 0.0 };
+    out.shape = shape;
+    out.analysis = analysis;
+    out.basis = PressureBasis::new(PressureSpace::of_shape(shape), dim, &x[..nodes]);
+    out.volume = 0.0;
+    out.deformed_volume = 0.0;
     for q in 0..shape.points() {
-        let geo = point_geometry(shape, analysis, x, q)?;
+        let point = &mut out.points[q];
+        let geo = &mut point.geo;
+        point_geometry_into(shape, analysis, x, q, geo)?;
         // F = I + B u, written out over the sparse B (see `BOp`).
         let mut f = Matrix3::<f64>::zeros();
-        for a in 0..shape.nodes() {
+        for a in 0..nodes {
             for i in 0..dim {
                 for jj in 0..3 {
                     f[(i, jj)] += u[a][i] * geo.g[a][jj];
@@ -318,10 +352,11 @@ pub fn kinematics(shape: Shape, analysis: Analysis, x: &[[f64; 3]], u: &[[f64; 3
         }
         out.volume += geo.dv;
         out.deformed_volume += j * geo.dv;
-        let position = std::array::from_fn(|c| (0..nodes).map(|a| geo.n[a] * x[a][c]).sum());
-        out.points[q] = PointKinematics { geo, f, j, position };
+        point.position = std::array::from_fn(|c| (0..nodes).map(|a| geo.n[a] * x[a][c]).sum());
+        point.f = f;
+        point.j = j;
     }
-    Ok(out)
+    Ok(())
 }
 
 /// Element pressure and dilatation carried as Newton unknowns of the
