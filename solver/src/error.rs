@@ -71,7 +71,7 @@ pub enum SolveError {
         relative: f64,
     },
     /// Cut-backs reached the smallest increment: the run stops here.
-    #[error("stage `{stage}`: increment {step:.3e} fell below the minimum {min:.3e} at load factor {load_factor:.4} ({reason})")]
+    #[error("stage `{stage}`: increment {step:.3e} fell below the minimum {min:.3e} at load factor {load_factor:.4} ({reason}){context}")]
     IncrementTooSmall {
         /// Name of the stage.
         stage: String,
@@ -83,7 +83,15 @@ pub enum SolveError {
         min: f64,
         /// Why the last attempt failed.
         reason: String,
+        /// What the last converged increment shows about the stop, as a
+        /// sentence starting with `; ` (the rubber flowing into an
+        /// extrusion gap), or empty.
+        context: String,
     },
+    /// The rubber passed an extrusion gap's `max_depth`: the run stops after
+    /// that increment, keeping it and every one before.
+    #[error("{0}")]
+    Extruded(Box<ExtrusionStop>),
     /// A stage driven by loads stopped at a limit load (the part cannot carry more).
     #[error(
         "stage `{stage}`: the load cannot be increased past {load} at load factor {load_factor:.4}: a limit point \
@@ -268,4 +276,33 @@ impl From<ContactError> for SolveError {
     fn from(e: ContactError) -> Self {
         SolveError::BadContact { body: e.body, reason: e.reason }
     }
+}
+
+/// Where and how far the rubber passed an extrusion gap's `max_depth`
+/// ([`SolveError::Extruded`]).
+#[derive(Debug, Clone, PartialEq, Error)]
+#[error(
+    "stage `{stage}` increment {increment} (load factor {load_factor:.4}{loads}): the rubber reaches {depth:.4} past the \
+     edge of extrusion gap `{gap}` (node {node} at {at}), beyond its max_depth {limit}: the seal extrudes into the \
+     clearance gap there. Narrow the gap, add a back-up ring or choose a harder compound; every converged increment is kept"
+)]
+pub struct ExtrusionStop {
+    /// Name of the stage.
+    pub stage: String,
+    /// Increment of the stage (1-based).
+    pub increment: usize,
+    /// Load factor reached.
+    pub load_factor: f64,
+    /// The fluid pressures at that increment, as `, fluid `name` at p` (empty without fluids).
+    pub loads: String,
+    /// Name of the extrusion gap.
+    pub gap: String,
+    /// The rubber's intrusion past the edge (length).
+    pub depth: f64,
+    /// The node that reached furthest (0-based).
+    pub node: usize,
+    /// Its position, written `(x, y)` or `(x, y, z)`.
+    pub at: String,
+    /// The gap's `max_depth`.
+    pub limit: f64,
 }

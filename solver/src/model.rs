@@ -94,6 +94,38 @@ pub struct Fluid {
     pub source: [f64; 3],
 }
 
+/// A seal's gland in a 2-D section: the groove a rigid profile forms,
+/// closed by another rigid surface (a bore, a cover). Its figures, gland
+/// fill and squeeze, are reported at every converged increment.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Gland {
+    /// Name used in results (`gland_<name>_...`).
+    pub name: String,
+    /// The rigid body whose profile (polyline or arc) forms the groove.
+    pub groove: String,
+    /// The rigid body that closes the groove.
+    pub closed_by: String,
+}
+
+/// The edge of a clearance gap a seal may extrude into: the rubber's
+/// largest intrusion past `edge` along `into` is reported at every
+/// converged increment, and a run stops when it passes `max_depth`.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ExtrusionGap {
+    /// Name used in results (`extrusion_<name>_...`).
+    pub name: String,
+    /// The gap's edge (reference position, length units).
+    pub edge: [f64; 3],
+    /// Direction from the edge into the gap (any non-zero length).
+    pub into: [f64; 3],
+    /// Rigid body whose motion the edge and direction follow (`None`: fixed).
+    pub follows: Option<String>,
+    /// Node set whose nodes are measured (`None`: every node).
+    pub nodes: Option<String>,
+    /// Intrusion (length units) beyond which the run stops (`None`: never).
+    pub max_depth: Option<f64>,
+}
+
 /// Pressure of a [`Fluid`] (stress units) reached at the end of a stage,
 /// ramped like other loads (ramp keyed by the fluid's name).
 #[derive(Debug, Clone, PartialEq)]
@@ -524,6 +556,10 @@ pub struct Model {
     pub rigid: Vec<RigidBody>,
     /// Fluids that wet the rubber where contact lets them in.
     pub fluids: Vec<Fluid>,
+    /// Glands whose fill and squeeze are reported.
+    pub glands: Vec<Gland>,
+    /// Clearance gaps whose extrusion is reported (and may stop the run).
+    pub extrusion_gaps: Vec<ExtrusionGap>,
     /// Rigid inserts bonded to the rubber.
     pub inserts: Vec<Insert>,
     /// Sets whose reaction moment is reported, with the point it is taken
@@ -546,6 +582,8 @@ impl Model {
             stages: Vec::new(),
             rigid: Vec::new(),
             fluids: Vec::new(),
+            glands: Vec::new(),
+            extrusion_gaps: Vec::new(),
             inserts: Vec::new(),
             moment_points: Default::default(),
             linear: LinearSettings::default(),

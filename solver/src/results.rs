@@ -84,6 +84,12 @@ pub struct IncrementResult {
     pub history: Option<HistoryValues>,
     /// Node displacements (2-D: third entry zero).
     pub displacement: Vec<[f64; 3]>,
+    /// The solution's unknowns after the displacements: the continuous
+    /// (Taylor–Hood) pressure of tet10 elements at their corner nodes, as
+    /// carried (p = s π, s = `Discretization::pressures.scale`), in the
+    /// order of `Discretization::pressures.node`; empty without them.
+    /// [`Self::solution_vector`] puts both back together.
+    pub pressure_unknowns: Vec<f64>,
     /// Reaction force summed over each named set (the sum of
     /// [`Self::nodal_reactions`] over its nodes); axisymmetric: over the full 2π.
     pub reactions: BTreeMap<String, [f64; 3]>,
@@ -119,6 +125,10 @@ pub struct IncrementResult {
     pub fluids: Vec<FluidSummary>,
     /// Fluid pressure at every node of a wetted facet, 0 elsewhere (when the model has fluids).
     pub fluid_pressure: Option<Vec<f64>>,
+    /// Per gland: fill and squeeze.
+    pub glands: Vec<GlandSummary>,
+    /// Per extrusion gap: the rubber's largest intrusion past its edge.
+    pub extrusions: Vec<ExtrusionSummary>,
     /// Extremes over every integration point of the mesh at this increment.
     pub peaks: IncrementPeaks,
 }
@@ -187,6 +197,16 @@ pub fn von_mises(s: &nalgebra::Matrix3<f64>) -> f64 {
 }
 
 impl IncrementResult {
+    /// The global solution vector of the increment for a model whose nodes
+    /// have `dim` displacement components: every node's displacements,
+    /// then the pressure unknowns (what `Discretization::gather` and
+    /// `Discretization::gather_pressures` read).
+    pub fn solution_vector(&self, dim: usize) -> Vec<f64> {
+        let mut u: Vec<f64> = self.displacement.iter().flat_map(|d| d[..dim].to_vec()).collect();
+        u.extend_from_slice(&self.pressure_unknowns);
+        u
+    }
+
     /// Reaction on a set per radian of revolution (axisymmetric), else the reaction itself.
     pub fn reaction_per_radian(&self, set: &str) -> Option<[f64; 3]> {
         let r = *self.reactions.get(set)?;
@@ -256,10 +276,14 @@ pub struct DynamicResult {
 /// each ratio includes the force the others cause (they move together).
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct DynamicStiffness {
-    /// Node set driven.
+    /// Node set driven (or the insert's name, when `insert`).
     pub set: String,
-    /// Component index (0, 1, 2).
+    /// Component index (0, 1, 2; an insert's 0..6: x, y, z, rx, ry, rz).
     pub component: usize,
+    /// Whether `set` names an insert: the stiffness is then the amplitude
+    /// of the force (or moment) the insert applies to the rubber over that
+    /// of its translation (or rotation, in radians).
+    pub insert: bool,
     /// Storage stiffness K′ (in phase with the motion; force per length) per frequency.
     pub storage: Vec<f64>,
     /// Loss stiffness K″ (a quarter period ahead; force per length) per frequency.
@@ -345,4 +369,36 @@ impl NodalFields {
             energy_density: nodal.iter().map(|v| v[9]).collect(),
         }
     }
+}
+
+/// Fill and squeeze of one gland at one increment.
+#[derive(Debug, Clone, PartialEq)]
+pub struct GlandSummary {
+    /// Name of the gland.
+    pub name: String,
+    /// Rubber section area over the gland's free area, in percent.
+    pub fill: f64,
+    /// (free height − gland depth) / free height, in percent (negative
+    /// while the gland is deeper than the rubber is high).
+    pub squeeze: f64,
+    /// Current section area of the rubber (length²).
+    pub rubber_area: f64,
+    /// Current free area of the gland (length²).
+    pub free_area: f64,
+    /// Current depth of the gland (length).
+    pub depth: f64,
+}
+
+/// The rubber's extrusion into one clearance gap at one increment.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ExtrusionSummary {
+    /// Name of the gap.
+    pub name: String,
+    /// Largest distance of a rubber node past the edge, along the direction
+    /// into the gap (length, ≥ 0).
+    pub depth: f64,
+    /// The node that reaches furthest (0-based mesh index).
+    pub node: usize,
+    /// Its current position.
+    pub at: [f64; 3],
 }

@@ -16,17 +16,19 @@
 //! | --- | --- | --- | --- | --- |
 //! | hex8 (Q1/P0) | 16×16×4: 2447.07 N | 32×32×8: 2349.16 N | 64×64×16: 2311.99 N | 2289 N (Richardson, order 1.40) |
 //! | hex27 (Q2/P1) | 8×8×2: 2302.86 N | 16×16×4: 2266.75 N | 24×24×6: 2250.62 N | |
-//! | tet10 (P2/P0) | 8×8×2: 2210.40 N | 16×16×4: 2236.97 N | 24×24×6: 2238.97 N | |
+//! | tet10 (P2/P1, Taylor–Hood) | 8×8×2: 2433.97 N | 16×16×4: 2316.67 N | 24×24×6: 2286.21 N | 2247 N (Richardson, order 1.43) |
+//! | tet10 (P2/P0, `element-pressure`) | 8×8×2: 2210.40 N | 16×16×4: 2236.97 N | 24×24×6: 2238.97 N | |
 //!
-//! The families do not agree to better than about 2 % on these meshes:
-//! hex8 (Q1/P0) converges from above, slowly, and its extrapolate lies
-//! 2.2 % above where tet10 levels off; hex27, the textbook-stable pair, is
-//! still coming down (no clean order yet) and at 24×24×6 lies 0.5 % above
-//! tet10. The issue asks the tet10 block for the hex8 plate force within
-//! 2 % (common practice for a mesh-independence check, not a published
-//! bound): tet10 meets it against the finest hex27 (−0.6 %) and misses it
-//! narrowly against the hex8 extrapolate (−2.3 %), which is asserted as
-//! measured (2.5 %) so that a change shows.
+//! The families do not agree to better than about 2 % on these meshes.
+//! hex8 (Q1/P0) and the Taylor–Hood tet10 converge from above with the
+//! same observed order (1.4, set by the singular edges); hex27, the
+//! textbook-stable pair, is still coming down (no clean order yet). The
+//! element-condensed P2/P0 tet10, whose inf-sup constant decays
+//! (`inf_sup.rs`), levels off 2.2 % below the hex8 extrapolate. The issue
+//! asks the tet10 block for the hex8 plate force within 2 % (common
+//! practice for a mesh-independence check, not a published bound): the
+//! Taylor–Hood tet10 meets it on the 16×16×4 mesh of the test (+1.2 %) and
+//! on 24×24×6 (−0.1 %).
 
 use olli_mesh::ElementKind;
 use olli_solver::*;
@@ -60,9 +62,10 @@ fn plate_force(kind: ElementKind, n: [usize; 3]) -> f64 {
     -4.0 * sol.last().unwrap().reactions["top"][2]
 }
 
-/// tet10 on 8 × 8 × 4 cells of the quarter (16 × 16 × 4 of the whole
-/// block, 5 831 equations): within 2 % of the finest hex27 and within
-/// 2.5 % of the hex8 extrapolate (measured −0.6 % and −2.3 %).
+/// Taylor–Hood tet10 on 8 × 8 × 4 cells of the quarter (16 × 16 × 4 of the
+/// whole block, 5 831 displacement equations and 405 pressures): within 2 %
+/// of the hex8 extrapolate (measured +1.21 %; the P2/P0 tet10 gave −2.3 %),
+/// and above the finest hex27, as the hex8 meshes are (measured +2.9 %).
 #[test]
 fn bonded_block_tet10_plate_force_against_the_hexahedral_references() {
     let force = plate_force(ElementKind::Tet10, [8, 8, 4]);
@@ -72,6 +75,6 @@ fn bonded_block_tet10_plate_force_against_the_hexahedral_references() {
         percent(HEX27_FINEST),
         percent(HEX8_EXTRAPOLATED)
     );
-    assert!(rel(force, HEX27_FINEST) < 0.02, "{force} vs hex27 {HEX27_FINEST}");
-    assert!(rel(force, HEX8_EXTRAPOLATED) < 0.025, "{force} vs hex8 {HEX8_EXTRAPOLATED}");
+    assert!(rel(force, HEX8_EXTRAPOLATED) < 0.02, "{force} vs hex8 {HEX8_EXTRAPOLATED}");
+    assert!(force > HEX27_FINEST && rel(force, HEX27_FINEST) < 0.04, "{force} vs hex27 {HEX27_FINEST}");
 }

@@ -25,7 +25,22 @@ fn every_example_checks_and_has_a_note_and_a_test() {
         }
     }
     names.sort();
-    assert_eq!(names, ["bush", "bush-3d", "mount", "oring", "radial-seal", "seal", "seal-tri6", "spring-tet10"]);
+    assert_eq!(
+        names,
+        [
+            "bush",
+            "bush-3d",
+            "mount",
+            "mount-dynamic",
+            "oring",
+            "piston-seal",
+            "radial-seal",
+            "seal",
+            "seal-relaxation",
+            "seal-tri6",
+            "spring-tet10"
+        ]
+    );
 }
 
 #[test]

@@ -1,6 +1,8 @@
 //! Fluid pressure that penetrates where contact lets it (`[[fluid]]`):
 //! the hydrostatic state of a block wetted on its free faces, the wetted
-//! front against a contact band, and self-sealing of a confined cord.
+//! front against a contact band (the pressure-penetration criterion of
+//! Müller & Nau 1998, *Fluid Sealing Technology*; from memory), and
+//! self-sealing of a confined cord.
 
 use std::path::Path;
 
@@ -245,6 +247,13 @@ fn fluid_self_sealing_of_a_confined_cord() {
     assert!((0.8..=1.3).contains(&slope), "peak contact pressure rises {slope:.3} per unit fluid pressure");
 }
 
+// The criterion checked here is the pressure-penetration criterion of seal
+// engineering: a facet is wetted when its contact pressure falls below the
+// fluid pressure, the interface stays tight where the contact pressure
+// exceeds the pressure of the fluid to be sealed. Source: H. K. Müller and
+// B. S. Nau, *Fluid Sealing Technology: Principles and Applications*,
+// Marcel Dekker, New York 1998, the chapters on static seals (from memory).
+//
 // The wetted front follows the contact within each increment: at every
 // converged increment (pressure rising, then the plates lifted), (1) a
 // node pressed against a plate at least as hard as the fluid is never

@@ -22,7 +22,7 @@ use olli_solver::{Analysis, Formulation, IncrementControls, Model, Motion, Stage
 use olli_verification::{block, generated_block, neo_hookean};
 
 const USAGE: &str =
-    "usage: block-compression --divisions NX,NY,NZ [--element hex8|hex20|hex27|tet10] [--ordering best|amd|nd] [--no-extrapolation]";
+    "usage: block-compression --divisions NX,NY,NZ [--element hex8|hex20|hex27|tet10] [--pressure own|element] [--ordering best|amd|nd] [--no-extrapolation]";
 
 /// The 40 × 40 × 10 block of `kind` elements and the names of its bottom and
 /// top node sets. Hex8 keeps the verification crate's block (as before the
@@ -42,6 +42,7 @@ fn main() {
     let mut ordering = Ordering::LeastFill;
     let mut extrapolate = true;
     let mut element = ElementKind::Hex8;
+    let mut formulation = Formulation::Mixed;
     let mut i = 1;
     while i < args.len() {
         match (args[i].as_str(), args.get(i + 1)) {
@@ -60,6 +61,14 @@ fn main() {
                 };
                 i += 2;
             }
+            ("--pressure", Some(v)) => {
+                formulation = match v.as_str() {
+                    "own" => Formulation::Mixed,
+                    "element" => Formulation::ElementPressure,
+                    other => usage(&format!("--pressure must be own or element, got `{other}`")),
+                };
+                i += 2;
+            }
             ("--ordering", Some(v)) => {
                 ordering = parse_ordering(v).unwrap_or_else(|| usage("--ordering must be amd, nd or best"));
                 i += 2;
@@ -73,7 +82,7 @@ fn main() {
     }
     let t_mesh = Instant::now();
     let (mesh, bottom, top) = block_mesh(element, divisions);
-    let mut model = Model::single_region(mesh, Analysis::Solid3d, neo_hookean(0.5, 500.0), Formulation::Mixed);
+    let mut model = Model::single_region(mesh, Analysis::Solid3d, neo_hookean(0.5, 500.0), formulation);
     model.output.point_fields = false;
     model.output.nodal_fields = false;
     model.stages.push(Stage {
@@ -86,7 +95,7 @@ fn main() {
     model.linear.ordering = ordering;
     let setup = t_mesh.elapsed().as_secs_f64();
     println!(
-        "divisions={}x{}x{} element={element} elements={} nodes={}",
+        "divisions={}x{}x{} element={element} formulation={formulation:?} elements={} nodes={}",
         divisions[0],
         divisions[1],
         divisions[2],

@@ -1409,9 +1409,16 @@ fn a_harmonic_stage_writes_the_dynamic_stiffness() {
     assert!(rows.windows(2).all(|w| w[1][1] > w[0][1]), "{csv}");
     assert!((rows[2][1] / rows[0][1] - 2.0).abs() < 0.1, "{csv}");
     assert!(rows.iter().all(|r| r[2] > 0.0 && r[3] > 0.0 && r[3] < 45.0), "{csv}");
-    // The static history is untouched by the vibration: its last row is the hold's.
+    // The history shows the harmonic stage as one row: the static state it
+    // vibrated about (the hold's last row repeated: same time, forces and
+    // peaks), under its own name, with no Newton iterations.
     let history = std::fs::read_to_string(s.out().join("history.csv")).unwrap();
-    assert!(history.lines().last().unwrap().starts_with("hold,"), "{history}");
+    let rows: Vec<Vec<&str>> = history.lines().rev().take(2).map(|l| l.split(',').collect()).collect();
+    let (vibrate, hold) = (&rows[0], &rows[1]);
+    assert_eq!((vibrate[0], vibrate[1], hold[0]), ("vibrate", "1", "hold"), "{history}");
+    let n = vibrate.len();
+    assert_eq!(vibrate[2..n - 1], hold[2..n - 1], "{history}");
+    assert_eq!(vibrate[n - 1], "0", "{history}");
 }
 
 #[test]
@@ -1438,4 +1445,235 @@ fn bad_mullins_constants_are_located() {
     let s = Scratch::new("mullins");
     let out = run(&s.job(&softened("{ r = 2.0, m = 0.1, beta = 0.05 }")), &s.out());
     assert_eq!(out.status.code(), Some(0), "{}", text(&out));
+}
+
+/// A fluid whose side set lies wholly inside the rubber (the line shared by
+/// two squares, a physical group of an imported Gmsh mesh) has no free
+/// facet to enter by: refused at its `sides` key, exit 2, nothing written.
+#[test]
+fn fluid_on_a_set_without_free_facets_is_located() {
+    let msh = "$MeshFormat\n4.1 0 8\n$EndMeshFormat\n$PhysicalNames\n2\n1 2 \"wet\"\n2 3 \"rubber\"\n$EndPhysicalNames\n\
+               $Entities\n0 1 1 0\n1 1 0 0 1 1 0 1 2 0\n1 0 0 0 2 1 0 1 3 0\n$EndEntities\n\
+               $Nodes\n1 6 1 6\n2 1 0 6\n1\n2\n3\n4\n5\n6\n0 0 0\n1 0 0\n2 0 0\n2 1 0\n1 1 0\n0 1 0\n$EndNodes\n\
+               $Elements\n2 3 1 3\n1 1 1 1\n1 2 5\n2 1 3 2\n2 1 2 5 6\n3 2 3 4 5\n$EndElements\n";
+    let job = r#"
+analysis = "plane-strain"
+
+[mesh]
+file = "two.msh"
+
+[materials.soft]
+model = "neo-hookean"
+shear_modulus = 0.5
+bulk_modulus = 500.0
+
+[[region]]
+elements = "rubber"
+material = "soft"
+
+[[select]]
+name = "foot"
+nodes = { line = { point = [0.0, 0.0], direction = [1.0, 0.0] } }
+
+[[support]]
+nodes = "foot"
+fix = ["x", "y"]
+
+[[fluid]]
+name = "oil"
+sides = "wet"
+source = [1.0, 0.5]
+pressure = 0.1
+
+[[stage]]
+name = "pump"
+"#;
+    static CALLS: std::sync::atomic::AtomicUsize = std::sync::atomic::AtomicUsize::new(0);
+    let s = Scratch::new(&format!("interior{}", CALLS.fetch_add(1, std::sync::atomic::Ordering::Relaxed)));
+    std::fs::write(s.0.join("two.msh"), msh).unwrap();
+    let path = s.job(job);
+    let line = job.lines().position(|l| l.starts_with("sides = \"wet\"")).unwrap() + 1;
+    for args in [vec!["run", path.to_str().unwrap(), "--output", s.out().to_str().unwrap()], vec!["check", path.to_str().unwrap()]] {
+        let out = olli(&args);
+        let msg = text(&out);
+        assert_eq!(out.status.code(), Some(2), "{msg}");
+        for want in [format!("job.toml:{line}:"), "fluid `oil`: side set `wet` has no free facet".to_string()] {
+            assert!(msg.contains(&want), "expected `{want}` in: {msg}");
+        }
+        assert!(!s.out().exists(), "nothing may be written for bad input");
+    }
+}
+
+/// A plane-strain block 2 × 1 (invented numbers) resting in a rectangular
+/// groove 3 wide and 1.2 deep, squeezed 0.1 by a cover: a gland of depth 0.9.
+const GLAND: &str = r#"
+title = "test gland"
+analysis = "plane-strain"
+
+[mesh]
+generate = "rectangle"
+origin = [0.5, 0.0]
+size = [2.0, 1.0]
+divisions = [8, 4]
+
+[[select]]
+name = "middle"
+nodes = { line = { point = [1.5, 0.0], direction = [0.0, 1.0] } }
+
+[materials.soft]
+model = "neo-hookean"
+shear_modulus = 0.5
+bulk_modulus = 500.0
+
+[[region]]
+elements = "all"
+material = "soft"
+
+[[support]]
+nodes = "middle"
+fix = ["x"]
+
+[[rigid]]
+name = "groove"
+touches = "bottom"
+polyline = [[0.0, 1.2], [0.0, 0.0], [3.0, 0.0], [3.0, 1.2]]
+bands = 2
+
+[[rigid]]
+name = "cover"
+touches = "top"
+line = { point = [0.0, 1.0], direction = [1.0, 0.0] }
+move = { squeeze = [0.0, -0.1] }
+
+[[gland]]
+name = "g"
+groove = "groove"
+closed_by = "cover"
+
+[[stage]]
+name = "squeeze"
+first_increment = 0.5
+max_increment = 0.5
+"#;
+
+/// One column of `history.csv` by name.
+fn history_column(out: &Path, name: &str) -> Vec<f64> {
+    let history = std::fs::read_to_string(out.join("history.csv")).unwrap();
+    let header: Vec<&str> = history.lines().next().unwrap().split(',').collect();
+    let col = header.iter().position(|c| *c == name).unwrap_or_else(|| panic!("no column {name} in {header:?}"));
+    history.lines().skip(1).map(|l| l.split(',').nth(col).unwrap().parse().unwrap()).collect()
+}
+
+/// Gland fill, common practice for seal glands (no published source):
+/// fill = seal section area / gland section area, squeeze = (free height −
+/// gland depth) / free height. For the block in a rectangular groove of
+/// width 3 closed at depth 0.9 by hand: fill = (2 × 1) / (3 × 0.9) =
+/// 74.07 %, squeeze = (1 − 0.9) / 1 = 10 %. The rubber's section area
+/// changes only by its volume strain (bulk modulus 1000 μ: under 0.1 %).
+#[test]
+fn gland_fill_and_squeeze_of_a_rectangular_groove_match_the_hand_figures() {
+    let s = Scratch::new("gland");
+    let out = run(&s.job(GLAND), &s.out());
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out));
+    let (fill, squeeze) = (history_column(&s.out(), "gland_g_fill"), history_column(&s.out(), "gland_g_squeeze"));
+    // Increment 1: the cover half-way, at depth 0.95.
+    assert!((fill[0] - 100.0 * 2.0 / (3.0 * 0.95)).abs() < 0.1, "{fill:?}");
+    assert!((squeeze[0] - 5.0).abs() < 1e-9, "{squeeze:?}");
+    let last = fill.len() - 1;
+    assert!((fill[last] - 100.0 * 2.0 / (3.0 * 0.9)).abs() < 0.1, "{fill:?}");
+    assert!((squeeze[last] - 10.0).abs() < 1e-9, "{squeeze:?}");
+    let summary: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(s.out().join("summary.json")).unwrap()).unwrap();
+    let g = &summary["glands"]["g"];
+    assert!((g["free_area"].as_f64().unwrap() - 2.7).abs() < 1e-9, "{g}");
+    assert!((g["depth"].as_f64().unwrap() - 0.9).abs() < 1e-9, "{g}");
+    assert!((g["rubber_area"].as_f64().unwrap() - 2.0).abs() < 2e-3, "{g}");
+    assert_eq!(summary["units"]["gland_g_fill"], "percent");
+    // One band on the groove (the bottom): the block is pressed flat on it, over its whole width.
+    assert_eq!(history_column(&s.out(), "rigid_groove_bands")[last], 1.0);
+    let width = history_column(&s.out(), "rigid_groove_band1_contact_width")[last];
+    assert!(width > 2.0 && width < 2.3, "{width}");
+    assert_eq!(history_column(&s.out(), "rigid_groove_band2_contact_width")[last], 0.0);
+    assert_eq!(summary["rigid"]["groove"]["bands"], 1.0);
+}
+
+/// A block moved bodily 0.3 along x (every node prescribed): its right face
+/// (x = 2.5) passes an edge at x = 2.6 by 0.3 t − 0.1 at load factor t, and
+/// an edge that follows a surface moved 0.05 by 0.25 t − 0.1 (geometry by
+/// hand). The fixed edge's `max_depth` 0.15 is passed at t = 0.9 (0.17):
+/// the run stops there, keeps its nine increments and says where and why.
+#[test]
+fn extrusion_past_an_edge_is_reported_and_stops_the_run_at_max_depth() {
+    let job = r#"
+title = "test extrusion"
+analysis = "plane-strain"
+
+[mesh]
+generate = "rectangle"
+origin = [0.5, 0.0]
+size = [2.0, 1.0]
+divisions = [4, 2]
+
+[materials.soft]
+model = "neo-hookean"
+shear_modulus = 0.5
+bulk_modulus = 500.0
+
+[[region]]
+elements = "all"
+material = "soft"
+
+[[motion]]
+nodes = "all"
+displacement = { x = 0.3, y = 0.0 }
+
+[[rigid]]
+name = "land"
+touches = "right"
+line = { point = [10.0, 0.0], direction = [0.0, 1.0] }
+move = { slide = [0.05, 0.0] }
+
+[[extrusion]]
+name = "fixed"
+edge = [2.6, 0.0]
+into = [2.0, 0.0]
+max_depth = 0.15
+
+[[extrusion]]
+name = "moving"
+edge = [2.6, 0.0]
+into = [1.0, 0.0]
+follows = "land"
+nodes = "right"
+
+[[stage]]
+name = "slide"
+first_increment = 0.1
+max_increment = 0.1
+"#;
+    let s = Scratch::new("extrusion");
+    let out = run(&s.job(job), &s.out());
+    let msg = text(&out);
+    assert_eq!(out.status.code(), Some(1), "{msg}");
+    let fixed = history_column(&s.out(), "extrusion_fixed_depth");
+    let moving = history_column(&s.out(), "extrusion_moving_depth");
+    assert_eq!(fixed.len(), 9, "{fixed:?}");
+    for (k, (f, m)) in fixed.iter().zip(&moving).enumerate() {
+        let t = 0.1 * (k + 1) as f64;
+        assert!((f - (0.3 * t - 0.1).max(0.0)).abs() < 1e-9, "increment {}: {f}", k + 1);
+        assert!((m - (0.25 * t - 0.1).max(0.0)).abs() < 1e-9, "increment {}: {m}", k + 1);
+    }
+    let summary: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(s.out().join("summary.json")).unwrap()).unwrap();
+    assert_eq!(summary["status"], "stopped");
+    let reason = summary["reason"].as_str().unwrap();
+    for want in [
+        "stage `slide` increment 9",
+        "0.1700 past the edge of extrusion gap `fixed`",
+        "max_depth 0.15",
+        "at (2.7700, 0.0000)",
+        "back-up ring",
+    ] {
+        assert!(reason.contains(want), "expected `{want}` in: {reason}");
+    }
+    assert!((summary["extrusions"]["fixed"]["depth"].as_f64().unwrap() - 0.17).abs() < 1e-9);
+    assert!(msg.contains("extrusion gap `fixed`"), "{msg}");
 }

@@ -10,9 +10,9 @@ use super::discretization::Discretization;
 use super::dofs::{DofMap, NONE};
 use super::error::AssemblyError;
 use super::history::{ElementHistory, PointHistories};
-use super::kernel::{element_with_history_into, KernelError};
+use super::kernel::{element_continuous_into, element_with_history_into, KernelError};
 use super::pattern::{Pattern, SKIP};
-use crate::element::MixedState;
+use crate::element::{Formulation, MixedState};
 use crate::shape::MAX_NODES;
 
 const CHUNK: usize = 1024;
@@ -126,7 +126,14 @@ impl Assembler {
                 let state = if carried { Some(ms) } else { None };
                 let mut element_history = ElementHistory { previous, current, time_step, tangent: tangent_kind };
                 let history = if with_history { Some(&mut element_history) } else { None };
-                *st = element_with_history_into(&ctx, &x, &ue, f, if want_k { Some(k) } else { None }, state, history);
+                let k = if want_k { Some(k) } else { None };
+                *st = if ctx.formulation == Formulation::ContinuousPressure {
+                    let mut p = [0.0; crate::element::taylor_hood::MAX_PRESSURE_NODES];
+                    let np = disc.gather_pressures(e, u, &mut p);
+                    element_continuous_into(&ctx, &x, &ue, &p[..np], disc.pressures.scale, f, k, history)
+                } else {
+                    element_with_history_into(&ctx, &x, &ue, f, k, state, history)
+                };
             };
             let kb = &mut self.kbuf[..count * kstride];
             let fb = &mut self.fbuf[..count * fstride];
@@ -165,9 +172,17 @@ impl Assembler {
                     Err(err) => return Err(AssemblyError::in_element(e, err.clone())),
                 }
                 let nodes = mesh.element_nodes(e);
-                let nd = nodes.len() * dim;
+                let nu = nodes.len() * dim;
+                let nd = nu + disc.element_pressures(e);
                 let f = &self.fbuf[i * fstride..i * fstride + nd];
-                let gdof = |r: usize| nodes[r / dim] * dim + r % dim;
+                let pressure_base = mesh.node_count() * dim;
+                let gdof = |r: usize| {
+                    if r < nu {
+                        nodes[r / dim] * dim + r % dim
+                    } else {
+                        pressure_base + disc.pressures.of_node[nodes[r - nu]]
+                    }
+                };
                 for r in 0..nd {
                     internal[gdof(r)] += f[r];
                 }

@@ -4,9 +4,12 @@
 
 use olli_mesh::{ElementKind, Mesh};
 
+use super::dofs::NONE;
 use super::error::AssemblyError;
 use super::kernel::ElementContext;
-use crate::element::{Analysis, Shape};
+use super::pressure::ContinuousPressures;
+use crate::element::taylor_hood::{pressure_nodes, MAX_PRESSURE_NODES};
+use crate::element::{Analysis, Formulation, Shape};
 use crate::model::Model;
 use crate::shape::{ShapeKind, MAX_NODES};
 
@@ -45,8 +48,13 @@ pub struct Discretization<'m> {
     pub region_of: Vec<usize>,
     /// Displacement components per node: 3 in 3-D, 2 in 2-D.
     pub dim: usize,
-    /// Largest element degree-of-freedom count in the mesh (sizes buffers).
+    /// Largest element degree-of-freedom count in the mesh, pressure
+    /// unknowns included (sizes buffers).
     pub max_dofs: usize,
+    /// What each element runs: its region's formulation resolved for its shape.
+    pub formulation: Vec<Formulation>,
+    /// The continuous (Taylor–Hood) pressure unknowns, after the displacements.
+    pub pressures: ContinuousPressures,
 }
 
 impl<'m> Discretization<'m> {
@@ -80,7 +88,6 @@ impl<'m> Discretization<'m> {
             };
             shapes.push(shape);
         }
-        let max_dofs = shapes.iter().map(|s| s.dofs()).max().unwrap_or(0);
         let mut region_of = vec![usize::MAX; n];
         for (r, region) in model.regions.iter().enumerate() {
             for &e in &region.elements {
@@ -100,7 +107,64 @@ impl<'m> Discretization<'m> {
         if let Some(e) = region_of.iter().position(|&r| r == usize::MAX) {
             return Err(AssemblyError::MissingRegion { element: e });
         }
-        Ok(Discretization { model, shapes, region_of, dim, max_dofs })
+        let formulation: Vec<Formulation> = shapes.iter().zip(&region_of).map(|(s, &r)| model.regions[r].formulation.resolve(*s)).collect();
+        let bulk: Vec<f64> = region_of.iter().map(|&r| model.regions[r].material.volumetric.bulk_modulus).collect();
+        let pressures = ContinuousPressures::new(mesh, &shapes, &formulation, &bulk);
+        let max_dofs = shapes
+            .iter()
+            .zip(&formulation)
+            .map(|(s, f)| s.dofs() + if *f == Formulation::ContinuousPressure { pressure_nodes(*s).unwrap_or(0) } else { 0 })
+            .max()
+            .unwrap_or(0);
+        Ok(Discretization { model, shapes, region_of, dim, max_dofs, formulation, pressures })
+    }
+
+    /// Number of global dofs: the displacements of every node, then the
+    /// continuous pressure unknowns.
+    pub fn dof_count(&self) -> usize {
+        self.mesh().node_count() * self.dim + self.pressures.count()
+    }
+
+    /// Number of pressure unknowns of element `e` (0 unless it carries a continuous pressure).
+    pub fn element_pressures(&self, e: usize) -> usize {
+        if self.formulation[e] == Formulation::ContinuousPressure {
+            pressure_nodes(self.shapes[e]).unwrap_or(0)
+        } else {
+            0
+        }
+    }
+
+    /// Global dofs of element `e` in its local order (displacements node by
+    /// node, then its pressure unknowns) into `out`; returns their count.
+    pub fn element_dofs(&self, e: usize, out: &mut [usize]) -> usize {
+        let nodes = self.mesh().element_nodes(e);
+        let dim = self.dim;
+        for (a, &n) in nodes.iter().enumerate() {
+            for i in 0..dim {
+                out[a * dim + i] = n * dim + i;
+            }
+        }
+        let nd = nodes.len() * dim;
+        let np = self.element_pressures(e);
+        let base = self.mesh().node_count() * dim;
+        for (k, &n) in nodes[..np].iter().enumerate() {
+            out[nd + k] = base + self.pressures.of_node[n];
+        }
+        nd + np
+    }
+
+    /// The continuous pressure (stress units) at the corners of element `e`
+    /// from the global vector `u` into `out`; returns their count (0 for an
+    /// element without one).
+    pub fn gather_pressures(&self, e: usize, u: &[f64], out: &mut [f64; MAX_PRESSURE_NODES]) -> usize {
+        let np = self.element_pressures(e);
+        let base = self.mesh().node_count() * self.dim;
+        for (o, &n) in out.iter_mut().zip(&self.mesh().element_nodes(e)[..np]) {
+            let k = self.pressures.of_node[n];
+            debug_assert!(k != NONE);
+            *o = u.get(base + k).map_or(0.0, |v| v * self.pressures.scale);
+        }
+        np
     }
 
     /// The model's mesh.
@@ -111,7 +175,12 @@ impl<'m> Discretization<'m> {
     /// What the element kernel needs for element `e`: shape, analysis, formulation, material.
     pub fn context(&self, e: usize) -> ElementContext<'m> {
         let region = &self.model.regions[self.region_of[e]];
-        ElementContext { shape: self.shapes[e], analysis: self.model.analysis, formulation: region.formulation, material: &region.material }
+        ElementContext {
+            shape: self.shapes[e],
+            analysis: self.model.analysis,
+            formulation: self.formulation[e],
+            material: &region.material,
+        }
     }
 
     /// Reference positions and displacements of element `e`'s nodes into fixed arrays.

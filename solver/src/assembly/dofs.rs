@@ -1,5 +1,6 @@
-//! Numbering of the free degrees of freedom. Global dof `node·dim + i`;
-//! prescribed dofs get no equation (they are eliminated, not penalised).
+//! Numbering of the free degrees of freedom. Global dof `node·dim + i`,
+//! then the continuous pressure unknowns (`node_count·dim + k`); prescribed
+//! dofs get no equation (they are eliminated, not penalised).
 
 /// Marks a prescribed dof in [`DofMap::eq`].
 pub const NONE: usize = usize::MAX;
@@ -31,6 +32,36 @@ impl DofMap {
                 }
             })
             .collect();
+        DofMap { dim, eq, n_free }
+    }
+
+    /// Equations node by node, a node's pressure unknown (if it has one,
+    /// `pressure_of_node[node]` ≠ [`NONE`]) right after its displacements,
+    /// so the equations of a node stay consecutive for the node-level
+    /// orderings and the pressure joins its node's supernode. Without
+    /// pressures this is [`DofMap::new`].
+    pub fn with_pressures(dim: usize, prescribed: &[bool], pressure_of_node: &[usize]) -> Self {
+        let nodes = pressure_of_node.len();
+        let base = nodes * dim;
+        if prescribed.len() == base {
+            return DofMap::new(dim, prescribed);
+        }
+        let mut eq = vec![NONE; prescribed.len()];
+        let mut n_free = 0;
+        let mut number = |d: usize, eq: &mut Vec<usize>| {
+            if !prescribed[d] {
+                eq[d] = n_free;
+                n_free += 1;
+            }
+        };
+        for (node, &k) in pressure_of_node.iter().enumerate() {
+            for i in 0..dim {
+                number(node * dim + i, &mut eq);
+            }
+            if k != NONE {
+                number(base + k, &mut eq);
+            }
+        }
         DofMap { dim, eq, n_free }
     }
 

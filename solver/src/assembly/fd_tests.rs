@@ -186,3 +186,60 @@ fn carried_state_at_the_consistent_point_reproduces_the_condensed_element() {
     // (A carried θ off v/V enters the residual only through
     // U'(θ) + U''(θ)(v/V − θ), a Taylor step to U'(v/V): second order.)
 }
+
+/// The Taylor–Hood tet10 ([`crate::element::taylor_hood`]): its force is
+/// the derivative of the element's share of the stationary functional
+/// Π(u, π), and its tangent (pressure rows and columns included) the
+/// derivative of the force, both by central differences on the distorted
+/// element, with corner pressures near the logarithmic law's range and a
+/// pressure scale s ≠ 1 (so a missing factor s shows). The tangent is
+/// symmetric and, in its pressure block, negative definite.
+#[test]
+fn tangent_fd_tet10_taylor_hood_with_pressure_rows() {
+    use super::kernel::element_continuous_into;
+    let mat = material();
+    let shape = Shape::Tet10;
+    let ctx = ElementContext { shape, analysis: Analysis::Solid3d, formulation: Formulation::ContinuousPressure, material: &mat };
+    let (x, u) = distorted(shape);
+    let scale = 3.0;
+    let pi = [8.0 / scale, 12.0 / scale, 5.0 / scale, 10.0 / scale];
+    let (nu, nt) = (30, 34);
+    let eval = |u: &[[f64; 3]], pi: &[f64; 4], f: &mut [f64], k: Option<&mut [f64]>| {
+        let p: Vec<f64> = pi.iter().map(|v| v * scale).collect();
+        element_continuous_into(&ctx, &x, u, &p, scale, f, k, None).unwrap()
+    };
+    let mut f = vec![0.0; nt];
+    let mut k = vec![0.0; nt * nt];
+    eval(&u, &pi, &mut f, Some(&mut k));
+    let kmax = k.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+    let fmax = f.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+    assert!(f[nu..].iter().any(|v| v.abs() > 1e-3 * fmax), "pressure rows carry a residual");
+    let h = 1e-6;
+    let (mut fp, mut fm) = (vec![0.0; nt], vec![0.0; nt]);
+    for c in 0..nt {
+        let (mut up, mut um, mut pp, mut pm) = (u.clone(), u.clone(), pi, pi);
+        if c < nu {
+            up[c / 3][c % 3] += h;
+            um[c / 3][c % 3] -= h;
+        } else {
+            pp[c - nu] += h;
+            pm[c - nu] -= h;
+        }
+        let ep = eval(&up, &pp, &mut fp, None);
+        let em = eval(&um, &pm, &mut fm, None);
+        let fd_force = (ep - em) / (2.0 * h);
+        assert!((fd_force - f[c]).abs() <= 1e-6 * fmax, "force {c}: {} vs {fd_force}", f[c]);
+        for r in 0..nt {
+            let fd = (fp[r] - fm[r]) / (2.0 * h);
+            let an = k[c * nt + r];
+            assert!((fd - an).abs() <= 1e-6 * kmax, "K[{r},{c}] = {an} vs FD {fd}");
+        }
+    }
+    for r in 0..nt {
+        for c in 0..nt {
+            assert!((k[c * nt + r] - k[r * nt + c]).abs() <= 1e-12 * kmax);
+        }
+    }
+    let kpp = nalgebra::Matrix4::from_fn(|r, c| k[(nu + c) * nt + nu + r]);
+    assert!(kpp.symmetric_eigenvalues().iter().all(|v| *v < 0.0), "pressure block negative definite");
+}

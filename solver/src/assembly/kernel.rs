@@ -11,6 +11,7 @@ use thiserror::Error;
 
 use super::history::ElementHistory;
 use crate::element::pressure_space::PressureSpace;
+use crate::element::taylor_hood::{integrate_continuous_into, PressureResponse};
 use crate::element::{
     integrate_into, kinematics_into, point_states_into, Analysis, ElementError, ElementKinematics, Formulation, MixedState, PointResponse,
     PointState, Shape, VolumetricResponse, MAX_POINTS,
@@ -166,13 +167,13 @@ impl MaterialAt {
         history: Option<&mut ElementHistory>,
     ) -> Result<(), KernelError> {
         kinematics_into(ctx.shape, ctx.analysis, x, u, &mut self.kinematics)?;
-        let mixed = ctx.formulation == Formulation::Mixed;
+        let condensed = ctx.formulation == Formulation::Mixed;
         self.volumetric_count = 0;
-        if mixed {
+        if condensed {
             self.volumetric_count = volumetric(ctx.material, &self.kinematics, state, &mut self.volumetric)?;
         }
         let points = self.kinematics.points().len();
-        responses(ctx.material, mixed, &self.kinematics, history, &mut self.responses[..points])
+        responses(ctx.material, ctx.formulation.is_mixed(), &self.kinematics, history, &mut self.responses[..points])
     }
 
     fn volumetric(&self) -> &[VolumetricResponse] {
@@ -258,16 +259,19 @@ pub(crate) fn element_through(
 
 /// Per-point results of one element into `out` (length ≥ `shape.points()`).
 pub fn point_states(ctx: &ElementContext, x: &[[f64; 3]], u: &[[f64; 3]], out: &mut [PointState]) -> Result<(), KernelError> {
-    point_states_with_history(ctx, x, u, None, out)
+    point_states_with_history(ctx, x, u, &[], None, out)
 }
 
 /// As [`point_states`] for a converged state whose history values are
 /// `converged` (as stored for the element): the material is evaluated at a
 /// zero time step from them, which reproduces the converged stress.
+/// `pressures`: the corner values of a continuous pressure (stress units,
+/// [`crate::assembly::Discretization::gather_pressures`]), empty otherwise.
 pub fn point_states_with_history(
     ctx: &ElementContext,
     x: &[[f64; 3]],
     u: &[[f64; 3]],
+    pressures: &[f64],
     converged: Option<&[f64]>,
     out: &mut [PointState],
 ) -> Result<(), KernelError> {
@@ -281,6 +285,67 @@ pub fn point_states_with_history(
     with_scratch(|at| {
         at.evaluate(ctx, x, u, None, history.as_mut())?;
         point_states_into(&at.kinematics, at.responses(), at.volumetric(), out)?;
+        if ctx.formulation == Formulation::ContinuousPressure {
+            let mut laws = [PressureResponse::default(); MAX_POINTS];
+            let count = pressure_laws(ctx.material, &at.kinematics, pressures, &mut laws)?;
+            for (o, law) in out.iter_mut().zip(&laws[..count]) {
+                o.cauchy += nalgebra::Matrix3::identity() * law.pressure;
+                o.pressure = -o.cauchy.trace() / 3.0;
+                o.energy_density += law.energy;
+            }
+        }
         Ok(())
+    })
+}
+
+/// The volumetric law at the continuous pressure p_h of every point
+/// (from the corner values `pressures`, stress units) into `out`: θ(p_h)
+/// solving U'(θ) = p_h, 1/U''(θ), U*(p_h) and U(θ). Returns the point count.
+fn pressure_laws(
+    material: &Material,
+    kin: &ElementKinematics,
+    pressures: &[f64],
+    out: &mut [PressureResponse; MAX_POINTS],
+) -> Result<usize, KernelError> {
+    let law = &material.volumetric;
+    let mut p = [0.0; MAX_POINTS];
+    let count = kin.continuous_pressures(pressures, &mut p);
+    for (q, (&pq, o)) in p.iter().zip(out.iter_mut()).take(count).enumerate() {
+        let at = |e| material_error(e, q, pq);
+        let theta = law.volume_ratio_at_pressure(pq).map_err(at)?;
+        let reached = law.pressure(theta).map_err(at)?;
+        let stiffness = law.pressure_derivative(theta).map_err(at)?;
+        if !((reached - pq).abs() <= 1e-8 * (pq.abs() + law.bulk_modulus)) || !(stiffness > 0.0) {
+            // Past the law's largest pressure (logarithmic law, J > e): no volume gives it.
+            return Err(KernelError::Element(ElementError::Inverted { point: q, j: theta }));
+        }
+        let energy = law.energy(theta).map_err(at)?;
+        *o = PressureResponse { pressure: pq, dilatation: theta, compliance: 1.0 / stiffness, complementary: pq * theta - energy, energy };
+    }
+    Ok(count)
+}
+
+/// Force and tangent of an element with a continuous pressure
+/// ([`crate::element::taylor_hood`]) into buffers of length
+/// `shape.dofs() + corners` and its square: displacement dofs first, then
+/// the scaled pressure unknowns. `pressures` are the corner values in
+/// stress units, `scale` is s of `p = s π`. Returns the element's share of
+/// the stationary functional.
+#[allow(clippy::too_many_arguments)]
+pub fn element_continuous_into(
+    ctx: &ElementContext,
+    x: &[[f64; 3]],
+    u: &[[f64; 3]],
+    pressures: &[f64],
+    scale: f64,
+    force: &mut [f64],
+    stiffness: Option<&mut [f64]>,
+    history: Option<&mut ElementHistory>,
+) -> Result<f64, KernelError> {
+    with_scratch(|at| {
+        at.evaluate(ctx, x, u, None, history)?;
+        let mut laws = [PressureResponse::default(); MAX_POINTS];
+        let count = pressure_laws(ctx.material, &at.kinematics, pressures, &mut laws)?;
+        Ok(integrate_continuous_into(&at.kinematics, at.responses(), &laws[..count], scale, force, stiffness)?)
     })
 }

@@ -20,6 +20,7 @@ pub mod history;
 pub mod kernel;
 pub mod mixed;
 pub mod pattern;
+pub mod pressure;
 
 pub use assembler::Assembler;
 pub use discretization::Discretization;
@@ -27,10 +28,12 @@ pub use dofs::DofMap;
 pub use error::AssemblyError;
 pub use history::{ElementHistory, PointHistories};
 pub use kernel::{
-    element_into, element_with_history_into, element_with_state_into, point_states, point_states_with_history, ElementContext, KernelError,
+    element_continuous_into, element_into, element_with_history_into, element_with_state_into, point_states, point_states_with_history,
+    ElementContext, KernelError,
 };
 pub use mixed::MixedUnknowns;
 pub use pattern::Pattern;
+pub use pressure::ContinuousPressures;
 
 #[cfg(test)]
 mod fd_tests;

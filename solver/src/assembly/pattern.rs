@@ -6,6 +6,7 @@
 use super::discretization::Discretization;
 use super::dofs::{DofMap, NONE};
 use super::error::AssemblyError;
+use crate::element::taylor_hood::MAX_PRESSURE_NODES;
 use crate::element::MAX_DOFS;
 
 /// Marks an element matrix entry that is not stored (upper triangle or a prescribed dof).
@@ -26,6 +27,9 @@ pub struct Pattern {
     pub scatter_offset: Vec<usize>,
     /// Mesh node of each equation (for node-level orderings).
     pub eq_node: Vec<usize>,
+    /// Free pressure unknowns (continuous pressure): the negative pivots
+    /// a stable tangent has.
+    pub negative: usize,
 }
 
 impl Pattern {
@@ -34,7 +38,10 @@ impl Pattern {
         let mesh = disc.mesh();
         let dim = dofs.dim;
         // Node adjacency, each list sorted: with node-major equation numbers
-        // the rows of every column then come out sorted.
+        // (a node's pressure unknown, if any, after its displacements; see
+        // `DofMap::with_pressures`) the rows of every column come out sorted.
+        // A pressure couples with every node beside its own (a superset of
+        // its Taylor–Hood elements' nodes where kinds are mixed: zeros).
         let mut adj: Vec<Vec<usize>> = vec![Vec::new(); mesh.node_count()];
         for e in 0..mesh.element_count() {
             let nodes = mesh.element_nodes(e);
@@ -42,31 +49,43 @@ impl Pattern {
                 adj[a].extend_from_slice(nodes);
             }
         }
-        for list in &mut adj {
+        for list in adj.iter_mut() {
             list.sort_unstable();
             list.dedup();
         }
+        let pressure_base = mesh.node_count() * dim;
+        let pressure_eq = |node: usize| match disc.pressures.of_node.get(node) {
+            Some(&k) if k != NONE => dofs.eq[pressure_base + k],
+            _ => NONE,
+        };
         let n = dofs.n_free;
-        let mut col_ptr = Vec::with_capacity(n + 1);
-        col_ptr.push(0);
+        let mut col_ptr = vec![0; n + 1];
         let mut row_idx = Vec::new();
-        let mut eq_node = Vec::with_capacity(n);
-        for (node, list) in adj.iter().enumerate() {
-            for i in 0..dim {
-                let c = dofs.eq[node * dim + i];
-                if c == NONE {
-                    continue;
-                }
-                eq_node.push(node);
-                for &m in list {
-                    for j in 0..dim {
-                        let r = dofs.eq[m * dim + j];
-                        if r != NONE && r >= c {
-                            row_idx.push(r);
-                        }
+        let mut eq_node = vec![0; n];
+        let column = |c: usize, node: usize, row_idx: &mut Vec<usize>| {
+            for &m in &adj[node] {
+                for j in 0..dim {
+                    let r = dofs.eq[m * dim + j];
+                    if r != NONE && r >= c {
+                        row_idx.push(r);
                     }
                 }
-                col_ptr.push(row_idx.len());
+                let r = pressure_eq(m);
+                if r != NONE && r >= c {
+                    row_idx.push(r);
+                }
+            }
+        };
+        // Columns in equation order (node-major).
+        let mut next = 0;
+        for node in 0..mesh.node_count() {
+            let own = (0..dim).map(|i| dofs.eq[node * dim + i]).chain(std::iter::once(pressure_eq(node)));
+            for c in own.filter(|&c| c != NONE) {
+                debug_assert_eq!(c, next, "equations are node-major");
+                eq_node[c] = node;
+                column(c, node, &mut row_idx);
+                col_ptr[c + 1] = row_idx.len();
+                next += 1;
             }
         }
         if row_idx.len() >= SKIP as usize {
@@ -76,14 +95,12 @@ impl Pattern {
         let mut scatter_offset = Vec::with_capacity(mesh.element_count() + 1);
         scatter_offset.push(0);
         let mut scatter = Vec::new();
-        let mut gdof = [0usize; MAX_DOFS];
+        let mut gdof = [0usize; MAX_DOFS + MAX_PRESSURE_NODES];
+        let mut global = [0usize; MAX_DOFS + MAX_PRESSURE_NODES];
         for e in 0..mesh.element_count() {
-            let nodes = mesh.element_nodes(e);
-            let nd = nodes.len() * dim;
-            for (a, &node) in nodes.iter().enumerate() {
-                for i in 0..dim {
-                    gdof[a * dim + i] = dofs.eq[node * dim + i];
-                }
+            let nd = disc.element_dofs(e, &mut global);
+            for (g, &d) in gdof.iter_mut().zip(&global[..nd]) {
+                *g = dofs.eq[d];
             }
             for c in 0..nd {
                 for r in 0..nd {
@@ -98,7 +115,8 @@ impl Pattern {
             }
             scatter_offset.push(scatter.len());
         }
-        Ok(Pattern { n, col_ptr, row_idx, scatter, scatter_offset, eq_node })
+        let negative = (0..disc.pressures.count()).filter(|&k| dofs.eq.get(pressure_base + k).is_some_and(|&q| q != NONE)).count();
+        Ok(Pattern { n, col_ptr, row_idx, scatter, scatter_offset, eq_node, negative })
     }
 
     /// Storage slot of entry (row, col) with row ≥ col, if in the pattern.

@@ -11,6 +11,7 @@
 
 use nalgebra::{Matrix3, Vector3};
 
+use super::bands::{bands, ContactBand};
 use super::corner::CornerContacts;
 use super::law::{ContactParameters, NodeState, Status};
 use super::pair::{AreaMeasure, ContactPair, PairResponse};
@@ -80,6 +81,8 @@ pub struct ContactSummary {
     pub max_penetration: f64,
     /// Number of nodes in contact (stick or slip).
     pub touching_nodes: usize,
+    /// The connected contact bands, numbered along the surface (see [`super::bands`]).
+    pub bands: Vec<ContactBand>,
 }
 
 /// Nodal contact fields (every mesh node; zero where no contact).
@@ -187,6 +190,11 @@ impl ActiveContacts {
             }
         }
         Ok(ActiveContacts { bodies, dim: disc.dim })
+    }
+
+    /// The surface of rigid body `name` where the last evaluation placed it.
+    pub fn surface(&self, name: &str) -> Option<&RigidSurface> {
+        self.bodies.iter().find(|b| b.def.name == name).map(|b| &b.surface)
     }
 
     /// Whether the model has no rigid surface.
@@ -321,20 +329,18 @@ impl ActiveContacts {
     pub fn summaries(&self) -> Vec<ContactSummary> {
         self.bodies
             .iter()
-            .map(|b| ContactSummary {
-                name: b.def.name.clone(),
-                force: [b.last.surface_force.x, b.last.surface_force.y, b.last.surface_force.z],
-                contact_width: b.pair.contact_width(&b.last),
-                peak_pressure: b
-                    .pair
-                    .true_pressures(&b.last)
-                    .iter()
-                    .zip(&b.last.nodes)
-                    .filter(|(_, r)| r.status != Status::Open)
-                    .map(|(p, _)| *p)
-                    .fold(0.0, f64::max),
-                max_penetration: b.last.max_penetration,
-                touching_nodes: b.last.nodes.iter().filter(|r| r.status != Status::Open).count(),
+            .map(|b| {
+                let pressures = b.pair.true_pressures(&b.last);
+                let touching = pressures.iter().zip(&b.last.nodes).filter(|(_, r)| r.status != Status::Open);
+                ContactSummary {
+                    name: b.def.name.clone(),
+                    force: [b.last.surface_force.x, b.last.surface_force.y, b.last.surface_force.z],
+                    contact_width: b.pair.contact_width(&b.last),
+                    peak_pressure: touching.map(|(p, _)| *p).fold(0.0, f64::max),
+                    max_penetration: b.last.max_penetration,
+                    touching_nodes: b.last.nodes.iter().filter(|r| r.status != Status::Open).count(),
+                    bands: bands(&b.pair, &b.last, &pressures, &b.surface),
+                }
             })
             .collect()
     }

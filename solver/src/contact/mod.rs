@@ -1,6 +1,7 @@
 //! Contact between rubber and rigid (metal) surfaces.
 
 pub mod active;
+pub mod bands;
 pub mod corner;
 pub mod law;
 pub mod pair;

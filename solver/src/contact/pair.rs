@@ -303,24 +303,40 @@ impl ContactPair {
 
     /// 2-D contact width: the length of the edges with both ends touching,
     /// plus, on each edge where the contact ends, the part up to the
-    /// estimated contact edge. Near the edge of a contact the pressure of a
-    /// smooth profile falls like a square root (Hertz: p² ∝ a² − x²), so p²
-    /// is extrapolated linearly from the last two touching nodes; without a
-    /// usable neighbour, half the edge is counted.
+    /// estimated contact edge (see [`ContactPair::edge_touching_length`]).
     fn band_length(&self, r: &PairResponse) -> f64 {
+        (0..self.sides.len()).filter_map(|e| self.edge_touching_length(e, r)).map(|(_, length)| length).sum()
+    }
+
+    /// 2-D: the touching length of edge piece `e` with one of its touching
+    /// nodes, or `None` when neither end touches. An edge with both ends
+    /// touching counts whole; on an edge where the contact ends, the part up
+    /// to the estimated contact edge: near the edge of a contact the
+    /// pressure of a smooth profile falls like a square root (Hertz: p² ∝
+    /// a² − x²), so p² is extrapolated linearly from the last two touching
+    /// nodes; without a usable neighbour, half the edge is counted.
+    pub fn edge_touching_length(&self, e: usize, r: &PairResponse) -> Option<(usize, f64)> {
         let touching = |k: usize| r.nodes[k].status != Status::Open;
-        let mut width = 0.0;
-        for (e, side) in self.sides.iter().enumerate() {
-            let (a, b) = (side[0], side[1]);
-            let len = (r.positions[a] - r.positions[b]).norm();
-            width += match (touching(a), touching(b)) {
-                (true, true) => len,
-                (false, false) => 0.0,
-                (true, false) => len * self.edge_fraction(e, a, r),
-                (false, true) => len * self.edge_fraction(e, b, r),
-            };
+        let (a, b) = (self.sides[e][0], self.sides[e][1]);
+        let len = (r.positions[a] - r.positions[b]).norm();
+        match (touching(a), touching(b)) {
+            (true, true) => Some((a, len)),
+            (false, false) => None,
+            (true, false) => Some((a, len * self.edge_fraction(e, a, r))),
+            (false, true) => Some((b, len * self.edge_fraction(e, b, r))),
         }
-        width
+    }
+
+    /// The pieces of the pair's sides (see `side_pieces`) as local node
+    /// indices into `nodes`: 2-D edges (line3 edges as their two halves),
+    /// 3-D whole faces.
+    pub fn pieces(&self) -> &[Vec<usize>] {
+        &self.sides
+    }
+
+    /// Whether the pair's sides are 3-D faces.
+    pub fn is_solid(&self) -> bool {
+        self.measure == AreaMeasure::Solid
     }
 
     /// Fraction of side `e`, measured from its touching node `i`, that is in contact.

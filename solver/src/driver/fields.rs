@@ -9,6 +9,7 @@ use super::newton::NewtonContext;
 use super::stages::ReportSets;
 use crate::assembly::dofs::NONE;
 use crate::assembly::{point_states_with_history, Discretization, PointHistories};
+use crate::element::taylor_hood::MAX_PRESSURE_NODES;
 use crate::element::{Analysis, PointState};
 use crate::error::SolveError;
 use crate::results::{IncrementPeaks, IncrementResult, NodalFields, PointFields};
@@ -33,6 +34,7 @@ pub fn increment_fields(disc: &Discretization, ctx: &NewtonContext, u: &[f64], t
             .collect()
     };
     let displacement = per_node(&|d| u[d]);
+    let pressure_unknowns = u[mesh.node_count() * dim..].to_vec();
     let nodal_reactions = per_node(&|d| if ctx.dofs().eq[d] == NONE { ctx.residual[d] } else { 0.0 });
     let reactions = report_sets
         .iter()
@@ -46,9 +48,14 @@ pub fn increment_fields(disc: &Discretization, ctx: &NewtonContext, u: &[f64], t
             (name.clone(), r)
         })
         .collect();
+    let current: Vec<nalgebra::Vector3<f64>> =
+        displacement.iter().zip(&mesh.nodes).map(|(d, x)| nalgebra::Vector3::new(x[0] + d[0], x[1] + d[1], x[2] + d[2])).collect();
     IncrementResult {
+        glands: super::seal_figures::glands(&disc.model.glands, mesh, &current, ctx.contacts),
+        extrusions: super::seal_figures::extrusions(&disc.model.extrusion_gaps, mesh, &current, ctx.contacts),
         reaction_moments: reaction_moments(disc, &nodal_reactions, u, report_sets),
         displacement,
+        pressure_unknowns,
         reactions,
         nodal_reactions,
         axisymmetric: disc.model.analysis == Analysis::Axisymmetric,
@@ -106,10 +113,12 @@ pub fn with_point_fields(
         .map(|e| {
             let (mut x, mut ue) = ([[0.0; 3]; MAX_NODES], [[0.0; 3]; MAX_NODES]);
             disc.gather(e, u, &mut x, &mut ue);
+            let mut p = [0.0; MAX_PRESSURE_NODES];
+            let np = disc.gather_pressures(e, u, &mut p);
             let ctx = disc.context(e);
             let mut out = vec![PointState::default(); ctx.shape.points()];
             let converged = if history.is_empty() { None } else { Some(history.converged(e)) };
-            point_states_with_history(&ctx, &x, &ue, converged, &mut out).map_err(|err| SolveError::from_element(e, err))?;
+            point_states_with_history(&ctx, &x, &ue, &p[..np], converged, &mut out).map_err(|err| SolveError::from_element(e, err))?;
             Ok(out)
         })
         .collect();

@@ -18,6 +18,7 @@ pub mod limit_point;
 pub mod newton;
 pub mod observer;
 pub mod roundoff;
+pub mod seal_figures;
 pub mod stabilization;
 pub mod stages;
 
@@ -86,7 +87,7 @@ pub fn solve(model: &Model, observer: &mut dyn Observer) -> Result<Solution, Sol
         return Err(free.into());
     }
     let mut run = RunState {
-        u: vec![0.0; model.mesh.node_count() * disc.dim],
+        u: vec![0.0; disc.dof_count()],
         mixed: Vec::new(),
         history: PointHistories::new(&disc),
         time: 0.0,
@@ -119,7 +120,7 @@ fn equations_for<'r>(
             add_linear_stats(&mut stats.linear, old.linear.stats());
         }
         let t = Instant::now();
-        let dofs = DofMap::new(disc.dim, &prog.prescribed);
+        let dofs = DofMap::with_pressures(disc.dim, &prog.prescribed, &disc.pressures.of_node);
         let pattern = Pattern::build(disc, &dofs)?;
         stats.pattern_time += t.elapsed().as_secs_f64();
         let linear = linear::analyse(&linear_pattern(&pattern), &disc.model.linear)?;
@@ -225,7 +226,9 @@ fn load_steps(
                 let next = step * c.cutback;
                 if next < c.min {
                     let limit = path.ratio().filter(|&r| load_driven && r < limit_point::LIMIT_STIFFNESS_RATIO);
-                    return Ok(Err(stopped(stage, prog, t, next, limit, &err)));
+                    let context =
+                        recorder.increments.last().filter(|r| r.stage == si).map(|r| extrusion_context(disc, r)).unwrap_or_default();
+                    return Ok(Err(stopped(stage, prog, (t, next), limit, &err, context)));
                 }
                 observer.event(&Event::Cutback { stage: si, load_factor: t, step: next, reason: &err });
                 // The extrapolation belongs to the old step size; it is kept, scaled by the new ratio.
@@ -252,6 +255,26 @@ fn run_harmonic(
     let result = harmonic::run(disc, si, prog, preload)?;
     observer.event(&Event::Harmonic(&result));
     run.dynamic.push(result);
+    // The history shows every stage: a harmonic stage's row is the static
+    // state it vibrated about, under its own name (no time passes, no iteration).
+    if let Some(last) = run.increments.last() {
+        let mut row = IncrementResult {
+            stage: si,
+            stage_name: name.clone(),
+            increment: 1,
+            load_factor: 1.0,
+            step: 1.0,
+            newton_iterations: 0,
+            residual_history: Vec::new(),
+            ..last.clone()
+        };
+        if !run.history.is_empty() {
+            row.history = Some(HistoryValues { stride: run.history.stride(), values: run.history.all_converged().to_vec() });
+        }
+        observer.event(&Event::Converged(&row));
+        row.history = None;
+        run.increments.push(row);
+    }
     Ok(Ok(()))
 }
 
@@ -266,7 +289,10 @@ fn begin_stage(disc: &Discretization, si: usize, prog: &StageProgram, run: &mut 
     });
     run.contacts.begin_stage(&stage.rigid_motions, &stage.ramps);
     run.fluids.begin_stage(stage);
-    run.inserts.begin_stage(stage);
+    if stage.harmonic.is_none() {
+        // A harmonic stage's insert drives are amplitudes: the static modes stay.
+        run.inserts.begin_stage(stage);
+    }
     if stage.controls.carry_pressure && run.mixed.is_empty() {
         run.mixed = vec![MixedState::default(); disc.mesh().element_count()];
     }
@@ -289,7 +315,7 @@ struct Converged {
 /// Why a run stops at stage fraction `t` when the next step `next` would be
 /// below the smallest: a limit load (the load path's stiffness fell to
 /// `limit` of its initial value on a load-driven stage), or the increment too small.
-fn stopped(stage: &Stage, prog: &StageProgram, t: f64, next: f64, limit: Option<f64>, err: &SolveError) -> SolveError {
+fn stopped(stage: &Stage, prog: &StageProgram, (t, next): (f64, f64), limit: Option<f64>, err: &SolveError, context: String) -> SolveError {
     match limit {
         Some(ratio) => SolveError::LimitPoint {
             stage: stage.name.clone(),
@@ -303,6 +329,7 @@ fn stopped(stage: &Stage, prog: &StageProgram, t: f64, next: f64, limit: Option<
             step: next,
             min: stage.controls.min,
             reason: err.to_string(),
+            context,
         },
     }
 }
@@ -363,12 +390,54 @@ impl Recorder<'_> {
         }
         observer.event(&Event::Converged(&result));
         result.history = None;
+        let extruded = extrusion_stop(disc, &result);
         if self.carry_pressure {
             self.mixed.clone_from(&ctx.mixed.converged);
         }
         self.increments.push(result);
-        Ok(())
+        extruded.map_or(Ok(()), Err)
     }
+}
+
+/// What increment `r`, the last to converge before a stop, shows when the
+/// rubber has entered an extrusion gap: how far, where, at which fluid
+/// pressure, and where the strain peaks; empty otherwise.
+fn extrusion_context(disc: &Discretization, r: &IncrementResult) -> String {
+    let Some(e) = r.extrusions.iter().filter(|e| e.depth > 0.0).max_by(|a, b| a.depth.total_cmp(&b.depth)) else { return String::new() };
+    let xy = |p: &[f64; 3]| p[..disc.dim].iter().map(|v| format!("{v:.4}")).collect::<Vec<_>>().join(", ");
+    let fluids: String = r.fluids.iter().map(|f| format!(" at fluid `{}` {:.4}", f.name, f.pressure)).collect();
+    let strain = &r.peaks.max_principal_log_strain;
+    format!(
+        "; at the last converged increment{fluids} the rubber had flowed {:.4} past the edge of extrusion gap `{}` (node {} at ({})), \
+         with the largest log strain {:.3} in element {} (reference position ({})): the seal is extruding into the gap. Narrow the \
+         gap, add a back-up ring or choose a harder compound",
+        e.depth,
+        e.name,
+        e.node,
+        xy(&e.at),
+        strain.value,
+        strain.element,
+        xy(&strain.at),
+    )
+}
+
+/// The stop when increment `r` takes the rubber past an extrusion gap's
+/// `max_depth` (the first such gap in model order).
+fn extrusion_stop(disc: &Discretization, r: &IncrementResult) -> Option<SolveError> {
+    let (gap, e) = disc.model.extrusion_gaps.iter().zip(&r.extrusions).find(|(g, e)| g.max_depth.is_some_and(|m| e.depth > m))?;
+    let loads: String = r.fluids.iter().map(|f| format!(", fluid `{}` at {:.4}", f.name, f.pressure)).collect();
+    let at: Vec<String> = e.at[..disc.dim].iter().map(|v| format!("{v:.4}")).collect();
+    Some(SolveError::Extruded(Box::new(crate::error::ExtrusionStop {
+        stage: r.stage_name.clone(),
+        increment: r.increment,
+        load_factor: r.load_factor,
+        loads,
+        gap: gap.name.clone(),
+        depth: e.depth,
+        node: e.node,
+        at: format!("({})", at.join(", ")),
+        limit: gap.max_depth.unwrap_or(0.0),
+    })))
 }
 
 impl RunState {
@@ -382,7 +451,7 @@ impl RunState {
 
 /// The sparsity the linear solver analyses, borrowed from the assembly pattern.
 fn linear_pattern(p: &Pattern) -> SymmetricPattern<'_> {
-    SymmetricPattern { n: p.n, col_ptr: &p.col_ptr, row_idx: &p.row_idx, eq_node: &p.eq_node }
+    SymmetricPattern { n: p.n, col_ptr: &p.col_ptr, row_idx: &p.row_idx, eq_node: &p.eq_node, negative: p.negative }
 }
 
 fn add_linear_stats(total: &mut LinearStats, s: &LinearStats) {

@@ -656,6 +656,7 @@ impl<'a> NewtonContext<'a> {
         }
         self.add_damping();
         let factorization = self.linear.factorize(SystemMatrix { lower: &self.k, skew: &self.skew })?;
+        factorization.check_inertia(self.pattern.negative)?;
         if factorization.fallback {
             let iteration = at.iteration + 1;
             observer.event(&Event::LinearFallback { stage: at.stage, increment: at.increment, iteration, factor: factorization.kind });
@@ -870,7 +871,9 @@ impl<'a> NewtonContext<'a> {
 
     /// Factorizes the tangent of the last evaluation.
     pub(super) fn factorize_tangent(&mut self) -> Result<crate::linear::Factorization, SolveError> {
-        Ok(self.linear.factorize(SystemMatrix { lower: &self.k, skew: &self.skew })?)
+        let factorization = self.linear.factorize(SystemMatrix { lower: &self.k, skew: &self.skew })?;
+        factorization.check_inertia(self.pattern.negative)?;
+        Ok(factorization)
     }
 
     /// Solves `K x = b` in place with the last factorization.

@@ -19,7 +19,8 @@ use crate::assembly::Discretization;
 pub fn dof_weights(disc: &Discretization, factor: f64) -> Vec<f64> {
     let mesh = disc.mesh();
     let dim = disc.dim;
-    let mut w = vec![0.0; mesh.node_count() * dim];
+    // Pressure unknowns (after the displacements) get no spring.
+    let mut w = vec![0.0; disc.dof_count()];
     if factor <= 0.0 {
         return w;
     }

@@ -152,7 +152,7 @@ impl DofRamps {
 
 impl<'d> Resolver<'d> {
     fn new(disc: &'d Discretization<'d>) -> Result<Self, SolveError> {
-        let ndof = disc.mesh().node_count() * disc.dim;
+        let ndof = disc.dof_count();
         Ok(Resolver {
             disc,
             inserts: crate::insert::Inserts::new(disc)?,

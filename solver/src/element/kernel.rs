@@ -27,13 +27,13 @@ type V9 = SVector<f64, 9>;
 /// Voigt index of tensor component (I, J).
 const VI: [[usize; 3]; 3] = [[0, 3, 5], [3, 1, 4], [5, 4, 2]];
 
-fn to9(m: &Matrix3<f64>) -> V9 {
+pub(super) fn to9(m: &Matrix3<f64>) -> V9 {
     V9::from_fn(|k, _| m[(k / 3, k % 3)])
 }
 
 /// `A_iJkL = δ_ik S_JL + F_iI F_kK D_IJKL`: the first elasticity tensor as a
 /// 9×9 matrix with row index 3i+J and column index 3k+L.
-fn first_elasticity(f: &Matrix3<f64>, s: &Matrix3<f64>, d: &SMatrix<f64, 6, 6>) -> M9 {
+pub(super) fn first_elasticity(f: &Matrix3<f64>, s: &Matrix3<f64>, d: &SMatrix<f64, 6, 6>) -> M9 {
     // t[i][J][K][L] = F_iI D_IJKL
     let mut t = [[[[0.0; 3]; 3]; 3]; 3];
     for i in 0..3 {
@@ -64,7 +64,7 @@ fn first_elasticity(f: &Matrix3<f64>, s: &Matrix3<f64>, d: &SMatrix<f64, 6, 6>) 
 }
 
 /// `∂(J F⁻ᵀ)/∂F` as a 9×9 matrix: `J (F⁻¹_Ii F⁻¹_Kk − F⁻¹_Ik F⁻¹_Ki)`.
-fn cofactor_derivative(j: f64, fi: &Matrix3<f64>) -> M9 {
+pub(super) fn cofactor_derivative(j: f64, fi: &Matrix3<f64>) -> M9 {
     M9::from_fn(|r, c| {
         let (i, ii) = (r / 3, r % 3);
         let (k, kk) = (c / 3, c % 3);
@@ -76,7 +76,7 @@ fn cofactor_derivative(j: f64, fi: &Matrix3<f64>) -> M9 {
 /// N_a/R in row 8 (the hoop stretch) for the radial dof of an axisymmetric
 /// element. These helpers apply it without forming it.
 #[derive(Clone, Copy)]
-struct BOp<'g> {
+pub(super) struct BOp<'g> {
     geo: &'g PointGeometry,
     dim: usize,
     axisymmetric: bool,
@@ -84,7 +84,7 @@ struct BOp<'g> {
 
 impl BOp<'_> {
     /// `out += s · Bᵀ v`.
-    fn add_transpose<const ND: usize>(&self, v: &V9, s: f64, out: &mut SVector<f64, ND>) {
+    pub(super) fn add_transpose<const ND: usize>(&self, v: &V9, s: f64, out: &mut SVector<f64, ND>) {
         if self.dim == 3 {
             // 3-D: no hoop row; the same sums over plain node blocks.
             let v: &[f64; 9] = v.as_slice().try_into().expect("a 9-vector");
@@ -110,7 +110,7 @@ impl BOp<'_> {
     /// `k += s · Bᵀ A B`, using the sparsity of B (about a third of the dense
     /// product's work). `LOWER`: only the lower triangle (rows ≥ column),
     /// for a symmetric `A`; the caller mirrors it once per element.
-    fn add_btab<const ND: usize, const LOWER: bool>(&self, a: &M9, s: f64, k: &mut SMatrix<f64, ND, ND>) {
+    pub(super) fn add_btab<const ND: usize, const LOWER: bool>(&self, a: &M9, s: f64, k: &mut SMatrix<f64, ND, ND>) {
         if LOWER && self.dim == 3 {
             return self.add_btab_solid::<ND>(a, s, k);
         }
@@ -236,6 +236,11 @@ pub struct PointKinematics {
 }
 
 impl PointKinematics {
+    /// Reference volume weight dV of the point.
+    pub fn volume_weight(&self) -> f64 {
+        self.geo.dv
+    }
+
     /// Right Cauchy–Green tensor C = FᵀF, what a material is evaluated at.
     pub fn right_cauchy_green(&self) -> Matrix3<f64> {
         self.f.transpose() * self.f
@@ -303,11 +308,16 @@ impl ElementKinematics {
         Ok(LinearPressure { count, phi, dv, gram })
     }
 
+    /// The element's shape.
+    pub fn shape(&self) -> Shape {
+        self.shape
+    }
+
     fn dim(&self) -> usize {
         self.shape.dimension()
     }
 
-    fn bop<'g>(&self, p: &'g PointKinematics) -> BOp<'g> {
+    pub(super) fn bop<'g>(&self, p: &'g PointKinematics) -> BOp<'g> {
         BOp { geo: &p.geo, dim: self.dim(), axisymmetric: self.analysis == Analysis::Axisymmetric }
     }
 }

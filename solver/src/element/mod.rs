@@ -34,6 +34,7 @@ pub mod geometry;
 pub mod kernel;
 pub mod pressure_space;
 pub mod side;
+pub mod taylor_hood;
 
 pub use geometry::{PointGeometry, Shape};
 pub use kernel::{
@@ -61,12 +62,43 @@ pub enum Analysis {
 /// How the volumetric response is discretised.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
 pub enum Formulation {
-    /// Q1/P0 mean dilatation: locking-free for nearly incompressible rubber.
+    /// The element's own mixed u–p pair, locking-free for nearly
+    /// incompressible rubber: a pressure condensed per element (Q1/P0 mean
+    /// dilatation for hex8, see [`pressure_space`]), or for tet10 the
+    /// continuous Taylor–Hood pressure ([`Formulation::ContinuousPressure`]).
     #[default]
     Mixed,
     /// Plain displacement element (locks for nearly incompressible material;
     /// kept for comparison tests).
     Displacement,
+    /// Mixed with the pressure condensed in every element, also where the
+    /// element's own pair has a continuous one (tet10 then runs as P2/P0;
+    /// kept for comparison).
+    ElementPressure,
+    /// Mixed with a continuous pressure whose corner values are global
+    /// unknowns ([`taylor_hood`]); what [`Formulation::Mixed`] means for
+    /// tet10. Elements without such a form run as `Mixed`.
+    ContinuousPressure,
+}
+
+impl Formulation {
+    /// What an element of `shape` in a region of this formulation runs:
+    /// `Displacement`, `Mixed` (the pressure condensed per element) or
+    /// `ContinuousPressure`.
+    pub fn resolve(self, shape: Shape) -> Formulation {
+        let continuous = taylor_hood::pressure_nodes(shape).is_some();
+        match self {
+            Formulation::Displacement => Formulation::Displacement,
+            Formulation::Mixed | Formulation::ContinuousPressure if continuous => Formulation::ContinuousPressure,
+            _ => Formulation::Mixed,
+        }
+    }
+
+    /// Whether the material's isochoric part alone is evaluated at the
+    /// points (every mixed form).
+    pub fn is_mixed(self) -> bool {
+        self != Formulation::Displacement
+    }
 }
 
 /// Failure inside one element (the caller adds the element index).

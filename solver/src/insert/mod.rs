@@ -177,7 +177,7 @@ impl Inserts {
                 applied: [0.0; 6],
             });
         }
-        Ok(Inserts { bodies, dim, ndof: mesh.node_count() * dim })
+        Ok(Inserts { bodies, dim, ndof: disc.dof_count() })
     }
 
     /// Whether the model has no insert.
@@ -310,33 +310,50 @@ impl Inserts {
     /// The arm term `H_jk = Σ (e_j × ∂a_i/∂θ_k)·r_i` of the unknowns (row-major m × m).
     pub fn arm_stiffness(&self, r: &[f64]) -> Vec<f64> {
         let m = self.unknowns();
-        let dim = self.dim;
         let mut h = vec![0.0; m * m];
         let mut offset = 0;
         for b in &self.bodies {
             let comps: Vec<usize> = b.unknown_components().collect();
             for (rj, &j) in comps.iter().enumerate() {
-                if j < 3 {
-                    continue;
-                }
                 for (ck, &k) in comps.iter().enumerate() {
-                    if k < 3 {
-                        continue;
-                    }
-                    let mut e = [0.0; 3];
-                    e[j - 3] = 1.0;
-                    let mut sum = 0.0;
-                    for (&n, arm) in b.nodes.iter().zip(&b.arms) {
-                        let da = apply(&b.drot[k - 3], *arm);
-                        let c = cross(e, da);
-                        sum += (0..dim).map(|i| c[i] * r[n * dim + i]).sum::<f64>();
-                    }
-                    h[(offset + rj) * m + offset + ck] = sum;
+                    h[(offset + rj) * m + offset + ck] = b.arm_term(self.dim, j, k, r);
                 }
             }
             offset += comps.len();
         }
         h
+    }
+
+    /// The arm term `H_jk` of components `j` and `k` of insert `body` with
+    /// the node forces `r` (zero unless both are rotations).
+    pub fn arm_term(&self, body: usize, j: usize, k: usize, r: &[f64]) -> f64 {
+        self.bodies[body].arm_term(self.dim, j, k, r)
+    }
+
+    /// Whether component `k` of insert `body` exists in the analysis and is
+    /// loaded (an unknown) in the current stage.
+    pub fn is_loaded(&self, body: usize, k: usize) -> bool {
+        self.bodies[body].unknown_components().any(|c| c == k)
+    }
+
+    /// Whether component `k` exists in the analysis.
+    pub fn is_active(&self, k: usize) -> bool {
+        self.bodies.first().is_some_and(|b| b.active[k])
+    }
+
+    /// Adds `scale` times the node direction `J_k = ∂u/∂q_k` of component
+    /// `k` of insert `body` (at its current rotation) to the global vector
+    /// `j`, and `scale` times the equation weight `W_k` to `w`.
+    pub fn add_component_vectors(&self, body: usize, k: usize, scale: f64, j: &mut [f64], w: &mut [f64]) {
+        let b = &self.bodies[body];
+        let dim = self.dim;
+        for (&n, arm) in b.nodes.iter().zip(&b.arms) {
+            let (jk, wk) = b.node_direction(k, *arm);
+            for i in 0..dim {
+                j[n * dim + i] += scale * jk[i];
+                w[n * dim + i] += scale * wk[i];
+            }
+        }
     }
 
     /// Remembers the coordinates at the start of a Newton step.
@@ -388,6 +405,21 @@ impl Inserts {
 }
 
 impl Body {
+    /// `H_jk = Σ (e_j × ∂a_i/∂θ_k)·r_i`: zero unless j and k are rotations.
+    fn arm_term(&self, dim: usize, j: usize, k: usize, r: &[f64]) -> f64 {
+        if j < 3 || k < 3 {
+            return 0.0;
+        }
+        let mut e = [0.0; 3];
+        e[j - 3] = 1.0;
+        let mut sum = 0.0;
+        for (&n, arm) in self.nodes.iter().zip(&self.arms) {
+            let c = cross(e, apply(&self.drot[k - 3], *arm));
+            sum += (0..dim).map(|i| c[i] * r[n * dim + i]).sum::<f64>();
+        }
+        sum
+    }
+
     fn unknown_components(&self) -> impl Iterator<Item = usize> + '_ {
         (0..6).filter(|&k| self.active[k] && matches!(self.mode[k], Mode::Load { .. }))
     }

@@ -50,6 +50,10 @@ pub struct FaerDirect {
     par: Par,
     lu: Option<LuFallback>,
     last: Option<FactorKind>,
+    /// Negative pivots the pattern expects (pressure unknowns).
+    expected_negative: usize,
+    /// Negative pivots of the last LDLᵀ factorization.
+    negative_pivots: Option<usize>,
     /// Counters and timings of this solver.
     pub stats: LinearStats,
 }
@@ -132,7 +136,18 @@ impl FaerDirect {
             fill_nested_dissection: fill_nd,
             ..Default::default()
         };
-        Ok(FaerDirect { symbolic_matrix, symbolic, l_values, mem, par, lu: None, last: None, stats })
+        Ok(FaerDirect {
+            symbolic_matrix,
+            symbolic,
+            l_values,
+            mem,
+            par,
+            lu: None,
+            last: None,
+            expected_negative: pattern.negative,
+            negative_pivots: None,
+            stats,
+        })
     }
 
     /// Numeric factorization of the tangent with the given lower-triangle values;
@@ -140,15 +155,24 @@ impl FaerDirect {
     pub fn factor(&mut self, values: &[f64]) -> Result<FactorKind, LinearError> {
         let t = Instant::now();
         let a = SparseColMatRef::new(self.symbolic_matrix.as_ref(), values);
-        let res = self.symbolic.factorize_numeric_llt::<f64>(
-            &mut self.l_values,
-            a,
-            Side::Lower,
-            LltRegularization::default(),
-            self.par,
-            MemStack::new(&mut self.mem),
-            Default::default(),
-        );
+        self.negative_pivots = None;
+        // A system with pressure unknowns is indefinite: no Cholesky attempt.
+        let res = if self.expected_negative > 0 {
+            Err(())
+        } else {
+            self.symbolic
+                .factorize_numeric_llt::<f64>(
+                    &mut self.l_values,
+                    a,
+                    Side::Lower,
+                    LltRegularization::default(),
+                    self.par,
+                    MemStack::new(&mut self.mem),
+                    Default::default(),
+                )
+                .map(|_| ())
+                .map_err(|_| ())
+        };
         let kind = match res {
             Ok(_) => FactorKind::Cholesky,
             Err(_) => {
@@ -165,6 +189,7 @@ impl FaerDirect {
                 );
                 if ldlt.is_ok() && self.l_values.iter().all(|v| v.is_finite()) {
                     self.stats.ldlt_fallbacks += 1;
+                    self.negative_pivots = Some(negative_pivots(&self.symbolic, &self.l_values));
                     FactorKind::Ldlt
                 } else {
                     self.factor_lu(values, &[])?;
@@ -277,11 +302,13 @@ impl LinearSolver for FaerDirect {
 
     fn factorize(&mut self, matrix: SystemMatrix) -> Result<Factorization, LinearError> {
         let kind = self.factor_nonsymmetric(matrix.lower, matrix.skew)?;
-        Ok(Factorization {
-            kind,
-            positive_definite: kind == FactorKind::Cholesky,
-            fallback: matches!(kind, FactorKind::Ldlt | FactorKind::LuFallback),
-        })
+        let negative_pivots = if kind == FactorKind::Ldlt { self.negative_pivots } else { None };
+        let fallback = if self.expected_negative > 0 {
+            kind == FactorKind::LuFallback || negative_pivots != Some(self.expected_negative)
+        } else {
+            matches!(kind, FactorKind::Ldlt | FactorKind::LuFallback)
+        };
+        Ok(Factorization { kind, positive_definite: kind == FactorKind::Cholesky, fallback, negative_pivots })
     }
 
     fn solve(&mut self, rhs: &mut [f64]) -> Result<(), LinearError> {
@@ -290,6 +317,27 @@ impl LinearSolver for FaerDirect {
 
     fn stats(&self) -> &LinearStats {
         &self.stats
+    }
+}
+
+/// Negative entries of D in an LDLᵀ factor: the diagonal of every
+/// supernode's block, or the first entry of every simplicial column.
+fn negative_pivots(symbolic: &SymbolicCholesky<usize>, l_values: &[f64]) -> usize {
+    match symbolic.raw() {
+        SymbolicCholeskyRaw::Supernodal(s) => {
+            let mut count = 0;
+            for k in 0..s.n_supernodes() {
+                let ncol = s.supernode_end()[k] - s.supernode_begin()[k];
+                let nrow = ncol + s.supernode(k).pattern().len();
+                let block = &l_values[s.col_ptr_for_val()[k]..];
+                count += (0..ncol).filter(|&j| block[j * nrow + j] < 0.0).count();
+            }
+            count
+        }
+        SymbolicCholeskyRaw::Simplicial(s) => {
+            let cp = s.col_ptr();
+            (0..cp.len() - 1).filter(|&j| l_values[cp[j]] < 0.0).count()
+        }
     }
 }
 
@@ -378,9 +426,13 @@ mod tests {
     }
 
     fn solve_saddle(n: usize, a: &[f64], ordering: Ordering) -> (Factorization, f64) {
+        solve_saddle_expecting(n, a, ordering, 0)
+    }
+
+    fn solve_saddle_expecting(n: usize, a: &[f64], ordering: Ordering, negative: usize) -> (Factorization, f64) {
         let (col_ptr, row_idx, values) = lower(n, a);
         let eq_node: Vec<usize> = (0..n).collect();
-        let pattern = SymmetricPattern { n, col_ptr: &col_ptr, row_idx: &row_idx, eq_node: &eq_node };
+        let pattern = SymmetricPattern { n, col_ptr: &col_ptr, row_idx: &row_idx, eq_node: &eq_node, negative };
         let mut solver = FaerDirect::new(&pattern, &LinearSettings { ordering }).unwrap();
         let factorization = solver.factorize(SystemMatrix { lower: &values, skew: &[] }).unwrap();
         let b: Vec<f64> = (0..n).map(|i| ((i * 7 % 5) as f64) - 2.0).collect();
@@ -423,5 +475,44 @@ mod tests {
         let (f, residual) = solve_saddle(n, &a, Ordering::Amd);
         assert!(!f.positive_definite && f.fallback, "{f:?}");
         assert!(residual < 1e-8, "residual {residual:e}");
+    }
+
+    /// Number of negative eigenvalues of a dense symmetric matrix (the
+    /// reference for the pivot count).
+    fn negative_eigenvalues(n: usize, a: &[f64]) -> usize {
+        let m = nalgebra::DMatrix::from_row_slice(n, n, a);
+        m.symmetric_eigenvalues().iter().filter(|v| **v < 0.0).count()
+    }
+
+    /// The inertia check: told how many pressure unknowns the system has,
+    /// the solver skips Cholesky and counts the negative pivots of LDLᵀ,
+    /// which by Sylvester's law of inertia (Sylvester 1852; Golub & Van Loan,
+    /// Matrix Computations, §8.1) equal the matrix's negative eigenvalues
+    /// in every ordering: here the m − 1 = 11 pressures while K is
+    /// positive definite, so no fallback is reported; with K indefinite
+    /// (a loss of stability) more, and the mismatch is reported. Both
+    /// counts are checked against dense eigenvalues, on a small and a
+    /// larger chain (faer picks the factor's layout by size).
+    #[test]
+    fn negative_pivots_count_the_pressures_unless_stability_is_lost() {
+        for m in [12, 200] {
+            // shift 0.5 makes K diagonally dominant, so positive definite.
+            let (n, a) = saddle(m, 1e4, 0.5);
+            assert_eq!(negative_eigenvalues(n, &a), m - 1);
+            for ordering in [Ordering::Amd, Ordering::NestedDissection, Ordering::Custom((0..n).rev().collect())] {
+                let (f, residual) = solve_saddle_expecting(n, &a, ordering.clone(), m - 1);
+                assert_eq!(f.kind, FactorKind::Ldlt, "{ordering:?}");
+                assert_eq!(f.negative_pivots, Some(m - 1), "{ordering:?}");
+                assert!(!f.fallback && residual < 1e-8, "{ordering:?}: {f:?} {residual:e}");
+            }
+            let (n, a) = saddle(m, 1e4, -2.2);
+            let expected = negative_eigenvalues(n, &a);
+            assert!(expected > m - 1);
+            let (f, _) = solve_saddle_expecting(n, &a, Ordering::Amd, m - 1);
+            if f.kind == FactorKind::Ldlt {
+                assert_eq!(f.negative_pivots, Some(expected));
+            }
+            assert!(f.fallback, "{f:?}");
+        }
     }
 }

@@ -51,6 +51,30 @@ pub enum LinearError {
     /// The solution has NaN or infinite entries: the matrix is singular.
     #[error("solution is not finite (singular tangent)")]
     NotFinite,
+    /// Fewer negative pivots than pressure unknowns: the volumetric block
+    /// of a mixed tangent is not negative definite (a law past its range,
+    /// or a factorization broken by round-off), so the step is not trusted.
+    #[error("the tangent has {found} negative pivots but {expected} pressure unknowns (inertia check)")]
+    Inertia {
+        /// Negative pivots a stable mixed tangent has (its pressure unknowns).
+        expected: usize,
+        /// Negative pivots found.
+        found: usize,
+    },
+}
+
+impl Factorization {
+    /// The inertia check of a mixed system with `expected` pressure
+    /// unknowns: fewer negative pivots than that is an error (the step is
+    /// not trusted); more means the displacements lost stability (a limit
+    /// or bifurcation point), which, like an indefinite tangent of a
+    /// displacement model, is reported through `fallback` and solved.
+    pub fn check_inertia(&self, expected: usize) -> Result<(), LinearError> {
+        match self.negative_pivots {
+            Some(found) if found < expected => Err(LinearError::Inertia { expected, found }),
+            _ => Ok(()),
+        }
+    }
 }
 
 /// The sparsity of a symmetric system as the solver analyses it: the lower
@@ -66,6 +90,11 @@ pub struct SymmetricPattern<'a> {
     pub row_idx: &'a [usize],
     /// Mesh node of each equation.
     pub eq_node: &'a [usize],
+    /// Equations expected to give a negative pivot: the pressure unknowns
+    /// of a mixed system, whose matrix is then symmetric indefinite with
+    /// this many negative eigenvalues while the displacements are stable.
+    /// With any, the solver goes straight to LDLᵀ and counts the inertia.
+    pub negative: usize,
 }
 
 impl SymmetricPattern<'_> {
@@ -96,8 +125,14 @@ pub struct Factorization {
     /// direction descends the energy and a line search on it is sound.
     pub positive_definite: bool,
     /// The preferred method failed and a more general one was used (an
-    /// indefinite tangent: worth a note in the log).
+    /// indefinite tangent: worth a note in the log). For a system with
+    /// expected negative pivots: the inertia differed from the expected one,
+    /// or LU was needed.
     pub fallback: bool,
+    /// Negative pivots of an LDLᵀ factorization (the matrix's count of
+    /// negative eigenvalues, by Sylvester's law of inertia); `None` for
+    /// Cholesky (none) and LU (not counted).
+    pub negative_pivots: Option<usize>,
 }
 
 /// A sparse linear solver bound to one pattern.

@@ -86,6 +86,9 @@ pub struct Job {
     /// For each rigid surface (same order), the fluids whose side set shares
     /// nodes with the side set it touches: the fluids its seal holds back.
     pub rigid_fluids: Vec<Vec<String>>,
+    /// For each rigid surface (same order), how many contact bands its
+    /// `history.csv` columns report (`bands`, default 0).
+    pub rigid_bands: Vec<usize>,
     /// Fluids, in file order: their pressure and wetted length or area go
     /// to `history.csv` and the summary.
     pub fluid_names: Vec<String>,
@@ -132,20 +135,37 @@ impl Job {
 
     /// The rigid-surface columns of `history.csv`: `rigid_<name>_<component>`
     /// (force of the rubber on the surface), `rigid_<name>_contact_width`,
-    /// `rigid_<name>_peak_pressure`, and with fluids `rigid_<name>_sealing_margin`.
+    /// `rigid_<name>_peak_pressure`, with fluids `rigid_<name>_sealing_margin`,
+    /// and with `bands` the band count `rigid_<name>_bands` and per band
+    /// `rigid_<name>_band<k>_contact_width`, `rigid_<name>_band<k>_peak_pressure`.
     pub fn rigid_columns(&self) -> Vec<String> {
         self.rigid_names
             .iter()
-            .flat_map(|n| {
+            .zip(&self.rigid_bands)
+            .flat_map(|(n, &bands)| {
                 let mut c: Vec<String> = self.components().iter().map(|c| format!("rigid_{n}_{c}")).collect();
                 c.push(format!("rigid_{n}_contact_width"));
                 c.push(format!("rigid_{n}_peak_pressure"));
                 if !self.fluid_names.is_empty() {
                     c.push(format!("rigid_{n}_sealing_margin"));
                 }
+                if bands > 0 {
+                    c.push(format!("rigid_{n}_bands"));
+                }
+                for k in 1..=bands {
+                    c.push(format!("rigid_{n}_band{k}_contact_width"));
+                    c.push(format!("rigid_{n}_band{k}_peak_pressure"));
+                }
                 c
             })
             .collect()
+    }
+
+    /// The gland and extrusion columns: `gland_<name>_fill`,
+    /// `gland_<name>_squeeze` (percent) and `extrusion_<name>_depth`.
+    pub fn seal_columns(&self) -> Vec<String> {
+        let glands = self.model.glands.iter().flat_map(|g| [format!("gland_{}_fill", g.name), format!("gland_{}_squeeze", g.name)]);
+        glands.chain(self.model.extrusion_gaps.iter().map(|x| format!("extrusion_{}_depth", x.name))).collect()
     }
 
     /// The fluid columns: `fluid_<name>_pressure` and
@@ -161,7 +181,8 @@ impl Job {
     }
 
     /// Every value column of `history.csv`, in order: applied loads,
-    /// reactions, rigid surfaces, fluids, inserts, then the increment's peaks
+    /// reactions, rigid surfaces, fluids, glands and extrusion gaps, inserts,
+    /// then the increment's peaks
     /// ([`PEAK_COLUMNS`]).
     pub fn history_columns(&self) -> Vec<String> {
         let mut c: Vec<String> = self.applied.iter().map(|a| a.name.clone()).collect();
@@ -169,6 +190,7 @@ impl Job {
         c.extend(self.moment_columns());
         c.extend(self.rigid_columns());
         c.extend(self.fluid_columns());
+        c.extend(self.seal_columns());
         c.extend(self.insert_columns().into_iter().map(|(n, _)| n));
         c.extend(PEAK_COLUMNS.iter().map(|(n, _)| n.to_string()));
         c
@@ -265,6 +287,9 @@ impl Builder<'_> {
         let rigid = self.rigid_bodies(&file, &mesh, kind)?;
         let (stages, inserts) = self.stages(&file, &mesh, kind)?;
         let fluids = self.fluids(&file, &mesh, kind)?;
+        let glands = self.glands(&file, kind, &rigid)?;
+        let extrusion_gaps = self.extrusion_gaps(&file, &mesh, kind, &rigid)?;
+        let rigid_bands = self.rigid_bands(&file)?;
         let reaction_sets = self.reaction_sets(&file);
         let output = self.output_plan(&file)?;
 
@@ -275,6 +300,8 @@ impl Builder<'_> {
             stages,
             rigid,
             fluids,
+            glands,
+            extrusion_gaps,
             inserts,
             moment_points: self.moment_points(&file, kind)?,
             linear: LinearSettings::default(),
@@ -319,6 +346,7 @@ impl Builder<'_> {
             reaction_sets,
             rigid_names: file.rigid.iter().map(|r| r.get_ref().name.get_ref().clone()).collect(),
             rigid_fluids,
+            rigid_bands,
             fluid_names,
             applied: applied_columns(&file, kind),
             insert_names: file.insert.iter().map(|r| r.get_ref().name.get_ref().clone()).collect(),
@@ -424,6 +452,7 @@ impl Builder<'_> {
             let formulation = match spec.formulation {
                 FormulationKind::Mixed => Formulation::Mixed,
                 FormulationKind::Displacement => Formulation::Displacement,
+                FormulationKind::ElementPressure => Formulation::ElementPressure,
             };
             mat.used_by.push(set.clone());
             mat.formulations.push(formulation);

@@ -116,7 +116,8 @@ impl Builder<'_> {
             for m in &file.motion {
                 let spec = m.get_ref();
                 let at = self.stage_index(&file.stage, &spec.stage)?;
-                if at > si {
+                // A harmonic stage's motions are amplitudes about the static state, not positions.
+                if at > si || stages[at].harmonic.is_some() {
                     continue;
                 }
                 let released = self.release_stage(&file.stage, &spec.release, at)?.is_some_and(|r| r <= si);
@@ -168,7 +169,7 @@ impl Builder<'_> {
             for (b, ins) in inserts.iter().enumerate() {
                 let before = held[b];
                 let mut after = before;
-                for d in stage.inserts.iter().filter(|d| d.insert == ins.name) {
+                for d in stage.inserts.iter().filter(|d| d.insert == ins.name && stage.harmonic.is_none()) {
                     for k in 0..6 {
                         match d.components[k] {
                             Some(InsertDrive::Move(v)) => after[k] = Some(v),

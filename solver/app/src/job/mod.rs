@@ -2,7 +2,7 @@
 //! at the edge of the program ([`schema`] describes the file, [`build`] and
 //! its stage part check it and turn it into a solver model, [`mesh_source`]
 //! makes the mesh and the selected sets, `rigid` the contact surfaces, `fluid`
-//! the fluids that wet the rubber), and
+//! the fluids that wet the rubber, `seal` glands, extrusion gaps and contact bands), and
 //! [`check`] reports on a job
 //! without solving it.
 
@@ -16,6 +16,7 @@ pub mod inserts;
 pub mod mesh_source;
 mod rigid;
 pub mod schema;
+mod seal;
 mod stages;
 
 pub use build::{load, load_str, Job, JobMaterial, OutputPlan, FIELD_NAMES, PEAK_COLUMNS};

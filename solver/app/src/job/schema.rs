@@ -57,6 +57,12 @@ pub struct JobFile {
     /// Rigid metal parts bonded to node sets.
     #[serde(default)]
     pub insert: Vec<Spanned<InsertSpec>>,
+    /// Seal glands (2-D) whose fill and squeeze are reported.
+    #[serde(default)]
+    pub gland: Vec<Spanned<GlandSpec>>,
+    /// Clearance gaps whose extrusion is reported (and may stop the run).
+    #[serde(default)]
+    pub extrusion: Vec<Spanned<ExtrusionSpec>>,
     /// Load stages, run in order.
     pub stage: Vec<Spanned<StageSpec>>,
     /// What to write and where.
@@ -206,7 +212,9 @@ pub struct RegionSpec {
     pub elements: Spanned<String>,
     /// Name of a table under `[materials]`.
     pub material: Spanned<String>,
-    /// `"mixed"` (u–p, default: no volumetric locking) or `"displacement"`.
+    /// `"mixed"` (u–p, default: no volumetric locking), `"element-pressure"`
+    /// (u–p with the pressure condensed per element, tet10 as P2/P0) or
+    /// `"displacement"`.
     #[serde(default)]
     pub formulation: FormulationKind,
 }
@@ -215,11 +223,14 @@ pub struct RegionSpec {
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq, Deserialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum FormulationKind {
-    /// Displacement with a pressure per element (default; for nearly incompressible rubber).
+    /// Displacement with the element's own pressure (default; for nearly incompressible rubber): per element, continuous for tet10.
     #[default]
     Mixed,
     /// Displacement only (locks when the material is nearly incompressible).
     Displacement,
+    /// Mixed with the pressure condensed in every element (tet10 as P2/P0
+    /// instead of its continuous Taylor–Hood pressure).
+    ElementPressure,
 }
 
 /// Components held at zero for the whole run.
@@ -479,6 +490,40 @@ pub struct RigidSpec {
     pub rotate: Option<Spanned<BTreeMap<String, f64>>>,
     /// How each stage's move or turn is spread over the stage (as for loads).
     pub ramp: Option<Spanned<RampSpec>>,
+    /// Number of connected contact bands reported in `history.csv`
+    /// (`rigid_<name>_band<k>_...`, numbered along the surface; default 0).
+    pub bands: Option<Spanned<i64>>,
+}
+
+/// A seal's gland in a 2-D section: the groove a rigid profile forms and the
+/// rigid surface that closes it.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct GlandSpec {
+    /// Name of the gland: columns `gland_<name>_...`.
+    pub name: Spanned<String>,
+    /// The `[[rigid]]` surface (a `polyline` or `arc`) forming the groove.
+    pub groove: Spanned<String>,
+    /// The `[[rigid]]` surface closing the groove (a bore, a cover).
+    pub closed_by: Spanned<String>,
+}
+
+/// The edge of a clearance gap a seal may extrude into.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ExtrusionSpec {
+    /// Name of the gap: column `extrusion_<name>_depth`.
+    pub name: Spanned<String>,
+    /// The gap's edge (reference position).
+    pub edge: Spanned<Vec<f64>>,
+    /// Direction from the edge into the gap.
+    pub into: Spanned<Vec<f64>>,
+    /// `[[rigid]]` surface whose motion the edge follows (default: fixed).
+    pub follows: Option<Spanned<String>>,
+    /// Set whose nodes are measured (default: every node).
+    pub nodes: Option<Spanned<String>>,
+    /// Intrusion beyond which the run stops (default: none).
+    pub max_depth: Option<Spanned<f64>>,
 }
 
 /// A straight rigid line in 2-D.

@@ -12,8 +12,8 @@ use super::build::Builder;
 use super::diagnostics::{nearest, InputError};
 use super::schema::{AnalysisKind, JobFile, RampSpec, RotationSpec, StageSpec};
 use olli_solver::model::{
-    Control, Force, Harmonic, IncrementControls, Insert, Motion, Pressure, Ramp, RotationMotion, Stage, Support, ARC_LENGTH_MAX_INCREMENTS,
-    BODY_FORCE_RAMP,
+    Control, Force, Harmonic, IncrementControls, Insert, InsertDrive, Motion, Pressure, Ramp, RotationMotion, Stage, Support,
+    ARC_LENGTH_MAX_INCREMENTS, BODY_FORCE_RAMP,
 };
 
 /// Default first increment of a stage with a duration (fraction of the
@@ -397,9 +397,9 @@ impl Builder<'_> {
         Ok(Some(Harmonic { frequencies: frequencies.clone() }))
     }
 
-    /// A harmonic stage is driven by motions alone (their displacements are
-    /// amplitudes): no other load, turn, release or rigid move, and at least
-    /// one non-zero amplitude.
+    /// A harmonic stage is driven by motions and inserts alone (their
+    /// displacements, turns, forces and moments are amplitudes): no other
+    /// load, turn, release or rigid move, and at least one non-zero amplitude.
     fn check_harmonic(&self, file: &JobFile, stages: &[Stage]) -> Result<(), InputError> {
         for (i, st) in stages.iter().enumerate().filter(|(_, st)| st.harmonic.is_some()) {
             let other = [
@@ -408,7 +408,6 @@ impl Builder<'_> {
                 (st.body_force.is_some(), "a [[body_force]]"),
                 (!st.fluid_pressures.is_empty(), "a [[fluid]] pressure"),
                 (!st.rigid_motions.is_empty(), "a [[rigid]] move"),
-                (!st.inserts.is_empty(), "an [[insert]] drive (not supported yet: drive a set bonded to it)"),
                 (!st.rotations.is_empty(), "a turning [[motion]]"),
                 (!st.releases.is_empty(), "a release"),
             ];
@@ -416,15 +415,20 @@ impl Builder<'_> {
             if let Some((_, what)) = other.iter().find(|(has, _)| *has) {
                 return Err(self.err(
                     span,
-                    format!("harmonic stage `{}` has {what}; a harmonic stage is driven by [[motion]] amplitudes alone", st.name),
+                    format!(
+                        "harmonic stage `{}` has {what}; a harmonic stage is driven by [[motion]] and [[insert]] amplitudes alone",
+                        st.name
+                    ),
                 ));
             }
-            let driven = st.motions.iter().any(|m| m.displacement.iter().any(|v| v.is_some_and(|a| a != 0.0)));
+            let moved = st.motions.iter().any(|m| m.displacement.iter().any(|v| v.is_some_and(|a| a != 0.0)));
+            let insert = |d: &Option<InsertDrive>| matches!(d, Some(InsertDrive::Move(a) | InsertDrive::Load(a)) if *a != 0.0);
+            let driven = moved || st.inserts.iter().any(|i| i.components.iter().any(insert));
             if !driven {
                 return Err(self.err(
                     span,
                     format!(
-                        "harmonic stage `{}` drives nothing: give a [[motion]] with `stage = \"{}\"` and a non-zero `displacement` (the amplitude)",
+                        "harmonic stage `{}` drives nothing: give a [[motion]] with `stage = \"{}\"` and a non-zero `displacement` (the amplitude), or an [[insert]] `move`, `turn`, `force` or `moment` in it",
                         st.name, st.name
                     ),
                 ));

@@ -59,7 +59,7 @@ impl EventText {
             }
             Event::Harmonic(d) => {
                 let driven = d.stiffness.len();
-                format!("harmonic stage `{}`: {} frequencies, {driven} driven set components", d.stage_name, d.frequencies.len())
+                format!("harmonic stage `{}`: {} frequencies, {driven} driven set and insert components", d.stage_name, d.frequencies.len())
             }
             Event::Converged(r) => {
                 // + 0.0: an empty sum (a stage with no free equations) is −0.0, printed "-0.00e0".

@@ -12,6 +12,7 @@ use serde::Serialize;
 
 use super::vtu::Field;
 use olli_solver::assembly::{point_states_with_history, Discretization};
+use olli_solver::element::taylor_hood::MAX_PRESSURE_NODES;
 use olli_solver::element::{PointState, MAX_POINTS};
 use olli_solver::error::SolveError;
 use olli_solver::results::{element_mean, nodal_average, nodal_quantities, HistoryValues};
@@ -201,10 +202,12 @@ fn merge(into: &mut Peaks, from: &mut Peaks) {
 fn element_result(disc: &Discretization, e: usize, u: &[f64], history: Option<&HistoryValues>) -> Result<ElementResult, SolveError> {
     let (mut x, mut ue) = ([[0.0; 3]; MAX_NODES], [[0.0; 3]; MAX_NODES]);
     disc.gather(e, u, &mut x, &mut ue);
+    let mut pressures = [0.0; MAX_PRESSURE_NODES];
+    let corners = disc.gather_pressures(e, u, &mut pressures);
     let ctx = disc.context(e);
     let np = ctx.shape.points();
     let mut states = [PointState::default(); MAX_POINTS];
-    point_states_with_history(&ctx, &x, &ue, history.map(|h| h.element(e)), &mut states[..np])
+    point_states_with_history(&ctx, &x, &ue, &pressures[..corners], history.map(|h| h.element(e)), &mut states[..np])
         .map_err(|err| SolveError::from_element(e, err))?;
     let (means, volume) = element_mean(&states[..np], |s| {
         let q = nodal_quantities(s);

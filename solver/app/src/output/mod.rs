@@ -14,6 +14,7 @@ pub mod fields;
 pub mod history;
 pub mod performance;
 pub mod pvd;
+pub mod seal_values;
 pub mod stage_peaks;
 pub mod summary;
 pub mod vtu;

@@ -62,7 +62,9 @@ pub struct RunSummary {
     /// component (axisymmetric: over the full 2π).
     pub reactions: BTreeMap<String, BTreeMap<String, f64>>,
     /// Each rigid surface at the last converged increment: the force of the
-    /// rubber on it by component, `contact_width` and `peak_pressure`.
+    /// rubber on it by component, `contact_width` and `peak_pressure`, with
+    /// fluids `sealing_margin`, and its contact bands (`bands`, the count,
+    /// and `band<k>_contact_width`, `band<k>_peak_pressure` for each).
     pub rigid: BTreeMap<String, BTreeMap<String, f64>>,
     /// Each fluid at the last converged increment: `pressure` and
     /// `wetted_length` (2-D) or `wetted_area` (3-D).
@@ -74,6 +76,12 @@ pub struct RunSummary {
     /// (`x` ... `rz`, rotations in degrees), `force_<c>` and `moment_<c>` of
     /// the rubber on it.
     pub inserts: BTreeMap<String, BTreeMap<String, f64>>,
+    /// Each `[[gland]]` at the last converged increment: `fill` and
+    /// `squeeze` (percent), `rubber_area`, `free_area`, `depth`.
+    pub glands: BTreeMap<String, super::seal_values::GlandEntry>,
+    /// Each `[[extrusion]]` gap at the last converged increment: `depth`
+    /// past its edge, the `node` reaching furthest and where it is (`at`).
+    pub extrusions: BTreeMap<String, super::seal_values::ExtrusionEntry>,
     /// Largest force of the stabilization springs relative to the force
     /// scale over the run (0 without stabilization); keep it well below 1 %.
     pub stabilization_share: f64,
@@ -146,7 +154,11 @@ pub fn units(columns: &[String]) -> BTreeMap<String, String> {
         }
         let dimension = if c.contains("_moment_") {
             "force·length"
-        } else if c.ends_with("_contact_width") || c.ends_with("_wetted_length") {
+        } else if c.ends_with("_bands") {
+            "count"
+        } else if c.ends_with("_fill") || c.ends_with("_squeeze") {
+            "percent"
+        } else if c.ends_with("_contact_width") || c.ends_with("_wetted_length") || (c.starts_with("extrusion_") && c.ends_with("_depth")) {
             "length"
         } else if c.ends_with("_wetted_area") {
             "area (length²)"

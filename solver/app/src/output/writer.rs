@@ -17,6 +17,7 @@ use super::fields::{frame, Peaks};
 use super::history::History;
 use super::performance::{peak_memory_mib, Performance};
 use super::pvd::{pvd_text, PvdEntry};
+use super::seal_values::{band_entries, band_values, extrusion_entries, gland_entries, seal_values};
 use super::stage_peaks::{self, StagePeaks};
 use super::summary::{units, Files, IncrementRef, RunSummary};
 use super::vtu::{write_vtu, Field};
@@ -168,6 +169,7 @@ impl<'m> ResultWriter<'m> {
         }
         let with_fluids = !job.fluid_names.is_empty();
         for (i, name) in job.rigid_names.iter().enumerate() {
+            let bands = job.rigid_bands[i];
             match r.contact.iter().find(|c| &c.name == name) {
                 Some(c) => {
                     values.extend(c.force.into_iter().take(dim));
@@ -176,8 +178,12 @@ impl<'m> ResultWriter<'m> {
                     if with_fluids {
                         values.push(c.peak_pressure - job.sealed_pressure(i, r));
                     }
+                    values.extend(band_values(&c.bands, bands));
                 }
-                None => values.extend(std::iter::repeat_n(0.0, dim + 2 + usize::from(with_fluids))),
+                None => {
+                    values.extend(std::iter::repeat_n(0.0, dim + 2 + usize::from(with_fluids)));
+                    values.extend(band_values(&[], bands));
+                }
             }
         }
         for name in &job.fluid_names {
@@ -185,6 +191,7 @@ impl<'m> ResultWriter<'m> {
             values.push(f.map_or(0.0, |f| f.pressure));
             values.push(f.map_or(0.0, |f| f.wetted_measure));
         }
+        values.extend(seal_values(job, r));
         for name in &self.job.insert_names {
             if let Some(ins) = r.inserts.iter().find(|i| &i.name == name) {
                 values.extend(crate::job::inserts::insert_values(self.job.kind, ins));
@@ -220,7 +227,7 @@ impl<'m> ResultWriter<'m> {
     fn write_frame(&mut self, r: &IncrementResult) -> io::Result<()> {
         let (stage, increment, load_factor) = (r.stage, r.increment, r.load_factor);
         let dim = self.disc.dim;
-        let u: Vec<f64> = r.displacement.iter().flat_map(|x| x[..dim].to_vec()).collect();
+        let u = r.solution_vector(dim);
         let mut f = frame(&self.disc, &u, &r.nodal_reactions, r.history.as_ref(), &self.job.output.fields).map_err(io::Error::other)?;
         if let Some(c) = r.contact_fields.as_ref().filter(|_| self.job.output.fields.iter().any(|w| w == "contact")) {
             f.point.push(Field::new("contact_pressure", 1, c.pressure.clone()));
@@ -278,6 +285,7 @@ impl<'m> ResultWriter<'m> {
                     | SolveError::ArcLengthUnfinished { stage, .. }
                     | SolveError::ArcLengthUnloaded { stage, .. }
                     | SolveError::ArcTooShort { stage, .. } => stage.clone(),
+                    SolveError::Extruded(stop) => stop.stage.clone(),
                     _ => last.map(|r| r.stage_name.clone()).unwrap_or_else(|| stages[0].name.clone()),
                 };
                 ("stopped", Some(e.to_string()), Some(stage))
@@ -311,6 +319,7 @@ impl<'m> ResultWriter<'m> {
                     if let Some(i) = self.job.rigid_names.iter().position(|n| n == &c.name).filter(|_| !self.job.fluid_names.is_empty()) {
                         m.insert("sealing_margin".into(), c.peak_pressure - self.job.sealed_pressure(i, r));
                     }
+                    band_entries(&c.bands, &mut m);
                     (c.name.clone(), m)
                 })
                 .collect(),
@@ -357,6 +366,8 @@ impl<'m> ResultWriter<'m> {
             fluids,
             applied,
             inserts,
+            glands: last.map(gland_entries).unwrap_or_default(),
+            extrusions: last.map(|r| extrusion_entries(self.job, r, self.disc.dim)).unwrap_or_default(),
             stabilization_share: self.stabilization_share,
             peaks: self.last_peaks,
             stage_peaks: self.stage_peaks.clone(),

@@ -84,7 +84,7 @@ impl BlockSystem {
             col_ptr.push(row_idx.len());
         }
         let eq_node: Vec<usize> = pattern.eq_node.iter().chain(&pattern.eq_node).copied().collect();
-        let doubled = SymmetricPattern { n: 2 * n, col_ptr: &col_ptr, row_idx: &row_idx, eq_node: &eq_node };
+        let doubled = SymmetricPattern { n: 2 * n, col_ptr: &col_ptr, row_idx: &row_idx, eq_node: &eq_node, negative: 0 };
         let linear = linear::analyse(&doubled, settings)?;
         let values = vec![0.0; sources.len()];
         Ok(BlockSystem { n, sources, upper_left, lower_right, values, skew: Vec::new(), linear })
