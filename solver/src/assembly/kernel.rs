@@ -5,13 +5,15 @@
 //! at the element's dilatation); the element integrates the answers
 //! ([`integrate_into`], [`point_states_into`]).
 
+use std::cell::RefCell;
+
 use thiserror::Error;
 
 use super::history::ElementHistory;
 use crate::element::pressure_space::PressureSpace;
 use crate::element::taylor_hood::{integrate_continuous_into, PressureResponse};
 use crate::element::{
-    integrate_into, kinematics, point_states_into, Analysis, ElementError, ElementKinematics, Formulation, MixedState, PointResponse,
+    integrate_into, kinematics_into, point_states_into, Analysis, ElementError, ElementKinematics, Formulation, MixedState, PointResponse,
     PointState, Shape, VolumetricResponse, MAX_POINTS,
 };
 use crate::material::{Material, MaterialError, PointHistory};
@@ -124,6 +126,16 @@ fn responses(
     Ok(())
 }
 
+thread_local! {
+    /// Each thread's [`MaterialAt`] buffer, reused element after element.
+    static SCRATCH: RefCell<Box<MaterialAt>> = RefCell::new(Box::new(MaterialAt::blank()));
+}
+
+/// Runs `f` with this thread's element buffer.
+fn with_scratch<R>(f: impl FnOnce(&mut MaterialAt) -> R) -> R {
+    SCRATCH.with(|s| f(&mut s.borrow_mut()))
+}
+
 /// One element's kinematics with the material evaluated at its points.
 struct MaterialAt {
     kinematics: ElementKinematics,
@@ -135,26 +147,33 @@ struct MaterialAt {
 }
 
 impl MaterialAt {
+    fn blank() -> Self {
+        MaterialAt {
+            kinematics: ElementKinematics::blank(),
+            volumetric: [VolumetricResponse::default(); MAX_POINTS],
+            volumetric_count: 0,
+            responses: [PointResponse::default(); MAX_POINTS],
+        }
+    }
+
+    /// Fills `self` for one element, in place (no copy of the buffers,
+    /// which are sized for the largest element).
     fn evaluate(
+        &mut self,
         ctx: &ElementContext,
         x: &[[f64; 3]],
         u: &[[f64; 3]],
         state: Option<&MixedState>,
         history: Option<&mut ElementHistory>,
-    ) -> Result<Self, KernelError> {
-        let kinematics = kinematics(ctx.shape, ctx.analysis, x, u)?;
+    ) -> Result<(), KernelError> {
+        kinematics_into(ctx.shape, ctx.analysis, x, u, &mut self.kinematics)?;
         let condensed = ctx.formulation == Formulation::Mixed;
-        let mut out = MaterialAt {
-            kinematics,
-            volumetric: [VolumetricResponse::default(); MAX_POINTS],
-            volumetric_count: 0,
-            responses: [PointResponse::default(); MAX_POINTS],
-        };
+        self.volumetric_count = 0;
         if condensed {
-            out.volumetric_count = volumetric(ctx.material, &out.kinematics, state, &mut out.volumetric)?;
+            self.volumetric_count = volumetric(ctx.material, &self.kinematics, state, &mut self.volumetric)?;
         }
-        responses(ctx.material, ctx.formulation.is_mixed(), &out.kinematics, history, &mut out.responses)?;
-        Ok(out)
+        let points = self.kinematics.points().len();
+        responses(ctx.material, ctx.formulation.is_mixed(), &self.kinematics, history, &mut self.responses[..points])
     }
 
     fn volumetric(&self) -> &[VolumetricResponse] {
@@ -231,9 +250,11 @@ pub(crate) fn element_through(
     state: Option<&mut MixedState>,
     history: Option<&mut ElementHistory>,
 ) -> Result<f64, KernelError> {
-    let at = MaterialAt::evaluate(ctx, x, u, state.as_deref(), history)?;
-    let state = if at.volumetric_count > 0 { state } else { None };
-    Ok(integration(&at.kinematics, at.responses(), at.volumetric(), force, stiffness, state)?)
+    with_scratch(|at| {
+        at.evaluate(ctx, x, u, state.as_deref(), history)?;
+        let state = if at.volumetric_count > 0 { state } else { None };
+        Ok(integration(&at.kinematics, at.responses(), at.volumetric(), force, stiffness, state)?)
+    })
 }
 
 /// Per-point results of one element into `out` (length ≥ `shape.points()`).
@@ -261,18 +282,20 @@ pub fn point_states_with_history(
         time_step: 0.0,
         tangent: Default::default(),
     });
-    let at = MaterialAt::evaluate(ctx, x, u, None, history.as_mut())?;
-    point_states_into(&at.kinematics, at.responses(), at.volumetric(), out)?;
-    if ctx.formulation == Formulation::ContinuousPressure {
-        let mut laws = [PressureResponse::default(); MAX_POINTS];
-        let count = pressure_laws(ctx.material, &at.kinematics, pressures, &mut laws)?;
-        for (o, law) in out.iter_mut().zip(&laws[..count]) {
-            o.cauchy += nalgebra::Matrix3::identity() * law.pressure;
-            o.pressure = -o.cauchy.trace() / 3.0;
-            o.energy_density += law.energy;
+    with_scratch(|at| {
+        at.evaluate(ctx, x, u, None, history.as_mut())?;
+        point_states_into(&at.kinematics, at.responses(), at.volumetric(), out)?;
+        if ctx.formulation == Formulation::ContinuousPressure {
+            let mut laws = [PressureResponse::default(); MAX_POINTS];
+            let count = pressure_laws(ctx.material, &at.kinematics, pressures, &mut laws)?;
+            for (o, law) in out.iter_mut().zip(&laws[..count]) {
+                o.cauchy += nalgebra::Matrix3::identity() * law.pressure;
+                o.pressure = -o.cauchy.trace() / 3.0;
+                o.energy_density += law.energy;
+            }
         }
-    }
-    Ok(())
+        Ok(())
+    })
 }
 
 /// The volumetric law at the continuous pressure p_h of every point
@@ -319,8 +342,10 @@ pub fn element_continuous_into(
     stiffness: Option<&mut [f64]>,
     history: Option<&mut ElementHistory>,
 ) -> Result<f64, KernelError> {
-    let at = MaterialAt::evaluate(ctx, x, u, None, history)?;
-    let mut laws = [PressureResponse::default(); MAX_POINTS];
-    let count = pressure_laws(ctx.material, &at.kinematics, pressures, &mut laws)?;
-    Ok(integrate_continuous_into(&at.kinematics, at.responses(), &laws[..count], scale, force, stiffness)?)
+    with_scratch(|at| {
+        at.evaluate(ctx, x, u, None, history)?;
+        let mut laws = [PressureResponse::default(); MAX_POINTS];
+        let count = pressure_laws(ctx.material, &at.kinematics, pressures, &mut laws)?;
+        Ok(integrate_continuous_into(&at.kinematics, at.responses(), &laws[..count], scale, force, stiffness)?)
+    })
 }

@@ -13,7 +13,8 @@ use crate::shape::{ShapeKind, MAX_NODES};
 /// 2 or 3 (the registry in [`crate::shape`]).
 pub type Shape = ShapeKind;
 
-/// Geometry of one integration point (entries beyond the node count are zero).
+/// Geometry of one integration point (from [`point_geometry`], entries
+/// beyond the node count are zero).
 #[derive(Debug, Clone, Copy)]
 pub struct PointGeometry {
     /// Shape function values N_a at the point.
@@ -35,10 +36,24 @@ impl Default for PointGeometry {
 /// Geometry of integration point `point` of the shape's rule for an element
 /// with reference node positions `x`.
 pub fn point_geometry(shape: ShapeKind, analysis: Analysis, x: &[[f64; 3]], point: usize) -> Result<PointGeometry, ElementError> {
+    let mut out = PointGeometry::default();
+    point_geometry_into(shape, analysis, x, point, &mut out)?;
+    Ok(out)
+}
+
+/// [`point_geometry`] written in place: only the entries of the shape's
+/// nodes are written (the others keep what `out` held), so a reused buffer
+/// costs no copy of the largest element's arrays.
+pub fn point_geometry_into(
+    shape: ShapeKind,
+    analysis: Analysis,
+    x: &[[f64; 3]],
+    point: usize,
+    out: &mut PointGeometry,
+) -> Result<(), ElementError> {
     let table = shape.table();
     let (n, d) = (table.values(point), table.derivatives(point));
     let nodes = n.len();
-    let mut out = PointGeometry::default();
     out.n[..nodes].copy_from_slice(n);
     // One 3×3 Jacobian for both dimensions: a 2-D shape's third row and
     // column are the identity, so its determinant and inverse are the 2×2 ones.
@@ -69,8 +84,14 @@ pub fn point_geometry(shape: ShapeKind, analysis: Analysis, x: &[[f64; 3]], poin
             }
             2.0 * PI * r * w
         }
-        Analysis::PlaneStrain { thickness } => thickness * w,
-        Analysis::Solid3d => w,
+        Analysis::PlaneStrain { thickness } => {
+            out.radius = 0.0;
+            thickness * w
+        }
+        Analysis::Solid3d => {
+            out.radius = 0.0;
+            w
+        }
     };
-    Ok(out)
+    Ok(())
 }

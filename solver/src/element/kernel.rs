@@ -12,7 +12,7 @@ use nalgebra::{Matrix3, SMatrix, SVector};
 
 use nalgebra::Vector4;
 
-use super::geometry::{point_geometry, PointGeometry};
+use super::geometry::{point_geometry_into, PointGeometry};
 use super::pressure_space::{Gram, PressureBasis, PressureSpace, MAX_PRESSURES};
 use super::{Analysis, ElementError, Shape};
 
@@ -85,6 +85,16 @@ pub(super) struct BOp<'g> {
 impl BOp<'_> {
     /// `out += s · Bᵀ v`.
     pub(super) fn add_transpose<const ND: usize>(&self, v: &V9, s: f64, out: &mut SVector<f64, ND>) {
+        if self.dim == 3 {
+            // 3-D: no hoop row; the same sums over plain node blocks.
+            let v: &[f64; 9] = v.as_slice().try_into().expect("a 9-vector");
+            for (g, o) in self.geo.g.iter().zip(out.as_mut_slice().chunks_exact_mut(3)).take(ND / 3) {
+                for i in 0..3 {
+                    o[i] += s * (g[0] * v[3 * i] + g[1] * v[3 * i + 1] + g[2] * v[3 * i + 2]);
+                }
+            }
+            return;
+        }
         for a in 0..ND / self.dim {
             let g = &self.geo.g[a];
             for i in 0..self.dim {
@@ -101,6 +111,9 @@ impl BOp<'_> {
     /// product's work). `LOWER`: only the lower triangle (rows ≥ column),
     /// for a symmetric `A`; the caller mirrors it once per element.
     pub(super) fn add_btab<const ND: usize, const LOWER: bool>(&self, a: &M9, s: f64, k: &mut SMatrix<f64, ND, ND>) {
+        if LOWER && self.dim == 3 {
+            return self.add_btab_solid::<ND>(a, s, k);
+        }
         let mut ab = SMatrix::<f64, 9, ND>::zeros();
         for b in 0..ND / self.dim {
             let g = &self.geo.g[b];
@@ -129,6 +142,48 @@ impl BOp<'_> {
                         t += abc[8] * self.geo.n[a_] / self.geo.radius;
                     }
                     k[(a_ * self.dim + i, c)] += t;
+                }
+            }
+        }
+    }
+}
+
+impl BOp<'_> {
+    /// [`BOp::add_btab`] lower triangle for a 3-D element (no hoop row), node
+    /// block by node block over plain arrays: the same sums in the same order
+    /// (so the same bits) with no per-entry branches or index arithmetic
+    /// beyond the blocks, which the compiler unrolls.
+    fn add_btab_solid<const ND: usize>(&self, a: &M9, s: f64, k: &mut SMatrix<f64, ND, ND>) {
+        let a: &[f64; 81] = a.as_slice().try_into().expect("a 9×9 matrix");
+        let nodes = ND / 3;
+        let g = &self.geo.g[..nodes];
+        // ab[c][r] = s · (A B)[r][c] for column c = 3b + kk of node b.
+        let mut ab = [[0.0; 9]; ND];
+        for (b, gb) in g.iter().enumerate() {
+            for kk in 0..3 {
+                let (c0, c1, c2) = (&a[27 * kk..27 * kk + 9], &a[27 * kk + 9..27 * kk + 18], &a[27 * kk + 18..27 * kk + 27]);
+                let col = &mut ab[3 * b + kk];
+                for r in 0..9 {
+                    col[r] = s * (c0[r] * gb[0] + c1[r] * gb[1] + c2[r] * gb[2]);
+                }
+            }
+        }
+        let kv = k.as_mut_slice();
+        for b in 0..nodes {
+            for kk in 0..3 {
+                let c = 3 * b + kk;
+                let abc = &ab[c];
+                let column = &mut kv[c * ND..(c + 1) * ND];
+                // The diagonal block from row c down, then the blocks below.
+                let ga = &g[b];
+                for i in kk..3 {
+                    column[3 * b + i] += ga[0] * abc[3 * i] + ga[1] * abc[3 * i + 1] + ga[2] * abc[3 * i + 2];
+                }
+                for (an, ga) in g.iter().enumerate().skip(b + 1) {
+                    let rows = &mut column[3 * an..3 * an + 3];
+                    for i in 0..3 {
+                        rows[i] += ga[0] * abc[3 * i] + ga[1] * abc[3 * i + 1] + ga[2] * abc[3 * i + 2];
+                    }
                 }
             }
         }
@@ -298,20 +353,54 @@ impl LinearPressure {
 /// positions `x` and displacements `u` (three entries per node, the third
 /// ignored in 2-D). Fails on a bad reference element or an inverted point.
 pub fn kinematics(shape: Shape, analysis: Analysis, x: &[[f64; 3]], u: &[[f64; 3]]) -> Result<ElementKinematics, ElementError> {
+    let mut out = ElementKinematics::blank();
+    kinematics_into(shape, analysis, x, u, &mut out)?;
+    Ok(out)
+}
+
+impl ElementKinematics {
+    /// An element of no points, to be filled by [`kinematics_into`].
+    pub fn blank() -> Self {
+        ElementKinematics {
+            shape: Shape::Hex8,
+            analysis: Analysis::Solid3d,
+            points: [PointKinematics::default(); MAX_POINTS],
+            basis: PressureBasis::new(PressureSpace::Constant, 3, &[]),
+            volume: 0.0,
+            deformed_volume: 0.0,
+        }
+    }
+}
+
+/// [`kinematics`] written in place: only the element's own points and nodes
+/// are written, so one buffer, sized for the largest element, serves every
+/// element of an assembly without being copied or cleared (what made the
+/// per-element cost of small meshes).
+pub fn kinematics_into(
+    shape: Shape,
+    analysis: Analysis,
+    x: &[[f64; 3]],
+    u: &[[f64; 3]],
+    out: &mut ElementKinematics,
+) -> Result<(), ElementError> {
     let axisymmetric = analysis == Analysis::Axisymmetric;
     let dim = shape.dimension();
     if dim < 2 {
         return Err(ElementError::NotAnElement { shape: shape.name() });
     }
     let nodes = shape.nodes();
-    let basis = PressureBasis::new(PressureSpace::of_shape(shape), dim, &x[..nodes]);
-    let mut out =
-        ElementKinematics { shape, analysis, points: [PointKinematics::default(); MAX_POINTS], basis, volume: 0.0, deformed_volume: 0.0 };
+    out.shape = shape;
+    out.analysis = analysis;
+    out.basis = PressureBasis::new(PressureSpace::of_shape(shape), dim, &x[..nodes]);
+    out.volume = 0.0;
+    out.deformed_volume = 0.0;
     for q in 0..shape.points() {
-        let geo = point_geometry(shape, analysis, x, q)?;
+        let point = &mut out.points[q];
+        let geo = &mut point.geo;
+        point_geometry_into(shape, analysis, x, q, geo)?;
         // F = I + B u, written out over the sparse B (see `BOp`).
         let mut f = Matrix3::<f64>::zeros();
-        for a in 0..shape.nodes() {
+        for a in 0..nodes {
             for i in 0..dim {
                 for jj in 0..3 {
                     f[(i, jj)] += u[a][i] * geo.g[a][jj];
@@ -328,10 +417,11 @@ pub fn kinematics(shape: Shape, analysis: Analysis, x: &[[f64; 3]], u: &[[f64; 3
         }
         out.volume += geo.dv;
         out.deformed_volume += j * geo.dv;
-        let position = std::array::from_fn(|c| (0..nodes).map(|a| geo.n[a] * x[a][c]).sum());
-        out.points[q] = PointKinematics { geo, f, j, position };
+        point.position = std::array::from_fn(|c| (0..nodes).map(|a| geo.n[a] * x[a][c]).sum());
+        point.f = f;
+        point.j = j;
     }
-    Ok(out)
+    Ok(())
 }
 
 /// Element pressure and dilatation carried as Newton unknowns of the

@@ -38,8 +38,8 @@ pub mod taylor_hood;
 
 pub use geometry::{PointGeometry, Shape};
 pub use kernel::{
-    integrate_into, kinematics, point_states_into, ElementKinematics, MixedState, PointKinematics, PointResponse, PointState,
-    VolumetricResponse, MAX_DOFS, MAX_POINTS,
+    integrate_into, kinematics, kinematics_into, point_states_into, ElementKinematics, MixedState, PointKinematics, PointResponse,
+    PointState, VolumetricResponse, MAX_DOFS, MAX_POINTS,
 };
 
 use thiserror::Error;

@@ -63,6 +63,20 @@ pub fn langevin(x: f64) -> f64 {
     }
 }
 
+/// `L(x)` (bit for bit [`langevin`]) and an `L'(x)` for Newton's steps, from
+/// one pair of exponentials in the middle range: `1/sinh² a = 4e/(1 − e)²`
+/// with `e = exp(−2a)`, where `1 − e ≥ 0.86` is exact to rounding.
+fn langevin_for_newton(x: f64) -> (f64, f64) {
+    let a = x.abs();
+    if !(SERIES_LIMIT..=ASYMPTOTIC_X).contains(&a) {
+        return (langevin(x), langevin_derivative(x));
+    }
+    let e = (-2.0 * a).exp();
+    let m = -(-2.0 * a).exp_m1();
+    let value = x.signum() * ((a - 1.0) / a + 2.0 * e / m);
+    (value, 1.0 / (x * x) - 4.0 * e / (m * m))
+}
+
 /// Derivative `L'(x) = 1/x² − 1/sinh² x`, even, `L'(0) = 1/3`.
 pub fn langevin_derivative(x: f64) -> f64 {
     let a = x.abs();
@@ -106,7 +120,8 @@ pub fn inverse_langevin(y: f64) -> Option<f64> {
     // below the root after one step and then climbs monotonically to it.
     let mut x = inverse_langevin_cohen(y);
     for _ in 0..50 {
-        let dx = (langevin(x) - y) / langevin_derivative(x);
+        let (value, slope) = langevin_for_newton(x);
+        let dx = (value - y) / slope;
         x -= dx;
         if dx.abs() <= 2.0 * f64::EPSILON * x {
             break;
@@ -128,6 +143,22 @@ mod tests {
         let d = langevin(below) - langevin(above);
         assert!(d.abs() < 2e-16, "{} {} {d:e}", langevin(below), langevin(above));
         assert!((langevin_derivative(below) - langevin_derivative(above)).abs() < 1e-15);
+    }
+
+    // L'(x) = 1/x² − 1/sinh² x (definition of the derivative): the one-exponential
+    // form used in Newton's steps equals the sinh form to rounding, and its
+    // value is the Langevin function itself, bit for bit.
+    #[test]
+    fn newton_slope_equals_the_derivative() {
+        for k in 0..=240 {
+            let x = 0.5 + 0.11 * k as f64;
+            for x in [x, -x] {
+                let (value, slope) = langevin_for_newton(x);
+                assert_eq!(value, langevin(x), "x = {x}");
+                let exact = langevin_derivative(x);
+                assert!((slope - exact).abs() <= 1e-13 * exact, "x = {x}: {slope:e} vs {exact:e}");
+            }
+        }
     }
 
     #[test]
