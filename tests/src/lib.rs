@@ -367,3 +367,47 @@ pub fn contact_modulus(mu: f64, kappa: f64) -> f64 {
     let nu = (3.0 * kappa - 2.0 * mu) / (2.0 * (3.0 * kappa + mu));
     e / (1.0 - nu * nu)
 }
+
+/// The checkerboard share of a pressure field (Sani, Gresho, Lee & Griffiths
+/// 1981, the leaky cavity, from memory): the volume-averaged pressure of the
+/// elements whose centres fall in each cell of an `n × n` grid over the unit
+/// square in x and y, then |Σ P_ij (−1)^(i+j)| / Σ |P_ij|. Near 0 for a
+/// smooth field, near 1 for a pure checkerboard.
+pub fn checkerboard_share(mesh: &Mesh, points: &olli_solver::PointFields, n: usize) -> f64 {
+    let (mut pv, mut vol) = (vec![0.0; n * n], vec![0.0; n * n]);
+    for e in 0..mesh.element_count() {
+        let nodes = mesh.element_nodes(e);
+        let centre: [f64; 2] = std::array::from_fn(|c| nodes.iter().map(|&k| mesh.nodes[k][c]).sum::<f64>() / nodes.len() as f64);
+        let cell = |x: f64| ((x * n as f64) as usize).min(n - 1);
+        let at = cell(centre[1]) * n + cell(centre[0]);
+        for p in points.element(e) {
+            pv[at] += p.pressure * p.volume;
+            vol[at] += p.volume;
+        }
+    }
+    let cells: Vec<f64> = pv.iter().zip(&vol).map(|(p, v)| p / v).collect();
+    let alternating: f64 = cells.iter().enumerate().map(|(k, p)| if (k / n + k % n).is_multiple_of(2) { *p } else { -p }).sum();
+    alternating.abs() / cells.iter().map(|p| p.abs()).sum::<f64>()
+}
+
+/// Newton–Raphson with the consistent tangent converges quadratically near
+/// the solution (Dennis & Schnabel 1983, Numerical Methods for Unconstrained
+/// Optimization and Nonlinear Equations, Thm. 5.2.1): in the asymptotic
+/// range (r_k < 1e-2 and r_{k+1} above the rounding `floor`) the order
+/// log r_{k+1} / log r_k of the relative residual history `h` must exceed
+/// 1.75 (a wrong tangent gives about 1), at least one step must be in that
+/// range, and the last residual must be below 1e-11.
+pub fn assert_quadratic_order(h: &[f64], floor: f64) {
+    eprintln!("relative residual history: {h:?}");
+    let mut checked = 0;
+    for k in 0..h.len() - 1 {
+        if h[k] < 1e-2 && h[k + 1] > floor {
+            let order = h[k + 1].ln() / h[k].ln();
+            eprintln!("r{k} = {:.2e} → {:.2e}: order {order:.2}", h[k], h[k + 1]);
+            assert!(order > 1.75, "order {order} at iteration {k}");
+            checked += 1;
+        }
+    }
+    assert!(checked >= 1, "no iteration in the asymptotic range: {h:?}");
+    assert!(*h.last().unwrap() < 1e-11);
+}
