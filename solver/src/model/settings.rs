@@ -10,8 +10,8 @@
 use thiserror::Error;
 
 use super::{
-    ControlsError, Fluid, FluidPressure, Force, Insert, InsertDrive, InsertStage, LinearSettings, Model, Motion, Ordering, Pressure, Ramp,
-    RigidBody, RigidMotion, RotationMotion, Stage,
+    ControlsError, ExtrusionGap, Fluid, FluidPressure, Force, Gland, Insert, InsertDrive, InsertStage, LinearSettings, Model, Motion,
+    Ordering, Pressure, Ramp, RigidBody, RigidMotion, RigidShape, RotationMotion, Stage,
 };
 
 /// A setting that cannot drive a run, with where it sits.
@@ -50,6 +50,26 @@ pub enum SettingsError {
         value: usize,
         /// Out of range, or repeated.
         reason: &'static str,
+    },
+    /// A name that refers to nothing in the model (a rigid body, a node set).
+    #[error("{owner}: `{field}` names {kind} `{name}`, which the model does not have")]
+    UnknownName {
+        /// What the setting belongs to, e.g. "gland `rod`".
+        owner: String,
+        /// The field holding the name.
+        field: &'static str,
+        /// What kind of thing the name should be ("rigid body", "node set").
+        kind: &'static str,
+        /// The name given.
+        name: String,
+    },
+    /// A gland whose groove is not a profile (a polyline or an arc).
+    #[error("gland `{gland}`: its groove `{groove}` is not a profile (polyline or arc)")]
+    GrooveNotProfile {
+        /// The gland.
+        gland: String,
+        /// The rigid body named as its groove.
+        groove: String,
     },
     /// Increment controls of a stage.
     #[error("stage `{stage}`: {source}")]
@@ -115,6 +135,54 @@ impl Fluid {
     /// The fluid, if [`Self::validate`] accepts it.
     pub fn checked(self) -> Result<Self, SettingsError> {
         self.validate().map(|_| self)
+    }
+}
+
+/// `Ok` when `name` is one of `rigid`'s bodies, else [`SettingsError::UnknownName`].
+fn check_rigid_name(rigid: &[RigidBody], owner: impl Fn() -> String, field: &'static str, name: &str) -> Result<(), SettingsError> {
+    if rigid.iter().any(|r| r.name == name) {
+        Ok(())
+    } else {
+        Err(SettingsError::UnknownName { owner: owner(), field, kind: "rigid body", name: name.to_string() })
+    }
+}
+
+impl Gland {
+    /// Checks that the groove and the closing surface are bodies of
+    /// `rigid`, and that the groove is a profile.
+    pub fn validate(&self, rigid: &[RigidBody]) -> Result<(), SettingsError> {
+        let owner = || format!("gland `{}`", self.name);
+        check_rigid_name(rigid, owner, "groove", &self.groove)?;
+        check_rigid_name(rigid, owner, "closed_by", &self.closed_by)?;
+        match rigid.iter().find(|r| r.name == self.groove).map(|r| &r.shape) {
+            Some(RigidShape::Profile(_)) => Ok(()),
+            _ => Err(SettingsError::GrooveNotProfile { gland: self.name.clone(), groove: self.groove.clone() }),
+        }
+    }
+}
+
+impl ExtrusionGap {
+    /// Checks a finite edge, a finite non-zero direction, a positive finite
+    /// `max_depth` when given, and that `follows` and `nodes` name a rigid
+    /// body of `rigid` and a node set of `mesh`.
+    pub fn validate(&self, rigid: &[RigidBody], mesh: &olli_mesh::Mesh) -> Result<(), SettingsError> {
+        let owner = || format!("extrusion gap `{}`", self.name);
+        check_finite(owner, "edge", &self.edge)?;
+        check_finite(owner, "into", &self.into)?;
+        let length = self.into.iter().map(|c| c * c).sum::<f64>().sqrt();
+        check(owner, "into", length, length > 0.0, "a non-zero direction (its length)")?;
+        if let Some(d) = self.max_depth {
+            check(owner, "max_depth", d, d > 0.0, "positive")?;
+        }
+        if let Some(f) = &self.follows {
+            check_rigid_name(rigid, owner, "follows", f)?;
+        }
+        match &self.nodes {
+            Some(set) if mesh.nodes_of_set(set).is_none() => {
+                Err(SettingsError::UnknownName { owner: owner(), field: "nodes", kind: "node set", name: set.clone() })
+            }
+            _ => Ok(()),
+        }
     }
 }
 
@@ -228,13 +296,16 @@ impl Stage {
 
 impl Model {
     /// Checks every setting of the model: each stage (increment controls
-    /// included), rigid body, fluid and insert, and the linear solver's
+    /// included), rigid body, fluid, insert, gland and extrusion gap (the
+    /// names they give included), and the linear solver's
     /// ordering. The first bad value is the error.
     pub fn validate(&self) -> Result<(), SettingsError> {
         self.stages.iter().try_for_each(Stage::validate)?;
         self.rigid.iter().try_for_each(RigidBody::validate)?;
         self.fluids.iter().try_for_each(Fluid::validate)?;
         self.inserts.iter().try_for_each(Insert::validate)?;
+        self.glands.iter().try_for_each(|g| g.validate(&self.rigid))?;
+        self.extrusion_gaps.iter().try_for_each(|x| x.validate(&self.rigid, &self.mesh))?;
         self.linear.validate()
     }
 }
@@ -242,7 +313,6 @@ impl Model {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::model::RigidShape;
 
     fn body() -> RigidBody {
         RigidBody::new("groove", RigidShape::Plane { point: [0.0; 3], normal: [0.0, 1.0, 0.0] }, "top")
@@ -270,6 +340,39 @@ mod tests {
         }
         assert_eq!(field_of(RigidBody { rotation_axis: [0.0; 3], ..body() }.validate().unwrap_err()), "rotation_axis");
         assert_eq!(field_of(RigidBody { rotation_center: [0.0, f64::NAN, 0.0], ..body() }.validate().unwrap_err()), "rotation_center");
+    }
+
+    #[test]
+    fn glands_and_extrusion_gaps_refuse_unknown_names_and_bad_values() {
+        use crate::rigid_surface::Piece2;
+        let groove = RigidBody::new("groove", RigidShape::Profile(vec![Piece2::Segment { a: [0.0, 0.0], b: [1.0, 0.0] }]), "seat");
+        let bore = RigidBody::new("bore", RigidShape::Line { point: [0.0, 2.0], direction: [-1.0, 0.0] }, "top");
+        let rigid = [groove, bore];
+        let gland = Gland { name: "rod".into(), groove: "groove".into(), closed_by: "bore".into() };
+        assert!(gland.validate(&rigid).is_ok());
+        let e = Gland { closed_by: "cover".into(), ..gland.clone() }.validate(&rigid).unwrap_err();
+        assert_eq!(e.to_string(), "gland `rod`: `closed_by` names rigid body `cover`, which the model does not have");
+        let e = Gland { groove: "bore".into(), closed_by: "groove".into(), ..gland }.validate(&rigid).unwrap_err();
+        assert_eq!(e, SettingsError::GrooveNotProfile { gland: "rod".into(), groove: "bore".into() });
+
+        let mut mesh = olli_mesh::generate::rectangle(&Default::default()).unwrap();
+        mesh.node_sets.insert("lip".into(), vec![0, 1]);
+        let gap =
+            ExtrusionGap { name: "gap".into(), edge: [1.0, 2.0, 0.0], into: [1.0, 0.0, 0.0], follows: None, nodes: None, max_depth: None };
+        assert!(gap.validate(&rigid, &mesh).is_ok());
+        let ok = ExtrusionGap { follows: Some("bore".into()), nodes: Some("lip".into()), max_depth: Some(0.1), ..gap.clone() };
+        assert!(ok.validate(&rigid, &mesh).is_ok());
+        let unknown = |g: ExtrusionGap| match g.validate(&rigid, &mesh).unwrap_err() {
+            SettingsError::UnknownName { field, kind, .. } => (field, kind),
+            other => panic!("expected an unknown name, got {other}"),
+        };
+        assert_eq!(unknown(ExtrusionGap { follows: Some("rod".into()), ..gap.clone() }), ("follows", "rigid body"));
+        assert_eq!(unknown(ExtrusionGap { nodes: Some("heel".into()), ..gap.clone() }), ("nodes", "node set"));
+        assert_eq!(field_of(ExtrusionGap { into: [0.0; 3], ..gap.clone() }.validate(&rigid, &mesh).unwrap_err()), "into");
+        assert_eq!(field_of(ExtrusionGap { edge: [f64::NAN, 0.0, 0.0], ..gap.clone() }.validate(&rigid, &mesh).unwrap_err()), "edge");
+        for d in [0.0, -0.1, f64::INFINITY] {
+            assert_eq!(field_of(ExtrusionGap { max_depth: Some(d), ..gap.clone() }.validate(&rigid, &mesh).unwrap_err()), "max_depth");
+        }
     }
 
     #[test]
