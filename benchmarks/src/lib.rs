@@ -5,7 +5,7 @@
 use std::time::Instant;
 
 use olli_solver::driver::Event;
-use olli_solver::linear::Ordering;
+use olli_solver::linear::{LinearSettings, Ordering, Threads};
 use olli_solver::{solve, Model, Solution};
 
 /// `A,B,...` as `N` positive integers.
@@ -23,6 +23,38 @@ pub fn parse_ordering(s: &str) -> Option<Ordering> {
         "best" => Some(Ordering::LeastFill),
         _ => None,
     }
+}
+
+/// The linear-solver flags every benchmark takes, in `USAGE` form.
+pub const LINEAR_FLAGS: &str = "[--threads auto|N] [--reuse on|off] [--krylov-iterations N]";
+
+/// Applies `flag value` to `linear` if it is one of [`LINEAR_FLAGS`]:
+/// `--threads auto|N` (factorization threads), `--reuse on|off`
+/// (factorization reuse with a Krylov correction), `--krylov-iterations N`
+/// (its iterations before refactorizing). Returns whether it was one;
+/// exits with a usage error on a bad value.
+pub fn linear_flag(flag: &str, value: Option<&String>, linear: &mut LinearSettings) -> bool {
+    let count = |v: Option<&String>| v.and_then(|v| v.parse::<usize>().ok()).filter(|&n| n > 0);
+    match flag {
+        "--threads" => {
+            linear.threads = match value.map(String::as_str) {
+                Some("auto") => Threads::Auto,
+                _ => Threads::Count(count(value).unwrap_or_else(|| usage("--threads must be auto or a positive integer"))),
+            }
+        }
+        "--reuse" => {
+            linear.reuse.enabled = match value.map(String::as_str) {
+                Some("on") => true,
+                Some("off") => false,
+                _ => usage("--reuse must be on or off"),
+            }
+        }
+        "--krylov-iterations" => {
+            linear.reuse.max_iterations = count(value).unwrap_or_else(|| usage("--krylov-iterations must be a positive integer"))
+        }
+        _ => return false,
+    }
+    true
 }
 
 /// Prints a usage error and exits with status 2.
@@ -82,6 +114,10 @@ pub fn run_and_report(model: &Model, setup: f64) -> Solution {
         s.assembly_time, s.assemblies, l.symbolic_time, l.numeric_time, l.numeric_count, l.solve_time
     );
     println!("ldlt_fallbacks={} lu_fallbacks={}", l.ldlt_fallbacks, l.lu_fallbacks);
+    println!(
+        "factor_threads={} reused_factorizations={} krylov_iterations={} krylov_refactorizations={} time_krylov_s={:.3}",
+        l.factor_threads, l.reused_factorizations, l.krylov_iterations, l.krylov_refactorizations, l.krylov_time
+    );
     let fill = |v: Option<usize>| v.map(|v| v.to_string()).unwrap_or("-".into());
     println!("ordering_used={} factor_entries_amd={} factor_entries_nd={}", l.ordering, fill(l.fill_amd), fill(l.fill_nested_dissection));
     println!("time_per_newton_iteration_s={:.3} bare_numeric_factorization_s={bare:.3} ratio={:.3}", total / iters, total / iters / bare);

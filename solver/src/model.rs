@@ -519,11 +519,47 @@ pub enum Ordering {
     Custom(Vec<usize>),
 }
 
+/// Threads of the sparse factorization and its solves.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum Threads {
+    /// One thread unless the factor is large (estimated flops at least
+    /// `linear::PARALLEL_FLOPS`) and at least 3 hardware threads are
+    /// available; then all of them. Default.
+    #[default]
+    Auto,
+    /// This many threads (at least 1; 1 runs sequentially).
+    Count(usize),
+}
+
+/// Reuse of a factorization across Newton iterations: a system is solved
+/// by a Krylov method (conjugate gradients when symmetric positive
+/// definite, GMRES otherwise) preconditioned with the kept factor, and
+/// factorized afresh only when that does not converge in time.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct FactorReuse {
+    /// Reuse where the driver allows it. Default true.
+    pub enabled: bool,
+    /// Krylov iterations before giving up and factorizing. Default 20.
+    pub max_iterations: usize,
+    /// Relative residual `|b − A x| / |b|` the Krylov solve must reach. Default 1e-10.
+    pub tolerance: f64,
+}
+
+impl Default for FactorReuse {
+    fn default() -> Self {
+        FactorReuse { enabled: true, max_iterations: 20, tolerance: 1e-10 }
+    }
+}
+
 /// Settings of the linear solver.
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct LinearSettings {
     /// Fill-reducing ordering. Default: the one with the smaller factor.
     pub ordering: Ordering,
+    /// Threads of the factorization and solves. Default: [`Threads::Auto`].
+    pub threads: Threads,
+    /// Factorization reuse with a Krylov correction. Default: on, 20 iterations, 1e-10.
+    pub reuse: FactorReuse,
 }
 
 /// Which fields each converged increment keeps.

@@ -7,7 +7,7 @@
 //! increments.
 //!
 //! Run from the workspace root:
-//! `cargo run --release --bin block-compression -- --divisions NX,NY,NZ [--ordering best|amd|nd]`
+//! `cargo run --release --bin block-compression -- --divisions NX,NY,NZ [--ordering best|amd|nd] [--threads auto|N] [--reuse on|off] [--krylov-iterations N]`
 //! It prints the size, Newton iterations per increment, the time split
 //! (assembly, symbolic and numeric factorization, solves), the peak memory,
 //! and as its last line `plate_force_N=<value>`: the compressive force on the
@@ -15,9 +15,9 @@
 
 use std::time::Instant;
 
-use olli_benchmarks::{parse_counts, parse_ordering, run_and_report, usage};
+use olli_benchmarks::{linear_flag, parse_counts, parse_ordering, run_and_report, usage, LINEAR_FLAGS};
 use olli_mesh::{ElementKind, Mesh};
-use olli_solver::linear::Ordering;
+use olli_solver::linear::{LinearSettings, Ordering};
 use olli_solver::{Analysis, Formulation, IncrementControls, Model, Motion, Stage, Support};
 use olli_verification::{block, generated_block, neo_hookean};
 
@@ -40,6 +40,7 @@ fn main() {
     let args: Vec<String> = std::env::args().collect();
     let mut divisions = [20, 20, 5];
     let mut ordering = Ordering::LeastFill;
+    let mut linear = LinearSettings::default();
     let mut extrapolate = true;
     let mut element = ElementKind::Hex8;
     let mut formulation = Formulation::Mixed;
@@ -77,7 +78,8 @@ fn main() {
                 extrapolate = false;
                 i += 1;
             }
-            (other, _) => usage(&format!("unknown argument `{other}`; {USAGE}")),
+            (flag, value) if linear_flag(flag, value, &mut linear) => i += 2,
+            (other, _) => usage(&format!("unknown argument `{other}`; {USAGE} {LINEAR_FLAGS}")),
         }
     }
     let t_mesh = Instant::now();
@@ -92,7 +94,7 @@ fn main() {
         motions: vec![Motion { set: top.into(), displacement: [Some(0.0), Some(0.0), Some(-2.0)] }],
         ..Default::default()
     });
-    model.linear.ordering = ordering;
+    model.linear = LinearSettings { ordering, ..linear };
     let setup = t_mesh.elapsed().as_secs_f64();
     println!(
         "divisions={}x{}x{} element={element} formulation={formulation:?} elements={} nodes={}",

@@ -8,16 +8,16 @@
 //! in-plane motion held, in 10 equal increments.
 //!
 //! Run from the workspace root:
-//! `cargo run --release --bin mount-squeeze -- --divisions AROUND,AXIAL [--ordering best|amd|nd]`
+//! `cargo run --release --bin mount-squeeze -- --divisions AROUND,AXIAL [--ordering best|amd|nd] [--threads auto|N] [--reuse on|off] [--krylov-iterations N]`
 //! (AROUND a multiple of 4: elements around the circumference). It prints
 //! what `block-compression` prints, and as its last line
 //! `plate_force_N=<value>`: the force on the top plate at full squeeze.
 
 use std::time::Instant;
 
-use olli_benchmarks::{parse_counts, parse_ordering, run_and_report, usage};
+use olli_benchmarks::{linear_flag, parse_counts, parse_ordering, run_and_report, usage, LINEAR_FLAGS};
 use olli_mesh::generate::{solid_cylinder, CircleParams};
-use olli_solver::linear::Ordering;
+use olli_solver::linear::{LinearSettings, Ordering};
 use olli_solver::material::{registry, VolumetricForm};
 use olli_solver::{Analysis, Formulation, IncrementControls, Model, Motion, Stage, Support};
 
@@ -27,6 +27,7 @@ fn main() {
     let args: Vec<String> = std::env::args().collect();
     let mut divisions = [32, 8];
     let mut ordering = Ordering::LeastFill;
+    let mut linear = LinearSettings::default();
     let mut i = 1;
     while i < args.len() {
         match (args[i].as_str(), args.get(i + 1)) {
@@ -40,7 +41,8 @@ fn main() {
                 ordering = parse_ordering(v).unwrap_or_else(|| usage("--ordering must be amd, nd or best"));
                 i += 2;
             }
-            (other, _) => usage(&format!("unknown argument `{other}`; {USAGE}")),
+            (flag, value) if linear_flag(flag, value, &mut linear) => i += 2,
+            (other, _) => usage(&format!("unknown argument `{other}`; {USAGE} {LINEAR_FLAGS}")),
         }
     }
     let t_mesh = Instant::now();
@@ -63,7 +65,7 @@ fn main() {
         motions: vec![Motion { set: "top".into(), displacement: [Some(0.0), Some(0.0), Some(-4.0)] }],
         ..Default::default()
     });
-    model.linear.ordering = ordering;
+    model.linear = LinearSettings { ordering, ..linear };
     let setup = t_mesh.elapsed().as_secs_f64();
     println!("divisions={}x{} elements={} nodes={}", divisions[0], divisions[1], model.mesh.element_count(), model.mesh.node_count());
     let sol = run_and_report(&model, setup);

@@ -469,4 +469,9 @@ fn add_linear_stats(total: &mut LinearStats, s: &LinearStats) {
     total.ordering = s.ordering;
     total.fill_amd = s.fill_amd;
     total.fill_nested_dissection = s.fill_nested_dissection;
+    total.factor_threads = s.factor_threads;
+    total.reused_factorizations += s.reused_factorizations;
+    total.krylov_iterations += s.krylov_iterations;
+    total.krylov_refactorizations += s.krylov_refactorizations;
+    total.krylov_time += s.krylov_time;
 }

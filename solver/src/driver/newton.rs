@@ -656,14 +656,14 @@ impl<'a> NewtonContext<'a> {
             self.evaluate(u, t, true, false, stats)?;
         }
         self.add_damping();
-        let factorization = self.linear.factorize(SystemMatrix { lower: &self.k, skew: &self.skew })?;
+        self.du.copy_from_slice(&self.rhs);
+        let reuse = self.may_reuse_factor(at);
+        let factorization = self.linear.solve_system(SystemMatrix { lower: &self.k, skew: &self.skew }, &mut self.du, reuse)?;
         factorization.check_inertia(self.pattern.negative)?;
         if factorization.fallback {
             let iteration = at.iteration + 1;
             observer.event(&Event::LinearFallback { stage: at.stage, increment: at.increment, iteration, factor: factorization.kind });
         }
-        self.du.copy_from_slice(&self.rhs);
-        self.linear.solve(&mut self.du)?;
         let first = at.iteration == 0;
         let insert_work = self.couple_inserts(first)?;
         self.inserts.save_base();
@@ -686,6 +686,17 @@ impl<'a> NewtonContext<'a> {
             && (factorization.positive_definite || nonconservative_fluid)
             && self.dq.is_empty();
         Ok(Direction { g0, kind: factorization.kind, line_search })
+    }
+
+    /// Whether the system of iteration `at` may be solved on the last
+    /// factorization with a Krylov correction instead of a new one (the
+    /// linear solver still factorizes when that does not converge). Never
+    /// for the first system of an increment (its factor is the one the
+    /// others reuse), with pressure unknowns (the inertia check needs a
+    /// factor of this very tangent) or with inserts (their condensation
+    /// solves with the factor, which must be this tangent's).
+    fn may_reuse_factor(&self, at: IterationAt) -> bool {
+        at.iteration > 0 && self.pattern.negative == 0 && self.inserts.is_empty()
     }
 
     /// Steps from `u` along the direction and evaluates there: a full step,

@@ -8,7 +8,11 @@
 //! and says so in its statistics. Before LU it tries LDLᵀ without pivoting
 //! on the Cholesky structure, which costs the same as the Cholesky
 //! factorization and succeeds for the mildly indefinite tangents met in
-//! Newton iterations of nearly incompressible rubber.
+//! Newton iterations of nearly incompressible rubber. The LU path keeps its
+//! full pattern, numeric factor and workspace across factorizations.
+//!
+//! Factorization and solves run on the threads [`Threads`] asks for; by
+//! default on one thread unless the factor is large (see [`parallelism`]).
 
 use std::time::Instant;
 
@@ -18,26 +22,100 @@ use faer::linalg::cholesky::llt::factor::LltRegularization;
 use faer::sparse::linalg::cholesky::{
     factorize_symbolic_cholesky, CholeskySymbolicParams, LdltRef, LltRef, SymbolicCholesky, SymbolicCholeskyRaw, SymmetricOrdering,
 };
-use faer::sparse::linalg::solvers::{Lu, SymbolicLu};
-use faer::sparse::{Pair, SparseColMat, SparseColMatRef, SymbolicSparseColMat};
+use faer::sparse::linalg::lu::{factorize_symbolic_lu, LuRef, LuSymbolicParams, NumericLu, SymbolicLu};
+use faer::sparse::linalg::SupernodalThreshold;
+use faer::sparse::{SparseColMatRef, SymbolicSparseColMat};
 use faer::{Conj, MatMut, Par, Side};
 
 use super::{
     nested_dissection, FactorKind, Factorization, LinearError, LinearSettings, LinearSolver, LinearStats, Ordering, SymmetricPattern,
-    SystemMatrix,
+    SystemMatrix, Threads, PARALLEL_FLOPS, PARALLEL_MIN_THREADS,
 };
 
+/// The LU path: the full (both triangles) pattern of the matrix, where each
+/// lower-triangle slot's value and its mirror go, and the symbolic and
+/// numeric LU with their workspace, all kept across factorizations.
 struct LuFallback {
     symbolic_full: SymbolicSparseColMat<usize>,
-    argsort: faer::sparse::Argsort<usize>,
-    /// For each pair handed to faer, the slot of the lower-triangle value.
-    source: Vec<usize>,
-    /// For each lower-triangle slot, the index of its own (row ≥ col) pair;
-    /// an off-diagonal slot's mirrored pair follows it.
-    first: Vec<usize>,
+    /// For each lower-triangle slot, its position in the full pattern's values.
+    own: Vec<usize>,
+    /// For each lower-triangle slot, the position of its mirror (the slot's
+    /// own position on the diagonal).
+    mirror: Vec<usize>,
     values: Vec<f64>,
     symbolic_lu: SymbolicLu<usize>,
-    factor: Option<Lu<usize, f64>>,
+    numeric: NumericLu<usize, f64>,
+    mem: MemBuffer,
+    factored: bool,
+}
+
+impl LuFallback {
+    /// The full pattern of the symmetric lower-triangle pattern (`col_ptr`,
+    /// `row_idx`): column j holds first the rows i < j (mirrors of column
+    /// i's entry j, in increasing i), then column j of the lower triangle.
+    fn new(n: usize, col_ptr: &[usize], row_idx: &[usize], par: Par) -> Result<Self, LinearError> {
+        let nnz = row_idx.len();
+        let mut upper = vec![0usize; n];
+        for s in 0..nnz {
+            let r = row_idx[s];
+            if r != col_of(col_ptr, s) {
+                upper[r] += 1;
+            }
+        }
+        let mut full_ptr = vec![0usize; n + 1];
+        for j in 0..n {
+            full_ptr[j + 1] = full_ptr[j] + upper[j] + (col_ptr[j + 1] - col_ptr[j]);
+        }
+        let mut full_rows = vec![0usize; full_ptr[n]];
+        let (mut own, mut mirror) = (vec![0usize; nnz], vec![0usize; nnz]);
+        let mut next_upper: Vec<usize> = full_ptr[..n].to_vec();
+        for c in 0..n {
+            for s in col_ptr[c]..col_ptr[c + 1] {
+                let r = row_idx[s];
+                let p = full_ptr[c] + upper[c] + (s - col_ptr[c]);
+                full_rows[p] = r;
+                own[s] = p;
+                mirror[s] = p;
+                if r != c {
+                    let q = next_upper[r];
+                    next_upper[r] += 1;
+                    full_rows[q] = c;
+                    mirror[s] = q;
+                }
+            }
+        }
+        let symbolic_full = SymbolicSparseColMat::new_checked(n, n, full_ptr, None, full_rows);
+        let params = LuSymbolicParams { supernodal_flop_ratio_threshold: supernodal(n), ..Default::default() };
+        let symbolic_lu = factorize_symbolic_lu(symbolic_full.as_ref(), params)
+            .map_err(|e| LinearError::Factorization { step: "symbolic LU", detail: format!("{e:?}") })?;
+        let scratch =
+            symbolic_lu.factorize_numeric_lu_scratch::<f64>(par, Default::default()).or(symbolic_lu.solve_in_place_scratch::<f64>(1, par));
+        let mem = MemBuffer::try_new(scratch).map_err(|_| LinearError::OutOfMemory)?;
+        let values = vec![0.0; symbolic_full.compute_nnz()];
+        Ok(LuFallback { symbolic_full, own, mirror, values, symbolic_lu, numeric: NumericLu::new(), mem, factored: false })
+    }
+}
+
+/// Equations from which the factors are always supernodal (dense blocks of
+/// columns with one pattern): faer's own choice, by flops per factor entry,
+/// picks the simplicial (column by column) form for 2-D meshes of a few
+/// thousand equations, where it is slower (the tri6 seal example, 1602
+/// equations: 229 factorizations in 1.0–1.2 s supernodal against 1.1–1.4 s,
+/// on a loaded 2-core machine).
+pub const SUPERNODAL_FROM: usize = 1000;
+
+/// faer's supernodal threshold for `n` equations (see [`SUPERNODAL_FROM`]).
+fn supernodal(n: usize) -> SupernodalThreshold {
+    if n >= SUPERNODAL_FROM {
+        SupernodalThreshold::FORCE_SUPERNODAL
+    } else {
+        SupernodalThreshold::AUTO
+    }
+}
+
+/// Column of lower-triangle slot `s`.
+fn col_of(col_ptr: &[usize], s: usize) -> usize {
+    col_ptr.partition_point(|&p| p <= s) - 1
 }
 
 /// faer's sparse Cholesky (LDLᵀ, then LU, when the matrix is not positive
@@ -86,7 +164,8 @@ impl FaerDirect {
                     SymmetricOrdering::Custom(perm_storage.as_ref())
                 }
             };
-            factorize_symbolic_cholesky(symbolic_matrix.as_ref(), Side::Lower, ordering, CholeskySymbolicParams::default())
+            let params = CholeskySymbolicParams { supernodal_flop_ratio_threshold: supernodal(pattern.n), ..Default::default() };
+            factorize_symbolic_cholesky(symbolic_matrix.as_ref(), Side::Lower, ordering, params)
                 .map_err(|e| LinearError::Factorization { step: "symbolic Cholesky", detail: format!("{e:?}") })
         };
         let mut fill_amd = None;
@@ -113,14 +192,14 @@ impl FaerDirect {
                 }
             }
         };
-        let par = faer::get_global_parallelism();
+        let (nnz_factor, factor_flops) = factor_counts(&symbolic);
+        let par = parallelism(settings.threads, factor_flops);
         let scratch = symbolic
             .factorize_numeric_llt_scratch::<f64>(par, Default::default())
             .or(symbolic.factorize_numeric_ldlt_scratch::<f64>(par, Default::default()))
             .or(symbolic.solve_in_place_scratch::<f64>(1, par));
         let mem = MemBuffer::try_new(scratch).map_err(|_| LinearError::OutOfMemory)?;
         let l_values = vec![0.0; symbolic.len_val()];
-        let (nnz_factor, factor_flops) = factor_counts(&symbolic);
         let stats = LinearStats {
             equations: pattern.n,
             nnz_matrix: pattern.nnz(),
@@ -134,6 +213,10 @@ impl FaerDirect {
             },
             fill_amd,
             fill_nested_dissection: fill_nd,
+            factor_threads: match par {
+                Par::Seq => 1,
+                Par::Rayon(n) => n.get(),
+            },
             ..Default::default()
         };
         Ok(FaerDirect {
@@ -227,45 +310,24 @@ impl FaerDirect {
     fn factor_lu(&mut self, values: &[f64], skew: &[(usize, f64)]) -> Result<(), LinearError> {
         if self.lu.is_none() {
             let m = self.symbolic_matrix.as_ref();
-            let (col_ptr, row_idx) = (m.col_ptr(), m.row_idx());
-            let mut pairs = Vec::with_capacity(2 * row_idx.len());
-            let mut source = Vec::with_capacity(2 * row_idx.len());
-            let mut first = vec![0; row_idx.len()];
-            for c in 0..m.ncols() {
-                for s in col_ptr[c]..col_ptr[c + 1] {
-                    let r = row_idx[s];
-                    first[s] = pairs.len();
-                    pairs.push(Pair::new(r, c));
-                    source.push(s);
-                    if r != c {
-                        pairs.push(Pair::new(c, r));
-                        source.push(s);
-                    }
-                }
-            }
-            let n = m.nrows();
-            let (symbolic_full, argsort) = SymbolicSparseColMat::try_new_from_indices(n, n, &pairs)
-                .map_err(|e| LinearError::Factorization { step: "LU pattern", detail: format!("{e:?}") })?;
-            let symbolic_lu = SymbolicLu::try_new(symbolic_full.as_ref())
-                .map_err(|e| LinearError::Factorization { step: "symbolic LU", detail: format!("{e:?}") })?;
-            self.lu =
-                Some(LuFallback { symbolic_full, argsort, values: vec![0.0; source.len()], source, first, symbolic_lu, factor: None });
+            self.lu = Some(LuFallback::new(m.nrows(), m.col_ptr(), m.row_idx(), self.par)?);
         }
         let lu = self.lu.as_mut().expect("built above");
-        for (v, &s) in lu.values.iter_mut().zip(&lu.source) {
-            *v = values[s];
+        for (s, &v) in values.iter().enumerate() {
+            lu.values[lu.own[s]] = v;
+            lu.values[lu.mirror[s]] = v;
         }
         // Non-symmetric part: +w at (row, col) below the diagonal, −w at its mirror.
         for &(slot, w) in skew {
-            let i = lu.first[slot];
-            lu.values[i] += w;
-            lu.values[i + 1] -= w;
+            lu.values[lu.own[slot]] += w;
+            lu.values[lu.mirror[slot]] -= w;
         }
-        let a = SparseColMat::new_from_argsort(lu.symbolic_full.clone(), &lu.argsort, &lu.values)
-            .map_err(|e| LinearError::Factorization { step: "LU values", detail: format!("{e:?}") })?;
-        let f = Lu::try_new_with_symbolic(lu.symbolic_lu.clone(), a.as_ref())
+        lu.factored = false;
+        let a = SparseColMatRef::new(lu.symbolic_full.as_ref(), &lu.values);
+        lu.symbolic_lu
+            .factorize_numeric_lu(&mut lu.numeric, a, self.par, MemStack::new(&mut lu.mem), Default::default())
             .map_err(|e| LinearError::Factorization { step: "LU factorization", detail: format!("{e:?}") })?;
-        lu.factor = Some(f);
+        lu.factored = true;
         Ok(())
     }
 
@@ -284,9 +346,9 @@ impl FaerDirect {
                 ldlt.solve_in_place_with_conj(Conj::No, x, self.par, MemStack::new(&mut self.mem));
             }
             Some(FactorKind::LuFallback | FactorKind::LuNonsymmetric) => {
-                use faer::linalg::solvers::SolveCore;
-                let f = self.lu.as_ref().and_then(|l| l.factor.as_ref()).ok_or(LinearError::NotFactored)?;
-                f.solve_in_place_with_conj(Conj::No, x);
+                let lu = self.lu.as_mut().filter(|l| l.factored).ok_or(LinearError::NotFactored)?;
+                let f = LuRef::new_unchecked(&lu.symbolic_lu, &lu.numeric);
+                f.solve_in_place_with_conj(Conj::No, x, self.par, MemStack::new(&mut lu.mem));
             }
             None => return Err(LinearError::NotFactored),
         }
@@ -320,6 +382,24 @@ impl LinearSolver for FaerDirect {
 
     fn stats(&self) -> &LinearStats {
         &self.stats
+    }
+}
+
+/// The parallelism `threads` asks for, for a factor of `flops` (Σ colcount²).
+/// [`Threads::Auto`]: sequential below [`PARALLEL_FLOPS`] or with fewer than
+/// [`PARALLEL_MIN_THREADS`] hardware threads (on small factors the threads'
+/// synchronisation costs more than it saves), else every hardware thread.
+fn parallelism(threads: Threads, flops: f64) -> Par {
+    let available = std::thread::available_parallelism().map(|n| n.get()).unwrap_or(1);
+    let n = match threads {
+        Threads::Count(n) => n,
+        Threads::Auto if flops < PARALLEL_FLOPS || available < PARALLEL_MIN_THREADS => 1,
+        Threads::Auto => available,
+    };
+    if n <= 1 {
+        Par::Seq
+    } else {
+        Par::rayon(n)
     }
 }
 
@@ -436,7 +516,7 @@ mod tests {
         let (col_ptr, row_idx, values) = lower(n, a);
         let eq_node: Vec<usize> = (0..n).collect();
         let pattern = SymmetricPattern { n, col_ptr: &col_ptr, row_idx: &row_idx, eq_node: &eq_node, negative };
-        let mut solver = FaerDirect::new(&pattern, &LinearSettings { ordering }).unwrap();
+        let mut solver = FaerDirect::new(&pattern, &LinearSettings { ordering, ..Default::default() }).unwrap();
         let factorization = solver.factorize(SystemMatrix { lower: &values, skew: &[] }).unwrap();
         let b: Vec<f64> = (0..n).map(|i| ((i * 7 % 5) as f64) - 2.0).collect();
         let mut x = b.clone();
@@ -478,6 +558,39 @@ mod tests {
         let (f, residual) = solve_saddle(n, &a, Ordering::Amd);
         assert!(!f.positive_definite && f.fallback, "{f:?}");
         assert!(residual < 1e-8, "residual {residual:e}");
+    }
+
+    /// The LU path (a non-symmetric matrix: skew entries as friction adds)
+    /// solves the dense system it stands for, twice in a row with other
+    /// values (the kept numeric factor and workspace are refilled), checked
+    /// by the residual of the dense matrix.
+    #[test]
+    fn lu_path_solves_non_symmetric_systems_repeatedly() {
+        let (n, a) = saddle(40, 1e2, -2.2);
+        let (col_ptr, row_idx, values) = lower(n, &a);
+        let eq_node: Vec<usize> = (0..n).collect();
+        let pattern = SymmetricPattern { n, col_ptr: &col_ptr, row_idx: &row_idx, eq_node: &eq_node, negative: 0 };
+        let mut solver = FaerDirect::new(&pattern, &LinearSettings::default()).unwrap();
+        let slot = |r: usize, c: usize| (col_ptr[c]..col_ptr[c + 1]).find(|&s| row_idx[s] == r).unwrap();
+        for (round, w) in [0.3, -0.7].into_iter().enumerate() {
+            let skew = [(slot(1, 0), w), (slot(5, 2), 0.5 * w), (slot(n - 1, n - 3), w)];
+            let factor = 1.0 + 0.1 * round as f64;
+            let scaled: Vec<f64> = values.iter().map(|v| v * factor).collect();
+            let mut dense: Vec<f64> = a.iter().map(|v| v * factor).collect();
+            for &(s, v) in &skew {
+                let (r, c) = (row_idx[s], (0..n).find(|&c| col_ptr[c] <= s && s < col_ptr[c + 1]).unwrap());
+                dense[r * n + c] += v;
+                dense[c * n + r] -= v;
+            }
+            let f = solver.factorize(SystemMatrix { lower: &scaled, skew: &skew }).unwrap();
+            assert_eq!(f.kind, FactorKind::LuNonsymmetric);
+            let b: Vec<f64> = (0..n).map(|i| ((i * 7 % 5) as f64) - 2.0).collect();
+            let mut x = b.clone();
+            solver.solve(&mut x).unwrap();
+            let residual = (0..n).map(|r| (0..n).map(|c| dense[r * n + c] * x[c]).sum::<f64>() - b[r]).fold(0.0f64, |m, v| m.max(v.abs()));
+            assert!(residual < 1e-10, "round {round}: residual {residual:e}");
+        }
+        assert_eq!(solver.stats.lu_nonsymmetric, 2);
     }
 
     /// Number of negative eigenvalues of a dense symmetric matrix (the

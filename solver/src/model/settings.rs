@@ -11,7 +11,7 @@ use thiserror::Error;
 
 use super::{
     ControlsError, ExtrusionGap, Fluid, FluidPressure, Force, Gland, Insert, InsertDrive, InsertStage, LinearSettings, Model, Motion,
-    Ordering, Pressure, Ramp, RigidBody, RigidMotion, RigidShape, RotationMotion, Stage,
+    Ordering, Pressure, Ramp, RigidBody, RigidMotion, RigidShape, RotationMotion, Stage, Threads,
 };
 
 /// A setting that cannot drive a run, with where it sits.
@@ -219,6 +219,13 @@ impl LinearSettings {
     /// repeated (its length against the equations is checked when the
     /// solver analyses them).
     pub fn validate(&self) -> Result<(), SettingsError> {
+        let owner = || "linear solver".to_string();
+        if let Threads::Count(n) = self.threads {
+            check(owner, "threads", n as f64, n >= 1, "at least 1")?;
+        }
+        let r = &self.reuse;
+        check(owner, "reuse.max_iterations", r.max_iterations as f64, r.max_iterations >= 1, "at least 1")?;
+        check(owner, "reuse.tolerance", r.tolerance, r.tolerance > 0.0 && r.tolerance < 1.0, "in (0, 1)")?;
         let Ordering::Custom(perm) = &self.ordering else { return Ok(()) };
         let mut seen = vec![false; perm.len()];
         for (index, &value) in perm.iter().enumerate() {
@@ -381,12 +388,25 @@ mod tests {
         assert!(fluid.validate().unwrap_err().to_string().contains("fluid `oil`: `source` must be finite"));
         let insert = Insert { name: "pin".into(), set: "bore".into(), reference: [f64::INFINITY, 0.0, 0.0], free: [false; 6] };
         assert_eq!(field_of(insert.checked().unwrap_err()), "reference");
-        let ok = LinearSettings { ordering: Ordering::Custom(vec![2, 0, 1]) };
+        let ok = LinearSettings { ordering: Ordering::Custom(vec![2, 0, 1]), ..Default::default() };
         assert!(ok.validate().is_ok());
-        let out = LinearSettings { ordering: Ordering::Custom(vec![0, 3, 1]) };
+        let out = LinearSettings { ordering: Ordering::Custom(vec![0, 3, 1]), ..Default::default() };
         assert_eq!(out.validate(), Err(SettingsError::NotAPermutation { index: 1, value: 3, reason: "out of range" }));
-        let twice = LinearSettings { ordering: Ordering::Custom(vec![1, 0, 1]) };
+        let twice = LinearSettings { ordering: Ordering::Custom(vec![1, 0, 1]), ..Default::default() };
         assert_eq!(twice.validate(), Err(SettingsError::NotAPermutation { index: 2, value: 1, reason: "repeated" }));
+        let field = |s: LinearSettings| match s.validate() {
+            Err(SettingsError::OutOfRange { field, .. }) => field,
+            other => panic!("{other:?}"),
+        };
+        assert_eq!(field(LinearSettings { threads: Threads::Count(0), ..Default::default() }), "threads");
+        let reuse = |max_iterations, tolerance| LinearSettings {
+            reuse: crate::model::FactorReuse { enabled: true, max_iterations, tolerance },
+            ..Default::default()
+        };
+        assert_eq!(field(reuse(0, 1e-10)), "reuse.max_iterations");
+        assert_eq!(field(reuse(20, 0.0)), "reuse.tolerance");
+        assert_eq!(field(reuse(20, f64::NAN)), "reuse.tolerance");
+        assert!(reuse(1, 0.5).validate().is_ok() && LinearSettings::default().validate().is_ok());
     }
 
     #[test]

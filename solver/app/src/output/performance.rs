@@ -33,6 +33,18 @@ pub struct Performance {
     pub factorization_s: f64,
     /// Seconds in triangular solves.
     pub solve_s: f64,
+    /// Threads of the factorization and solves (1: sequential).
+    pub factor_threads: usize,
+    /// Newton systems solved on a kept factorization by a Krylov method
+    /// instead of factorizing.
+    pub reused_factorizations: usize,
+    /// Krylov iterations of those solves.
+    pub krylov_iterations: usize,
+    /// Krylov solves that did not converge, so the system was factorized
+    /// (included in `factorizations`).
+    pub krylov_refactorizations: usize,
+    /// Seconds in Krylov iterations (their triangular solves are in `solve_s` too).
+    pub krylov_s: f64,
     /// Peak resident memory of the process in MiB (absent where the system does not say).
     pub peak_memory_mib: Option<f64>,
 }
@@ -53,6 +65,11 @@ impl Performance {
             analysis_s: l.symbolic_time,
             factorization_s: l.numeric_time,
             solve_s: l.solve_time,
+            factor_threads: l.factor_threads,
+            reused_factorizations: l.reused_factorizations,
+            krylov_iterations: l.krylov_iterations,
+            krylov_refactorizations: l.krylov_refactorizations,
+            krylov_s: l.krylov_time,
             peak_memory_mib,
         }
     }
