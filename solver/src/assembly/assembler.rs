@@ -10,7 +10,7 @@ use super::discretization::Discretization;
 use super::dofs::{DofMap, NONE};
 use super::error::AssemblyError;
 use super::history::{ElementHistory, PointHistories};
-use super::kernel::{element_continuous_into, element_with_history_into, KernelError};
+use super::kernel::{element_cached_into, element_continuous_into, element_with_history_into, KernelError};
 use super::pattern::{Pattern, SKIP};
 use crate::element::{Formulation, MixedState};
 use crate::shape::MAX_NODES;
@@ -120,13 +120,19 @@ impl Assembler {
             let with_history = history.is_some();
             let work = |(i, (((((k, f), st), ms), previous), current)): Slot| {
                 let e = start + i;
-                let (mut x, mut ue) = ([[0.0; 3]; MAX_NODES], [[0.0; 3]; MAX_NODES]);
-                disc.gather(e, u, &mut x, &mut ue);
                 let ctx = disc.context(e);
                 let state = if carried { Some(ms) } else { None };
                 let mut element_history = ElementHistory { previous, current, time_step, tangent: tangent_kind };
                 let history = if with_history { Some(&mut element_history) } else { None };
                 let k = if want_k { Some(k) } else { None };
+                if let Some(geometry) = disc.reference_geometry(e) {
+                    let mut ue = [[0.0; 3]; MAX_NODES];
+                    disc.gather_displacements(e, u, &mut ue);
+                    *st = element_cached_into(&ctx, geometry, &ue, f, k, state, history);
+                    return;
+                }
+                let (mut x, mut ue) = ([[0.0; 3]; MAX_NODES], [[0.0; 3]; MAX_NODES]);
+                disc.gather(e, u, &mut x, &mut ue);
                 *st = if ctx.formulation == Formulation::ContinuousPressure {
                     let mut p = [0.0; crate::element::taylor_hood::MAX_PRESSURE_NODES];
                     let np = disc.gather_pressures(e, u, &mut p);

@@ -6,8 +6,9 @@ use olli_mesh::{ElementKind, Mesh};
 
 use super::dofs::NONE;
 use super::error::AssemblyError;
-use super::kernel::ElementContext;
+use super::kernel::{ElementContext, ReferenceGeometry};
 use super::pressure::ContinuousPressures;
+use crate::element::solid;
 use crate::element::taylor_hood::{pressure_nodes, MAX_PRESSURE_NODES};
 use crate::element::{Analysis, Formulation, Shape};
 use crate::model::Model;
@@ -55,6 +56,48 @@ pub struct Discretization<'m> {
     pub formulation: Vec<Formulation>,
     /// The continuous (Taylor–Hood) pressure unknowns, after the displacements.
     pub pressures: ContinuousPressures,
+    /// Reference gradients and volume weights of the elements that take the
+    /// spatial form, computed once.
+    geometry: CachedGeometry,
+}
+
+/// The reference geometry of every spatial-form element
+/// ([`crate::element::solid::supports`]), computed once per mesh: the
+/// reference gradients ∂N_a/∂X and volume weights of all points laid end
+/// to end (hex8: 200 values per element). An element whose reference
+/// geometry is bad keeps none, so the kernel that computes it on the fly
+/// reports the error with the element's index.
+#[derive(Debug, Default)]
+struct CachedGeometry {
+    /// Start of element e's gradients and weights (`NONE`: not cached).
+    start: Vec<(usize, usize)>,
+    grads: Vec<[f64; 3]>,
+    dv: Vec<f64>,
+}
+
+impl CachedGeometry {
+    fn new(mesh: &Mesh, analysis: Analysis, shapes: &[Shape], formulation: &[Formulation]) -> Self {
+        let mut out = CachedGeometry::default();
+        out.start.reserve(shapes.len());
+        for (e, (&shape, &form)) in shapes.iter().zip(formulation).enumerate() {
+            if !solid::supports(shape, analysis, form) {
+                out.start.push((NONE, NONE));
+                continue;
+            }
+            let x: Vec<[f64; 3]> = mesh.element_nodes(e).iter().map(|&n| mesh.nodes[n]).collect();
+            let (g0, d0) = (out.grads.len(), out.dv.len());
+            out.grads.resize(g0 + shape.nodes() * shape.points(), [0.0; 3]);
+            out.dv.resize(d0 + shape.points(), 0.0);
+            if solid::reference_geometry_into(shape, &x, &mut out.grads[g0..], &mut out.dv[d0..]).is_ok() {
+                out.start.push((g0, d0));
+            } else {
+                out.grads.truncate(g0);
+                out.dv.truncate(d0);
+                out.start.push((NONE, NONE));
+            }
+        }
+        out
+    }
 }
 
 impl<'m> Discretization<'m> {
@@ -116,7 +159,8 @@ impl<'m> Discretization<'m> {
             .map(|(s, f)| s.dofs() + if *f == Formulation::ContinuousPressure { pressure_nodes(*s).unwrap_or(0) } else { 0 })
             .max()
             .unwrap_or(0);
-        Ok(Discretization { model, shapes, region_of, dim, max_dofs, formulation, pressures })
+        let geometry = CachedGeometry::new(mesh, model.analysis, &shapes, &formulation);
+        Ok(Discretization { model, shapes, region_of, dim, max_dofs, formulation, pressures, geometry })
     }
 
     /// Number of global dofs: the displacements of every node, then the
@@ -167,6 +211,18 @@ impl<'m> Discretization<'m> {
         np
     }
 
+    /// The cached reference geometry of element `e`, if it takes the
+    /// spatial form ([`super::kernel::element_cached_into`]).
+    pub fn reference_geometry(&self, e: usize) -> Option<ReferenceGeometry<'_>> {
+        let (g0, d0) = self.geometry.start[e];
+        if g0 == NONE {
+            return None;
+        }
+        let shape = self.shapes[e];
+        let (nodes, points) = (shape.nodes(), shape.points());
+        Some(ReferenceGeometry { grads: &self.geometry.grads[g0..g0 + nodes * points], dv: &self.geometry.dv[d0..d0 + points] })
+    }
+
     /// The model's mesh.
     pub fn mesh(&self) -> &'m Mesh {
         &self.model.mesh
@@ -180,6 +236,16 @@ impl<'m> Discretization<'m> {
             analysis: self.model.analysis,
             formulation: self.formulation[e],
             material: &region.material,
+        }
+    }
+
+    /// Displacements of element `e`'s nodes into a fixed array.
+    pub fn gather_displacements(&self, e: usize, u: &[f64], ue: &mut [[f64; 3]; MAX_NODES]) {
+        for (a, &n) in self.mesh().element_nodes(e).iter().enumerate() {
+            ue[a] = [0.0; 3];
+            for i in 0..self.dim {
+                ue[a][i] = u[n * self.dim + i];
+            }
         }
     }
 

@@ -7,10 +7,12 @@
 
 use std::cell::RefCell;
 
+use nalgebra::Matrix3;
 use thiserror::Error;
 
 use super::history::ElementHistory;
 use crate::element::pressure_space::PressureSpace;
+use crate::element::solid::{self, SolidKinematics, MAX_SOLID_NODES};
 use crate::element::taylor_hood::{integrate_continuous_into, PressureResponse};
 use crate::element::{
     integrate_into, kinematics_into, point_states_into, Analysis, ElementError, ElementKinematics, Formulation, MixedState, PointResponse,
@@ -80,15 +82,22 @@ fn volumetric(
         }
         return Ok(count);
     }
-    let ratio = theta[0];
+    out[0] = constant_volumetric(material, theta[0], state)?;
+    Ok(1)
+}
+
+/// The volumetric law of a constant-pressure element at mean dilatation
+/// `ratio`: at the carried θ and p of the three-field form when `state` is
+/// given, else at θ = v/V with p = U'(θ).
+fn constant_volumetric(material: &Material, ratio: f64, state: Option<&MixedState>) -> Result<VolumetricResponse, KernelError> {
+    let law = &material.volumetric;
     let theta = state.map(|s| s.dilatation).unwrap_or(ratio);
     let at_theta = |e| material_error(e, 0, theta);
     let energy = law.energy(ratio).map_err(|e| material_error(e, 0, ratio))?;
     let law_pressure = law.pressure(theta).map_err(at_theta)?;
     let stiffness = law.pressure_derivative(theta).map_err(at_theta)?;
     let pressure = state.map(|s| s.pressure).unwrap_or(law_pressure);
-    out[0] = VolumetricResponse { energy, pressure, law_pressure, stiffness };
-    Ok(1)
+    Ok(VolumetricResponse { energy, pressure, law_pressure, stiffness })
 }
 
 /// The material's answer at every Gauss point: the isochoric part alone for
@@ -102,28 +111,34 @@ fn responses(
     history: Option<&mut ElementHistory>,
     out: &mut [PointResponse],
 ) -> Result<(), KernelError> {
-    let width = material.history_len();
-    let mut history = history.filter(|_| width > 0);
+    let mut history = history.filter(|_| material.history_len() > 0);
     for (q, (k, r)) in kin.points().iter().zip(out.iter_mut()).enumerate() {
-        let c = k.right_cauchy_green();
-        let resp = match history.as_deref_mut() {
-            Some(h) => {
-                let at = q * width..(q + 1) * width;
-                let mut point = PointHistory {
-                    previous: &h.previous[at.clone()],
-                    current: &mut h.current[at],
-                    time_step: h.time_step,
-                    tangent: h.tangent,
-                };
-                material.response_with_history(&c, !mixed, &mut point)
-            }
-            None if mixed => material.isochoric_response(&c),
-            None => material.response(&c),
-        };
-        let resp = resp.map_err(|e| material_error(e, q, k.j))?;
-        *r = PointResponse { energy: resp.energy, stress: resp.stress, tangent: resp.tangent };
+        *r = point_response(material, mixed, &k.right_cauchy_green(), q, history.as_deref_mut()).map_err(|e| material_error(e, q, k.j))?;
     }
     Ok(())
+}
+
+/// The material's answer at point `q` of right Cauchy–Green tensor `c` (see
+/// [`responses`]); `history` only for a material that keeps one.
+fn point_response(
+    material: &Material,
+    mixed: bool,
+    c: &Matrix3<f64>,
+    q: usize,
+    history: Option<&mut ElementHistory>,
+) -> Result<PointResponse, MaterialError> {
+    let resp = match history {
+        Some(h) => {
+            let width = material.history_len();
+            let at = q * width..(q + 1) * width;
+            let mut point =
+                PointHistory { previous: &h.previous[at.clone()], current: &mut h.current[at], time_step: h.time_step, tangent: h.tangent };
+            material.response_with_history(c, !mixed, &mut point)
+        }
+        None if mixed => material.isochoric_response(c),
+        None => material.response(c),
+    }?;
+    Ok(PointResponse { energy: resp.energy, stress: resp.stress, tangent: resp.tangent })
 }
 
 thread_local! {
@@ -144,6 +159,12 @@ struct MaterialAt {
     /// How many entries of `volumetric` hold (0 for a displacement element).
     volumetric_count: usize,
     responses: [PointResponse; MAX_POINTS],
+    /// F and J of a spatial-form element ([`element_cached_into`]).
+    solid: SolidKinematics,
+    /// Reference geometry of a spatial-form element evaluated without a
+    /// cache ([`element_with_history_into`]).
+    grads: [[f64; 3]; MAX_SOLID_NODES * MAX_POINTS],
+    dv: [f64; MAX_POINTS],
 }
 
 impl MaterialAt {
@@ -153,6 +174,9 @@ impl MaterialAt {
             volumetric: [VolumetricResponse::default(); MAX_POINTS],
             volumetric_count: 0,
             responses: [PointResponse::default(); MAX_POINTS],
+            solid: SolidKinematics::default(),
+            grads: [[0.0; 3]; MAX_SOLID_NODES * MAX_POINTS],
+            dv: [0.0; MAX_POINTS],
         }
     }
 
@@ -225,7 +249,71 @@ pub fn element_with_history_into(
     state: Option<&mut MixedState>,
     history: Option<&mut ElementHistory>,
 ) -> Result<f64, KernelError> {
+    if solid::supports(ctx.shape, ctx.analysis, ctx.formulation) {
+        return with_scratch(|at| {
+            let (nodes, points) = (ctx.shape.nodes(), ctx.shape.points());
+            let MaterialAt { grads, dv, solid, responses, .. } = at;
+            let (grads, dv) = (&mut grads[..nodes * points], &mut dv[..points]);
+            solid::reference_geometry_into(ctx.shape, x, grads, dv)?;
+            let geometry = ReferenceGeometry { grads, dv };
+            spatial(solid, responses, ctx, geometry, u, force, stiffness, state, history)
+        });
+    }
     element_through(integrate_into, ctx, x, u, force, stiffness, state, history)
+}
+
+/// The reference gradients ∂N_a/∂X (`grads[q · nodes + a]`) and volume
+/// weights (`dv[q]`) of one 3-D element, computed once
+/// ([`crate::element::solid::reference_geometry_into`]) and kept by the
+/// discretization.
+#[derive(Debug, Clone, Copy)]
+pub struct ReferenceGeometry<'a> {
+    /// ∂N_a/∂X at every point, point after point.
+    pub grads: &'a [[f64; 3]],
+    /// Reference volume weight of every point.
+    pub dv: &'a [f64],
+}
+
+/// As [`element_with_history_into`] for an element that takes the spatial
+/// form ([`crate::element::solid::supports`]), from its cached reference
+/// geometry: the assembler's entry point for 3-D solids.
+pub fn element_cached_into(
+    ctx: &ElementContext,
+    geometry: ReferenceGeometry,
+    u: &[[f64; 3]],
+    force: &mut [f64],
+    stiffness: Option<&mut [f64]>,
+    state: Option<&mut MixedState>,
+    history: Option<&mut ElementHistory>,
+) -> Result<f64, KernelError> {
+    with_scratch(|at| spatial(&mut at.solid, &mut at.responses, ctx, geometry, u, force, stiffness, state, history))
+}
+
+/// The spatial-form element, with buffers for its kinematics and the
+/// material's answers.
+fn spatial(
+    kin: &mut SolidKinematics,
+    responses: &mut [PointResponse; MAX_POINTS],
+    ctx: &ElementContext,
+    geometry: ReferenceGeometry,
+    u: &[[f64; 3]],
+    force: &mut [f64],
+    stiffness: Option<&mut [f64]>,
+    state: Option<&mut MixedState>,
+    history: Option<&mut ElementHistory>,
+) -> Result<f64, KernelError> {
+    let nodes = ctx.shape.nodes();
+    solid::solid_kinematics_into(nodes, geometry.grads, geometry.dv, u, kin)?;
+    let mixed = ctx.formulation == Formulation::Mixed;
+    let volumetric = if mixed { Some(constant_volumetric(ctx.material, kin.volume_ratio(), state.as_deref())?) } else { None };
+    let mut history = history.filter(|_| ctx.material.history_len() > 0);
+    for (q, (p, r)) in kin.points().iter().zip(responses.iter_mut()).enumerate() {
+        let c = p.f.transpose() * p.f;
+        *r = point_response(ctx.material, mixed, &c, q, history.as_deref_mut()).map_err(|e| material_error(e, q, p.j))?;
+    }
+    let state = if mixed { state } else { None };
+    let responses = &responses[..kin.count];
+    Ok(solid::solid_integrate_into(nodes, geometry.grads, geometry.dv, kin, responses, volumetric.as_ref(), force, stiffness, state)?)
 }
 
 /// The element integration [`element_with_state_into`] hands the material's answers to.

@@ -28,8 +28,8 @@ pub use dofs::DofMap;
 pub use error::AssemblyError;
 pub use history::{ElementHistory, PointHistories};
 pub use kernel::{
-    element_continuous_into, element_into, element_with_history_into, element_with_state_into, point_states, point_states_with_history,
-    ElementContext, KernelError,
+    element_cached_into, element_continuous_into, element_into, element_with_history_into, element_with_state_into, point_states,
+    point_states_with_history, ElementContext, KernelError, ReferenceGeometry,
 };
 pub use mixed::MixedUnknowns;
 pub use pattern::Pattern;

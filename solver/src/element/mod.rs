@@ -34,6 +34,7 @@ pub mod geometry;
 pub mod kernel;
 pub mod pressure_space;
 pub mod side;
+pub mod solid;
 pub mod taylor_hood;
 
 pub use geometry::{PointGeometry, Shape};

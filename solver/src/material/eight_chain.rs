@@ -18,7 +18,7 @@
 //! [`MaterialError::ChainLocking`].
 
 use super::error::MaterialError;
-use super::langevin::{inverse_langevin, langevin_derivative};
+use super::langevin::inverse_langevin_at;
 use super::{InvariantDerivatives, IsochoricEnergy};
 
 /// The eight-chain (Arruda–Boyce) model, with the inverse Langevin function.
@@ -32,24 +32,6 @@ pub struct EightChain {
     network_modulus: f64,
     /// Energy offset W0 so that W_iso(Ī1 = 3) = 0.
     offset: f64,
-}
-
-/// `ln(β / sinh β)` without cancellation at small β or overflow at large β.
-fn log_beta_over_sinh(beta: f64) -> f64 {
-    if beta < 0.5 {
-        // sinh β / β − 1 = Σ_{k≥1} β^(2k) / (2k+1)!; eight terms reach 1e-20 at β = 0.5.
-        let b2 = beta * beta;
-        let mut term = 1.0;
-        let mut sum = 0.0;
-        for k in 1..=8 {
-            term *= b2 / ((2 * k) as f64 * (2 * k + 1) as f64);
-            sum += term;
-        }
-        -sum.ln_1p()
-    } else {
-        // ln sinh β = β − ln 2 + ln(1 − e^(−2β))
-        beta.ln() - beta + std::f64::consts::LN_2 - (-(-2.0 * beta).exp()).ln_1p()
-    }
 }
 
 impl EightChain {
@@ -70,14 +52,15 @@ impl EightChain {
             });
         }
         let y0 = 1.0 / locking_stretch;
-        let beta0 = inverse_langevin(y0).ok_or(MaterialError::InvalidParameter {
+        let root0 = inverse_langevin_at(y0).ok_or(MaterialError::InvalidParameter {
             name: "locking_stretch",
             value: locking_stretch,
             reason: "must be greater than 1 and finite",
         })?;
+        let beta0 = root0.beta;
         let network_modulus = 3.0 * shear_modulus / (locking_stretch * beta0);
         let n = locking_stretch * locking_stretch;
-        let offset = network_modulus * n * (y0 * beta0 + log_beta_over_sinh(beta0));
+        let offset = network_modulus * n * (y0 * beta0 + root0.log_beta_over_sinh);
         Ok(EightChain { shear_modulus, locking_stretch, network_modulus, offset })
     }
 
@@ -103,10 +86,11 @@ impl IsochoricEnergy for EightChain {
             return Err(locked);
         }
         let y = lam / sqrt_n;
-        let beta = inverse_langevin(y).ok_or(locked)?;
+        let root = inverse_langevin_at(y).ok_or(locked)?;
+        let beta = root.beta;
         let mu_r = self.network_modulus;
-        let w = mu_r * sqrt_n * sqrt_n * (y * beta + log_beta_over_sinh(beta)) - self.offset;
-        let dbeta = 1.0 / (sqrt_n * langevin_derivative(beta));
+        let w = mu_r * sqrt_n * sqrt_n * (y * beta + root.log_beta_over_sinh) - self.offset;
+        let dbeta = 1.0 / (sqrt_n * root.slope);
         let w1 = mu_r * sqrt_n * beta / (6.0 * lam);
         let w11 = mu_r * sqrt_n / (36.0 * lam) * (dbeta / lam - beta / (lam * lam));
         Ok(InvariantDerivatives { w, w1, w11, ..Default::default() })

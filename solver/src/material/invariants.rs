@@ -55,6 +55,8 @@ pub struct Kinematics {
     pub i1_bar: f64,
     /// Isochoric second invariant Ī2 = J^(−4/3) I2.
     pub i2_bar: f64,
+    /// J^(−2/3), computed once.
+    pub j23: f64,
 }
 
 impl Kinematics {
@@ -69,7 +71,7 @@ impl Kinematics {
         let i1 = c.trace();
         let i2 = 0.5 * (i1 * i1 - (c * c).trace());
         let j23 = j.powf(-2.0 / 3.0);
-        Ok(Kinematics { c: *c, c_inv, j, i1, i2, i1_bar: j23 * i1, i2_bar: j23 * j23 * i2 })
+        Ok(Kinematics { c: *c, c_inv, j, i1, i2, i1_bar: j23 * i1, i2_bar: j23 * j23 * i2, j23 })
     }
 }
 
@@ -78,12 +80,16 @@ pub fn isochoric_response(model: &dyn IsochoricEnergy, kin: &Kinematics) -> Resu
     let d = model.derivatives(kin.i1_bar, kin.i2_bar)?;
     let id = Matrix3::identity();
     let ci = &kin.c_inv;
-    let j23 = kin.j.powf(-2.0 / 3.0);
+    let j23 = kin.j23;
     let j43 = j23 * j23;
     let a1 = id * j23 - ci * (kin.i1_bar / 3.0);
     let stress_1 = a1 * (2.0 * d.w1);
-    let mut tangent = outer(&a1, &a1) * (4.0 * d.w11)
-        + (outer_sym(&id, ci) * (-j23 / 3.0) + outer(ci, ci) * (kin.i1_bar / 9.0) + odot(ci) * (kin.i1_bar / 3.0)) * (4.0 * d.w1);
+    let mut tangent =
+        (outer_sym(&id, ci) * (-j23 / 3.0) + outer(ci, ci) * (kin.i1_bar / 9.0) + odot(ci) * (kin.i1_bar / 3.0)) * (4.0 * d.w1);
+    if d.w11 != 0.0 {
+        // Zero for the neo-Hookean and Mooney–Rivlin energies, linear in Ī1.
+        tangent += outer(&a1, &a1) * (4.0 * d.w11);
+    }
     let stress = if d.w2 != 0.0 || d.w22 != 0.0 || d.w12 != 0.0 {
         let b = id * kin.i1 - kin.c;
         let a2 = b * j43 - ci * (2.0 / 3.0 * kin.i2_bar);

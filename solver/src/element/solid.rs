@@ -1,0 +1,478 @@
+//! The spatial form of the 3-D solid elements (hex8, tet10 and hex20 with a
+//! constant pressure or none, hex27 without one): the same element as
+//! [`super::kernel`] (its total-Lagrangian `∫ Bᵀ P dV`, `∫ Bᵀ A B dV`),
+//! written with the spatial gradients `∇N_a = F⁻ᵀ ∂N_a/∂X` and the
+//! Kirchhoff stress, which needs far fewer operations:
+//!
+//! ```text
+//! f_a  = ∫ τ ∇N_a dV
+//! K_ab = ∫ B_aᵀ c B_b dV + ∫ (∇N_a · τ ∇N_b) dV · I
+//! ```
+//!
+//! with `τ = F S Fᵀ`, `c` the push-forward of the material tangent
+//! (Kirchhoff-based, a symmetric 6×6 in Voigt form, `c = T D Tᵀ` with the
+//! Voigt transformation `T` of F) and `B_a` the 6×3 symmetric-gradient
+//! operator of node a (Bonet & Wood 2008, *Nonlinear Continuum Mechanics
+//! for Finite Element Analysis*, §9.4). The element pressure p of the mixed
+//! form adds `J p I` to τ and `J p (I⊗I − 2𝕀)` to c, which is the
+//! spatial form of `p ∂(J F⁻ᵀ)/∂F`.
+//!
+//! The reference gradients `∂N_a/∂X` and volume weights are computed once
+//! per element ([`reference_geometry_into`]) and handed in. Every per-node
+//! quantity is held in lanes, one array `[f64; N]` over the element's
+//! nodes, so the loops vectorise; the kernel runs under `pulp`'s run-time
+//! dispatch, which compiles it once more for the CPU's widest vector
+//! instructions. Rust never fuses or reorders floating-point operations,
+//! so each lane does the same operations in the same order whatever the
+//! vector width: the vector and scalar paths give the same bits (a test
+//! checks it).
+
+use nalgebra::{Matrix3, SMatrix};
+
+use super::geometry::{point_geometry_into, PointGeometry};
+use super::kernel::{MixedState, PointResponse, VolumetricResponse, MAX_DOFS, MAX_POINTS};
+use super::pressure_space::PressureSpace;
+use super::{Analysis, ElementError, Formulation, Shape};
+
+/// Largest node count of a spatial-form element (hex27).
+pub const MAX_SOLID_NODES: usize = 27;
+
+/// Whether an element of `shape` running `formulation` (as resolved, see
+/// [`Formulation::resolve`]) takes the spatial form: a 3-D shape, either a
+/// displacement element or a mixed one with a constant pressure.
+pub fn supports(shape: Shape, analysis: Analysis, formulation: Formulation) -> bool {
+    let nodes_ok = matches!(shape, Shape::Hex8 | Shape::Tet10 | Shape::Hex20 | Shape::Hex27);
+    let form_ok = match formulation {
+        Formulation::Displacement => true,
+        Formulation::Mixed => PressureSpace::of_shape(shape) == PressureSpace::Constant,
+        Formulation::ElementPressure | Formulation::ContinuousPressure => false,
+    };
+    analysis == Analysis::Solid3d && nodes_ok && form_ok
+}
+
+/// Reference gradients `∂N_a/∂X` of every point (`grads[q · nodes + a]`)
+/// and the points' volume weights (`dv[q]`) of a 3-D element with
+/// reference node positions `x`.
+pub fn reference_geometry_into(shape: Shape, x: &[[f64; 3]], grads: &mut [[f64; 3]], dv: &mut [f64]) -> Result<(), ElementError> {
+    let nodes = shape.nodes();
+    let mut geo = PointGeometry::default();
+    for q in 0..shape.points() {
+        point_geometry_into(shape, Analysis::Solid3d, x, q, &mut geo)?;
+        grads[q * nodes..(q + 1) * nodes].copy_from_slice(&geo.g[..nodes]);
+        dv[q] = geo.dv;
+    }
+    Ok(())
+}
+
+/// F and J of one point.
+#[derive(Debug, Clone, Copy, Default)]
+pub struct SolidPoint {
+    /// Deformation gradient F.
+    pub f: Matrix3<f64>,
+    /// J = det F (> 0).
+    pub j: f64,
+}
+
+/// F and J at every point of a spatial-form element, with its reference
+/// volume V and deformed volume v = ∫ J dV.
+#[derive(Debug, Clone, Copy)]
+pub struct SolidKinematics {
+    /// The element's points (the first `count`).
+    pub points: [SolidPoint; MAX_POINTS],
+    /// Number of points.
+    pub count: usize,
+    /// Reference volume V.
+    pub volume: f64,
+    /// Deformed volume v = ∫ J dV.
+    pub deformed_volume: f64,
+}
+
+impl Default for SolidKinematics {
+    fn default() -> Self {
+        SolidKinematics { points: [SolidPoint::default(); MAX_POINTS], count: 0, volume: 0.0, deformed_volume: 0.0 }
+    }
+}
+
+impl SolidKinematics {
+    /// The element's points.
+    pub fn points(&self) -> &[SolidPoint] {
+        &self.points[..self.count]
+    }
+
+    /// Mean dilatation v/V.
+    pub fn volume_ratio(&self) -> f64 {
+        self.deformed_volume / self.volume
+    }
+}
+
+/// F = I + Σ u_a ⊗ ∂N_a/∂X and J at every point, from the cached reference
+/// geometry. Fails on an inverted point.
+pub fn solid_kinematics_into(
+    nodes: usize,
+    grads: &[[f64; 3]],
+    dv: &[f64],
+    u: &[[f64; 3]],
+    out: &mut SolidKinematics,
+) -> Result<(), ElementError> {
+    out.count = dv.len();
+    out.volume = 0.0;
+    out.deformed_volume = 0.0;
+    for (q, (point, &w)) in out.points.iter_mut().zip(dv).enumerate() {
+        let g = &grads[q * nodes..(q + 1) * nodes];
+        let mut f = [[0.0; 3]; 3];
+        for (ua, ga) in u[..nodes].iter().zip(g) {
+            for i in 0..3 {
+                for jj in 0..3 {
+                    f[i][jj] += ua[i] * ga[jj];
+                }
+            }
+        }
+        let f = Matrix3::new(f[0][0] + 1.0, f[0][1], f[0][2], f[1][0], f[1][1] + 1.0, f[1][2], f[2][0], f[2][1], f[2][2] + 1.0);
+        let j = f.determinant();
+        if !(j > 0.0 && j.is_finite()) {
+            return Err(ElementError::Inverted { point: q, j });
+        }
+        out.volume += w;
+        out.deformed_volume += j * w;
+        *point = SolidPoint { f, j };
+    }
+    Ok(())
+}
+
+/// The Voigt transformation of F (order xx, yy, zz, xy, yz, xz): `τ = T S`
+/// for symmetric S, and the push-forward of a tangent acting on
+/// engineering strains is `T D Tᵀ`.
+#[inline(always)]
+fn voigt_transform(f: &Matrix3<f64>) -> [[f64; 6]; 6] {
+    const PAIRS: [(usize, usize); 6] = [(0, 0), (1, 1), (2, 2), (0, 1), (1, 2), (0, 2)];
+    let f: [[f64; 3]; 3] = std::array::from_fn(|i| std::array::from_fn(|j| f[(i, j)]));
+    let mut t = [[0.0; 6]; 6];
+    for (n, &(i, j)) in PAIRS.iter().enumerate() {
+        for (m, &(ii, jj)) in PAIRS.iter().enumerate() {
+            t[n][m] = if ii == jj { f[i][ii] * f[j][ii] } else { f[i][ii] * f[j][jj] + f[i][jj] * f[j][ii] };
+        }
+    }
+    t
+}
+
+/// Kirchhoff stress τ = F S Fᵀ (Voigt) from S, with `t` the Voigt
+/// transformation of F.
+#[inline(always)]
+fn kirchhoff(t: &[[f64; 6]; 6], s: &Matrix3<f64>) -> [f64; 6] {
+    let sv = [s[(0, 0)], s[(1, 1)], s[(2, 2)], s[(0, 1)], s[(1, 2)], s[(0, 2)]];
+    let mut tau = [0.0; 6];
+    for n in 0..6 {
+        for m in 0..6 {
+            tau[n] += t[n][m] * sv[m];
+        }
+    }
+    tau
+}
+
+/// Spatial tangent `T D Tᵀ` (symmetric 6×6) pushed forward from D, with
+/// `t` the Voigt transformation of F: rows of `T D` first, then its
+/// products with the rows of T, the lower triangle mirrored.
+#[inline(always)]
+fn push_forward(t: &[[f64; 6]; 6], d: &SMatrix<f64, 6, 6>) -> [[f64; 6]; 6] {
+    // D is symmetric: its columns are its rows.
+    let d: [[f64; 6]; 6] = std::array::from_fn(|l| std::array::from_fn(|m| d[(m, l)]));
+    let mut td = [[0.0; 6]; 6];
+    for n in 0..6 {
+        for l in 0..6 {
+            let s = t[n][l];
+            for m in 0..6 {
+                td[n][m] += s * d[l][m];
+            }
+        }
+    }
+    let mut c = [[0.0; 6]; 6];
+    for n in 0..6 {
+        for m in 0..=n {
+            let mut v = 0.0;
+            for l in 0..6 {
+                v += td[n][l] * t[m][l];
+            }
+            c[n][m] = v;
+            c[m][n] = v;
+        }
+    }
+    c
+}
+
+/// The lane arithmetic of the kernel: `out[b] += s · x[b]` over a node lane.
+#[inline(always)]
+fn axpy<const N: usize>(out: &mut [f64; N], s: f64, x: &[f64; N]) {
+    for b in 0..N {
+        out[b] = s.mul_add(x[b], out[b]);
+    }
+}
+
+/// Internal force (and, if asked, the tangent, column-major, `3N × 3N`)
+/// of a spatial-form element with `N` nodes into caller buffers, from its
+/// cached reference gradients, its kinematics and the material's answer at
+/// every point. A mixed element takes the volumetric law at its mean
+/// dilatation (`volumetric`) and, in the three-field form, its carried
+/// unknowns (`state`, whose outputs are filled in), as
+/// [`super::integrate_into`]. Returns the element's strain energy.
+pub fn solid_integrate_into(
+    nodes: usize,
+    grads: &[[f64; 3]],
+    dv: &[f64],
+    kin: &SolidKinematics,
+    responses: &[PointResponse],
+    volumetric: Option<&VolumetricResponse>,
+    force: &mut [f64],
+    stiffness: Option<&mut [f64]>,
+    state: Option<&mut MixedState>,
+) -> Result<f64, ElementError> {
+    let input = Input { grads, dv, kin, responses, volumetric };
+    let arch = pulp::Arch::new();
+    match nodes {
+        8 => arch.dispatch(Run::<8> { input, force, stiffness, state }),
+        10 => arch.dispatch(Run::<10> { input, force, stiffness, state }),
+        20 => arch.dispatch(Run::<20> { input, force, stiffness, state }),
+        27 => arch.dispatch(Run::<27> { input, force, stiffness, state }),
+        _ => Err(ElementError::NotAnElement { shape: "a solid of this node count" }),
+    }
+}
+
+/// [`solid_integrate_into`] without run-time dispatch: the plain scalar
+/// build, for the test that both paths agree bit for bit.
+#[cfg(test)]
+pub(crate) fn solid_integrate_scalar(
+    grads: &[[f64; 3]],
+    dv: &[f64],
+    kin: &SolidKinematics,
+    responses: &[PointResponse],
+    volumetric: Option<&VolumetricResponse>,
+    force: &mut [f64],
+    stiffness: Option<&mut [f64]>,
+    state: Option<&mut MixedState>,
+) -> Result<f64, ElementError> {
+    let input = Input { grads, dv, kin, responses, volumetric };
+    run::<8>(&input, force, stiffness, state)
+}
+
+#[derive(Clone, Copy)]
+struct Input<'a> {
+    grads: &'a [[f64; 3]],
+    dv: &'a [f64],
+    kin: &'a SolidKinematics,
+    responses: &'a [PointResponse],
+    volumetric: Option<&'a VolumetricResponse>,
+}
+
+struct Run<'a, 'o, const N: usize> {
+    input: Input<'a>,
+    force: &'o mut [f64],
+    stiffness: Option<&'o mut [f64]>,
+    state: Option<&'o mut MixedState>,
+}
+
+impl<const N: usize> pulp::WithSimd for Run<'_, '_, N> {
+    type Output = Result<f64, ElementError>;
+
+    #[inline(always)]
+    fn with_simd<S: pulp::Simd>(self, _simd: S) -> Self::Output {
+        run::<N>(&self.input, self.force, self.stiffness, self.state)
+    }
+}
+
+/// The element tangent in lanes: `k[a][3i + k][b]` is `K[(a, i), (b, k)]`.
+type Lanes<const N: usize> = [[[f64; N]; 9]; N];
+
+/// [`integrate`] with the tangent's lanes on the stack only when a tangent
+/// is wanted.
+#[inline(always)]
+fn run<const N: usize>(
+    input: &Input,
+    force: &mut [f64],
+    stiffness: Option<&mut [f64]>,
+    state: Option<&mut MixedState>,
+) -> Result<f64, ElementError> {
+    match stiffness {
+        Some(k) => {
+            let mut kl: Lanes<N> = [[[0.0; N]; 9]; N];
+            integrate::<N>(input, force, Some((k, &mut kl)), state)
+        }
+        None => integrate::<N>(input, force, None, state),
+    }
+}
+
+#[inline(always)]
+fn integrate<const N: usize>(
+    input: &Input,
+    force: &mut [f64],
+    mut stiffness: Option<(&mut [f64], &mut Lanes<N>)>,
+    state: Option<&mut MixedState>,
+) -> Result<f64, ElementError> {
+    let Input { grads, dv, kin, responses, volumetric } = *input;
+    let want_k = stiffness.is_some();
+    let vol = kin.volume;
+    let mut energy = 0.0;
+    let (p, dp) = match volumetric {
+        Some(v) => {
+            energy += vol * v.energy;
+            (v.pressure, v.stiffness)
+        }
+        None => (0.0, 0.0),
+    };
+    let mixed = volumetric.is_some();
+    // Force and ∂v/∂u in lanes: f[i][a].
+    let mut fl = [[0.0; N]; 3];
+    let mut gl = [[0.0; N]; 3];
+    for (q, ((point, resp), &w)) in kin.points().iter().zip(responses).zip(dv).enumerate() {
+        energy += resp.energy * w;
+        let fi = point.f.try_inverse().ok_or(ElementError::Inverted { point: q, j: point.j })?;
+        // Spatial gradients ∇N_b = F⁻ᵀ ∂N_b/∂X, in lanes.
+        let g0 = &grads[q * N..(q + 1) * N];
+        let mut g = [[0.0; N]; 3];
+        for (b, gb) in g0.iter().enumerate() {
+            for i in 0..3 {
+                g[i][b] = gb[0] * fi[(0, i)] + gb[1] * fi[(1, i)] + gb[2] * fi[(2, i)];
+            }
+        }
+        // τ the same way with or without the tangent, so a residual-only
+        // evaluation gives the same bits.
+        let t = voigt_transform(&point.f);
+        let mut tau = kirchhoff(&t, &resp.stress);
+        let mut c = if want_k { push_forward(&t, &resp.tangent) } else { [[0.0; 6]; 6] };
+        if mixed {
+            let jp = point.j * p;
+            for n in 0..3 {
+                tau[n] += jp;
+            }
+            if want_k {
+                for n in 0..3 {
+                    for m in 0..3 {
+                        c[n][m] += if n == m { -jp } else { jp };
+                    }
+                    c[n + 3][n + 3] -= jp;
+                }
+            }
+            for i in 0..3 {
+                axpy(&mut gl[i], point.j * w, &g[i]);
+            }
+        }
+        // Scaled gradients w ∇N_b.
+        let mut gs = [[0.0; N]; 3];
+        for i in 0..3 {
+            for b in 0..N {
+                gs[i][b] = w * g[i][b];
+            }
+        }
+        // f_a,i += τ_ij w ∇N_a,j.
+        let tm = [[tau[0], tau[3], tau[5]], [tau[3], tau[1], tau[4]], [tau[5], tau[4], tau[2]]];
+        for i in 0..3 {
+            for jj in 0..3 {
+                axpy(&mut fl[i], tm[i][jj], &gs[jj]);
+            }
+        }
+        let Some((_, kl)) = stiffness.as_mut() else {
+            continue;
+        };
+        // cb[r][k][b] = (c B_b)[r][k] w: column k of B_b holds ∇N_b,k in the
+        // normal row k and the other two components in its shear rows.
+        const SHEAR: [[usize; 3]; 3] = [[0, 3, 5], [3, 1, 4], [5, 4, 2]];
+        let mut cb = [[[0.0; N]; 3]; 6];
+        for r in 0..6 {
+            for k in 0..3 {
+                let col = SHEAR[k];
+                let out = &mut cb[r][k];
+                let (c0, c1, c2) = (c[r][col[0]], c[r][col[1]], c[r][col[2]]);
+                for b in 0..N {
+                    out[b] = c2.mul_add(gs[2][b], c1.mul_add(gs[1][b], c0 * gs[0][b]));
+                }
+            }
+        }
+        // Geometric term: h_b = τ w ∇N_b; K_ab += (∇N_a · h_b) I.
+        let mut h = [[0.0; N]; 3];
+        for i in 0..3 {
+            for jj in 0..3 {
+                axpy(&mut h[i], tm[i][jj], &gs[jj]);
+            }
+        }
+        for (a, ka) in kl.iter_mut().enumerate() {
+            let ga = [g[0][a], g[1][a], g[2][a]];
+            // Row i of B_aᵀ: ∇N_a,j in the rows SHEAR[i][j].
+            for i in 0..3 {
+                let rows = SHEAR[i];
+                for k in 0..3 {
+                    let out = &mut ka[3 * i + k];
+                    let (c0, c1, c2) = (&cb[rows[0]][k], &cb[rows[1]][k], &cb[rows[2]][k]);
+                    for b in 0..N {
+                        out[b] = ga[2].mul_add(c2[b], ga[1].mul_add(c1[b], ga[0].mul_add(c0[b], out[b])));
+                    }
+                }
+            }
+            let mut s = [0.0; N];
+            for b in 0..N {
+                s[b] = ga[2].mul_add(h[2][b], ga[1].mul_add(h[1][b], ga[0] * h[0][b]));
+            }
+            for i in 0..3 {
+                let out = &mut ka[4 * i];
+                for b in 0..N {
+                    out[b] += s[b];
+                }
+            }
+        }
+    }
+    let nd = 3 * N;
+    if let (Some(v), Some(st)) = (volumetric, state) {
+        // Condensed residual of the three-field equations:
+        // f += g [U''(θ)(v/V − θ) + U'(θ) − p].
+        let ratio = kin.volume_ratio();
+        let s = dp * (ratio - st.dilatation) + v.law_pressure - p;
+        for i in 0..3 {
+            axpy(&mut fl[i], s, &gl[i]);
+        }
+        st.volume_ratio = ratio;
+        for a in 0..N {
+            for i in 0..3 {
+                st.dvolume_du[3 * a + i] = gl[i][a] / vol;
+            }
+        }
+    }
+    for a in 0..N {
+        for i in 0..3 {
+            force[3 * a + i] = fl[i][a];
+        }
+    }
+    if let Some((kbuf, kl)) = stiffness {
+        if mixed {
+            // K += U''(θ)/V g gᵀ.
+            let s = dp / vol;
+            for (a, ka) in kl.iter_mut().enumerate() {
+                for i in 0..3 {
+                    let gai = s * gl[i][a];
+                    for k in 0..3 {
+                        axpy(&mut ka[3 * i + k], gai, &gl[k]);
+                    }
+                }
+            }
+        }
+        // Column-major out, the lower triangle mirrored so K is symmetric
+        // to the bit.
+        let kbuf = &mut kbuf[..nd * nd];
+        for (a, ka) in kl.iter().enumerate() {
+            for i in 0..3 {
+                let row = 3 * a + i;
+                // The blocks left of the diagonal block, then its lower part.
+                for b in 0..a {
+                    for k in 0..3 {
+                        let (col, v) = (3 * b + k, ka[3 * i + k][b]);
+                        kbuf[col * nd + row] = v;
+                        kbuf[row * nd + col] = v;
+                    }
+                }
+                for k in 0..=i {
+                    let (col, v) = (3 * a + k, ka[3 * i + k][a]);
+                    kbuf[col * nd + row] = v;
+                    kbuf[row * nd + col] = v;
+                }
+            }
+        }
+    }
+    debug_assert!(nd <= MAX_DOFS);
+    Ok(energy)
+}
