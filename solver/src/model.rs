@@ -265,7 +265,8 @@ pub struct IncrementControls {
     /// Out-of-balance force relative to the force scale of the problem
     /// (external plus reaction forces). Default 1e-6.
     pub force_tolerance: f64,
-    /// Energy norm |du·r| of the last correction relative to that of the first.
+    /// Energy norm |du·r| of the last correction (or of the next one, solved
+    /// with the last factorization) relative to that of the first.
     /// Default 1e-8. Either this or the displacement criterion must hold
     /// (besides the force criterion).
     pub energy_tolerance: f64,

@@ -21,7 +21,15 @@
 //! (norm of external plus reaction forces) below `force_tolerance`, and
 //! either the correction's energy `|du·r|` relative to the first one below
 //! `energy_tolerance` or its norm relative to the increment's displacement
-//! below `displacement_tolerance`.
+//! below `displacement_tolerance`. Where the last correction misses both
+//! but the force criterion holds, the energy of the next correction,
+//! solved with the last factorization (no assembly, no factorization), may
+//! meet it instead: with quadratic convergence that saves the correction
+//! that would only confirm the equilibrium.
+//!
+//! A plain attempt whose residual stops falling (a cycle between contact
+//! or friction states) hands over to the damped retry after
+//! [`STALL_WINDOW`] corrections; damping acts in that retry alone.
 
 use std::time::Instant;
 
@@ -55,6 +63,15 @@ pub const MAX_DAMPING: f64 = 1e6;
 
 /// Damped increments may take this many times the stage's Newton iterations.
 pub const DAMPED_BUDGET: usize = 5;
+
+/// Corrections over which a plain attempt must reduce its residual by
+/// [`STALL_DECREASE`], else it hands over to the damped retry at once
+/// instead of using up its iterations (the retry starts afresh, so this
+/// saves iterations and changes no answer of an increment that would fail).
+pub const STALL_WINDOW: usize = 4;
+
+/// Least relative decrease of the residual over [`STALL_WINDOW`] corrections.
+pub const STALL_DECREASE: f64 = 0.1;
 
 /// Result of one increment attempt.
 #[derive(Debug)]
@@ -122,6 +139,8 @@ struct IterationLog {
     previous_residual: Option<f64>,
     /// Augmented-Lagrangian updates of the contact multipliers.
     augmentations: usize,
+    /// Where the current equilibrium solve's residuals begin in `residuals`.
+    solve_start: usize,
 }
 
 impl IterationLog {
@@ -134,13 +153,26 @@ impl IterationLog {
             first_energy: None,
             previous_residual: None,
             augmentations: 0,
+            solve_start: 0,
         }
     }
 
-    /// A new equilibrium solve at the same load: a fresh budget and energy reference.
+    /// Whether the current solve has stalled: its residual fell by less
+    /// than [`STALL_DECREASE`] over the last [`STALL_WINDOW`] corrections
+    /// (Newton caught in a cycle between contact or friction states).
+    fn stalled(&self) -> bool {
+        let r = &self.residuals[self.solve_start..];
+        r.len() > STALL_WINDOW && r[r.len() - 1] >= (1.0 - STALL_DECREASE) * r[r.len() - 1 - STALL_WINDOW]
+    }
+
+    /// A new equilibrium solve at the same load: a fresh budget, energy
+    /// reference and residual history (the residual jumps because the
+    /// problem changed, not because the iteration diverges).
     fn rebalance(&mut self) {
         self.budget = self.iterations + self.per_solve;
         self.first_energy = None;
+        self.previous_residual = None;
+        self.solve_start = self.residuals.len();
     }
 }
 
@@ -207,6 +239,11 @@ pub struct NewtonContext<'a> {
     /// Damping weight per dof (the stabilization springs' weights at factor 1),
     /// built the first time an increment needs damped steps.
     damping_weights: Vec<f64>,
+    /// The attempt under way is the damped retry of a failed increment (the
+    /// only one whose damping may change).
+    retrying: bool,
+    /// The next correction as the last factorization gives it (convergence check).
+    probe: Vec<f64>,
 }
 
 /// A force characteristic of the model: the largest shear modulus times
@@ -286,6 +323,8 @@ impl<'a> NewtonContext<'a> {
             tangent_fresh: false,
             damping: 0.0,
             damping_weights: Vec::new(),
+            retrying: false,
+            probe: vec![0.0; dofs.n_free],
         }
     }
 
@@ -529,7 +568,9 @@ impl<'a> NewtonContext<'a> {
             self.damping_weights = super::stabilization::dof_weights(self.disc, 1.0);
         }
         self.damping = INITIAL_DAMPING;
+        self.retrying = true;
         let damped = self.try_increment(u, t, extrapolation, attempt, observer, stats);
+        self.retrying = false;
         self.damping = 0.0;
         match damped {
             Ok(o) => o,
@@ -573,12 +614,18 @@ impl<'a> NewtonContext<'a> {
             if !rel.is_finite() {
                 return Err(SolveError::NonFiniteResidual);
             }
+            if !self.retrying && self.controls.damped_retry && rel > self.controls.force_tolerance && log.stalled() {
+                return Err(self.not_converged(attempt.increment));
+            }
             if let Some(before) = log.previous_residual.replace(res) {
                 self.update_damping(res / before);
             }
             let e0 = *log.first_energy.get_or_insert(energy_norm);
             let energy_ok = e0 == 0.0 || energy_norm * s <= self.controls.energy_tolerance * e0;
-            if rel <= self.controls.force_tolerance && (energy_ok || self.correction_small(u, s)) && self.settle(u, t, &mut log, stats)? {
+            if rel <= self.controls.force_tolerance
+                && (energy_ok || self.correction_small(u, s) || self.next_correction_small(e0)?)
+                && self.settle(u, t, &mut log, stats)?
+            {
                 self.mixed.commit();
                 self.history.commit();
                 return Ok(IncrementOutcome::Converged { iterations: log.iterations, residuals: log.residuals, energy });
@@ -767,6 +814,19 @@ impl<'a> NewtonContext<'a> {
         step2.sqrt() <= self.controls.displacement_tolerance * inc2.max(tot2).sqrt().max(f64::MIN_POSITIVE)
     }
 
+    /// Whether the correction the next iteration would make meets the
+    /// energy criterion, estimated with the last factorization: its energy
+    /// `|du'·r|` with `K du' = −r` against `energy_tolerance · e0`.
+    fn next_correction_small(&mut self, e0: f64) -> Result<bool, SolveError> {
+        if self.damping > 0.0 || !self.inserts.is_empty() || e0 == 0.0 {
+            return Ok(false);
+        }
+        self.probe.clone_from(&self.rhs);
+        self.linear.solve(&mut self.probe)?;
+        let energy: f64 = self.probe.iter().zip(&self.rhs).map(|(a, b)| a * b).sum::<f64>().abs();
+        Ok(energy <= self.controls.energy_tolerance * e0)
+    }
+
     /// At an equilibrium of the current load: true when the increment is
     /// done. Otherwise the contact multipliers move toward the contact
     /// pressure (augmented Lagrangian) or the fluids' wetted front moved, and
@@ -838,7 +898,9 @@ impl<'a> NewtonContext<'a> {
     /// (plain Newton, quadratic, once below [`DAMPING_OFF`]) and grows while
     /// the residual grows.
     fn update_damping(&mut self, ratio: f64) {
-        if self.damping_weights.is_empty() {
+        // Plain attempts stay plain: once a retry has built the weights, a
+        // growing residual in a later increment must not damp it.
+        if !self.retrying || self.damping_weights.is_empty() {
             return;
         }
         self.damping = if self.damping == 0.0 {
@@ -934,7 +996,29 @@ fn predicts_convergence(residuals: &[f64], tolerance: f64) -> bool {
 
 #[cfg(test)]
 mod tests {
-    use super::predicts_convergence;
+    use super::{predicts_convergence, IterationLog};
+
+    // A plain attempt caught in a cycle between two friction states
+    // (the face seal's first pressurised increment: 0.49, 0.50, 0.49, …)
+    // used up all 15 iterations before its damped retry.
+    #[test]
+    fn a_cycling_solve_is_stalled_and_a_converging_one_is_not() {
+        let mut log = IterationLog::new(15);
+        log.residuals = vec![6.3, 5.1, 0.51, 0.49, 0.50, 0.49];
+        assert!(!log.stalled(), "still falling over the window");
+        log.residuals.push(0.505);
+        assert!(log.stalled());
+        // Slow but steady (linear, ratio 0.9 per correction) is not a stall.
+        log.residuals = (0..8).map(|k| 0.9f64.powi(k)).collect();
+        assert!(!log.stalled());
+        // A re-balance starts a new solve: the jump is not held against it.
+        log.residuals = vec![1.0, 1e-3, 1e-9];
+        log.rebalance();
+        log.residuals.extend([1e-2, 2e-2, 1e-2, 2e-2]);
+        assert!(!log.stalled());
+        log.residuals.push(1e-2);
+        assert!(log.stalled());
+    }
 
     #[test]
     fn convergence_is_predicted_only_from_a_fast_decrease() {
