@@ -222,6 +222,15 @@ pub struct VolumetricResponse {
     pub stiffness: f64,
 }
 
+impl VolumetricResponse {
+    /// Factor of ∂v/∂u in the condensed residual of the three-field
+    /// equations at volume ratio v/V `ratio` and carried dilatation θ:
+    /// U''(θ)(v/V − θ) + U'(θ) − p.
+    pub fn three_field_residual_factor(&self, ratio: f64, dilatation: f64) -> f64 {
+        self.stiffness * (ratio - dilatation) + self.law_pressure - self.pressure
+    }
+}
+
 /// Deformation of one Gauss point: its reference geometry, the deformation
 /// gradient F and J = det F.
 #[derive(Debug, Clone, Copy, Default)]
@@ -598,9 +607,7 @@ fn integrate_constant<const ND: usize, const LOWER: bool>(
             kk.ger(dp / vol, &g, &g, 1.0);
         }
         if let Some(st) = state {
-            // Condensed residual of the three-field equations:
-            // f += g [U''(θ)(v/V − θ) + U'(θ) − p].
-            *force += g * (dp * (ratio - st.dilatation) + v.law_pressure - p);
+            *force += g * v.three_field_residual_factor(ratio, st.dilatation);
             st.volume_ratio = ratio;
             for (d, gv) in st.dvolume_du.iter_mut().zip(g.iter()) {
                 *d = gv / vol;

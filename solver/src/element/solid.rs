@@ -419,10 +419,8 @@ fn integrate<const N: usize>(
     }
     let nd = 3 * N;
     if let (Some(v), Some(st)) = (volumetric, state) {
-        // Condensed residual of the three-field equations:
-        // f += g [U''(θ)(v/V − θ) + U'(θ) − p].
         let ratio = kin.volume_ratio();
-        let s = dp * (ratio - st.dilatation) + v.law_pressure - p;
+        let s = v.three_field_residual_factor(ratio, st.dilatation);
         for i in 0..3 {
             axpy(&mut fl[i], s, &gl[i]);
         }
