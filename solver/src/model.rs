@@ -524,7 +524,7 @@ pub enum Ordering {
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
 pub enum Threads {
     /// One thread unless the factor is large (estimated flops at least
-    /// `linear::PARALLEL_FLOPS`) and at least 3 hardware threads are
+    /// `linear::PARALLEL_FLOPS`) and at least 2 hardware threads are
     /// available; then all of them. Default.
     #[default]
     Auto,

@@ -29,11 +29,13 @@ pub use crate::model::{FactorReuse, LinearSettings, Ordering, Threads};
 /// which [`Threads::Auto`] factorizes on several threads. Measured on a
 /// 2-core machine: a 7.9k-equation block (2.9e8) factorized in 20 ms on one
 /// thread and 51 ms on two; at 45k equations (about 6e9) one or two threads
-/// took the same time.
+/// took the same time; the 156k-equation mount of
+/// `benchmarks/jobs/mount-150k.toml` (208 M factor entries) took 20.1 s on
+/// one thread and 14.0 s on two (quiet machine).
 pub const PARALLEL_FLOPS: f64 = 1e10;
 
 /// Fewest hardware threads with which [`Threads::Auto`] goes parallel.
-pub const PARALLEL_MIN_THREADS: usize = 3;
+pub const PARALLEL_MIN_THREADS: usize = 2;
 
 /// Why the linear solve failed.
 #[derive(Debug, Clone, PartialEq, Error)]
