@@ -1,13 +1,14 @@
 //! Reusing a factorization across Newton iterations changes how each Newton
 //! system is solved, not the system: conjugate gradients preconditioned by
-//! the kept factor solve it to a relative residual of 1e-10 (Saad 2003,
-//! Iterative Methods for Sparse Linear Systems, §9.2), so each Newton
-//! direction is the exact one up to that residual, Newton keeps its
-//! quadratic convergence (an inexact Newton method with forcing terms far
-//! below the residual, Dembo, Eisenstat & Steihaug 1982, "Inexact Newton
-//! methods", SIAM J. Numer. Anal. 19:400–408) and converges to the same
-//! state within its tolerance. Likewise the number of threads changes only
-//! the order of the factor's floating-point sums.
+//! the kept factor (Saad 2003, Iterative Methods for Sparse Linear Systems,
+//! §9.2) solve it to a relative residual η that the driver ties to the
+//! out-of-balance force (a hundredth of it, at most 1e-3, at least 1e-10).
+//! With such forcing terms an inexact Newton method keeps Newton's
+//! quadratic convergence (Dembo, Eisenstat & Steihaug 1982, "Inexact Newton
+//! methods", SIAM J. Numer. Anal. 19:400–408, theorem 3.3: η_k = O(|r_k|)
+//! gives quadratic convergence) and converges to the same state within its
+//! tolerance. Likewise the number of threads changes only the order of the
+//! factor's floating-point sums.
 //!
 //! Case: a distorted bonded hex8 block (Q1/P0), 20 % compression in four
 //! increments, solved with reuse (the default), without it, and on two
@@ -46,6 +47,22 @@ fn displacement_difference(a: &Solution, b: &Solution) -> f64 {
     ua.iter().flatten().zip(ub.iter().flatten()).fold(0.0f64, |m, (x, y)| m.max((x - y).abs())) / scale
 }
 
+/// Every step from below 1e-2 to above the round-off floor (1e-11 of the
+/// force scale) has order above 1.75; returns how many steps were checked.
+fn quadratic_steps(s: &Solution) -> usize {
+    let mut orders = 0;
+    for a in &s.increments {
+        eprintln!("increment {}: {:?}", a.increment, a.residual_history);
+        for h in a.residual_history.windows(2).filter(|h| h[0] < 1e-2 && h[1] > 1e-11) {
+            let order = h[1].ln() / h[0].ln();
+            assert!(order > 1.75, "increment {}: {:e} → {:e}, order {order:.2}", a.increment, h[0], h[1]);
+            orders += 1;
+        }
+        assert!(*a.residual_history.last().unwrap() < 1e-9);
+    }
+    orders
+}
+
 #[test]
 fn reused_factorizations_give_the_same_answer_with_quadratic_newton() {
     let reuse = compress(LinearSettings::default());
@@ -64,24 +81,11 @@ fn reused_factorizations_give_the_same_answer_with_quadratic_newton() {
     assert!(lr.numeric_count < ld.numeric_count);
     assert!(lr.krylov_iterations >= lr.reused_factorizations);
 
-    // Same Newton iterations and the same residuals down to round-off
-    // (1e-11 of the force scale), so the same quadratic convergence: every
-    // step from below 1e-2 to above that floor has order above 1.75.
-    let mut orders = 0;
+    // At most one more Newton iteration per increment, and quadratic convergence.
     for (a, b) in reuse.increments.iter().zip(&direct.increments) {
-        assert_eq!(a.newton_iterations, b.newton_iterations, "increment {}", a.increment);
-        eprintln!("increment {}: {:?}", a.increment, a.residual_history);
-        for (ra, rb) in a.residual_history.iter().zip(&b.residual_history).filter(|(ra, _)| **ra > 1e-11) {
-            assert!(rel(*ra, *rb) < 1e-3, "increment {}: residual {ra:e} with reuse, {rb:e} without", a.increment);
-        }
-        for h in a.residual_history.windows(2).filter(|h| h[0] < 1e-2 && h[1] > 1e-11) {
-            let order = h[1].ln() / h[0].ln();
-            assert!(order > 1.75, "increment {}: {:e} → {:e}, order {order:.2}", a.increment, h[0], h[1]);
-            orders += 1;
-        }
-        assert!(*a.residual_history.last().unwrap() < 1e-9);
+        assert!(a.newton_iterations <= b.newton_iterations + 1, "increment {}", a.increment);
     }
-    assert!(orders >= 2, "too few steps in the asymptotic range");
+    assert!(quadratic_steps(&reuse) >= 2, "too few steps in the asymptotic range");
 
     // The same state, to the Newton tolerance (force 1e-9 relative).
     let d = displacement_difference(&reuse, &direct);

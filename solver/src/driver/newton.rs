@@ -44,11 +44,19 @@ use crate::contact::active::{ActiveContacts, MAX_AUGMENTATIONS};
 use crate::element::MixedState;
 use crate::error::SolveError;
 use crate::insert::{condense, Inserts};
-use crate::linear::{FactorKind, LinearSolver, SystemMatrix};
+use crate::linear::{FactorKind, LinearSolver, Reuse, SystemMatrix};
 use crate::load::fluid::Fluids;
 use crate::load::follower::add_pressure;
 use crate::model::IncrementControls;
 use crate::results::SolveStats;
+
+/// Forcing factor of a Newton system solved on a kept factor: the Krylov
+/// solve's relative residual is this times the relative out-of-balance
+/// force (see `NewtonContext::reuse_for`).
+pub const FORCING: f64 = 0.01;
+
+/// Loosest relative residual of a Newton system solved on a kept factor.
+pub const MAX_FORCING: f64 = 1e-3;
 
 /// Damping λ of the first damped step, as a multiple of the stabilization
 /// spring weights at factor 1 (μ V / h² per node: about the stiffness an
@@ -704,7 +712,7 @@ impl<'a> NewtonContext<'a> {
         }
         self.add_damping();
         self.du.copy_from_slice(&self.rhs);
-        let reuse = self.may_reuse_factor(at);
+        let reuse = self.reuse_for(at);
         let factorization = self.linear.solve_system(SystemMatrix { lower: &self.k, skew: &self.skew }, &mut self.du, reuse)?;
         factorization.check_inertia(self.pattern.negative)?;
         if factorization.fallback {
@@ -736,14 +744,25 @@ impl<'a> NewtonContext<'a> {
     }
 
     /// Whether the system of iteration `at` may be solved on the last
-    /// factorization with a Krylov correction instead of a new one (the
-    /// linear solver still factorizes when that does not converge). Never
-    /// for the first system of an increment (its factor is the one the
-    /// others reuse), with pressure unknowns (the inertia check needs a
-    /// factor of this very tangent) or with inserts (their condensation
-    /// solves with the factor, which must be this tangent's).
-    fn may_reuse_factor(&self, at: IterationAt) -> bool {
-        at.iteration > 0 && self.pattern.negative == 0 && self.inserts.is_empty()
+    /// factorization with a Krylov correction instead of a new one, and to
+    /// what accuracy (the linear solver still factorizes when that does not
+    /// converge). Never for the first system of an increment (its factor is
+    /// the one the others reuse), with pressure unknowns (the inertia check
+    /// needs a factor of this very tangent) or with insert unknowns (their
+    /// condensation solves with the factor, which must be this tangent's).
+    ///
+    /// The accuracy is the forcing term of an inexact Newton method
+    /// (Eisenstat & Walker 1996, "Choosing the forcing terms in an inexact
+    /// Newton method", SIAM J. Sci. Comput. 17(1)): the linear residual
+    /// falls by [`FORCING`] times the relative out-of-balance force, at
+    /// most [`MAX_FORCING`], so the error it leaves is of the order of
+    /// Newton's own quadratic term and convergence stays quadratic.
+    fn reuse_for(&self, at: IterationAt) -> Reuse {
+        if at.iteration == 0 || self.pattern.negative > 0 || self.inserts.unknowns() > 0 {
+            return Reuse::Never;
+        }
+        let rhs: f64 = self.rhs.iter().map(|v| v * v).sum::<f64>().sqrt();
+        Reuse::Kept { tolerance: (FORCING * rhs / self.force_scale().max(f64::MIN_POSITIVE)).min(MAX_FORCING) }
     }
 
     /// Steps from `u` along the direction and evaluates there: a full step,
@@ -818,7 +837,7 @@ impl<'a> NewtonContext<'a> {
     /// energy criterion, estimated with the last factorization: its energy
     /// `|du'·r|` with `K du' = −r` against `energy_tolerance · e0`.
     fn next_correction_small(&mut self, e0: f64) -> Result<bool, SolveError> {
-        if self.damping > 0.0 || !self.inserts.is_empty() || e0 == 0.0 {
+        if self.damping > 0.0 || self.inserts.unknowns() > 0 || e0 == 0.0 {
             return Ok(false);
         }
         self.probe.clone_from(&self.rhs);

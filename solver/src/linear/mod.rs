@@ -166,11 +166,12 @@ pub trait LinearSolver: std::fmt::Debug + Send {
     fn solve(&mut self, rhs: &mut [f64]) -> Result<(), LinearError>;
 
     /// Solves `matrix x = rhs` in place and says which factorization the
-    /// answer rests on. With `reuse` the solver may keep its last factor and
-    /// iterate on `matrix` instead of factorizing (see [`Reusing`]); the
-    /// plain backends always factorize. After a reused solve, [`Self::solve`]
-    /// still solves with the kept factor, not with `matrix`.
-    fn solve_system(&mut self, matrix: SystemMatrix, rhs: &mut [f64], reuse: bool) -> Result<Factorization, LinearError> {
+    /// answer rests on. What `reuse` allows, the solver may do: keep its
+    /// last factor and iterate on `matrix` instead of factorizing (see
+    /// [`Reusing`]); the plain backends always factorize. After a reused
+    /// solve, [`Self::solve`] still solves with the kept factor, not with
+    /// `matrix`.
+    fn solve_system(&mut self, matrix: SystemMatrix, rhs: &mut [f64], reuse: Reuse) -> Result<Factorization, LinearError> {
         let _ = reuse;
         let factorization = self.factorize(matrix)?;
         self.solve(rhs)?;
@@ -179,6 +180,21 @@ pub trait LinearSolver: std::fmt::Debug + Send {
 
     /// Counters and timings so far.
     fn stats(&self) -> &LinearStats;
+}
+
+/// What the caller of [`LinearSolver::solve_system`] allows for one system.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Reuse {
+    /// Factorize this very matrix.
+    Never,
+    /// The matrix is near the factorized one (a later Newton iteration of
+    /// the same increment): the kept factor may precondition a Krylov solve
+    /// to the relative residual `tolerance`, or to
+    /// [`FactorReuse::tolerance`] if that is looser.
+    Kept {
+        /// Relative residual `|b − A x| / |b|` the caller needs.
+        tolerance: f64,
+    },
 }
 
 /// The solver `settings` choose, analysed for `pattern`.

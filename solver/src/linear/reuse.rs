@@ -13,8 +13,12 @@ use std::time::Instant;
 
 use super::krylov::{conjugate_gradients, gmres, KrylovOutcome};
 use super::{
-    FactorKind, FactorReuse, Factorization, LinearError, LinearSettings, LinearSolver, LinearStats, SymmetricPattern, SystemMatrix,
+    FactorKind, FactorReuse, Factorization, LinearError, LinearSettings, LinearSolver, LinearStats, Reuse, SymmetricPattern, SystemMatrix,
 };
+
+/// Attempts to skip after a failed one (doubled for each further failure
+/// in a row, up to 8 times this).
+pub const BACK_OFF: usize = 1;
 
 /// A [`LinearSolver`] that may solve on its kept factor (see the module).
 #[derive(Debug)]
@@ -25,6 +29,9 @@ pub struct Reusing<S> {
     row_idx: Vec<usize>,
     /// The summary of the kept factorization.
     kept: Option<Factorization>,
+    /// Attempts still to be skipped after failures, and the failures in a row.
+    skip: usize,
+    failures: u32,
     /// The inner solver's statistics with this wrapper's counters.
     stats: LinearStats,
 }
@@ -33,7 +40,16 @@ impl<S: LinearSolver> Reusing<S> {
     /// Wraps `inner`, analysed for `pattern`.
     pub fn new(inner: S, pattern: &SymmetricPattern, settings: FactorReuse) -> Self {
         let stats = inner.stats().clone();
-        Reusing { inner, settings, col_ptr: pattern.col_ptr.to_vec(), row_idx: pattern.row_idx.to_vec(), kept: None, stats }
+        Reusing {
+            inner,
+            settings,
+            col_ptr: pattern.col_ptr.to_vec(),
+            row_idx: pattern.row_idx.to_vec(),
+            kept: None,
+            skip: 0,
+            failures: 0,
+            stats,
+        }
     }
 
     /// Copies the inner solver's statistics, keeping this wrapper's counters.
@@ -46,9 +62,34 @@ impl<S: LinearSolver> Reusing<S> {
         self.stats.krylov_time = own.krylov_time;
     }
 
-    /// Tries the Krylov solve on the kept factor; `Some` summary when it
-    /// converged (`rhs` then holds the solution).
-    fn iterate(&mut self, kept: Factorization, matrix: SystemMatrix, rhs: &mut [f64]) -> Result<Option<Factorization>, LinearError> {
+    /// Whether `reuse` lets the kept factor serve, and then the tolerance
+    /// (the caller's, or the settings' floor if that is looser) and the
+    /// iteration budget. After a failed attempt the next [`BACK_OFF`]
+    /// attempts (doubling with every further failure in a row) factorize
+    /// at once: where the kept factor is a poor preconditioner (a nearly
+    /// incompressible part whose tangent moves much from one iteration to
+    /// the next) the Krylov iterations then stop wasting time. The decision
+    /// rests on the iterations alone, so a run takes the same path on any
+    /// machine and under any load.
+    fn plan(&self, reuse: Reuse) -> Option<(f64, usize)> {
+        match reuse {
+            Reuse::Kept { tolerance } if self.settings.enabled && self.kept.is_some() && self.skip == 0 => {
+                Some((tolerance.max(self.settings.tolerance), self.settings.max_iterations))
+            }
+            _ => None,
+        }
+    }
+
+    /// Tries the Krylov solve on the kept factor to `tolerance` in at most
+    /// `max` iterations; `Some` summary when it converged (`rhs` then holds
+    /// the solution).
+    fn iterate(
+        &mut self,
+        kept: Factorization,
+        matrix: SystemMatrix,
+        rhs: &mut [f64],
+        (tolerance, max): (f64, usize),
+    ) -> Result<Option<Factorization>, LinearError> {
         let t = Instant::now();
         let mut x = vec![0.0; rhs.len()];
         let (col_ptr, row_idx) = (&self.col_ptr, &self.row_idx);
@@ -56,7 +97,6 @@ impl<S: LinearSolver> Reusing<S> {
         let inner = &mut self.inner;
         let mut precondition = |v: &mut [f64]| inner.solve(v);
         let symmetric = matrix.skew.is_empty() && kept.kind == FactorKind::Cholesky;
-        let (tolerance, max) = (self.settings.tolerance, self.settings.max_iterations);
         // A preconditioner solve that fails (a singular kept factor) is a
         // failed reuse, not a failed system.
         let outcome = if symmetric {
@@ -119,14 +159,19 @@ impl<S: LinearSolver> LinearSolver for Reusing<S> {
         solved
     }
 
-    fn solve_system(&mut self, matrix: SystemMatrix, rhs: &mut [f64], reuse: bool) -> Result<Factorization, LinearError> {
-        if let Some(kept) = self.kept.filter(|_| reuse && self.settings.enabled) {
+    fn solve_system(&mut self, matrix: SystemMatrix, rhs: &mut [f64], reuse: Reuse) -> Result<Factorization, LinearError> {
+        if matches!(reuse, Reuse::Kept { .. }) && self.skip > 0 {
+            self.skip -= 1;
+        } else if let (Some(kept), Some(plan)) = (self.kept, self.plan(reuse)) {
             let b = rhs.to_vec();
-            if let Some(factorization) = self.iterate(kept, matrix, rhs)? {
+            if let Some(factorization) = self.iterate(kept, matrix, rhs, plan)? {
+                self.failures = 0;
                 self.sync();
                 return Ok(factorization);
             }
             self.stats.krylov_refactorizations += 1;
+            self.skip = BACK_OFF << self.failures.min(3);
+            self.failures += 1;
             rhs.copy_from_slice(&b);
         }
         let factorization = self.factorize(matrix)?;
@@ -216,19 +261,20 @@ mod tests {
     #[test]
     fn reuse_iterates_on_a_near_matrix_and_refactorizes_when_the_factor_is_poor() {
         let n = 200;
-        let reuse = FactorReuse { enabled: true, max_iterations: 10, tolerance: 1e-10 };
+        let reuse = FactorReuse { max_iterations: 10, ..Default::default() };
+        let allow = Reuse::Kept { tolerance: 1e-10 };
         let (col_ptr, row_idx, first) = laplacian(n, 0.1);
         let mut s = solver(n, &col_ptr, &row_idx, reuse);
         let b: Vec<f64> = (0..n).map(|i| ((i * 7 % 5) as f64) - 1.5).collect();
         let mut x = b.clone();
-        let f = s.solve_system(SystemMatrix { lower: &first, skew: &[] }, &mut x, true).unwrap();
+        let f = s.solve_system(SystemMatrix { lower: &first, skew: &[] }, &mut x, allow).unwrap();
         assert_eq!((f.kind, s.stats().numeric_count, s.stats().reused_factorizations), (FactorKind::Cholesky, 1, 0));
 
         // 2 % stiffer: reused, by conjugate gradients.
         let near: Vec<f64> = first.iter().map(|v| 1.02 * v).collect();
         let m = SystemMatrix { lower: &near, skew: &[] };
         let mut x = b.clone();
-        let f = s.solve_system(m, &mut x, true).unwrap();
+        let f = s.solve_system(m, &mut x, allow).unwrap();
         assert!(f.positive_definite);
         assert_eq!((s.stats().numeric_count, s.stats().reused_factorizations), (1, 1));
         assert!(relative_residual(&col_ptr, &row_idx, m, &x, &b) < 1e-9);
@@ -237,13 +283,13 @@ mod tests {
         let skew = [(1usize, 0.01), (3, -0.02)];
         let m = SystemMatrix { lower: &near, skew: &skew };
         let mut x = b.clone();
-        s.solve_system(m, &mut x, true).unwrap();
+        s.solve_system(m, &mut x, allow).unwrap();
         assert_eq!((s.stats().numeric_count, s.stats().reused_factorizations), (1, 2));
         assert!(relative_residual(&col_ptr, &row_idx, m, &x, &b) < 1e-9);
 
         // Not allowed: factorized.
         let mut x = b.clone();
-        s.solve_system(SystemMatrix { lower: &near, skew: &[] }, &mut x, false).unwrap();
+        s.solve_system(SystemMatrix { lower: &near, skew: &[] }, &mut x, Reuse::Never).unwrap();
         assert_eq!(s.stats().numeric_count, 2);
 
         // The factor of `near` against a matrix whose shift is 100× smaller:
@@ -251,10 +297,66 @@ mod tests {
         let (_, _, soft) = laplacian(n, 1e-3);
         let m = SystemMatrix { lower: &soft, skew: &[] };
         let mut x = b.clone();
-        s.solve_system(m, &mut x, true).unwrap();
+        s.solve_system(m, &mut x, allow).unwrap();
         let st = s.stats();
         assert_eq!((st.numeric_count, st.reused_factorizations, st.krylov_refactorizations), (3, 2, 1));
         assert!(st.krylov_iterations >= 10);
         assert!(relative_residual(&col_ptr, &row_idx, m, &x, &b) < 1e-12);
+    }
+
+    /// The kept factor serves at the caller's tolerance or the settings'
+    /// floor, whichever is looser; after a failed attempt the next one
+    /// factorizes at once, after two failures in a row the next two.
+    #[test]
+    fn reuse_tolerance_and_back_off() {
+        let n = 200;
+        let (col_ptr, row_idx, first) = laplacian(n, 0.1);
+        let mut s = solver(n, &col_ptr, &row_idx, FactorReuse { max_iterations: 5, ..Default::default() });
+        let loose = Reuse::Kept { tolerance: 1e-4 };
+        // Nothing kept yet: always factorize.
+        assert_eq!(s.plan(loose), None);
+        let b: Vec<f64> = (0..n).map(|i| ((i * 7 % 5) as f64) - 1.5).collect();
+        let mut x = b.clone();
+        s.solve_system(SystemMatrix { lower: &first, skew: &[] }, &mut x, Reuse::Never).unwrap();
+        assert_eq!(s.plan(loose), Some((1e-4, 5)));
+        assert_eq!(s.plan(Reuse::Kept { tolerance: 1e-12 }), Some((1e-10, 5)));
+        assert_eq!(s.plan(Reuse::Never), None);
+        // A loose tolerance is met in fewer iterations than a tight one.
+        let (_, _, near) = laplacian(n, 0.098);
+        let m = SystemMatrix { lower: &near, skew: &[] };
+        let mut x = b.clone();
+        s.solve_system(m, &mut x, loose).unwrap();
+        let loose_iterations = s.stats().krylov_iterations;
+        assert!(relative_residual(&col_ptr, &row_idx, m, &x, &b) < 1e-4);
+        let mut x = b.clone();
+        s.solve_system(m, &mut x, Reuse::Kept { tolerance: 1e-12 }).unwrap();
+        assert!(s.stats().krylov_iterations - loose_iterations > loose_iterations, "{:?}", s.stats());
+        assert_eq!((s.stats().numeric_count, s.stats().reused_factorizations), (1, 2));
+        // A matrix the kept factor preconditions poorly: 5 iterations fail.
+        let (_, _, soft) = laplacian(n, 1e-3);
+        let poor = SystemMatrix { lower: &soft, skew: &[] };
+        let count = |s: &Reusing<FaerDirect>| (s.stats().numeric_count, s.stats().krylov_refactorizations);
+        let mut x = b.clone();
+        s.solve_system(poor, &mut x, Reuse::Kept { tolerance: 1e-10 }).unwrap();
+        assert_eq!(count(&s), (2, 1));
+        // The next allowed system factorizes without trying (no Krylov iteration spent).
+        let before = s.stats().krylov_iterations;
+        let mut x = b.clone();
+        s.solve_system(m, &mut x, loose).unwrap();
+        assert_eq!((count(&s), s.stats().krylov_iterations), ((3, 1), before));
+        // Now the factor of `near` is kept: `soft` fails again, and two systems skip.
+        let mut x = b.clone();
+        s.solve_system(poor, &mut x, Reuse::Kept { tolerance: 1e-10 }).unwrap();
+        assert_eq!(count(&s), (4, 2));
+        for expected in [5, 6] {
+            let mut x = b.clone();
+            s.solve_system(m, &mut x, loose).unwrap();
+            assert_eq!(count(&s), (expected, 2));
+        }
+        // Then it tries again, and a success resets the back-off.
+        let mut x = b.clone();
+        s.solve_system(m, &mut x, loose).unwrap();
+        assert_eq!((count(&s), s.stats().reused_factorizations), ((6, 2), 3));
+        assert!(relative_residual(&col_ptr, &row_idx, m, &x, &b) < 1e-4);
     }
 }
