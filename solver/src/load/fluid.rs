@@ -516,6 +516,47 @@ mod tests {
         assert_eq!(flood(&f, &[0.0; 7], 0.0), [false; 6]);
     }
 
+    fn chain_fluids(n: usize) -> Fluids {
+        let mut f = front(n);
+        f.start = 1.0;
+        let committed = vec![vec![false; n]];
+        Fluids { fluids: vec![f], dim: 2, analysis: None, committed, seen: Vec::new(), grow_only: false }
+    }
+
+    // The front follows the contact both ways (one criterion for wetting
+    // and drying), and an oscillation settles on the union of its cycle
+    // whenever it starts: the result does not hang on a count of updates.
+    #[test]
+    fn the_front_wets_and_dries_and_a_cycle_settles_on_its_union() {
+        let (open, tight) = ([0.0; 7], [0.0, 0.0, 2.0, 0.0, 0.0, 0.0, 0.0]);
+        let wet = |f: &Fluids| f.fluids[0].wetted.clone();
+        let mut f = chain_fluids(6);
+        f.begin_increment();
+        assert!(f.update_front(&open, 1.0));
+        assert_eq!(wet(&f), [true; 6]);
+        // Node 2 pressed tight: the front dries back to the first edge.
+        assert!(f.update_front(&tight, 1.0));
+        assert_eq!(wet(&f), [true, false, false, false, false, false]);
+        // Open again: the set met before closes a cycle, settled on the union.
+        assert!(f.update_front(&open, 1.0) && wet(&f) == [true; 6]);
+        assert!(!f.update_front(&tight, 1.0) && wet(&f) == [true; 6], "after a cycle the front only grows");
+        // The same cycle met after more updates settles on the same set.
+        let mut g = chain_fluids(6);
+        g.begin_increment();
+        let half = [0.0, 0.0, 0.0, 0.0, 2.0, 0.0, 0.0];
+        for contact in [&half, &tight, &half, &open, &tight, &open] {
+            g.update_front(contact, 1.0);
+        }
+        assert_eq!(wet(&g), [true; 6]);
+        // The next increment starts from the converged front.
+        g.commit();
+        g.begin_increment();
+        assert_eq!(wet(&g), [true; 6]);
+        assert!(g.update_front(&tight, 1.0));
+        assert_eq!(wet(&g), [true, false, false, false, false, false]);
+        assert_eq!(g.updates(), 1);
+    }
+
     #[test]
     fn quad_faces_connect_through_edges_not_corners() {
         // Three unit squares in a row plus one touching only at a corner.
