@@ -85,10 +85,13 @@ name = "fill"
     let sol = run(&j);
     // The follower load's stiffness is consistent: Newton converges
     // quadratically (each relative residual below 10 × the square of the one
-    // before, once it is small and above round-off, 1e-11).
+    // before, once it is small and above round-off, 1e-11). A residual at
+    // the force tolerance (1e-6) ends an equilibrium solve: what follows
+    // it is the re-balance of a moved wetted front (the first equilibrium
+    // of the stage is dry), a new solve.
     for r in &sol.increments {
         for w in r.residual_history.windows(2) {
-            if w[0] < 1e-2 && w[1] > 1e-11 {
+            if w[0] < 1e-2 && w[0] > 1e-6 && w[1] > 1e-11 {
                 assert!(w[1] < 10.0 * w[0] * w[0], "residuals {:?}", r.residual_history);
             }
         }

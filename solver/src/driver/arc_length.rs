@@ -289,7 +289,7 @@ fn predict(ctx: &mut NewtonContext, u: &mut [f64], t0: f64, arc: &mut Arc, stats
     u.copy_from_slice(&ctx.last_converged);
     ctx.mixed.restart();
     if let Some(f) = ctx.fluids.as_deref_mut() {
-        f.begin_increment(t0);
+        f.begin_increment();
     }
     ctx.evaluate_fixed(u, t0, true, stats)?;
     ctx.factorize_tangent()?;

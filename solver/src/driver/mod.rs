@@ -364,9 +364,8 @@ impl Recorder<'_> {
         let share = ctx.stabilization_share(u);
         ctx.last_converged.copy_from_slice(u);
         ctx.contacts.commit();
-        // Only a model with fluids needs the contact pressures here.
         if let Some(f) = ctx.fluids.as_deref_mut() {
-            f.commit(&ctx.contacts.fields(model.mesh.node_count()).pressure);
+            f.commit();
         }
         ctx.inserts.commit();
         let result = IncrementResult {

@@ -650,7 +650,11 @@ impl<'a> NewtonContext<'a> {
         u.copy_from_slice(&self.last_converged);
         self.mixed.restart();
         if let Some(fluids) = self.fluids.as_deref_mut() {
-            fluids.begin_increment(t);
+            if self.retrying {
+                fluids.resume_increment();
+            } else {
+                fluids.begin_increment();
+            }
         }
         self.inserts.restore();
         let mut extrapolated = false;
@@ -886,7 +890,7 @@ impl<'a> NewtonContext<'a> {
             return Ok(false);
         }
 
-        if fluids.updates() > crate::load::fluid::FREE_UPDATES + fluids.facet_count() {
+        if fluids.updates() > fluids.update_limit() {
             return Err(SolveError::FluidFrontNotSettled { updates: fluids.updates() });
         }
         self.dup.fill(0.0);

@@ -12,14 +12,23 @@
 //! position, with its full (non-symmetric) load stiffness.
 //!
 //! The wetted set is discrete, so it is updated between equilibrium solves,
-//! not inside the Newton iteration: each increment starts from the front
-//! found with the last converged contact pressures and the increment's fluid
-//! pressure; after every equilibrium the front is found again from the
-//! current contact pressures, and the increment is re-balanced at the same
-//! load while it changes. The first [`FREE_UPDATES`] updates may wet and dry
-//! facets; later ones only add facets, so the sequence stops after at most
-//! as many further updates as the set has facets (a front that would
-//! oscillate between two sets settles on their union).
+//! not inside the Newton iteration. The front of an increment is a fixed
+//! point of the rule at the increment's load: the set the fluid floods
+//! through the contact pressures of the equilibrium with that very set
+//! wetted. Each increment starts from the front of the last converged
+//! increment; after every equilibrium the front is found again from the
+//! current contact pressures (facets may wet and dry, by the same
+//! criterion), and the increment is re-balanced at the same load while it
+//! changes. Starting from the converged front, never from a flood of old
+//! contact pressures at a new fluid pressure, the front follows the load as
+//! a slow pressurisation would, whatever the increment size: a flood of the
+//! last increment's contact pressures at the new fluid pressure overshoots
+//! (a self-energised seal presses harder as the pressure rises) onto facets
+//! that, once wetted, stay open, so the front found depended on the step.
+//! A front that would oscillate (the rule maps a set back to one it met
+//! before in this increment) settles on the union of the sets of the cycle,
+//! from which it may only grow: the result depends on the sets of the
+//! cycle, not on how many updates came before it.
 
 use nalgebra::Vector3;
 use olli_mesh::{select::boundary_sides, Side};
@@ -41,9 +50,6 @@ pub struct FluidError {
     /// What is wrong with it.
     pub reason: String,
 }
-
-/// Front updates per increment that may also dry facets; later updates only wet.
-pub const FREE_UPDATES: usize = 4;
 
 /// One side of a fluid's set: its nodes in the side shape's order, corners first.
 #[derive(Debug, Clone, PartialEq)]
@@ -96,10 +102,12 @@ pub struct Fluids {
     fluids: Vec<FluidFront>,
     dim: usize,
     analysis: Option<Analysis>,
-    /// Contact pressure per mesh node at the last converged increment.
-    committed_contact: Vec<f64>,
-    /// Front updates in the current increment.
-    updates: usize,
+    /// Wetted facets of every fluid at the last converged increment.
+    committed: Vec<Vec<bool>>,
+    /// The fronts (all fluids) met in the current increment, the start first.
+    seen: Vec<Vec<Vec<bool>>>,
+    /// A cycle was met in this increment: the front may only grow.
+    grow_only: bool,
 }
 
 impl Fluids {
@@ -173,7 +181,8 @@ impl Fluids {
                 }
             }
         }
-        Ok(Fluids { fluids, dim, analysis: Some(model.analysis), committed_contact: vec![0.0; mesh.node_count()], updates: 0 })
+        let committed = fluids.iter().map(|f| vec![false; f.facets.len()]).collect();
+        Ok(Fluids { fluids, dim, analysis: Some(model.analysis), committed, seen: Vec::new(), grow_only: false })
     }
 
     /// Whether the model has no fluid.
@@ -199,41 +208,66 @@ impl Fluids {
         f.start + f.ramp.fraction(t) * (f.end - f.start)
     }
 
-    /// Starts an increment ending at stage fraction `t`: the front found from
-    /// the last converged contact pressures and the increment's fluid pressure.
-    pub fn begin_increment(&mut self, t: f64) {
-        self.updates = 0;
-        for i in 0..self.fluids.len() {
-            let p = self.pressure(i, t);
-            let wet = flood(&self.fluids[i], &self.committed_contact, p);
-            self.fluids[i].wetted = wet;
+    /// Starts an increment: the front of the last converged increment.
+    pub fn begin_increment(&mut self) {
+        for (f, c) in self.fluids.iter_mut().zip(&self.committed) {
+            f.wetted.clone_from(c);
         }
+        self.seen = vec![self.fronts()];
+        self.grow_only = false;
+    }
+
+    /// Starts the damped retry of a failed increment from the front its
+    /// plain attempt reached at the same load (an iterate of the same rule,
+    /// so the fixed point it settles on is the same; the dry start would
+    /// cost the retry its damped iterations).
+    pub fn resume_increment(&mut self) {
+        self.seen = vec![self.fronts()];
+        self.grow_only = false;
+    }
+
+    fn fronts(&self) -> Vec<Vec<bool>> {
+        self.fluids.iter().map(|f| f.wetted.clone()).collect()
     }
 
     /// Finds the front again from `contact` (contact pressure per mesh node
-    /// at the current equilibrium) and returns whether it moved.
+    /// at the current equilibrium) at stage fraction `t` and returns whether
+    /// it moved. A front met before in this increment closes a cycle: the
+    /// front becomes the union of the cycle's sets and only grows from then on.
     pub fn update_front(&mut self, contact: &[f64], t: f64) -> bool {
-        let grow_only = self.updates >= FREE_UPDATES;
-        let mut changed = false;
-        for i in 0..self.fluids.len() {
-            let p = self.pressure(i, t);
-            let wet = flood(&self.fluids[i], contact, p);
-            let f = &mut self.fluids[i];
-            for (old, new) in f.wetted.iter_mut().zip(wet) {
-                let next = if grow_only { *old || new } else { new };
-                changed |= next != *old;
-                *old = next;
+        let mut next: Vec<Vec<bool>> = (0..self.fluids.len()).map(|i| flood(&self.fluids[i], contact, self.pressure(i, t))).collect();
+        let current = self.fronts();
+        if self.grow_only {
+            union_into(&mut next, &current);
+        } else if let Some(first) = self.seen.iter().position(|s| *s == next) {
+            // The cycle: the sets met from `next`'s first appearance on.
+            for set in &self.seen[first..] {
+                union_into(&mut next, set);
             }
+            self.grow_only = true;
         }
-        if changed {
-            self.updates += 1;
+        if next == current {
+            return false;
         }
-        changed
+        for (f, w) in self.fluids.iter_mut().zip(&next) {
+            f.wetted.clone_from(w);
+        }
+        self.seen.push(next);
+        true
     }
 
     /// Front updates so far in the current increment.
     pub fn updates(&self) -> usize {
-        self.updates
+        self.seen.len().saturating_sub(1)
+    }
+
+    /// Most front updates an increment may take: every update before a
+    /// cycle meets a new set, and after one the front only grows; this
+    /// bounds the updates of any front that settles in practice (a front
+    /// that wanders through more distinct sets than twice the facets is
+    /// reported as unsettled).
+    pub fn update_limit(&self) -> usize {
+        2 * self.facet_count() + 1
     }
 
     /// Facets of all fluids (bounds the number of wetting-only updates).
@@ -241,9 +275,9 @@ impl Fluids {
         self.fluids.iter().map(|f| f.facets.len()).sum()
     }
 
-    /// Keeps the converged contact pressures for the next increment's first front.
-    pub fn commit(&mut self, contact: &[f64]) {
-        self.committed_contact.copy_from_slice(contact);
+    /// Keeps the converged front as the next increment's start.
+    pub fn commit(&mut self) {
+        self.committed = self.fronts();
     }
 
     /// Adds the wetted facets' follower pressure at `u` and stage fraction
@@ -327,6 +361,15 @@ impl Fluids {
             }
         }
         out
+    }
+}
+
+/// `into ∪= other`, fluid by fluid.
+fn union_into(into: &mut [Vec<bool>], other: &[Vec<bool>]) {
+    for (a, b) in into.iter_mut().zip(other) {
+        for (x, &y) in a.iter_mut().zip(b) {
+            *x |= y;
+        }
     }
 }
 
@@ -473,6 +516,47 @@ mod tests {
         assert_eq!(flood(&f, &[0.0; 7], 0.0), [false; 6]);
     }
 
+    fn chain_fluids(n: usize) -> Fluids {
+        let mut f = front(n);
+        f.start = 1.0;
+        let committed = vec![vec![false; n]];
+        Fluids { fluids: vec![f], dim: 2, analysis: None, committed, seen: Vec::new(), grow_only: false }
+    }
+
+    // The front follows the contact both ways (one criterion for wetting
+    // and drying), and an oscillation settles on the union of its cycle
+    // whenever it starts: the result does not hang on a count of updates.
+    #[test]
+    fn the_front_wets_and_dries_and_a_cycle_settles_on_its_union() {
+        let (open, tight) = ([0.0; 7], [0.0, 0.0, 2.0, 0.0, 0.0, 0.0, 0.0]);
+        let wet = |f: &Fluids| f.fluids[0].wetted.clone();
+        let mut f = chain_fluids(6);
+        f.begin_increment();
+        assert!(f.update_front(&open, 1.0));
+        assert_eq!(wet(&f), [true; 6]);
+        // Node 2 pressed tight: the front dries back to the first edge.
+        assert!(f.update_front(&tight, 1.0));
+        assert_eq!(wet(&f), [true, false, false, false, false, false]);
+        // Open again: the set met before closes a cycle, settled on the union.
+        assert!(f.update_front(&open, 1.0) && wet(&f) == [true; 6]);
+        assert!(!f.update_front(&tight, 1.0) && wet(&f) == [true; 6], "after a cycle the front only grows");
+        // The same cycle met after more updates settles on the same set.
+        let mut g = chain_fluids(6);
+        g.begin_increment();
+        let half = [0.0, 0.0, 0.0, 0.0, 2.0, 0.0, 0.0];
+        for contact in [&half, &tight, &half, &open, &tight, &open] {
+            g.update_front(contact, 1.0);
+        }
+        assert_eq!(wet(&g), [true; 6]);
+        // The next increment starts from the converged front.
+        g.commit();
+        g.begin_increment();
+        assert_eq!(wet(&g), [true; 6]);
+        assert!(g.update_front(&tight, 1.0));
+        assert_eq!(wet(&g), [true, false, false, false, false, false]);
+        assert_eq!(g.updates(), 1);
+    }
+
     #[test]
     fn quad_faces_connect_through_edges_not_corners() {
         // Three unit squares in a row plus one touching only at a corner.
@@ -550,7 +634,8 @@ mod tests {
         let disc = Discretization::new(&model).unwrap();
         let mut fluids = Fluids::new(&disc).unwrap();
         fluids.begin_stage(&model.stages[0]);
-        fluids.begin_increment(1.0);
+        fluids.begin_increment();
+        fluids.update_front(&vec![0.0; mesh.node_count()], 1.0);
         (mesh, fluids)
     }
 

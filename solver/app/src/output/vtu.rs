@@ -49,7 +49,7 @@ pub fn write_vtu(path: &Path, title: &str, mesh: &Mesh, point_fields: Vec<Field>
     let mut vtk = olli_mesh::export::grid(mesh, extra);
     vtk.title = if title.is_empty() { "olli".into() } else { title.into() };
     let mut bytes = Vec::new();
-    vtk.try_into_xml_format(Compressor::ZLib, 6)
+    vtk.try_into_xml_format(Compressor::ZLib, 1)
         .and_then(|file| file.write(&mut bytes))
         .map_err(|e| std::io::Error::other(format!("{e}")))?;
     write_atomic(path, &bytes)
