@@ -34,14 +34,14 @@ struct Term {
     source: u32,
 }
 
-/// The terms of one global array (tangent slots or force dofs) chunk by
-/// chunk and part by part.
+/// The terms of one chunk into one global array (tangent slots or force
+/// dofs), part by part.
 #[derive(Debug, Clone, Default)]
 struct Split {
-    /// Interior range bounds of every chunk: `parts − 1` per chunk (the
-    /// first range starts at 0, the last ends at the array's end).
+    /// Interior range bounds, `parts − 1` (the first range starts at 0, the
+    /// last ends at the array's end).
     bounds: Vec<usize>,
-    /// Start of each (chunk, part) list in `terms`, and the end.
+    /// Start of each part's list in `terms`, and the end.
     starts: Vec<usize>,
     terms: Vec<Term>,
 }
@@ -53,8 +53,8 @@ pub struct ScatterPlan {
     parts: usize,
     /// Element force buffer stride (the discretization's largest element).
     fstride: usize,
-    tangent: Split,
-    force: Split,
+    /// The splits of every chunk: (tangent, force).
+    chunks: Vec<(Split, Split)>,
 }
 
 /// The parts of a plan built by [`ScatterPlan::build`]: two per worker
@@ -76,24 +76,16 @@ impl ScatterPlan {
         if CHUNK * kstride >= u32::MAX as usize || row_idx.len() >= u32::MAX as usize || dofs.eq.len() >= u32::MAX as usize {
             return Err(AssemblyError::PatternTooLarge(row_idx.len()));
         }
-        let (mut tangent, mut force) = (Split::default(), Split::default());
-        // A few chunks at a time, so the unsplit terms of the whole mesh
-        // are never held at once.
-        let chunks = ne.div_ceil(CHUNK);
-        for first in (0..chunks).step_by(BATCH) {
-            let batch: Vec<(Split, Split)> = (first..chunks.min(first + BATCH))
-                .into_par_iter()
-                .map(|chunk| {
-                    let (slots, forces) = chunk_terms(disc, dofs, col_ptr, row_idx, chunk);
-                    (Split::of_chunk(&slots, parts), Split::of_chunk(&forces, parts))
-                })
-                .collect();
-            for (t, f) in batch {
-                tangent.append(t);
-                force.append(f);
-            }
-        }
-        Ok(ScatterPlan { parts, fstride, tangent, force })
+        // Each chunk's unsplit terms are dropped once split, so the
+        // threads hold only a few chunks' at once.
+        let chunks = (0..ne.div_ceil(CHUNK))
+            .into_par_iter()
+            .map(|chunk| {
+                let (slots, forces) = chunk_terms(disc, dofs, col_ptr, row_idx, chunk);
+                (Split::new(&slots, parts), Split::new(&forces, parts))
+            })
+            .collect();
+        Ok(ScatterPlan { parts, fstride, chunks })
     }
 
     /// Number of parts per chunk.
@@ -113,25 +105,14 @@ impl ScatterPlan {
     /// parts run on rayon's threads, or one after the other when `serial`:
     /// the same sums either way.
     pub fn add_chunk(&self, chunk: usize, fbuf: &[f64], kbuf: &[f64], internal: &mut [f64], tangent: Option<&mut [f64]>, serial: bool) {
-        let bounds = chunk * (self.parts - 1)..(chunk + 1) * (self.parts - 1);
-        let job = Job {
-            plan: self,
-            chunk,
-            fbuf,
-            kbuf,
-            force_bounds: &self.force.bounds[bounds.clone()],
-            tangent_bounds: &self.tangent.bounds[bounds],
-            serial,
-        };
+        let (tangent_terms, force) = &self.chunks[chunk];
+        let job = Job { tangent: tangent_terms, force, fbuf, kbuf, serial };
         job.run(0..self.parts, internal, 0, tangent, 0);
     }
 }
 
 /// Terms before their split: `(global target, source)`.
 type Unsplit = Vec<(usize, u32)>;
-
-/// Chunks whose terms are listed at once while a plan is built.
-const BATCH: usize = 8;
 
 /// The terms of chunk `chunk`, in element order: `(slot, position in the
 /// tangent buffer)` of every stored tangent entry and `(global dof,
@@ -140,10 +121,13 @@ fn chunk_terms(disc: &Discretization, dofs: &DofMap, col_ptr: &[usize], row_idx:
     let fstride = disc.max_dofs;
     let kstride = fstride * fstride;
     let ne = disc.mesh().element_count();
-    let (mut slots, mut forces) = (Vec::new(), Vec::new());
+    let elements = chunk * CHUNK..ne.min((chunk + 1) * CHUNK);
+    // At most the lower triangle and the diagonal of every element.
+    let mut slots = Vec::with_capacity(elements.len() * fstride * (fstride + 1) / 2);
+    let mut forces = Vec::with_capacity(elements.len() * fstride);
     let mut global = [0usize; MAX_DOFS + MAX_PRESSURE_NODES];
     let mut eq = [0usize; MAX_DOFS + MAX_PRESSURE_NODES];
-    for (i, e) in (chunk * CHUNK..ne.min((chunk + 1) * CHUNK)).enumerate() {
+    for (i, e) in elements.enumerate() {
         let nd = disc.element_dofs(e, &mut global);
         for (q, &d) in eq.iter_mut().zip(&global[..nd]) {
             *q = dofs.eq[d];
@@ -168,69 +152,47 @@ fn chunk_terms(disc: &Discretization, dofs: &DofMap, col_ptr: &[usize], row_idx:
 }
 
 impl Split {
-    /// Appends the split of a later chunk.
-    fn append(&mut self, next: Split) {
-        let base = self.terms.len();
-        self.bounds.extend(next.bounds);
-        self.starts.extend(next.starts.iter().map(|s| s + base));
-        self.terms.extend(next.terms);
-    }
-
-    /// The split of one chunk's terms `(global target, source)`, given in element order.
-    fn of_chunk(terms: &[(usize, u32)], parts: usize) -> Split {
-        let mut split = Split::default();
-        split.push_chunk(terms, parts);
-        split
-    }
-
-    /// Appends one chunk's terms `(global target, source)`, in element order.
-    fn push_chunk(&mut self, terms: &[(usize, u32)], parts: usize) {
+    /// The split of one chunk's terms `(global target, source)`, given in
+    /// element order, into `parts` parts.
+    fn new(terms: &[(usize, u32)], parts: usize) -> Split {
         // Bounds at the quantiles of every 8th target, so the parts get
         // about as many terms each (any bounds give the same sums); all
         // terms of one target fall in one part.
         let mut targets: Vec<usize> = terms.iter().step_by(8).map(|t| t.0).collect();
         targets.sort_unstable();
-        let first = self.bounds.len();
-        for p in 1..parts {
-            self.bounds.push(targets.get(p * targets.len() / parts).copied().unwrap_or(usize::MAX));
-        }
-        let bounds = &self.bounds[first..];
+        let bounds: Vec<usize> = (1..parts).map(|p| targets.get(p * targets.len() / parts).copied().unwrap_or(usize::MAX)).collect();
         let part_of = |t: usize| bounds.partition_point(|&b| b <= t);
         let lower = |p: usize| if p == 0 { 0 } else { bounds[p - 1] };
         // A counting sort by part keeps each part's terms in element order.
-        let mut count = vec![0usize; parts + 1];
+        let mut starts = vec![0usize; parts + 1];
         for t in terms {
-            count[part_of(t.0) + 1] += 1;
+            starts[part_of(t.0) + 1] += 1;
         }
         for p in 0..parts {
-            count[p + 1] += count[p];
+            starts[p + 1] += starts[p];
         }
-        let base = self.terms.len();
-        self.starts.extend(count[..parts].iter().map(|c| base + c));
-        self.terms.resize(base + terms.len(), Term { target: 0, source: 0 });
+        let mut next = starts.clone();
+        let mut split = vec![Term { target: 0, source: 0 }; terms.len()];
         for &(t, source) in terms {
             let p = part_of(t);
-            self.terms[base + count[p]] = Term { target: (t - lower(p)) as u32, source };
-            count[p] += 1;
+            split[next[p]] = Term { target: (t - lower(p)) as u32, source };
+            next[p] += 1;
         }
+        Split { bounds, starts, terms: split }
     }
 
-    /// The terms of part `p` of chunk `chunk` (`parts` per chunk).
-    fn part(&self, chunk: usize, parts: usize, p: usize) -> &[Term] {
-        let i = chunk * parts + p;
-        let end = self.starts.get(i + 1).copied().unwrap_or(self.terms.len());
-        &self.terms[self.starts[i]..end]
+    /// The terms of part `p`.
+    fn part(&self, p: usize) -> &[Term] {
+        &self.terms[self.starts[p]..self.starts[p + 1]]
     }
 }
 
 /// One chunk's scatter, split recursively over ranges of parts.
 struct Job<'a> {
-    plan: &'a ScatterPlan,
-    chunk: usize,
+    tangent: &'a Split,
+    force: &'a Split,
     fbuf: &'a [f64],
     kbuf: &'a [f64],
-    force_bounds: &'a [usize],
-    tangent_bounds: &'a [usize],
     serial: bool,
 }
 
@@ -240,12 +202,11 @@ impl Job<'_> {
     fn run(&self, parts: std::ops::Range<usize>, internal: &mut [f64], f0: usize, tangent: Option<&mut [f64]>, k0: usize) {
         if parts.len() == 1 {
             let p = parts.start;
-            let n = self.plan.parts;
-            for t in self.plan.force.part(self.chunk, n, p) {
+            for t in self.force.part(p) {
                 internal[t.target as usize] += self.fbuf[t.source as usize];
             }
             if let Some(k) = tangent {
-                for t in self.plan.tangent.part(self.chunk, n, p) {
+                for t in self.tangent.part(p) {
                     k[t.target as usize] += self.kbuf[t.source as usize];
                 }
             }
@@ -254,11 +215,11 @@ impl Job<'_> {
         let mid = parts.start + parts.len() / 2;
         // Bound `mid − 1` starts part `mid`; clamped to the array, as
         // the last parts of a chunk with few terms may start past its end.
-        let fcut = self.force_bounds[mid - 1].min(f0 + internal.len()) - f0;
+        let fcut = self.force.bounds[mid - 1].min(f0 + internal.len()) - f0;
         let (fl, fr) = internal.split_at_mut(fcut);
         let (kl, kr, kcut) = match tangent {
             Some(k) => {
-                let cut = self.tangent_bounds[mid - 1].min(k0 + k.len()) - k0;
+                let cut = self.tangent.bounds[mid - 1].min(k0 + k.len()) - k0;
                 let (l, r) = k.split_at_mut(cut);
                 (Some(l), Some(r), cut)
             }
