@@ -1,8 +1,9 @@
 //! The parallel element loop. Elements are processed in chunks: rayon
 //! computes each element's force and tangent into a chunk buffer allocated
-//! once, then one thread scatters the chunk through the precomputed map.
-//! The scatter is a small fraction of the element work, and the fixed chunk
-//! bounds memory whatever the mesh size.
+//! once, then the pattern's scatter plan adds the chunk to the global
+//! arrays, its parts on rayon's threads without locks, every slot summed in
+//! element order ([`super::scatter`]): the same bits on any number of
+//! threads. The fixed chunk bounds memory whatever the mesh size.
 
 use rayon::prelude::*;
 
@@ -11,11 +12,10 @@ use super::dofs::{DofMap, NONE};
 use super::error::AssemblyError;
 use super::history::{ElementHistory, PointHistories};
 use super::kernel::{element_cached_into, element_continuous_into, element_with_history_into, KernelError};
-use super::pattern::{Pattern, SKIP};
+use super::pattern::Pattern;
+use super::scatter::CHUNK;
 use crate::element::{Formulation, MixedState};
 use crate::shape::MAX_NODES;
-
-const CHUNK: usize = 1024;
 
 /// Reusable buffers of the element loop.
 #[derive(Debug)]
@@ -102,13 +102,15 @@ impl Assembler {
         let mut energy = 0.0;
         // Buffers strided by the largest element of this mesh, so a mesh of
         // linear elements keeps the small stride.
-        let fstride = disc.max_dofs;
+        let fstride = pattern.scatter.stride();
+        debug_assert_eq!(fstride, disc.max_dofs, "pattern built for this discretization");
         let kstride = fstride * fstride;
         if self.kbuf.len() < CHUNK * kstride {
             self.kbuf.resize(CHUNK * kstride, 0.0);
             self.fbuf.resize(CHUNK * fstride, 0.0);
         }
         let mut start = 0;
+        let mut chunk = 0;
         while start < ne {
             let end = (start + CHUNK).min(ne);
             let count = end - start;
@@ -171,16 +173,20 @@ impl Assembler {
                     .enumerate()
                     .for_each(work);
             }
-            for i in 0..count {
-                let e = start + i;
-                match &self.status[i] {
+            for (i, status) in self.status[..count].iter().enumerate() {
+                match status {
                     Ok(w) => energy += w,
-                    Err(err) => return Err(AssemblyError::in_element(e, err.clone())),
+                    Err(err) => return Err(AssemblyError::in_element(start + i, err.clone())),
                 }
+            }
+            pattern.scatter.add_chunk(chunk, &self.fbuf, &self.kbuf, internal, tangent.as_deref_mut(), self.serial);
+            // The predictor and the products (rarely wanted) stay serial.
+            let count_serial = if predictor.is_some() || products.is_some() { count } else { 0 };
+            for i in 0..count_serial {
+                let e = start + i;
                 let nodes = mesh.element_nodes(e);
                 let nu = nodes.len() * dim;
                 let nd = nu + disc.element_pressures(e);
-                let f = &self.fbuf[i * fstride..i * fstride + nd];
                 let pressure_base = mesh.node_count() * dim;
                 let gdof = |r: usize| {
                     if r < nu {
@@ -189,18 +195,7 @@ impl Assembler {
                         pressure_base + disc.pressures.of_node[nodes[r - nu]]
                     }
                 };
-                for r in 0..nd {
-                    internal[gdof(r)] += f[r];
-                }
                 let k = &self.kbuf[i * kstride..i * kstride + nd * nd];
-                if let Some(vals) = tangent.as_deref_mut() {
-                    let map = &pattern.scatter[pattern.scatter_offset[e]..pattern.scatter_offset[e + 1]];
-                    for (s, v) in map.iter().zip(k) {
-                        if *s != SKIP {
-                            vals[*s as usize] += v;
-                        }
-                    }
-                }
                 if let Some((dup, rhs)) = predictor.as_mut() {
                     for c in 0..nd {
                         let d = dup[gdof(c)];
@@ -230,6 +225,7 @@ impl Assembler {
                 }
             }
             start = end;
+            chunk += 1;
         }
         Ok(energy)
     }
@@ -242,19 +238,15 @@ mod tests {
     use olli_mesh::{ElementKind, Mesh};
 
     use super::*;
+    use crate::assembly::scatter::default_parts;
     use crate::assembly::{Discretization, DofMap, Pattern};
     use crate::material::{registry, VolumetricForm};
     use crate::model::{Analysis, Formulation, Model};
 
-    /// Parallel and serial element loops give the same residual and tangent
-    /// (a practice of our code style): the scatter is serial, so they agree
-    /// bit for bit, condensed and with carried pressure and dilatation
-    /// states (three-field form, each element's own values), whose outputs
-    /// must agree too. The 13³ = 2197 elements span three element chunks
-    /// ([`CHUNK`] = 1024), so the chunk boundaries are crossed too.
-    #[test]
-    fn parallel_and_serial_assembly_agree() {
-        let n = 13;
+    /// A distorted n×n×n block of hex8 elements, its first layer of nodes
+    /// held, a displacement field and carried pressure and dilatation
+    /// states (three-field form, each element its own values).
+    fn block(n: usize) -> (Model, Vec<bool>, Vec<f64>, Vec<MixedState>) {
         let mut mesh = Mesh::new(3);
         for k in 0..=n {
             for j in 0..=n {
@@ -288,57 +280,124 @@ mod tests {
             registry::material("neo-hookean", &[("shear_modulus", 1.0), ("bulk_modulus", 100.0)], VolumetricForm::Quadratic).unwrap(),
         );
         let model = Model::single_region(mesh, Analysis::Solid3d, mat, Formulation::Mixed);
-        let disc = Discretization::new(&model).unwrap();
         let ndof = model.mesh.node_count() * 3;
         let mut prescribed = vec![false; ndof];
         prescribed[..(n + 1) * (n + 1) * 3].iter_mut().for_each(|p| *p = true);
-        let dofs = DofMap::new(3, &prescribed);
-        let pattern = Pattern::build(&disc, &dofs).unwrap();
         let u: Vec<f64> = (0..ndof).map(|d| 0.01 * ((d * 13 % 17) as f64 - 8.0)).collect();
-        let ne = model.mesh.element_count();
-        let carried: Vec<MixedState> = (0..ne)
+        let carried: Vec<MixedState> = (0..model.mesh.element_count())
             .map(|e| MixedState {
                 pressure: 0.1 * ((e * 5 % 9) as f64 - 4.0),
                 dilatation: 1.0 + 0.001 * (e % 7) as f64,
                 ..Default::default()
             })
             .collect();
-        let run = |serial: bool, states: Option<&[MixedState]>| {
-            let mut asm = Assembler::new();
-            asm.serial = serial;
-            let mut f = vec![0.0; ndof];
-            let mut k = vec![0.0; pattern.nnz()];
-            let mut states = states.map(|s| s.to_vec());
-            asm.assemble(
-                &disc,
-                &dofs,
-                &pattern,
-                &u,
-                Outputs {
-                    internal: &mut f,
-                    tangent: Some(&mut k),
-                    predictor: None,
-                    mixed: states.as_deref_mut(),
-                    products: None,
-                    history: None,
-                },
-            )
-            .unwrap();
-            (f, k, states)
-        };
+        (model, prescribed, u, carried)
+    }
+
+    /// Force, tangent (pattern order) and carried states of one assembly.
+    type Assembled = (Vec<f64>, Vec<f64>, Option<Vec<MixedState>>);
+
+    fn assemble(
+        disc: &Discretization,
+        dofs: &DofMap,
+        pattern: &Pattern,
+        u: &[f64],
+        serial: bool,
+        states: Option<&[MixedState]>,
+        want_k: bool,
+    ) -> Assembled {
+        let mut asm = Assembler::new();
+        asm.serial = serial;
+        let mut f = vec![0.0; u.len()];
+        let mut k = vec![0.0; pattern.nnz()];
+        let mut states = states.map(|s| s.to_vec());
+        asm.assemble(
+            disc,
+            dofs,
+            pattern,
+            u,
+            Outputs {
+                internal: &mut f,
+                tangent: if want_k { Some(&mut k) } else { None },
+                predictor: None,
+                mixed: states.as_deref_mut(),
+                products: None,
+                history: None,
+            },
+        )
+        .unwrap();
+        (f, k, states)
+    }
+
+    /// The textbook serial assembly, element after element through the
+    /// kernel's entry point, each stored entry found by [`Pattern::slot`]:
+    /// the reference the scatter plan must reproduce bit for bit.
+    fn assemble_by_hand(disc: &Discretization, dofs: &DofMap, pattern: &Pattern, u: &[f64], states: Option<&[MixedState]>) -> Assembled {
+        let mut f = vec![0.0; u.len()];
+        let mut k = vec![0.0; pattern.nnz()];
+        let mut states = states.map(|s| s.to_vec());
+        let mut global = [0; 64];
+        for e in 0..disc.mesh().element_count() {
+            let nd = disc.element_dofs(e, &mut global);
+            let (mut fe, mut ke) = (vec![0.0; nd], vec![0.0; nd * nd]);
+            let mut ue = [[0.0; 3]; MAX_NODES];
+            disc.gather_displacements(e, u, &mut ue);
+            let geometry = disc.reference_geometry(e).expect("hex8 keeps its geometry");
+            let state = states.as_mut().map(|s| &mut s[e]);
+            element_cached_into(&disc.context(e), geometry, &ue, &mut fe, Some(&mut ke), state, None).unwrap();
+            for r in 0..nd {
+                f[global[r]] += fe[r];
+                for c in 0..nd {
+                    let (gr, gc) = (dofs.eq[global[r]], dofs.eq[global[c]]);
+                    if gr != NONE && gc != NONE && gr >= gc {
+                        k[pattern.slot(gr, gc).expect("in the pattern")] += ke[c * nd + r];
+                    }
+                }
+            }
+        }
+        (f, k, states)
+    }
+
+    /// Parallel and serial element loops give the same residual and tangent
+    /// (a practice of our code style), bit for bit, condensed and with
+    /// carried pressure and dilatation states (three-field form), whose
+    /// outputs must agree too, whatever the number of scatter parts (1, 3,
+    /// the default, 7): every slot is summed in element order. Both equal the
+    /// textbook serial assembly of the element matrices by [`Pattern::slot`]
+    /// to the bit. The 13³ = 2197 elements span three element chunks
+    /// ([`CHUNK`] = 1024), so the chunk boundaries are crossed too. The
+    /// residual alone (no tangent wanted) is the same too.
+    #[test]
+    fn parallel_and_serial_assembly_agree() {
+        let n = 13;
+        let (model, prescribed, u, carried) = block(n);
+        let disc = Discretization::new(&model).unwrap();
+        let dofs = DofMap::new(3, &prescribed);
+        let ne = model.mesh.element_count();
         assert!(ne > 2 * CHUNK, "several chunks");
+        let patterns: Vec<Pattern> =
+            [1, 3, default_parts(), 7].iter().map(|&p| Pattern::build_with_parts(&disc, &dofs, p).unwrap()).collect();
+        let pattern = &patterns[0];
         for states in [None, Some(carried.as_slice())] {
-            let (fs, ks, ss) = run(true, states);
-            let (fp, kp, sp) = run(false, states);
-            assert_eq!(fs, fp);
-            assert_eq!(ks, kp);
-            assert_eq!(ss, sp);
-            assert!(ks.iter().any(|v| *v != 0.0));
-            if let Some(ss) = ss {
-                assert!(ss.iter().all(|s| s.volume_ratio != 1.0), "state outputs written");
+            let (fh, kh, sh) = assemble_by_hand(&disc, &dofs, pattern, &u, states);
+            assert!(kh.iter().any(|v| *v != 0.0));
+            for (p, serial) in patterns.iter().flat_map(|p| [(p, true), (p, false)]) {
+                let what = format!("{} parts, serial {serial}, carried {}", p.scatter.parts(), states.is_some());
+                let (f, k, s) = assemble(&disc, &dofs, p, &u, serial, states, true);
+                assert_eq!(f, fh, "{what}: residual");
+                assert_eq!(k, kh, "{what}: tangent");
+                assert_eq!(s, sh, "{what}: carried states");
+                let (f_alone, _, _) = assemble(&disc, &dofs, p, &u, serial, states, false);
+                assert_eq!(f_alone, fh, "{what}: residual alone");
+            }
+            if let Some(sh) = sh {
+                assert!(sh.iter().all(|s| s.volume_ratio != 1.0), "state outputs written");
             }
         }
         // The carried pressures enter the tangent: the two forms differ.
-        assert_ne!(run(false, None).1, run(false, Some(&carried)).1);
+        assert_ne!(
+            assemble(&disc, &dofs, pattern, &u, false, None, true).1,
+            assemble(&disc, &dofs, pattern, &u, false, Some(&carried), true).1
+        );
     }
 }

@@ -104,29 +104,40 @@ fn constant_volumetric(material: &Material, ratio: f64, state: Option<&MixedStat
 /// the mixed form (it adds the element pressure itself), the full one
 /// otherwise. A material with history reads and writes its values in
 /// `history` (point after point); one without is evaluated without it.
+/// Without `tangent` the material gives its stress alone (see [`point_response`]).
 fn responses(
     material: &Material,
     mixed: bool,
+    tangent: bool,
     kin: &ElementKinematics,
     history: Option<&mut ElementHistory>,
     out: &mut [PointResponse],
 ) -> Result<(), KernelError> {
     let mut history = history.filter(|_| material.history_len() > 0);
     for (q, (k, r)) in kin.points().iter().zip(out.iter_mut()).enumerate() {
-        *r = point_response(material, mixed, &k.right_cauchy_green(), q, history.as_deref_mut()).map_err(|e| material_error(e, q, k.j))?;
+        let c = k.right_cauchy_green();
+        *r = point_response(material, mixed, tangent, &c, q, history.as_deref_mut()).map_err(|e| material_error(e, q, k.j))?;
     }
     Ok(())
 }
 
 /// The material's answer at point `q` of right Cauchy–Green tensor `c` (see
-/// [`responses`]); `history` only for a material that keeps one.
+/// [`responses`]); `history` only for a material that keeps one. Without
+/// `tangent` (a residual-only evaluation) a material without history
+/// computes its energy and stress alone, the same bits, and the answer's
+/// tangent is zero; one with history answers in full.
 fn point_response(
     material: &Material,
     mixed: bool,
+    tangent: bool,
     c: &Matrix3<f64>,
     q: usize,
     history: Option<&mut ElementHistory>,
 ) -> Result<PointResponse, MaterialError> {
+    if !tangent && history.is_none() {
+        let s = if mixed { material.isochoric_stress(c) } else { material.stress(c) }?;
+        return Ok(PointResponse { energy: s.energy, stress: s.stress, ..PointResponse::default() });
+    }
     let resp = match history {
         Some(h) => {
             let width = material.history_len();
@@ -182,6 +193,7 @@ impl MaterialAt {
 
     /// Fills `self` for one element, in place (no copy of the buffers,
     /// which are sized for the largest element).
+    /// Without `tangent` the material answers with its stress alone.
     fn evaluate(
         &mut self,
         ctx: &ElementContext,
@@ -189,6 +201,7 @@ impl MaterialAt {
         u: &[[f64; 3]],
         state: Option<&MixedState>,
         history: Option<&mut ElementHistory>,
+        tangent: bool,
     ) -> Result<(), KernelError> {
         kinematics_into(ctx.shape, ctx.analysis, x, u, &mut self.kinematics)?;
         let condensed = ctx.formulation == Formulation::Mixed;
@@ -197,7 +210,7 @@ impl MaterialAt {
             self.volumetric_count = volumetric(ctx.material, &self.kinematics, state, &mut self.volumetric)?;
         }
         let points = self.kinematics.points().len();
-        responses(ctx.material, ctx.formulation.is_mixed(), &self.kinematics, history, &mut self.responses[..points])
+        responses(ctx.material, ctx.formulation.is_mixed(), tangent, &self.kinematics, history, &mut self.responses[..points])
     }
 
     fn volumetric(&self) -> &[VolumetricResponse] {
@@ -307,9 +320,10 @@ fn spatial(
     let mixed = ctx.formulation == Formulation::Mixed;
     let volumetric = if mixed { Some(constant_volumetric(ctx.material, kin.volume_ratio(), state.as_deref())?) } else { None };
     let mut history = history.filter(|_| ctx.material.history_len() > 0);
+    let want_k = stiffness.is_some();
     for (q, (p, r)) in kin.points().iter().zip(responses.iter_mut()).enumerate() {
         let c = p.f.transpose() * p.f;
-        *r = point_response(ctx.material, mixed, &c, q, history.as_deref_mut()).map_err(|e| material_error(e, q, p.j))?;
+        *r = point_response(ctx.material, mixed, want_k, &c, q, history.as_deref_mut()).map_err(|e| material_error(e, q, p.j))?;
     }
     let state = if mixed { state } else { None };
     let responses = &responses[..kin.count];
@@ -339,7 +353,7 @@ pub(crate) fn element_through(
     history: Option<&mut ElementHistory>,
 ) -> Result<f64, KernelError> {
     with_scratch(|at| {
-        at.evaluate(ctx, x, u, state.as_deref(), history)?;
+        at.evaluate(ctx, x, u, state.as_deref(), history, stiffness.is_some())?;
         let state = if at.volumetric_count > 0 { state } else { None };
         Ok(integration(&at.kinematics, at.responses(), at.volumetric(), force, stiffness, state)?)
     })
@@ -371,7 +385,7 @@ pub fn point_states_with_history(
         tangent: Default::default(),
     });
     with_scratch(|at| {
-        at.evaluate(ctx, x, u, None, history.as_mut())?;
+        at.evaluate(ctx, x, u, None, history.as_mut(), false)?;
         point_states_into(&at.kinematics, at.responses(), at.volumetric(), out)?;
         if ctx.formulation == Formulation::ContinuousPressure {
             let mut laws = [PressureResponse::default(); MAX_POINTS];
@@ -431,7 +445,7 @@ pub fn element_continuous_into(
     history: Option<&mut ElementHistory>,
 ) -> Result<f64, KernelError> {
     with_scratch(|at| {
-        at.evaluate(ctx, x, u, None, history)?;
+        at.evaluate(ctx, x, u, None, history, stiffness.is_some())?;
         let mut laws = [PressureResponse::default(); MAX_POINTS];
         let count = pressure_laws(ctx.material, &at.kinematics, pressures, &mut laws)?;
         Ok(integrate_continuous_into(&at.kinematics, at.responses(), &laws[..count], scale, force, stiffness)?)

@@ -1,8 +1,8 @@
 //! Global assembly: the element table resolved from the model
 //! ([`discretization`]), the degree-of-freedom map with eliminated Dirichlet
 //! dofs ([`dofs`]), the sparse lower-triangle pattern with its
-//! element-to-storage scatter map built once per mesh and constraint set
-//! ([`pattern`]), the integration-point kernel ([`kernel`]), the carried
+//! element-to-storage scatter plan built once per mesh and constraint set
+//! ([`pattern`], [`scatter`]: split among threads without locks), the integration-point kernel ([`kernel`]), the carried
 //! unknowns of mixed elements ([`mixed`]), the history variables of
 //! materials with memory ([`history`]) and the rayon-parallel element loop
 //! ([`assembler`]).
@@ -21,6 +21,7 @@ pub mod kernel;
 pub mod mixed;
 pub mod pattern;
 pub mod pressure;
+pub mod scatter;
 
 pub use assembler::Assembler;
 pub use discretization::Discretization;

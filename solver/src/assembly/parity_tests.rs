@@ -127,3 +127,70 @@ fn vector_and_scalar_spatial_kernels_agree_bit_for_bit() {
         assert!(kv.iter().any(|v| *v != 0.0));
     }
 }
+
+/// The residual-only path (no tangent wanted: the material computes its
+/// stress alone, [`crate::material::IsochoricModel::stress`]) gives the
+/// residual and energy of the full path to 1e-13 of the largest force, for
+/// every model of the registry, with and without a Prony series (whose
+/// history keeps the full path), on the spatial-form solids, the
+/// total-Lagrangian 2-D and linear-pressure elements, and the Taylor–Hood
+/// tet10 with its corner pressures. (A check of two code paths against each
+/// other; the stress itself is checked by finite differences in `fd_check`.)
+#[test]
+fn residual_only_path_matches_the_full_path() {
+    use super::history::ElementHistory;
+    use super::kernel::{element_continuous_into, element_with_history_into};
+    use crate::material::Prony;
+    let cases = [
+        (Shape::Hex8, Analysis::Solid3d, Formulation::Mixed),
+        (Shape::Hex8, Analysis::Solid3d, Formulation::Displacement),
+        (Shape::Hex27, Analysis::Solid3d, Formulation::Mixed),
+        (Shape::Quad4, Analysis::Axisymmetric, Formulation::Mixed),
+        (Shape::Quad9, Analysis::PlaneStrain { thickness: 2.0 }, Formulation::Mixed),
+        (Shape::Tet10, Analysis::Solid3d, Formulation::ContinuousPressure),
+    ];
+    let mut checked = 0;
+    for (name, constants) in registry::SAMPLES {
+        let mut all = constants.to_vec();
+        all.push(("bulk_modulus", 150.0));
+        let elastic = registry::material(name, &all, VolumetricForm::Logarithmic).unwrap();
+        let relaxing = registry::material(name, &all, VolumetricForm::Logarithmic).unwrap().with_prony(Prony::new(&[[0.3, 0.5]]).unwrap());
+        for mat in [&elastic, &relaxing] {
+            let width = mat.history_len() * 27;
+            let previous: Vec<f64> = (0..width).map(|i| 0.01 * (i % 5) as f64).collect();
+            for (shape, analysis, formulation) in cases {
+                let ctx = ElementContext { shape, analysis, formulation, material: mat };
+                let (x, u) = distorted(shape);
+                let corners = [0.2, -0.1, 0.15, 0.05];
+                let nd = shape.dofs() + if formulation == Formulation::ContinuousPressure { corners.len() } else { 0 };
+                let eval = |k: Option<&mut [f64]>, f: &mut [f64]| {
+                    let mut current = vec![0.0; width];
+                    let mut history =
+                        ElementHistory { previous: &previous, current: &mut current, time_step: 0.1, tangent: Default::default() };
+                    let history = if width > 0 { Some(&mut history) } else { None };
+                    let w = if formulation == Formulation::ContinuousPressure {
+                        element_continuous_into(&ctx, &x, &u, &corners, 2.0, f, k, history)
+                    } else {
+                        let mut state = MixedState { pressure: 0.3, dilatation: 1.02, ..MixedState::default() };
+                        let state = if formulation == Formulation::Mixed && shape == Shape::Hex8 { Some(&mut state) } else { None };
+                        element_with_history_into(&ctx, &x, &u, f, k, state, history)
+                    };
+                    (w.unwrap(), current)
+                };
+                let (mut f_full, mut k_full, mut f_alone) = (vec![0.0; nd], vec![0.0; nd * nd], vec![0.0; nd]);
+                let (w_full, h_full) = eval(Some(&mut k_full), &mut f_full);
+                let (w_alone, h_alone) = eval(None, &mut f_alone);
+                let what = format!("{name} (history {width}) {shape:?} {analysis:?} {formulation:?}");
+                let scale = largest(&f_full);
+                assert!(scale > 0.0, "{what}: a loaded element");
+                assert!((w_full - w_alone).abs() <= 1e-13 * w_full.abs(), "{what}: energy {w_full} vs {w_alone}");
+                for (a, b) in f_alone.iter().zip(&f_full) {
+                    assert!((a - b).abs() <= 1e-13 * scale, "{what}: force {a} vs {b}");
+                }
+                assert_eq!(h_full, h_alone, "{what}: trial history");
+                checked += 1;
+            }
+        }
+    }
+    assert_eq!(checked, registry::SAMPLES.len() * 2 * cases.len());
+}

@@ -1,18 +1,14 @@
 //! The sparse pattern of the free-dof tangent (lower triangle, CSC) and the
-//! element-to-storage scatter map, both built once per mesh and constraint
-//! set, so Newton iterations write straight into the value array without
-//! triplets, sorting or allocation.
+//! element-to-storage scatter plan ([`super::scatter`]), both built once
+//! per mesh and constraint set, so Newton iterations write straight into
+//! the value array without triplets, sorting or allocation.
 
 use super::discretization::Discretization;
 use super::dofs::{DofMap, NONE};
 use super::error::AssemblyError;
-use crate::element::taylor_hood::MAX_PRESSURE_NODES;
-use crate::element::MAX_DOFS;
+use super::scatter::{default_parts, ScatterPlan};
 
-/// Marks an element matrix entry that is not stored (upper triangle or a prescribed dof).
-pub const SKIP: u32 = u32::MAX;
-
-/// Sparsity pattern of the tangent (compressed columns) with each element's scatter map.
+/// Sparsity pattern of the tangent (compressed columns) with the elements' scatter plan.
 #[derive(Debug, Clone)]
 pub struct Pattern {
     /// Number of equations.
@@ -21,10 +17,9 @@ pub struct Pattern {
     pub col_ptr: Vec<usize>,
     /// Row index of each stored entry, sorted within a column.
     pub row_idx: Vec<usize>,
-    /// For each element, `dofs²` storage slots (column-major over local dofs).
-    pub scatter: Vec<u32>,
-    /// Start of each element's block in `scatter`.
-    pub scatter_offset: Vec<usize>,
+    /// Where the elements' forces and stored tangent entries go, split
+    /// among threads.
+    pub scatter: ScatterPlan,
     /// Mesh node of each equation (for node-level orderings).
     pub eq_node: Vec<usize>,
     /// Free pressure unknowns (continuous pressure): the negative pivots
@@ -33,8 +28,15 @@ pub struct Pattern {
 }
 
 impl Pattern {
-    /// Builds the pattern and the scatter maps of every element of `disc`.
+    /// Builds the pattern and the scatter plan of every element of `disc`
+    /// (two parts per thread, [`default_parts`]).
     pub fn build(disc: &Discretization, dofs: &DofMap) -> Result<Self, AssemblyError> {
+        Self::build_with_parts(disc, dofs, default_parts())
+    }
+
+    /// As [`Self::build`], the scatter split into `parts` parts (the
+    /// assembled sums do not depend on it).
+    pub fn build_with_parts(disc: &Discretization, dofs: &DofMap, parts: usize) -> Result<Self, AssemblyError> {
         let mesh = disc.mesh();
         let dim = dofs.dim;
         // Node adjacency, each list sorted: with node-major equation numbers
@@ -88,35 +90,13 @@ impl Pattern {
                 next += 1;
             }
         }
-        if row_idx.len() >= SKIP as usize {
+        if row_idx.len() >= u32::MAX as usize {
             return Err(AssemblyError::PatternTooLarge(row_idx.len()));
         }
         drop(adj);
-        let mut scatter_offset = Vec::with_capacity(mesh.element_count() + 1);
-        scatter_offset.push(0);
-        let mut scatter = Vec::new();
-        let mut gdof = [0usize; MAX_DOFS + MAX_PRESSURE_NODES];
-        let mut global = [0usize; MAX_DOFS + MAX_PRESSURE_NODES];
-        for e in 0..mesh.element_count() {
-            let nd = disc.element_dofs(e, &mut global);
-            for (g, &d) in gdof.iter_mut().zip(&global[..nd]) {
-                *g = dofs.eq[d];
-            }
-            for c in 0..nd {
-                for r in 0..nd {
-                    let (gr, gc) = (gdof[r], gdof[c]);
-                    let slot = if gr != NONE && gc != NONE && gr >= gc {
-                        find(&col_ptr, &row_idx, gr, gc).map(|s| s as u32).unwrap_or(SKIP)
-                    } else {
-                        SKIP
-                    };
-                    scatter.push(slot);
-                }
-            }
-            scatter_offset.push(scatter.len());
-        }
+        let scatter = ScatterPlan::build(disc, dofs, &col_ptr, &row_idx, parts)?;
         let negative = (0..disc.pressures.count()).filter(|&k| dofs.eq.get(pressure_base + k).is_some_and(|&q| q != NONE)).count();
-        Ok(Pattern { n, col_ptr, row_idx, scatter, scatter_offset, eq_node, negative })
+        Ok(Pattern { n, col_ptr, row_idx, scatter, eq_node, negative })
     }
 
     /// Storage slot of entry (row, col) with row ≥ col, if in the pattern.

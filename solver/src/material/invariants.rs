@@ -19,7 +19,7 @@ use nalgebra::Matrix3;
 
 use super::error::MaterialError;
 use super::tensor::{odot, outer, outer_sym};
-use super::{IsochoricEnergy, Response};
+use super::{IsochoricEnergy, Response, Stress};
 
 /// W_iso and its derivatives with respect to the isochoric invariants.
 #[derive(Debug, Clone, Copy, Default, PartialEq)]
@@ -75,6 +75,30 @@ impl Kinematics {
     }
 }
 
+/// `A1 = ∂Ī1/∂C` and, where the energy depends on Ī2, `A2 = ∂Ī2/∂C`,
+/// with S_iso = 2 (W1 A1 + W2 A2): one expression for [`isochoric_response`]
+/// and [`isochoric_stress`], so both give the same bits.
+#[inline(always)]
+fn stress_directions(d: &InvariantDerivatives, kin: &Kinematics) -> (Matrix3<f64>, Option<Matrix3<f64>>, Matrix3<f64>) {
+    let ci = &kin.c_inv;
+    let j23 = kin.j23;
+    let a1 = Matrix3::identity() * j23 - ci * (kin.i1_bar / 3.0);
+    let stress_1 = a1 * (2.0 * d.w1);
+    if d.w2 != 0.0 || d.w22 != 0.0 || d.w12 != 0.0 {
+        let a2 = (Matrix3::identity() * kin.i1 - kin.c) * (j23 * j23) - ci * (2.0 / 3.0 * kin.i2_bar);
+        (a1, Some(a2), stress_1 + a2 * (2.0 * d.w2))
+    } else {
+        (a1, None, stress_1)
+    }
+}
+
+/// Isochoric energy and S_iso alone (no tangent), for residual-only
+/// evaluations: the same bits as [`isochoric_response`]'s.
+pub fn isochoric_stress(model: &dyn IsochoricEnergy, kin: &Kinematics) -> Result<Stress, MaterialError> {
+    let d = model.derivatives(kin.i1_bar, kin.i2_bar)?;
+    Ok(Stress { energy: d.w, stress: stress_directions(&d, kin).2 })
+}
+
 /// Isochoric energy, S_iso and D_iso of a model at the given kinematics.
 pub fn isochoric_response(model: &dyn IsochoricEnergy, kin: &Kinematics) -> Result<Response, MaterialError> {
     let d = model.derivatives(kin.i1_bar, kin.i2_bar)?;
@@ -82,26 +106,62 @@ pub fn isochoric_response(model: &dyn IsochoricEnergy, kin: &Kinematics) -> Resu
     let ci = &kin.c_inv;
     let j23 = kin.j23;
     let j43 = j23 * j23;
-    let a1 = id * j23 - ci * (kin.i1_bar / 3.0);
-    let stress_1 = a1 * (2.0 * d.w1);
+    let (a1, a2, stress) = stress_directions(&d, kin);
     let mut tangent =
         (outer_sym(&id, ci) * (-j23 / 3.0) + outer(ci, ci) * (kin.i1_bar / 9.0) + odot(ci) * (kin.i1_bar / 3.0)) * (4.0 * d.w1);
     if d.w11 != 0.0 {
         // Zero for the neo-Hookean and Mooney–Rivlin energies, linear in Ī1.
         tangent += outer(&a1, &a1) * (4.0 * d.w11);
     }
-    let stress = if d.w2 != 0.0 || d.w22 != 0.0 || d.w12 != 0.0 {
+    if let Some(a2) = a2 {
         let b = id * kin.i1 - kin.c;
-        let a2 = b * j43 - ci * (2.0 / 3.0 * kin.i2_bar);
         tangent += outer(&a2, &a2) * (4.0 * d.w22)
             + outer_sym(&a1, &a2) * (4.0 * d.w12)
             + ((outer(&id, &id) - odot(&id)) * j43 - outer_sym(&b, ci) * (2.0 / 3.0 * j43)
                 + outer(ci, ci) * (4.0 / 9.0 * kin.i2_bar)
                 + odot(ci) * (2.0 / 3.0 * kin.i2_bar))
                 * (4.0 * d.w2);
-        stress_1 + a2 * (2.0 * d.w2)
-    } else {
-        stress_1
-    };
+    }
     Ok(Response { energy: d.w, stress, tangent })
+}
+
+#[cfg(test)]
+mod tests {
+    use crate::material::fd_check::random_deformation;
+    use crate::material::{registry, VolumetricForm};
+
+    /// The residual-only path ([`crate::material::Material::stress`],
+    /// `isochoric_stress`) gives the energy and stress of the full response
+    /// to 1e-13 of the largest stress component, for every model of the
+    /// registry at random finite deformations (an independent evaluation
+    /// would be the finite differences of `fd_check`; this checks that the
+    /// two code paths compute the same thing, so a term lost from one of
+    /// them, e.g. the Ī2 direction of Mooney–Rivlin, fails).
+    #[test]
+    fn stress_alone_equals_the_stress_of_the_full_response() {
+        for (name, constants) in registry::SAMPLES {
+            let mut all = constants.to_vec();
+            all.push(("bulk_modulus", 80.0));
+            let mat = registry::material(name, &all, VolumetricForm::Logarithmic).unwrap();
+            for seed in 1..6 {
+                let f = random_deformation(seed, 0.25);
+                let c = f.transpose() * f;
+                let pairs = [
+                    (mat.stress(&c).unwrap(), mat.response(&c).unwrap()),
+                    (mat.isochoric_stress(&c).unwrap(), mat.isochoric_response(&c).unwrap()),
+                ];
+                for (alone, full) in pairs {
+                    let scale = full.stress.amax();
+                    assert!(scale > 0.0, "{name}: a stressed state");
+                    assert!((alone.energy - full.energy).abs() <= 1e-13 * full.energy.abs(), "{name} seed {seed}: energy");
+                    assert!(
+                        (alone.stress - full.stress).amax() <= 1e-13 * scale,
+                        "{name} seed {seed}: {} vs {}",
+                        alone.stress,
+                        full.stress
+                    );
+                }
+            }
+        }
+    }
 }

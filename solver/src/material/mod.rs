@@ -57,7 +57,7 @@ pub mod yeoh;
 
 pub use error::MaterialError;
 pub use history::{PointHistory, TangentKind};
-pub use invariants::{isochoric_response, InvariantDerivatives, Kinematics};
+pub use invariants::{isochoric_response, isochoric_stress, InvariantDerivatives, Kinematics};
 pub use mullins::Mullins;
 pub use tensor::{Tangent, Voigt};
 pub use viscoelastic::Prony;
@@ -96,6 +96,15 @@ pub trait IsochoricModel: Send + Sync + std::fmt::Debug {
     /// W_iso, S_iso and D_iso at the given kinematics.
     fn response(&self, kin: &Kinematics) -> Result<Response, MaterialError>;
 
+    /// W_iso and S_iso alone, for evaluations that need no tangent (the
+    /// residual of a line-search trial or a convergence check): the same
+    /// bits as [`Self::response`]'s energy and stress. This default forms
+    /// the whole response; a model whose tangent costs more overrides it.
+    fn stress(&self, kin: &Kinematics) -> Result<Stress, MaterialError> {
+        let r = self.response(kin)?;
+        Ok(Stress { energy: r.energy, stress: r.stress })
+    }
+
     /// Principal Kirchhoff stresses `τ_i = λ_i ∂W_iso/∂λ_i` of the
     /// incompressible material at principal stretches with `λ1 λ2 λ3 = 1`,
     /// up to the common hydrostatic pressure (only differences are
@@ -120,6 +129,10 @@ impl<T: IsochoricEnergy> IsochoricModel for T {
         isochoric_response(self, kin)
     }
 
+    fn stress(&self, kin: &Kinematics) -> Result<Stress, MaterialError> {
+        isochoric_stress(self, kin)
+    }
+
     fn principal_kirchhoff(&self, l: [f64; 3]) -> Result<[f64; 3], MaterialError> {
         // ∂I1/∂λ_i = 2λ_i, ∂I2/∂λ_i = 2λ_i (I1 − λ_i²).
         let sq = l.map(|x| x * x);
@@ -139,6 +152,15 @@ pub struct Response {
     pub stress: Matrix3<f64>,
     /// Material tangent 4 ∂²W/∂C∂C in Voigt form (see [`tensor`]).
     pub tangent: Tangent,
+}
+
+/// Energy and stress at one state, without the tangent.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Stress {
+    /// Strain energy density per unit reference volume.
+    pub energy: f64,
+    /// Second Piola–Kirchhoff stress S = 2 ∂W/∂C.
+    pub stress: Matrix3<f64>,
 }
 
 /// One rubber compound: an isochoric model plus a volumetric law, and
@@ -223,6 +245,22 @@ impl Material {
         self.add_volumetric(&kin, r)
     }
 
+    /// W_iso and S_iso alone ([`IsochoricModel::stress`]): the residual-only
+    /// counterpart of [`Self::isochoric_response`], the same bits.
+    pub fn isochoric_stress(&self, c: &Matrix3<f64>) -> Result<Stress, MaterialError> {
+        let kin = Kinematics::new(c)?;
+        self.isochoric.stress(&kin)
+    }
+
+    /// W and S alone: the residual-only counterpart of [`Self::response`],
+    /// the same bits.
+    pub fn stress(&self, c: &Matrix3<f64>) -> Result<Stress, MaterialError> {
+        let kin = Kinematics::new(c)?;
+        let mut r = self.isochoric.stress(&kin)?;
+        self.add_volumetric_stress(&kin, &mut r.energy, &mut r.stress)?;
+        Ok(r)
+    }
+
     /// As [`Self::isochoric_response`] (`full = false`) or
     /// [`Self::response`] (`full = true`), with the history of the point: a
     /// viscoelastic material relaxes its isochoric stress over
@@ -255,13 +293,20 @@ impl Material {
     /// `r` (an isochoric response) plus the volumetric law's energy, stress and tangent.
     fn add_volumetric(&self, kin: &Kinematics, mut r: Response) -> Result<Response, MaterialError> {
         let (j, ci) = (kin.j, &kin.c_inv);
-        let p = self.volumetric.pressure(j)?;
+        let p = self.add_volumetric_stress(kin, &mut r.energy, &mut r.stress)?;
         let dp = self.volumetric.pressure_derivative(j)?;
-        r.energy += self.volumetric.energy(j)?;
-        r.stress += ci * (j * p);
         // D_vol = J (p + J p') C⁻¹⊗C⁻¹ − 2 J p C⁻¹⊙C⁻¹
         r.tangent += tensor::outer(ci, ci) * (j * (p + j * dp)) - tensor::odot(ci) * (2.0 * j * p);
         Ok(r)
+    }
+
+    /// Adds U(J) to `energy` and J U'(J) C⁻¹ to `stress`; returns U'(J).
+    fn add_volumetric_stress(&self, kin: &Kinematics, energy: &mut f64, stress: &mut Matrix3<f64>) -> Result<f64, MaterialError> {
+        let (j, ci) = (kin.j, &kin.c_inv);
+        let p = self.volumetric.pressure(j)?;
+        *energy += self.volumetric.energy(j)?;
+        *stress += ci * (j * p);
+        Ok(p)
     }
 
     /// Strain energy density W(C).
