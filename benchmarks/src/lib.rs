@@ -5,7 +5,7 @@
 use std::time::Instant;
 
 use olli_solver::driver::Event;
-use olli_solver::linear::{LinearSettings, Ordering, Threads};
+use olli_solver::linear::{FactorPrecision, LinearSettings, Ordering, Threads};
 use olli_solver::{solve, Model, Solution};
 
 /// `A,B,...` as `N` positive integers.
@@ -26,12 +26,13 @@ pub fn parse_ordering(s: &str) -> Option<Ordering> {
 }
 
 /// The linear-solver flags every benchmark takes, in `USAGE` form.
-pub const LINEAR_FLAGS: &str = "[--threads auto|N] [--reuse on|off] [--krylov-iterations N]";
+pub const LINEAR_FLAGS: &str = "[--threads auto|N] [--reuse on|off] [--krylov-iterations N] [--precision auto|double|single]";
 
 /// Applies `flag value` to `linear` if it is one of [`LINEAR_FLAGS`]:
 /// `--threads auto|N` (factorization threads), `--reuse on|off`
 /// (factorization reuse with a Krylov correction), `--krylov-iterations N`
-/// (its iterations before refactorizing). Returns whether it was one;
+/// (its iterations before refactorizing), `--precision auto|double|single`
+/// (of the Cholesky factor). Returns whether it was one;
 /// exits with a usage error on a bad value.
 pub fn linear_flag(flag: &str, value: Option<&String>, linear: &mut LinearSettings) -> bool {
     let count = |v: Option<&String>| v.and_then(|v| v.parse::<usize>().ok()).filter(|&n| n > 0);
@@ -47,6 +48,14 @@ pub fn linear_flag(flag: &str, value: Option<&String>, linear: &mut LinearSettin
                 Some("on") => true,
                 Some("off") => false,
                 _ => usage("--reuse must be on or off"),
+            }
+        }
+        "--precision" => {
+            linear.precision = match value.map(String::as_str) {
+                Some("auto") => FactorPrecision::Auto,
+                Some("double") => FactorPrecision::Double,
+                Some("single") => FactorPrecision::Single,
+                _ => usage("--precision must be auto, double or single"),
             }
         }
         "--krylov-iterations" => {
@@ -115,8 +124,14 @@ pub fn run_and_report(model: &Model, setup: f64) -> Solution {
     );
     println!("ldlt_fallbacks={} lu_fallbacks={}", l.ldlt_fallbacks, l.lu_fallbacks);
     println!(
-        "factor_threads={} reused_factorizations={} krylov_iterations={} krylov_refactorizations={} time_krylov_s={:.3}",
-        l.factor_threads, l.reused_factorizations, l.krylov_iterations, l.krylov_refactorizations, l.krylov_time
+        "factor_threads={} single_precision_factorizations={} refinement_iterations={} reused_factorizations={} krylov_iterations={} krylov_refactorizations={} time_krylov_s={:.3}",
+        l.factor_threads,
+        l.single_precision_factorizations,
+        l.refinement_iterations,
+        l.reused_factorizations,
+        l.krylov_iterations,
+        l.krylov_refactorizations,
+        l.krylov_time
     );
     let fill = |v: Option<usize>| v.map(|v| v.to_string()).unwrap_or("-".into());
     println!("ordering_used={} factor_entries_amd={} factor_entries_nd={}", l.ordering, fill(l.fill_amd), fill(l.fill_nested_dissection));

@@ -532,6 +532,19 @@ pub enum Threads {
     Count(usize),
 }
 
+/// Precision of the Cholesky factor.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum FactorPrecision {
+    /// Single precision once the factor is large (estimated flops at least
+    /// `linear::SINGLE_PRECISION_FLOPS`), double below. Default.
+    #[default]
+    Auto,
+    /// Always double precision.
+    Double,
+    /// Single precision wherever Cholesky succeeds.
+    Single,
+}
+
 /// Reuse of a factorization across Newton iterations: a system is solved
 /// by a Krylov method (conjugate gradients when symmetric positive
 /// definite, GMRES otherwise) preconditioned with the kept factor, and
@@ -561,6 +574,9 @@ pub struct LinearSettings {
     pub threads: Threads,
     /// Factorization reuse with a Krylov correction. Default: on, 20 iterations, 1e-10.
     pub reuse: FactorReuse,
+    /// Precision of a Cholesky factor; a single-precision one is refined to
+    /// double-precision answers. Default: [`FactorPrecision::Auto`].
+    pub precision: FactorPrecision,
 }
 
 /// Which fields each converged increment keeps.

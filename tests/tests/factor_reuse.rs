@@ -8,13 +8,15 @@
 //! methods", SIAM J. Numer. Anal. 19:400–408, theorem 3.3: η_k = O(|r_k|)
 //! gives quadratic convergence) and converges to the same state within its
 //! tolerance. Likewise the number of threads changes only the order of the
-//! factor's floating-point sums.
+//! factor's floating-point sums, and a single-precision factor is refined
+//! to the same double-precision answers (Higham 2002, Accuracy and
+//! Stability of Numerical Algorithms, 2nd ed., §12.1).
 //!
 //! Case: a distorted bonded hex8 block (Q1/P0), 20 % compression in four
-//! increments, solved with reuse (the default), without it, and on two
-//! threads.
+//! increments, solved with reuse (the default), without it, on two
+//! threads, and with single- and double-precision factors.
 
-use olli_solver::linear::{FactorReuse, LinearSettings, Threads};
+use olli_solver::linear::{FactorPrecision, FactorReuse, LinearSettings, Threads};
 use olli_solver::*;
 use olli_verification::*;
 
@@ -101,4 +103,19 @@ fn two_threads_give_the_same_answer() {
     let d = displacement_difference(&one, &two);
     assert!(d < 1e-8, "displacements differ by {d:e} of the largest");
     assert!(rel(force(&one), force(&two)) < 1e-8);
+}
+
+#[test]
+fn single_precision_factors_give_the_same_answer() {
+    let single = compress(LinearSettings { precision: FactorPrecision::Single, ..Default::default() });
+    let double = compress(LinearSettings { precision: FactorPrecision::Double, ..Default::default() });
+    let (ls, ld) = (&single.stats.linear, &double.stats.linear);
+    assert_eq!((ls.single_precision_factorizations, ld.single_precision_factorizations), (ls.numeric_count, 0));
+    assert!(ls.refinement_iterations >= ls.numeric_count, "{ls:?}");
+    for (a, b) in single.increments.iter().zip(&double.increments) {
+        assert_eq!(a.newton_iterations, b.newton_iterations, "increment {}", a.increment);
+    }
+    let d = displacement_difference(&single, &double);
+    assert!(d < 1e-8, "displacements differ by {d:e} of the largest");
+    assert!(rel(force(&single), force(&double)) < 1e-8, "{} vs {}", force(&single), force(&double));
 }

@@ -469,6 +469,8 @@ fn add_linear_stats(total: &mut LinearStats, s: &LinearStats) {
     total.fill_amd = s.fill_amd;
     total.fill_nested_dissection = s.fill_nested_dissection;
     total.factor_threads = s.factor_threads;
+    total.single_precision_factorizations += s.single_precision_factorizations;
+    total.refinement_iterations += s.refinement_iterations;
     total.reused_factorizations += s.reused_factorizations;
     total.krylov_iterations += s.krylov_iterations;
     total.krylov_refactorizations += s.krylov_refactorizations;

@@ -95,7 +95,7 @@ impl<S: LinearSolver> Reusing<S> {
         let (col_ptr, row_idx) = (&self.col_ptr, &self.row_idx);
         let mut apply = |v: &[f64], y: &mut [f64]| multiply(col_ptr, row_idx, matrix, v, y);
         let inner = &mut self.inner;
-        let mut precondition = |v: &mut [f64]| inner.solve(v);
+        let mut precondition = |v: &mut [f64]| inner.precondition(v);
         let symmetric = matrix.skew.is_empty() && kept.kind == FactorKind::Cholesky;
         // A preconditioner solve that fails (a singular kept factor) is a
         // failed reuse, not a failed system.
@@ -119,7 +119,7 @@ impl<S: LinearSolver> Reusing<S> {
 
 /// `y = A x` for the symmetric lower triangle `matrix.lower` in the pattern
 /// (`col_ptr`, `row_idx`) plus its skew-symmetric entries.
-fn multiply(col_ptr: &[usize], row_idx: &[usize], matrix: SystemMatrix, x: &[f64], y: &mut [f64]) {
+pub(super) fn multiply(col_ptr: &[usize], row_idx: &[usize], matrix: SystemMatrix, x: &[f64], y: &mut [f64]) {
     y.fill(0.0);
     for c in 0..col_ptr.len() - 1 {
         let xc = x[c];

@@ -35,6 +35,11 @@ pub struct Performance {
     pub solve_s: f64,
     /// Threads of the factorization and solves (1: sequential).
     pub factor_threads: usize,
+    /// Factorizations done in single precision, their solves refined in
+    /// double precision (included in `factorizations`).
+    pub single_precision_factorizations: usize,
+    /// Double-precision refinement iterations of those solves.
+    pub refinement_iterations: usize,
     /// Newton systems solved on a kept factorization by a Krylov method
     /// instead of factorizing.
     pub reused_factorizations: usize,
@@ -66,6 +71,8 @@ impl Performance {
             factorization_s: l.numeric_time,
             solve_s: l.solve_time,
             factor_threads: l.factor_threads,
+            single_precision_factorizations: l.single_precision_factorizations,
+            refinement_iterations: l.refinement_iterations,
             reused_factorizations: l.reused_factorizations,
             krylov_iterations: l.krylov_iterations,
             krylov_refactorizations: l.krylov_refactorizations,
