@@ -134,6 +134,9 @@ pub struct FaerDirect {
     /// refinement), allocated at the first single factorization.
     l_single: Vec<f32>,
     refined_matrix: Vec<f64>,
+    /// Single-precision scratch: the matrix values while factorizing, a
+    /// right-hand side while solving.
+    single_scratch: Vec<f32>,
     /// The last factorization is the single-precision one.
     single_active: bool,
     mem: MemBuffer,
@@ -248,6 +251,7 @@ impl FaerDirect {
             single,
             l_single: Vec::new(),
             refined_matrix: Vec::new(),
+            single_scratch: Vec::new(),
             single_active: false,
             mem,
             par,
@@ -281,8 +285,9 @@ impl FaerDirect {
         if self.l_single.len() != self.symbolic.len_val() {
             self.l_single = vec![0.0; self.symbolic.len_val()];
         }
-        let single_values: Vec<f32> = values.iter().map(|&v| v as f32).collect();
-        let a = SparseColMatRef::new(self.symbolic_matrix.as_ref(), &single_values[..]);
+        self.single_scratch.clear();
+        self.single_scratch.extend(values.iter().map(|&v| v as f32));
+        let a = SparseColMatRef::new(self.symbolic_matrix.as_ref(), &self.single_scratch[..]);
         let factored = self.symbolic.factorize_numeric_llt::<f32>(
             &mut self.l_single,
             a,
@@ -447,13 +452,13 @@ impl FaerDirect {
     fn solve_refined(&mut self, rhs: &mut [f64]) -> bool {
         let n = rhs.len();
         let b = rhs.to_vec();
-        let FaerDirect { symbolic_matrix, symbolic, l_single, refined_matrix, mem, par, .. } = self;
+        self.single_scratch.resize(n, 0.0);
+        let FaerDirect { symbolic_matrix, symbolic, l_single, refined_matrix, single_scratch: single, mem, par, .. } = self;
         let matrix = SystemMatrix { lower: refined_matrix, skew: &[] };
         let (col_ptr, row_idx) = (symbolic_matrix.col_ptr(), symbolic_matrix.row_idx());
         let mut apply = |x: &[f64], y: &mut [f64]| multiply(col_ptr, row_idx, matrix, x, y);
-        let mut single = vec![0f32; n];
         let mut precondition = |v: &mut [f64]| -> Result<(), LinearError> {
-            solve_single(symbolic, l_single, *par, mem, &mut single, v);
+            solve_single(symbolic, l_single, *par, mem, single, v);
             Ok(())
         };
         let outcome = conjugate_gradients(&mut apply, &mut precondition, &b, rhs, REFINED_TOLERANCE, REFINEMENT_ITERATIONS);
@@ -505,8 +510,8 @@ impl LinearSolver for FaerDirect {
             return self.solve_in_place(v);
         }
         let t = Instant::now();
-        let mut single = vec![0f32; v.len()];
-        solve_single(&self.symbolic, &self.l_single, self.par, &mut self.mem, &mut single, v);
+        self.single_scratch.resize(v.len(), 0.0);
+        solve_single(&self.symbolic, &self.l_single, self.par, &mut self.mem, &mut self.single_scratch, v);
         self.stats.solve_time += t.elapsed().as_secs_f64();
         if v.iter().any(|x| !x.is_finite()) {
             return Err(LinearError::NotFinite);
