@@ -19,6 +19,7 @@ pub mod faer_direct;
 pub mod krylov;
 pub mod nested_dissection;
 pub mod reuse;
+pub mod supernodal_solve;
 
 pub use faer_direct::FaerDirect;
 pub use reuse::Reusing;
