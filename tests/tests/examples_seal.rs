@@ -23,8 +23,10 @@ fn seal_example_results_match_its_note() {
     // Regression of the Newton effort (our own counts, not verification):
     // 407 iterations while a damped retry left damping switched on in later
     // plain increments and the equilibrium was confirmed by one more
-    // correction; 313 since. A bound, not a timing.
-    assert!(solution.stats.newton_iterations <= 330, "{} Newton iterations", solution.stats.newton_iterations);
+    // correction; 313 since; 328–331 with inexact Newton systems on a kept
+    // factor (the count moves with the Krylov solves' stopping points). A
+    // bound, not a timing.
+    assert!(solution.stats.newton_iterations <= 335, "{} Newton iterations", solution.stats.newton_iterations);
     let squeezed = solution.increments.iter().rfind(|i| i.stage == 0).unwrap();
     let cover = squeezed.contact.iter().find(|c| c.name == "cover").unwrap();
     // The note gives 4 significant figures: 0.1 % allowed.
