@@ -385,24 +385,9 @@ impl ContactPair {
         self.updates.fill(None);
     }
 
-    /// Each multiplier becomes its node's pressure at `response`.
-    fn settle_multipliers(&mut self, response: &PairResponse) {
-        for k in 0..self.nodes.len() {
-            let g = response.gaps[k];
-            if g.is_finite() && self.areas[k] > 0.0 {
-                let smoothing = self.node_params(k).smoothing;
-                let s = &mut self.states[k];
-                s.multiplier = smoothed_pressure(s.multiplier - self.penalties[k] * g, smoothing).0;
-            }
-        }
-    }
-
-    /// Stores the converged state: each multiplier becomes the node's
-    /// converged pressure (one more augmentation, so the next increment
-    /// starts from it), stick anchors in the surface frame (the elastic-slip
-    /// origin of touching nodes; none for open ones).
+    /// Stores the converged state: stick anchors in the surface frame (the
+    /// elastic-slip origin of touching nodes; none for open ones).
     pub fn commit(&mut self, surface: &RigidSurface, response: &PairResponse) {
-        self.settle_multipliers(response);
         self.reset_updates();
         for k in 0..self.nodes.len() {
             let r = &response.nodes[k];
@@ -417,21 +402,6 @@ impl ContactPair {
             };
             if r.status == Status::Open {
                 s.multiplier = 0.0;
-            }
-        }
-    }
-
-    /// Predicts the multipliers of the next increment from the last two
-    /// converged ones (`before`: the increment before the last): each
-    /// node touching at both moves on by `ratio` times its last change (the
-    /// step ratio, as the displacement predictor), never below zero. The
-    /// contact pressure of a seal under rising load grows steadily, so the
-    /// penetration left by the prediction is of second order in the step
-    /// and mostly within tolerance without an augmentation.
-    pub fn predict_multipliers(&mut self, before: &[NodeState], ratio: f64) {
-        for (s, b) in self.states.iter_mut().zip(before) {
-            if s.multiplier > 0.0 && b.multiplier > 0.0 {
-                s.multiplier = (s.multiplier + ratio * (s.multiplier - b.multiplier)).max(0.0);
             }
         }
     }
@@ -459,20 +429,14 @@ impl ContactPair {
     }
 
     /// Penetration of every touching node relative to its allowed value
-    /// `fraction × size`; the largest ratio (> 1: needs augmentation). A
-    /// node held off the surface by its multiplier (λ beyond the rounding of
-    /// the law, pressure at a positive gap: a multiplier larger than the
-    /// pressure, as when the pressure falls or was over-predicted) counts
-    /// its gap the same way.
+    /// `fraction × size`; the largest ratio (> 1: needs augmentation).
     pub fn worst_penetration_ratio(&self, response: &PairResponse, fraction: f64) -> (f64, f64) {
         let mut worst = (0.0, 0.0, 0.0);
         for (k, r) in response.nodes.iter().enumerate() {
             if r.status == Status::Open || self.areas[k] == 0.0 {
                 continue;
             }
-            let gap = response.gaps[k];
-            let held_off = gap > 0.0 && self.states[k].multiplier > self.node_params(k).smoothing;
-            let pen = if held_off { gap } else { -gap };
+            let pen = -response.gaps[k];
             let tol = fraction * self.sizes[k];
             let ratio = pen / tol;
             if ratio > worst.0 {
@@ -645,27 +609,6 @@ mod tests {
         // Never below zero, and the plain step where the slope is positive.
         assert_eq!(relaxed_multiplier(1.0, 0.0, Some((2.0, 0.5))), 0.0);
         assert_eq!(relaxed_multiplier(1.0, 1.5, Some((0.5, 1.2))), 1.5);
-    }
-
-    // A node held off the surface by its multiplier (pressure at a positive
-    // gap, the multiplier above the pressure) violates the contact as much
-    // as one penetrating by that gap; without a multiplier the same gap is
-    // only the rounding of the law (definition of the check, no published value).
-    #[test]
-    fn a_node_held_off_by_its_multiplier_needs_augmentation() {
-        use olli_mesh::generate::{rectangle, RectangleParams};
-        let params =
-            ContactParameters { normal_penalty: 100.0, tangential_penalty: 10.0, friction: 0.0, smoothing: 0.0, slip_rounding: 0.0 };
-        let mesh = rectangle(&RectangleParams { divisions: [4, 1], ..Default::default() }).unwrap();
-        let mut pair = ContactPair::new(&mesh, &mesh.side_sets["top"], AreaMeasure::PlaneStrain { thickness: 1.0 }, params);
-        pair.penalties.fill(100.0);
-        let gap = 0.01 * pair.sizes[0];
-        let touching = NodeResponse { status: Status::Slip, pressure: 1.0, ..NodeResponse::open() };
-        let r = PairResponse { nodes: vec![touching; pair.nodes.len()], gaps: vec![gap; pair.nodes.len()], ..Default::default() };
-        assert_eq!(pair.worst_penetration_ratio(&r, 1e-3).0, 0.0, "no multiplier: no violation");
-        pair.states[1].multiplier = 2.0;
-        let (violation, tolerance) = pair.worst_penetration_ratio(&r, 1e-3);
-        assert!((violation - gap).abs() < 1e-15 && violation > tolerance, "{violation} {tolerance}");
     }
 
     /// A uniformly stretched face carries the same force on a larger area:

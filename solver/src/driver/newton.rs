@@ -662,7 +662,6 @@ impl<'a> NewtonContext<'a> {
             for (d, ud) in u.iter_mut().enumerate() {
                 *ud += ratio * (self.last_converged[d] - prev[d]);
             }
-            self.contacts.predict(ratio);
             extrapolated = true;
         }
         loop {
@@ -671,7 +670,6 @@ impl<'a> NewtonContext<'a> {
                 Ok(_) => break,
                 Err(_) if extrapolated => {
                     u.copy_from_slice(&self.last_converged);
-                    self.contacts.restore();
                     extrapolated = false;
                 }
                 Err(e) => return Err(e),
