@@ -96,7 +96,7 @@ pub enum SolveError {
     #[error(
         "stage `{stage}`: the load cannot be increased past {load} at load factor {load_factor:.4}: a limit point \
          (the stiffness along the load fell to {percent:.1} % of its value at the start of the stage); \
-         drive the stage by a motion or use arc-length control (`control = \"arc-length\"`)"
+         drive the stage by a motion or use arc-length control (`control = \"arc-length\"`){context}"
     )]
     LimitPoint {
         /// Name of the stage.
@@ -107,6 +107,10 @@ pub enum SolveError {
         load: String,
         /// Stiffness along the load at the stop, percent of its value at the stage start.
         percent: f64,
+        /// What the last converged increment shows about the stop, as a
+        /// sentence starting with `; ` (the rubber flowing into an
+        /// extrusion gap, a limit load of its own), or empty.
+        context: String,
     },
     /// An arc-length stage took its increments without reaching the end of its loads.
     #[error(

@@ -321,6 +321,7 @@ impl ActiveContacts {
     pub fn restore(&mut self) {
         for b in &mut self.bodies {
             b.pair.states = b.committed.clone();
+            b.pair.reset_updates();
             b.corners.restore();
         }
     }

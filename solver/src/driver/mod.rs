@@ -322,6 +322,7 @@ fn stopped(stage: &Stage, prog: &StageProgram, (t, next): (f64, f64), limit: Opt
             load_factor: t,
             load: limit_point::loads_at(prog, t),
             percent: 100.0 * ratio,
+            context,
         },
         None => SolveError::IncrementTooSmall {
             stage: stage.name.clone(),
