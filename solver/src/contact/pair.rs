@@ -459,10 +459,10 @@ impl ContactPair {
 /// (the O-ring example near 9 MPa: s ≈ −1.35 at two neighbouring nodes
 /// trading the load): the plain updates then alternate between penetration
 /// and a gap with growing amplitude until the increment runs out of
-/// augmentations, at any increment size. There the step is the secant one, λ + (p − λ) / (1 − s) with
-/// s from the last two updates (exact for a linear response), never longer
-/// than the plain step nor shorter than a tenth of it; with s ≥ 0 the plain
-/// step is kept.
+/// augmentations, at any increment size. There the step is the secant
+/// one, λ + (p − λ) / (1 − s) with s from the last two updates (exact for a
+/// linear response), never longer than the plain step nor shorter than a
+/// tenth of it; with s ≥ 0 the plain step is kept.
 pub fn relaxed_multiplier(lambda: f64, p: f64, previous: Option<(f64, f64)>) -> f64 {
     let relax = match previous {
         Some((lambda0, p0)) if lambda != lambda0 => {

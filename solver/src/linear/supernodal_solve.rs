@@ -307,8 +307,7 @@ impl<T: FactorScalar> Factor<'_, T> {
         work.extend_from_slice(&own[start - lo..start - lo + k]);
         work.extend(pattern.iter().map(|&row| if own_rows.contains(&row) { own[row - lo] } else { outside[row] }));
         let threads = if rows * k >= PARALLEL_ENTRIES { threads } else { 1 };
-        let blocks: Vec<usize> = (0..k).step_by(BLOCK).collect();
-        for &b0 in blocks.iter().rev() {
+        for b0 in (0..k.div_ceil(BLOCK)).rev().map(|b| b * BLOCK) {
             let b1 = (b0 + BLOCK).min(k);
             let (head, known) = work.split_at_mut(b1);
             dot_columns(block, rows, b0..b1, known, b1, &mut head[b0..b1], threads);
