@@ -7,7 +7,9 @@
 //! increments.
 //!
 //! Run from the workspace root:
-//! `cargo run --release --bin block-compression -- --divisions NX,NY,NZ [--ordering best|amd|nd] [--threads auto|N] [--reuse on|off] [--krylov-iterations N]`
+//! `cargo run --release --bin block-compression -- --divisions NX,NY,NZ [--ordering best|amd|nd] [--force-tolerance TOL] [--threads auto|N] [--reuse on|off] [--krylov-iterations N]`
+//! (`--force-tolerance`: the relative out-of-balance force at convergence,
+//! default the job files' 1e-6; the Python reference's 1e-8 for a side-by-side run)
 //! It prints the size, Newton iterations per increment, the time split
 //! (assembly, symbolic and numeric factorization, solves), the peak memory,
 //! and as its last line `plate_force_N=<value>`: the compressive force on the
@@ -22,7 +24,7 @@ use olli_solver::{Analysis, Formulation, IncrementControls, Model, Motion, Stage
 use olli_verification::{block, generated_block, neo_hookean};
 
 const USAGE: &str =
-    "usage: block-compression --divisions NX,NY,NZ [--element hex8|hex20|hex27|tet10] [--pressure own|element] [--ordering best|amd|nd] [--no-extrapolation]";
+    "usage: block-compression --divisions NX,NY,NZ [--element hex8|hex20|hex27|tet10] [--pressure own|element] [--ordering best|amd|nd] [--no-extrapolation] [--force-tolerance TOL]";
 
 /// The 40 × 40 × 10 block of `kind` elements and the names of its bottom and
 /// top node sets. Hex8 keeps the verification crate's block (as before the
@@ -42,6 +44,7 @@ fn main() {
     let mut ordering = Ordering::LeastFill;
     let mut linear = LinearSettings::default();
     let mut extrapolate = true;
+    let mut force_tolerance = IncrementControls::default().force_tolerance;
     let mut element = ElementKind::Hex8;
     let mut formulation = Formulation::Mixed;
     let mut i = 1;
@@ -74,6 +77,14 @@ fn main() {
                 ordering = parse_ordering(v).unwrap_or_else(|| usage("--ordering must be amd, nd or best"));
                 i += 2;
             }
+            ("--force-tolerance", Some(v)) => {
+                force_tolerance = v
+                    .parse()
+                    .ok()
+                    .filter(|t: &f64| *t > 0.0 && t.is_finite())
+                    .unwrap_or_else(|| usage(&format!("--force-tolerance expects a positive number, got `{v}`")));
+                i += 2;
+            }
             ("--no-extrapolation", _) => {
                 extrapolate = false;
                 i += 1;
@@ -89,7 +100,7 @@ fn main() {
     model.output.nodal_fields = false;
     model.stages.push(Stage {
         name: "compress".into(),
-        controls: IncrementControls { first: 0.1, max: 0.1, extrapolate, ..Default::default() },
+        controls: IncrementControls { first: 0.1, max: 0.1, extrapolate, force_tolerance, ..Default::default() },
         supports: vec![Support { set: bottom.into(), components: [true, true, true] }],
         motions: vec![Motion { set: top.into(), displacement: [Some(0.0), Some(0.0), Some(-2.0)] }],
         ..Default::default()

@@ -27,7 +27,7 @@ use faer::sparse::linalg::{SupernodalThreshold, SymbolicSupernodalParams};
 use faer::sparse::{SparseColMatRef, SymbolicSparseColMat};
 use faer::{Conj, MatMut, Par, Side};
 
-use super::krylov::{conjugate_gradients, KrylovOutcome};
+use super::krylov::{conjugate_gradients, Budget, KrylovOutcome};
 use super::reuse::multiply;
 use super::supernodal_solve::{FactorScalar, SupernodalSolve};
 use super::{
@@ -493,7 +493,7 @@ impl FaerDirect {
             factor.solve(*par, mem, single, v, |x| x as f32, f64::from);
             Ok(())
         };
-        let outcome = conjugate_gradients(&mut apply, &mut precondition, &b, rhs, REFINED_TOLERANCE, REFINEMENT_ITERATIONS);
+        let outcome = conjugate_gradients(&mut apply, &mut precondition, &b, rhs, REFINED_TOLERANCE, Budget::Fixed(REFINEMENT_ITERATIONS));
         let outcome = outcome.unwrap_or(KrylovOutcome { converged: false, iterations: 0, relative_residual: f64::NAN });
         self.stats.refinement_iterations += outcome.iterations;
         if outcome.converged && rhs.iter().all(|v| v.is_finite()) {

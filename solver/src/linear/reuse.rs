@@ -11,7 +11,7 @@
 
 use std::time::Instant;
 
-use super::krylov::{conjugate_gradients, gmres, KrylovOutcome};
+use super::krylov::{conjugate_gradients, gmres, Budget, KrylovOutcome};
 use super::{
     FactorKind, FactorReuse, Factorization, LinearError, LinearSettings, LinearSolver, LinearStats, Reuse, SymmetricPattern, SystemMatrix,
 };
@@ -22,6 +22,10 @@ use super::{
 /// that failed, the best preconditioner for the next system (on the
 /// 156k-equation mount this saved one of ten factorizations).
 pub const BACK_OFF: usize = 1;
+
+/// Share of a factorization's cost, in Krylov iterations, that one reuse
+/// may spend (see `Reusing::budget`).
+pub const BUDGET_SHARE: f64 = 0.5;
 
 /// A [`LinearSolver`] that may solve on its kept factor (see the module).
 #[derive(Debug)]
@@ -77,10 +81,25 @@ impl<S: LinearSolver> Reusing<S> {
     fn plan(&self, reuse: Reuse) -> Option<(f64, usize)> {
         match reuse {
             Reuse::Kept { tolerance } if self.settings.enabled && self.kept.is_some() && self.skip == 0 => {
-                Some((tolerance.max(self.settings.tolerance), self.settings.max_iterations))
+                Some((tolerance.max(self.settings.tolerance), self.budget()))
             }
             _ => None,
         }
+    }
+
+    /// Krylov iterations a reuse may take: the settings' count, or more for
+    /// a large factor, whose factorization costs more solves with it: about
+    /// √(flops / entries) of them (Σ colcount² over the factor entries; on
+    /// the 2-core test machine a factorization took 10, 19 and 57 iterations'
+    /// time at 8k, 45k and 470k equations, where this is 16, 31 and 67).
+    /// [`BUDGET_SHARE`] of that, so a factorization, whose fresh factor also
+    /// preconditions the next systems better, still wins a close call.
+    /// Solves that converge too slowly for it stop early
+    /// ([`super::krylov::out_of_reach`]).
+    fn budget(&self) -> usize {
+        let s = self.inner.stats();
+        let solves_per_factorization = (s.factor_flops / s.nnz_factor.max(1) as f64).sqrt();
+        self.settings.max_iterations.max((BUDGET_SHARE * solves_per_factorization) as usize)
     }
 
     /// Tries the Krylov solve on the kept factor to `tolerance` in at most
@@ -103,9 +122,9 @@ impl<S: LinearSolver> Reusing<S> {
         // A preconditioner solve that fails (a singular kept factor) is a
         // failed reuse, not a failed system.
         let outcome = if symmetric {
-            conjugate_gradients(&mut apply, &mut precondition, rhs, &mut x, tolerance, max)
+            conjugate_gradients(&mut apply, &mut precondition, rhs, &mut x, tolerance, Budget::Projected(max))
         } else {
-            gmres(&mut apply, &mut precondition, rhs, &mut x, tolerance, max)
+            gmres(&mut apply, &mut precondition, rhs, &mut x, tolerance, Budget::Projected(max))
         }
         .unwrap_or(KrylovOutcome { converged: false, iterations: 0, relative_residual: f64::NAN });
         self.stats.krylov_iterations += outcome.iterations;
