@@ -12,7 +12,7 @@ use thiserror::Error;
 
 use super::history::ElementHistory;
 use crate::element::pressure_space::PressureSpace;
-use crate::element::solid::{self, SolidKinematics, MAX_SOLID_NODES};
+use crate::element::solid::{self, SolidKinematics, TangentLanes, MAX_SOLID_NODES};
 use crate::element::taylor_hood::{integrate_continuous_into, PressureResponse};
 use crate::element::{
     integrate_into, kinematics_into, point_states_into, Analysis, ElementError, ElementKinematics, Formulation, MixedState, PointResponse,
@@ -116,13 +116,14 @@ fn responses(
     let mut history = history.filter(|_| material.history_len() > 0);
     for (q, (k, r)) in kin.points().iter().zip(out.iter_mut()).enumerate() {
         let c = k.right_cauchy_green();
-        *r = point_response(material, mixed, tangent, &c, q, history.as_deref_mut()).map_err(|e| material_error(e, q, k.j))?;
+        point_response(material, mixed, tangent, &c, q, history.as_deref_mut(), r).map_err(|e| material_error(e, q, k.j))?;
     }
     Ok(())
 }
 
 /// The material's answer at point `q` of right Cauchy–Green tensor `c` (see
-/// [`responses`]); `history` only for a material that keeps one. Without
+/// [`responses`]) into `out` (in place: no copy of the answer through a
+/// `Result`); `history` only for a material that keeps one. Without
 /// `tangent` (a residual-only evaluation) a material without history
 /// computes its energy and stress alone, the same bits, and the answer's
 /// tangent is zero; one with history answers in full.
@@ -133,10 +134,12 @@ fn point_response(
     c: &Matrix3<f64>,
     q: usize,
     history: Option<&mut ElementHistory>,
-) -> Result<PointResponse, MaterialError> {
+    out: &mut PointResponse,
+) -> Result<(), MaterialError> {
     if !tangent && history.is_none() {
         let s = if mixed { material.isochoric_stress(c) } else { material.stress(c) }?;
-        return Ok(PointResponse { energy: s.energy, stress: s.stress, ..PointResponse::default() });
+        *out = PointResponse { energy: s.energy, stress: s.stress, ..PointResponse::default() };
+        return Ok(());
     }
     let resp = match history {
         Some(h) => {
@@ -148,8 +151,18 @@ fn point_response(
         }
         None if mixed => material.isochoric_response(c),
         None => material.response(c),
-    }?;
-    Ok(PointResponse { energy: resp.energy, stress: resp.stress, tangent: resp.tangent })
+    };
+    // Read in place (`ref`): moving the answer out of the `Result` first
+    // would copy it once more.
+    match resp {
+        Ok(ref r) => {
+            out.energy = r.energy;
+            out.stress = r.stress;
+            out.tangent = r.tangent;
+            Ok(())
+        }
+        Err(e) => Err(e),
+    }
 }
 
 thread_local! {
@@ -172,6 +185,8 @@ struct MaterialAt {
     responses: [PointResponse; MAX_POINTS],
     /// F and J of a spatial-form element ([`element_cached_into`]).
     solid: SolidKinematics,
+    /// The tangent lanes of a spatial-form element.
+    lanes: TangentLanes,
     /// Reference geometry of a spatial-form element evaluated without a
     /// cache ([`element_with_history_into`]).
     grads: [[f64; 3]; MAX_SOLID_NODES * MAX_POINTS],
@@ -186,6 +201,7 @@ impl MaterialAt {
             volumetric_count: 0,
             responses: [PointResponse::default(); MAX_POINTS],
             solid: SolidKinematics::default(),
+            lanes: TangentLanes::default(),
             grads: [[0.0; 3]; MAX_SOLID_NODES * MAX_POINTS],
             dv: [0.0; MAX_POINTS],
         }
@@ -265,11 +281,11 @@ pub fn element_with_history_into(
     if solid::supports(ctx.shape, ctx.analysis, ctx.formulation) {
         return with_scratch(|at| {
             let (nodes, points) = (ctx.shape.nodes(), ctx.shape.points());
-            let MaterialAt { grads, dv, solid, responses, .. } = at;
+            let MaterialAt { grads, dv, solid, responses, lanes, .. } = at;
             let (grads, dv) = (&mut grads[..nodes * points], &mut dv[..points]);
             solid::reference_geometry_into(ctx.shape, x, grads, dv)?;
             let geometry = ReferenceGeometry { grads, dv };
-            spatial(solid, responses, ctx, geometry, u, force, stiffness, state, history)
+            spatial(solid, responses, lanes, ctx, geometry, u, force, stiffness, state, history)
         });
     }
     element_through(integrate_into, ctx, x, u, force, stiffness, state, history)
@@ -299,14 +315,15 @@ pub fn element_cached_into(
     state: Option<&mut MixedState>,
     history: Option<&mut ElementHistory>,
 ) -> Result<f64, KernelError> {
-    with_scratch(|at| spatial(&mut at.solid, &mut at.responses, ctx, geometry, u, force, stiffness, state, history))
+    with_scratch(|at| spatial(&mut at.solid, &mut at.responses, &mut at.lanes, ctx, geometry, u, force, stiffness, state, history))
 }
 
-/// The spatial-form element, with buffers for its kinematics and the
-/// material's answers.
+/// The spatial-form element, with buffers for its kinematics, the
+/// material's answers and the tangent lanes.
 fn spatial(
     kin: &mut SolidKinematics,
     responses: &mut [PointResponse; MAX_POINTS],
+    lanes: &mut TangentLanes,
     ctx: &ElementContext,
     geometry: ReferenceGeometry,
     u: &[[f64; 3]],
@@ -323,11 +340,22 @@ fn spatial(
     let want_k = stiffness.is_some();
     for (q, (p, r)) in kin.points().iter().zip(responses.iter_mut()).enumerate() {
         let c = p.f.transpose() * p.f;
-        *r = point_response(ctx.material, mixed, want_k, &c, q, history.as_deref_mut()).map_err(|e| material_error(e, q, p.j))?;
+        point_response(ctx.material, mixed, want_k, &c, q, history.as_deref_mut(), r).map_err(|e| material_error(e, q, p.j))?;
     }
     let state = if mixed { state } else { None };
     let responses = &responses[..kin.count];
-    Ok(solid::solid_integrate_into(nodes, geometry.grads, geometry.dv, kin, responses, volumetric.as_ref(), force, stiffness, state)?)
+    Ok(solid::solid_integrate_into(
+        nodes,
+        geometry.grads,
+        geometry.dv,
+        kin,
+        responses,
+        volumetric.as_ref(),
+        force,
+        stiffness,
+        state,
+        lanes,
+    )?)
 }
 
 /// The element integration [`element_with_state_into`] hands the material's answers to.

@@ -86,7 +86,7 @@ fn symmetric_kernel_matches_the_full_reference() {
 #[test]
 fn vector_and_scalar_spatial_kernels_agree_bit_for_bit() {
     use crate::element::solid::{
-        reference_geometry_into, solid_integrate_into, solid_integrate_scalar, solid_kinematics_into, SolidKinematics,
+        reference_geometry_into, solid_integrate_into, solid_integrate_scalar, solid_kinematics_into, SolidKinematics, TangentLanes,
     };
     use crate::element::{PointResponse, VolumetricResponse};
     for (name, constants) in registry::SAMPLES {
@@ -111,10 +111,13 @@ fn vector_and_scalar_spatial_kernels_agree_bit_for_bit() {
         let run = |vector: bool| {
             let (mut f, mut k) = (vec![0.0; 24], vec![0.0; 576]);
             let mut state = MixedState { pressure: 0.3, dilatation: 1.02, ..MixedState::default() };
+            // Lanes left over from another element must not show.
+            let mut lanes = TangentLanes::default();
+            solid_integrate_into(8, &grads, &dv, &kin, &responses, None, &mut [0.0; 24], Some(&mut [0.0; 576]), None, &mut lanes).unwrap();
             let w = if vector {
-                solid_integrate_into(8, &grads, &dv, &kin, &responses, Some(&law), &mut f, Some(&mut k), Some(&mut state))
+                solid_integrate_into(8, &grads, &dv, &kin, &responses, Some(&law), &mut f, Some(&mut k), Some(&mut state), &mut lanes)
             } else {
-                solid_integrate_scalar(&grads, &dv, &kin, &responses, Some(&law), &mut f, Some(&mut k), Some(&mut state))
+                solid_integrate_scalar(&grads, &dv, &kin, &responses, Some(&law), &mut f, Some(&mut k), Some(&mut state), &mut lanes)
             };
             (w.unwrap(), f, k, state)
         };

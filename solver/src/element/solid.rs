@@ -170,8 +170,9 @@ fn kirchhoff(t: &[[f64; 6]; 6], s: &Matrix3<f64>) -> [f64; 6] {
 }
 
 /// Spatial tangent `T D Tᵀ` (symmetric 6×6) pushed forward from D, with
-/// `t` the Voigt transformation of F: rows of `T D` first, then its
-/// products with the rows of T, the lower triangle mirrored.
+/// `t` the Voigt transformation of F: rows of `T D` first, then the rows
+/// of `(T D) Tᵀ`, each a sum of rows of `Tᵀ` (whole rows at a time, so the
+/// loops vectorise; the two triangles agree to rounding).
 #[inline(always)]
 fn push_forward(t: &[[f64; 6]; 6], d: &SMatrix<f64, 6, 6>) -> [[f64; 6]; 6] {
     // D is symmetric: its columns are its rows.
@@ -185,18 +186,55 @@ fn push_forward(t: &[[f64; 6]; 6], d: &SMatrix<f64, 6, 6>) -> [[f64; 6]; 6] {
             }
         }
     }
+    let tt: [[f64; 6]; 6] = std::array::from_fn(|l| std::array::from_fn(|m| t[m][l]));
     let mut c = [[0.0; 6]; 6];
     for n in 0..6 {
-        for m in 0..=n {
-            let mut v = 0.0;
-            for l in 0..6 {
-                v += td[n][l] * t[m][l];
+        for l in 0..6 {
+            let s = td[n][l];
+            for m in 0..6 {
+                c[n][m] += s * tt[l][m];
             }
-            c[n][m] = v;
-            c[m][n] = v;
         }
     }
     c
+}
+
+/// Rows of the Voigt vector (xx, yy, zz, xy, yz, xz) holding the
+/// components `(i, 0)`, `(i, 1)`, `(i, 2)` of a symmetric tensor: column
+/// `k` of `B_b` holds `∇N_b` in the rows `SHEAR[k]`.
+const SHEAR: [[usize; 3]; 3] = [[0, 3, 5], [3, 1, 4], [5, 4, 2]];
+
+/// One point's share of the tangent lanes, `K_ab += B_aᵀ (c B_b w) +
+/// (∇N_a · h_b) I` with `cb` holding `c B_b w` and `h_b = τ w ∇N_b`. The
+/// element's first point (`FIRST`) writes the lanes instead of adding to
+/// them, with the same operations on zeros (so the same bits).
+#[inline(always)]
+fn add_point_tangent<const N: usize, const FIRST: bool>(kl: &mut Lanes<N>, g: &[[f64; N]; 3], cb: &[[[f64; N]; 3]; 6], h: &[[f64; N]; 3]) {
+    for (a, ka) in kl.iter_mut().enumerate() {
+        let ga = [g[0][a], g[1][a], g[2][a]];
+        // Row i of B_aᵀ: ∇N_a,j in the rows SHEAR[i][j].
+        for i in 0..3 {
+            let rows = SHEAR[i];
+            for k in 0..3 {
+                let out = &mut ka[3 * i + k];
+                let (c0, c1, c2) = (&cb[rows[0]][k], &cb[rows[1]][k], &cb[rows[2]][k]);
+                for b in 0..N {
+                    let before = if FIRST { 0.0 } else { out[b] };
+                    out[b] = ga[2].mul_add(c2[b], ga[1].mul_add(c1[b], ga[0].mul_add(c0[b], before)));
+                }
+            }
+        }
+        let mut s = [0.0; N];
+        for b in 0..N {
+            s[b] = ga[2].mul_add(h[2][b], ga[1].mul_add(h[1][b], ga[0] * h[0][b]));
+        }
+        for i in 0..3 {
+            let out = &mut ka[4 * i];
+            for b in 0..N {
+                out[b] += s[b];
+            }
+        }
+    }
 }
 
 /// The lane arithmetic of the kernel: `out[b] += s · x[b]` over a node lane.
@@ -213,7 +251,8 @@ fn axpy<const N: usize>(out: &mut [f64; N], s: f64, x: &[f64; N]) {
 /// every point. A mixed element takes the volumetric law at its mean
 /// dilatation (`volumetric`) and, in the three-field form, its carried
 /// unknowns (`state`, whose outputs are filled in), as
-/// [`super::integrate_into`]. Returns the element's strain energy.
+/// [`super::integrate_into`]. `lanes` is the caller's scratch for the
+/// tangent (any content). Returns the element's strain energy.
 pub fn solid_integrate_into(
     nodes: usize,
     grads: &[[f64; 3]],
@@ -224,14 +263,15 @@ pub fn solid_integrate_into(
     force: &mut [f64],
     stiffness: Option<&mut [f64]>,
     state: Option<&mut MixedState>,
+    lanes: &mut TangentLanes,
 ) -> Result<f64, ElementError> {
     let input = Input { grads, dv, kin, responses, volumetric };
     let arch = pulp::Arch::new();
     match nodes {
-        8 => arch.dispatch(Run::<8> { input, force, stiffness, state }),
-        10 => arch.dispatch(Run::<10> { input, force, stiffness, state }),
-        20 => arch.dispatch(Run::<20> { input, force, stiffness, state }),
-        27 => arch.dispatch(Run::<27> { input, force, stiffness, state }),
+        8 => arch.dispatch(Run::<8> { input, force, stiffness, state, lanes }),
+        10 => arch.dispatch(Run::<10> { input, force, stiffness, state, lanes }),
+        20 => arch.dispatch(Run::<20> { input, force, stiffness, state, lanes }),
+        27 => arch.dispatch(Run::<27> { input, force, stiffness, state, lanes }),
         _ => Err(ElementError::NotAnElement { shape: "a solid of this node count" }),
     }
 }
@@ -248,9 +288,10 @@ pub(crate) fn solid_integrate_scalar(
     force: &mut [f64],
     stiffness: Option<&mut [f64]>,
     state: Option<&mut MixedState>,
+    lanes: &mut TangentLanes,
 ) -> Result<f64, ElementError> {
     let input = Input { grads, dv, kin, responses, volumetric };
-    run::<8>(&input, force, stiffness, state)
+    run::<8>(&input, force, stiffness, state, lanes)
 }
 
 #[derive(Clone, Copy)]
@@ -267,6 +308,7 @@ struct Run<'a, 'o, const N: usize> {
     force: &'o mut [f64],
     stiffness: Option<&'o mut [f64]>,
     state: Option<&'o mut MixedState>,
+    lanes: &'o mut TangentLanes,
 }
 
 impl<const N: usize> pulp::WithSimd for Run<'_, '_, N> {
@@ -274,26 +316,53 @@ impl<const N: usize> pulp::WithSimd for Run<'_, '_, N> {
 
     #[inline(always)]
     fn with_simd<S: pulp::Simd>(self, _simd: S) -> Self::Output {
-        run::<N>(&self.input, self.force, self.stiffness, self.state)
+        run::<N>(&self.input, self.force, self.stiffness, self.state, self.lanes)
     }
 }
 
 /// The element tangent in lanes: `k[a][3i + k][b]` is `K[(a, i), (b, k)]`.
 type Lanes<const N: usize> = [[[f64; N]; 9]; N];
 
-/// [`integrate`] with the tangent's lanes on the stack only when a tangent
-/// is wanted.
+/// The tangent lanes of a spatial-form element of up to
+/// [`MAX_SOLID_NODES`] nodes, kept by the caller from element to element:
+/// the element's first point writes every lane and the others add to
+/// them, so no element zeroes its lanes (52 kB for hex27) before use.
+#[derive(Debug, Clone)]
+pub struct TangentLanes(Vec<f64>);
+
+impl Default for TangentLanes {
+    fn default() -> Self {
+        TangentLanes(vec![0.0; MAX_SOLID_NODES * 9 * MAX_SOLID_NODES])
+    }
+}
+
+impl TangentLanes {
+    /// The lanes of an `N`-node element (`None` past [`MAX_SOLID_NODES`]).
+    fn of<const N: usize>(&mut self) -> Option<&mut Lanes<N>> {
+        let (rows, _) = self.0.as_chunks_mut::<N>();
+        let (blocks, _) = rows.as_chunks_mut::<9>();
+        blocks.first_chunk_mut::<N>()
+    }
+}
+
+/// [`integrate`] with the tangent's lanes from `lanes` when a tangent is
+/// wanted.
 #[inline(always)]
 fn run<const N: usize>(
     input: &Input,
     force: &mut [f64],
     stiffness: Option<&mut [f64]>,
     state: Option<&mut MixedState>,
+    lanes: &mut TangentLanes,
 ) -> Result<f64, ElementError> {
     match stiffness {
         Some(k) => {
-            let mut kl: Lanes<N> = [[[0.0; N]; 9]; N];
-            integrate::<N>(input, force, Some((k, &mut kl)), state)
+            let kl = lanes.of::<N>().ok_or(ElementError::NotAnElement { shape: "a solid of this node count" })?;
+            if input.dv.is_empty() {
+                // No point writes them.
+                *kl = [[[0.0; N]; 9]; N];
+            }
+            integrate::<N>(input, force, Some((k, kl)), state)
         }
         None => integrate::<N>(input, force, None, state),
     }
@@ -361,19 +430,22 @@ fn integrate<const N: usize>(
                 gs[i][b] = w * g[i][b];
             }
         }
-        // f_a,i += τ_ij w ∇N_a,j.
+        // h_b = τ w ∇N_b: f_a,i += h_a,i, and the geometric term of the
+        // tangent, K_ab += (∇N_a · h_b) I.
         let tm = [[tau[0], tau[3], tau[5]], [tau[3], tau[1], tau[4]], [tau[5], tau[4], tau[2]]];
+        let mut h = [[0.0; N]; 3];
         for i in 0..3 {
             for jj in 0..3 {
-                axpy(&mut fl[i], tm[i][jj], &gs[jj]);
+                axpy(&mut h[i], tm[i][jj], &gs[jj]);
             }
+            // fma(1, h, f) = f + h, rounded once.
+            axpy(&mut fl[i], 1.0, &h[i]);
         }
         let Some((_, kl)) = stiffness.as_mut() else {
             continue;
         };
         // cb[r][k][b] = (c B_b)[r][k] w: column k of B_b holds ∇N_b,k in the
         // normal row k and the other two components in its shear rows.
-        const SHEAR: [[usize; 3]; 3] = [[0, 3, 5], [3, 1, 4], [5, 4, 2]];
         let mut cb = [[[0.0; N]; 3]; 6];
         for r in 0..6 {
             for k in 0..3 {
@@ -385,36 +457,10 @@ fn integrate<const N: usize>(
                 }
             }
         }
-        // Geometric term: h_b = τ w ∇N_b; K_ab += (∇N_a · h_b) I.
-        let mut h = [[0.0; N]; 3];
-        for i in 0..3 {
-            for jj in 0..3 {
-                axpy(&mut h[i], tm[i][jj], &gs[jj]);
-            }
-        }
-        for (a, ka) in kl.iter_mut().enumerate() {
-            let ga = [g[0][a], g[1][a], g[2][a]];
-            // Row i of B_aᵀ: ∇N_a,j in the rows SHEAR[i][j].
-            for i in 0..3 {
-                let rows = SHEAR[i];
-                for k in 0..3 {
-                    let out = &mut ka[3 * i + k];
-                    let (c0, c1, c2) = (&cb[rows[0]][k], &cb[rows[1]][k], &cb[rows[2]][k]);
-                    for b in 0..N {
-                        out[b] = ga[2].mul_add(c2[b], ga[1].mul_add(c1[b], ga[0].mul_add(c0[b], out[b])));
-                    }
-                }
-            }
-            let mut s = [0.0; N];
-            for b in 0..N {
-                s[b] = ga[2].mul_add(h[2][b], ga[1].mul_add(h[1][b], ga[0] * h[0][b]));
-            }
-            for i in 0..3 {
-                let out = &mut ka[4 * i];
-                for b in 0..N {
-                    out[b] += s[b];
-                }
-            }
+        if q == 0 {
+            add_point_tangent::<N, true>(kl, &g, &cb, &h);
+        } else {
+            add_point_tangent::<N, false>(kl, &g, &cb, &h);
         }
     }
     let nd = 3 * N;

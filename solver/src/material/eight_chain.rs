@@ -104,6 +104,7 @@ impl IsochoricEnergy for EightChain {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::material::langevin::{langevin, langevin_derivative};
 
     // The energy must be the integral of ∂W/∂Ī1 from the reference state
     // (fundamental theorem of calculus): composite Simpson's rule on W1 with
@@ -134,6 +135,82 @@ mod tests {
                 / 3.0;
             let w = m.derivatives(i1_end, 3.0).unwrap().w;
             assert!(((w - simpson) / w).abs() < 1e-10, "μ={mu} λL={lock}: W = {w}, ∫W1 = {simpson}");
+        }
+    }
+
+    /// The root of `L(x) = y` by bisection to the last bit: on
+    /// `1 − L(x) = 1/x − 2e^(−2x)/(1 − e^(−2x))` for `y > 0.5`, free of
+    /// cancellation (near locking the root is conditioned by `1 − y`, exact
+    /// there), and on [`langevin`] below. Slow, and independent of the
+    /// seed and the Halley step under test.
+    fn tight_inverse(y: f64) -> f64 {
+        let below = |x: f64| {
+            if y > 0.5 {
+                let e = (-2.0 * x).exp();
+                1.0 / x - 2.0 * e / (1.0 - e) > 1.0 - y
+            } else {
+                langevin(x) < y
+            }
+        };
+        let (mut lo, mut hi) = (0.0, 2.0 / (1.0 - y) + 1.0);
+        loop {
+            let mid = 0.5 * (lo + hi);
+            if mid <= lo || mid >= hi {
+                return mid;
+            }
+            if below(mid) {
+                lo = mid;
+            } else {
+                hi = mid;
+            }
+        }
+    }
+
+    // Stress and tangent coefficients against the same formulas (Arruda &
+    // Boyce 1993, see the module notes) with β from the tight bisection:
+    // ∂W/∂Ī1 to 1e-12 relative, ∂²W/∂Ī1² to 1e-12 of its larger term
+    // (its two terms cancel at small stretch), W to 1e-12 of its terms'
+    // size, from the reference state (Ī1 = 3) to within 1e-9 of the
+    // locking stretch, for locking stretches whose chain stretches meet
+    // every branch of the inverse: the series (λ_L = 1e4: y ≤ 1e-4 up to
+    // y ≈ 0.3), each piece of the seed, and the closed form past y = 0.96.
+    #[test]
+    fn stress_matches_a_tightly_converged_inverse_langevin() {
+        for lock in [1.05, 1.3, 2.2, 5.0, 40.0, 1e4] {
+            let m = EightChain::new(0.8, lock).unwrap();
+            let (mu_r, n) = (m.network_modulus(), lock * lock);
+            let gap0 = 1.0 - 1.0 / lock;
+            let count = 3000;
+            for k in 0..=count {
+                // 1 − y from 1 − 1/λ_L down to 1e-9, geometrically.
+                let gap = gap0 * (1e-9 / gap0).powf(k as f64 / count as f64);
+                let i1 = 3.0 * ((1.0 - gap) * lock).powi(2);
+                let d = m.derivatives(i1, 3.0).unwrap();
+                let lam = (i1.max(3.0) / 3.0).sqrt();
+                let y = lam / lock;
+                let beta = tight_inverse(y);
+                let w1 = mu_r * lock * beta / (6.0 * lam);
+                assert!(((d.w1 - w1) / w1).abs() <= 1e-12, "λL = {lock}, y = {y}: W1 {} vs {w1}", d.w1);
+                let dbeta = 1.0 / (lock * langevin_derivative(beta));
+                let (t1, t2) = (mu_r * lock / (36.0 * lam) * dbeta / lam, mu_r * lock / (36.0 * lam) * beta / (lam * lam));
+                assert!((d.w11 - (t1 - t2)).abs() <= 1e-12 * t1, "λL = {lock}, y = {y}: W11 {} vs {}", d.w11, t1 - t2);
+                let log = if beta < 0.5 {
+                    // −ln(sinh β / β) from the Taylor series of sinh, term by term.
+                    let (mut term, mut sum) = (1.0, 0.0);
+                    for k in 1..30 {
+                        term *= beta * beta / ((2 * k) as f64 * (2 * k + 1) as f64);
+                        sum += term;
+                    }
+                    -f64::ln_1p(sum)
+                } else if beta < 20.0 {
+                    (beta / beta.sinh()).ln()
+                } else {
+                    beta.ln() + std::f64::consts::LN_2 - beta
+                };
+                let w = mu_r * n * (y * beta + log) - m.offset;
+                let size = mu_r * n * (y * beta + log.abs()) + m.offset.abs();
+                assert!((d.w - w).abs() <= 1e-12 * size, "λL = {lock}, y = {y}: W {} vs {w}", d.w);
+            }
         }
     }
 
