@@ -12,7 +12,12 @@ use olli_verification::jobs::*;
 
 /// Recorded in examples/piston-seal.md (regression values).
 const BORE_FORCE_SQUEEZED: f64 = 184.86;
-const STOP_PRESSURE: f64 = 3.2;
+/// The stop: 3.2031 MPa before first contacts were anchored where they close
+/// and sliding nodes kept μ p (the depth crossed 0.15 mm at 3.162 MPa by
+/// linear interpolation between the last two increments, 3.195 with the
+/// pressure steps quartered); since, 3.2336 (crossing at 3.195, 3.195 with
+/// the steps halved).
+const STOP_PRESSURE: f64 = 3.2336;
 const GLAND_FILL_SQUEEZED: f64 = 67.652;
 
 #[test]
@@ -24,7 +29,7 @@ fn piston_seal_example_extrudes_and_stops_where_recorded() {
     assert_eq!((stop.stage.as_str(), stop.gap.as_str(), stop.limit), ("pressurise", "gap", 0.15));
     assert!(stop.depth > 0.15, "{}", stop.depth);
     let reason = summary.reason.as_deref().unwrap_or_default();
-    for want in ["extrusion gap `gap`", "fluid `system` at 3.20", "back-up ring"] {
+    for want in ["extrusion gap `gap`", "fluid `system` at 3.23", "back-up ring"] {
         assert!(reason.contains(want), "expected `{want}` in: {reason}");
     }
     // The node that went furthest lies in the gap, between land (r = 27.1) and bore (r = 27.4).

@@ -15,7 +15,11 @@ use olli_verification::jobs::*;
 const BORE_FORCE: f64 = 350.97;
 const BORE_PEAK_PRESSURE: f64 = 1.8567;
 /// At 10 MPa through `[[fluid]]` (regression values).
-const BORE_FORCE_10_MPA: f64 = 3970.9;
+/// The bore force at 10 MPa was 3970.9 N while friction depended on the step
+/// size: the old law gave 4000.2 N with the steps quartered. With first
+/// contacts anchored where they close and sliding nodes kept at μ p,
+/// 3996.2 N at the example's steps (regression values).
+const BORE_FORCE_10_MPA: f64 = 3996.2;
 const BORE_PEAK_PRESSURE_10_MPA: f64 = 11.865;
 
 #[test]

@@ -308,6 +308,16 @@ impl ActiveContacts {
         }
     }
 
+    /// Starts an increment whose displacement predictor moves the nodes by
+    /// `ratio` times their last increment's motion (0: none): nodes that
+    /// come into contact are anchored where that motion takes them to the
+    /// surface (see [`ContactPair::anchor_approaches`]).
+    pub fn anchor_approaches(&mut self, ratio: f64) {
+        for b in &mut self.bodies {
+            b.pair.anchor_approaches(&b.surface, ratio);
+        }
+    }
+
     /// Keeps the converged state (multipliers and stick anchors).
     pub fn commit(&mut self) {
         for b in &mut self.bodies {

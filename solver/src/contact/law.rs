@@ -116,6 +116,35 @@ pub struct NodeState {
     /// Stick anchor in the surface's own frame at the last converged state
     /// (None: no tangential history, e.g. the node was open).
     pub anchor: Option<Vector3<f64>>,
+    /// Where an open node was at the last converged state, for the anchor
+    /// of its first contact (None: touching, or out of the surface's reach).
+    pub approach: Option<Approach>,
+}
+
+/// An open node at the last converged state, in the surface's own frame:
+/// its position, its gap there and its motion over that increment.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Approach {
+    /// Position.
+    pub from: Vector3<f64>,
+    /// Gap at that position (≥ 0).
+    pub gap: f64,
+    /// Motion over the last converged increment (zero when the node was
+    /// not open at its start).
+    pub moved: Vector3<f64>,
+}
+
+impl Approach {
+    /// Where the node reaches the surface (outward normal `normal` at
+    /// `from`) if it goes on by `drift`: from + θ drift with θ the fraction
+    /// of the drift that closes the gap, θ = g₀ / (−n·drift), at most 1
+    /// (a drift that does not close the gap: where it ends; no drift: where
+    /// the node is, as if it approached along the normal).
+    pub fn entry(&self, drift: &Vector3<f64>, normal: &Vector3<f64>) -> Vector3<f64> {
+        let closing = -normal.dot(drift);
+        let theta = if closing > self.gap { self.gap.max(0.0) / closing } else { 1.0 };
+        self.from + drift * theta
+    }
 }
 
 /// What the law gives at the current iterate.
@@ -172,11 +201,10 @@ pub fn evaluate(
     let mut shear = Vector3::zeros();
     let mut slip = Vector3::zeros();
     let mut status = Status::Stick;
-    // A node that was not touching at the last converged state has no stick
-    // point yet: it slides freely for this increment and sticks where it
-    // landed from the next one (its anchor is set when the increment
-    // converges). Friction acts from the start of contact to within one
-    // increment, and each Newton iterate sees a smooth law.
+    // A node that was not touching at the last converged state sticks where
+    // it is expected to reach the surface (`Approach::entry`); one out of
+    // the surface's reach then has no stick point and slides freely for the
+    // increment (its anchor is set when the increment converges).
     if let (true, Some(anchor)) = (params.friction > 0.0, anchor_global) {
         let proj_t = Matrix3::identity() - nn;
         let d = x - anchor;
@@ -222,7 +250,7 @@ mod tests {
 
     /// Central differences of the force with the projection recomputed.
     fn fd_check(surface: &RigidSurface, x: Vector3<f64>, params: ContactParameters, anchor: Option<Vector3<f64>>) {
-        let state = NodeState { multiplier: 0.05, anchor };
+        let state = NodeState { multiplier: 0.05, anchor, approach: None };
         let eval = |y: Vector3<f64>| {
             let proj = surface.project(&y).unwrap();
             evaluate(&proj, &y, 1.3, &params, &state, anchor)
@@ -308,6 +336,20 @@ mod tests {
         assert!((r.pressure - 2.0).abs() < 1e-12);
         assert!((r.shear.norm() - 0.4 * 2.0).abs() < 1e-12);
         assert!(r.shear.x < 0.0, "friction opposes the slip");
+    }
+
+    // From 0.02 above a plane, drifting (0.003, 0, −0.03) over the
+    // increment, a node reaches the plane two thirds of the way, at
+    // x = 0.002; a drift that does not close the gap ends where it goes
+    // (geometry, no published value).
+    #[test]
+    fn approach_enters_where_its_drift_closes_the_gap() {
+        let a = Approach { from: Vector3::new(0.0, 0.0, 0.02), gap: 0.02, moved: Vector3::zeros() };
+        let n = Vector3::new(0.0, 0.0, 1.0);
+        let c = a.entry(&Vector3::new(0.003, 0.0, -0.03), &n);
+        assert!((c - Vector3::new(0.002, 0.0, 0.0)).norm() < 1e-15, "{c}");
+        assert_eq!(a.entry(&Vector3::new(0.003, 0.0, -0.01), &n), Vector3::new(0.003, 0.0, 0.01));
+        assert_eq!(a.entry(&Vector3::zeros(), &n), a.from);
     }
 
     #[test]

@@ -10,7 +10,7 @@ use crate::element::side::{self, for_each_point, SideRule};
 use crate::element::Analysis;
 use crate::shape::ShapeKind;
 
-use super::law::{evaluate, smoothed_pressure, ContactParameters, NodeResponse, NodeState, Status};
+use super::law::{evaluate, smoothed_pressure, Approach, ContactParameters, NodeResponse, NodeState, Status};
 use super::surface::RigidSurface;
 
 /// Tangential (stick) penalty as a fraction of the normal one. A softer
@@ -73,6 +73,9 @@ pub struct ContactPair {
     /// Each node's multiplier and the pressure it gave at the last
     /// augmentation of the current increment (none before the first).
     updates: Vec<Option<(f64, f64)>>,
+    /// Stick anchors (surface frame) of the current increment for nodes
+    /// open at the last converged state (see [`ContactPair::anchor_approaches`]).
+    entries: Vec<Option<Vector3<f64>>>,
     measure: AreaMeasure,
     /// Sides around each node (indices into `sides`).
     neighbours: Vec<Vec<usize>>,
@@ -167,7 +170,22 @@ impl ContactPair {
             }
         }
         let updates = vec![None; nodes.len()];
-        ContactPair { nodes, sides: polys, areas, sizes, penalties, params, states, updates, measure, neighbours, recovered, whole_sides }
+        let n_nodes = nodes.len();
+        ContactPair {
+            nodes,
+            sides: polys,
+            areas,
+            sizes,
+            penalties,
+            params,
+            states,
+            updates,
+            entries: vec![None; n_nodes],
+            measure,
+            neighbours,
+            recovered,
+            whole_sides,
+        }
     }
 
     /// Tributary area of each node at the positions of evaluation `r` (the
@@ -223,13 +241,13 @@ impl ContactPair {
         out.surface_force = Vector3::zeros();
         out.peak_pressure = 0.0;
         out.max_penetration = 0.0;
-        for (k, &node) in self.nodes.iter().enumerate() {
-            let xi = position(node);
+        for k in 0..self.nodes.len() {
+            let xi = position(self.nodes[k]);
             out.positions.push(xi);
             let r = match surface.project(&xi) {
                 Some(proj) => {
                     out.gaps.push(proj.gap);
-                    let anchor = self.states[k].anchor.map(|a| surface.placement.apply(&a));
+                    let anchor = self.states[k].anchor.or(self.entries[k]).map(|a| surface.placement.apply(&a));
                     evaluate(&proj, &xi, self.areas[k], &self.node_params(k), &self.states[k], anchor)
                 }
                 None => {
@@ -246,6 +264,23 @@ impl ContactPair {
         }
         self.recover_pressures(out);
         self.follow_on_the_axis(out);
+    }
+
+    /// Anchors, for the coming increment, each node open at the last
+    /// converged state where it is expected to reach `surface`
+    /// ([`Approach::entry`]) when the displacement predictor moves it by
+    /// `ratio` times its motion over the last converged increment (0: no
+    /// predictor, as in the first increment of a stage: the node is
+    /// anchored where it was, as if it approached along the normal). Friction
+    /// then acts from where the node touches instead of only from the next
+    /// increment, so it does not depend on the step size to first order.
+    pub fn anchor_approaches(&mut self, surface: &RigidSurface, ratio: f64) {
+        for (entry, s) in self.entries.iter_mut().zip(&self.states) {
+            *entry = s.approach.and_then(|a| {
+                let normal = surface.shape.project_local(&a.from)?.normal;
+                Some(a.entry(&(a.moved * ratio), &normal))
+            });
+        }
     }
 
     /// Nodes without area (a line3 corner on the axis in axisymmetry: the
@@ -386,33 +421,64 @@ impl ContactPair {
     }
 
     /// Stores the converged state: stick anchors in the surface frame (the
-    /// elastic-slip origin of touching nodes; none for open ones).
+    /// elastic-slip origin of touching nodes); for open ones, where they are,
+    /// their gap and their motion over the increment, from which their
+    /// first contact is anchored (see [`ContactPair::anchor_approaches`]).
+    ///
+    /// The anchor keeps the elastic trial traction t_trial of the law where
+    /// it lies within the rounded stick–slip transition, and shortens it to
+    /// the end of that transition, (1 + δ_f) μ p, beyond: evaluated again at
+    /// the same position the law gives the same shear, and a node that keeps
+    /// sliding stays at μ p. (Placing it at the returned shear, below the
+    /// trial value inside the rounding, would start every increment of a
+    /// sliding node below μ p: with small steps its shear would settle at
+    /// (1 − δ_f) μ p, a friction force depending on the step size.)
     pub fn commit(&mut self, surface: &RigidSurface, response: &PairResponse) {
         self.reset_updates();
         for k in 0..self.nodes.len() {
             let r = &response.nodes[k];
-            let tangential = self.node_params(k).tangential_penalty;
+            let params = self.node_params(k);
+            let tangential = params.tangential_penalty;
+            let gap = response.gaps[k];
+            let x = response.positions[k];
             let s = &mut self.states[k];
             s.anchor = match r.status {
-                // An open node has no stick point (see `law::evaluate`).
                 Status::Open => None,
-                // The anchor sits so that the elastic slip reproduces the current shear.
-                _ if tangential > 0.0 => Some(surface.placement.to_local(&(response.positions[k] + r.shear / tangential))),
+                _ if tangential > 0.0 => {
+                    let trial = -r.slip * tangential;
+                    let limit = (1.0 + params.slip_rounding) * params.friction * r.pressure;
+                    let kept = if trial.norm() > limit { trial * (limit / trial.norm()) } else { trial };
+                    Some(surface.placement.to_local(&(x + kept / tangential)))
+                }
+                _ => None,
+            };
+            s.approach = match (r.status, s.approach) {
+                (Status::Open, _) if !gap.is_finite() => None,
+                (Status::Open, before) => {
+                    let from = surface.placement.to_local(&x);
+                    Some(Approach { from, gap: gap.max(0.0), moved: before.map_or(Vector3::zeros(), |b| from - b.from) })
+                }
                 _ => None,
             };
             if r.status == Status::Open {
                 s.multiplier = 0.0;
             }
         }
+        self.entries.fill(None);
     }
 
     /// Anchors the nodes that touch `surface` (gap ≤ 0) in the reference
-    /// configuration where they are, so friction holds them from the start.
+    /// configuration where they are, so friction holds them from the start;
+    /// the others approach from there.
     pub fn anchor_initial_contacts(&mut self, mesh: &Mesh, surface: &RigidSurface) {
         for (k, &n) in self.nodes.iter().enumerate() {
             let x = Vector3::from(mesh.nodes[n]);
-            if surface.project(&x).is_some_and(|p| p.gap <= 0.0) {
-                self.states[k].anchor = Some(surface.placement.to_local(&x));
+            match surface.project(&x) {
+                Some(p) if p.gap <= 0.0 => self.states[k].anchor = Some(surface.placement.to_local(&x)),
+                Some(p) => {
+                    self.states[k].approach = Some(Approach { from: surface.placement.to_local(&x), gap: p.gap, moved: Vector3::zeros() })
+                }
+                None => {}
             }
         }
     }

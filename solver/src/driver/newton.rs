@@ -672,10 +672,12 @@ impl<'a> NewtonContext<'a> {
         }
         self.inserts.restore();
         let mut extrapolated = false;
+        self.contacts.anchor_approaches(0.0);
         if let Some((prev, ratio)) = extrapolation {
             for (d, ud) in u.iter_mut().enumerate() {
                 *ud += ratio * (self.last_converged[d] - prev[d]);
             }
+            self.contacts.anchor_approaches(ratio);
             extrapolated = true;
         }
         loop {
@@ -684,6 +686,7 @@ impl<'a> NewtonContext<'a> {
                 Ok(_) => break,
                 Err(_) if extrapolated => {
                     u.copy_from_slice(&self.last_converged);
+                    self.contacts.anchor_approaches(0.0);
                     extrapolated = false;
                 }
                 Err(e) => return Err(e),

@@ -10,7 +10,7 @@ use std::fs::File;
 use std::io::{self, BufWriter, Write};
 use std::path::{Path, PathBuf};
 
-use super::atomic::write_atomic;
+use super::atomic::{write_atomic, write_durable};
 use super::dynamic::{dynamic_csv, DYNAMIC_FILE};
 use super::event_text::EventText;
 use super::fields::{frame, Peaks};
@@ -392,7 +392,8 @@ impl<'m> ResultWriter<'m> {
         self.log_line(&line);
         self.log_line(&summary.performance.line());
         self.flush(|w| {
-            w.write(SUMMARY_FILE, summary.to_json().as_bytes())?;
+            record(&w.folder, SUMMARY_FILE)?;
+            write_durable(&w.folder.join(SUMMARY_FILE), summary.to_json().as_bytes())?;
             w.log.flush()
         });
         match self.error {
