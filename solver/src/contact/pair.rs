@@ -169,7 +169,6 @@ impl ContactPair {
                 neighbours[k].push(e);
             }
         }
-        let updates = vec![None; nodes.len()];
         let n_nodes = nodes.len();
         ContactPair {
             nodes,
@@ -179,7 +178,7 @@ impl ContactPair {
             penalties,
             params,
             states,
-            updates,
+            updates: vec![None; n_nodes],
             entries: vec![None; n_nodes],
             measure,
             neighbours,

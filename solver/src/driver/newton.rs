@@ -672,14 +672,13 @@ impl<'a> NewtonContext<'a> {
         }
         self.inserts.restore();
         let mut extrapolated = false;
-        self.contacts.anchor_approaches(0.0);
         if let Some((prev, ratio)) = extrapolation {
             for (d, ud) in u.iter_mut().enumerate() {
                 *ud += ratio * (self.last_converged[d] - prev[d]);
             }
-            self.contacts.anchor_approaches(ratio);
             extrapolated = true;
         }
+        self.contacts.anchor_approaches(extrapolation.map_or(0.0, |(_, ratio)| ratio));
         loop {
             self.prescribed_change(u, t);
             match self.evaluate(u, t, true, true, stats) {
