@@ -509,7 +509,7 @@ pub struct Harmonic {
 pub enum Ordering {
     /// Approximate minimum degree (faer's built-in).
     Amd,
-    /// Nested dissection of the node graph (METIS bisections).
+    /// Nested dissection of the node graph (METIS node separators).
     NestedDissection,
     /// Both AMD and nested dissection; keeps whichever gives the factor with
     /// fewer entries (AMD if the nested dissection fails). Default.

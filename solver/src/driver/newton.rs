@@ -769,7 +769,9 @@ impl<'a> NewtonContext<'a> {
     /// converge). Never for the first system of an increment (its factor is
     /// the one the others reuse), with pressure unknowns (the inertia check
     /// needs a factor of this very tangent) or with insert unknowns (their
-    /// condensation solves with the factor, which must be this tangent's).
+    /// condensation solves with the factor, which must be this tangent's):
+    /// those are factorized, and their solve, where it is refined
+    /// iteratively, stops at the same accuracy.
     ///
     /// The accuracy is the forcing term of an inexact Newton method
     /// (Eisenstat & Walker 1996, "Choosing the forcing terms in an inexact
@@ -779,12 +781,13 @@ impl<'a> NewtonContext<'a> {
     /// Newton's own quadratic term and convergence stays quadratic; but no
     /// tighter than the oversolving guard of [`forcing`].
     fn reuse_for(&self, at: IterationAt) -> Reuse {
-        if at.iteration == 0 || self.pattern.negative > 0 || self.inserts.unknowns() > 0 {
-            return Reuse::Never;
-        }
         let rhs: f64 = self.rhs.iter().map(|v| v * v).sum::<f64>().sqrt();
         let relative = rhs / self.force_scale().max(f64::MIN_POSITIVE);
-        Reuse::Kept { tolerance: forcing(relative, self.controls.force_tolerance) }
+        let tolerance = forcing(relative, self.controls.force_tolerance);
+        if at.iteration == 0 || self.pattern.negative > 0 || self.inserts.unknowns() > 0 {
+            return Reuse::Fresh { tolerance };
+        }
+        Reuse::Kept { tolerance }
     }
 
     /// Steps from `u` along the direction and evaluates there: a full step,

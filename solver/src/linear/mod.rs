@@ -191,16 +191,24 @@ pub trait LinearSolver: std::fmt::Debug + Send {
         self.solve(v)
     }
 
+    /// Solves with the last factorization, in place, to at least the
+    /// relative residual `tolerance`: a solve refined iteratively (on a
+    /// single-precision factor) may stop there instead of at round-off; a
+    /// direct solve is exact to round-off anyway.
+    fn solve_to(&mut self, rhs: &mut [f64], tolerance: f64) -> Result<(), LinearError> {
+        let _ = tolerance;
+        self.solve(rhs)
+    }
+
     /// Solves `matrix x = rhs` in place and says which factorization the
     /// answer rests on. What `reuse` allows, the solver may do: keep its
     /// last factor and iterate on `matrix` instead of factorizing (see
-    /// [`Reusing`]); the plain backends always factorize. After a reused
-    /// solve, [`Self::solve`] still solves with the kept factor, not with
-    /// `matrix`.
+    /// [`Reusing`]), or stop a refined solve at the accuracy it names; the
+    /// plain backends always factorize. After a reused solve,
+    /// [`Self::solve`] still solves with the kept factor, not with `matrix`.
     fn solve_system(&mut self, matrix: SystemMatrix, rhs: &mut [f64], reuse: Reuse) -> Result<Factorization, LinearError> {
-        let _ = reuse;
         let factorization = self.factorize(matrix)?;
-        self.solve(rhs)?;
+        self.solve_to(rhs, reuse.tolerance())?;
         Ok(factorization)
     }
 
@@ -211,8 +219,15 @@ pub trait LinearSolver: std::fmt::Debug + Send {
 /// What the caller of [`LinearSolver::solve_system`] allows for one system.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum Reuse {
-    /// Factorize this very matrix.
+    /// Factorize this very matrix and solve to round-off.
     Never,
+    /// Factorize this very matrix; the solve need only reach the relative
+    /// residual `tolerance` (an inexact Newton step: a refined solve on a
+    /// single-precision factor stops there).
+    Fresh {
+        /// Relative residual `|b − A x| / |b|` the caller needs.
+        tolerance: f64,
+    },
     /// The matrix is near the factorized one (a later Newton iteration of
     /// the same increment): the kept factor may precondition a Krylov solve
     /// to the relative residual `tolerance`, or to
@@ -221,6 +236,16 @@ pub enum Reuse {
         /// Relative residual `|b − A x| / |b|` the caller needs.
         tolerance: f64,
     },
+}
+
+impl Reuse {
+    /// The relative residual the caller needs (0 for [`Reuse::Never`]: round-off).
+    pub fn tolerance(self) -> f64 {
+        match self {
+            Reuse::Never => 0.0,
+            Reuse::Fresh { tolerance } | Reuse::Kept { tolerance } => tolerance,
+        }
+    }
 }
 
 /// The solver `settings` choose, analysed for `pattern`.

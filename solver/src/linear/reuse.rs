@@ -181,6 +181,12 @@ impl<S: LinearSolver> LinearSolver for Reusing<S> {
         solved
     }
 
+    fn solve_to(&mut self, rhs: &mut [f64], tolerance: f64) -> Result<(), LinearError> {
+        let solved = self.inner.solve_to(rhs, tolerance);
+        self.sync();
+        solved
+    }
+
     fn solve_system(&mut self, matrix: SystemMatrix, rhs: &mut [f64], reuse: Reuse) -> Result<Factorization, LinearError> {
         if matches!(reuse, Reuse::Kept { .. }) && self.skip > 0 {
             self.skip -= 1;
@@ -200,7 +206,7 @@ impl<S: LinearSolver> LinearSolver for Reusing<S> {
             rhs.copy_from_slice(&b);
         }
         let factorization = self.factorize(matrix)?;
-        self.solve(rhs)?;
+        self.solve_to(rhs, reuse.tolerance())?;
         Ok(factorization)
     }
 
