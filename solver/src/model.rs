@@ -255,7 +255,9 @@ pub struct IncrementControls {
     /// Growth factor of the increment after a fast convergence. Default 1.5.
     pub growth: f64,
     /// An increment that converged in at most this many iterations lets the
-    /// next one grow. Default 4.
+    /// next one grow; one re-balance after a contact multiplier update or a
+    /// fluid-front move may add [`crate::driver::REBALANCE_ALLOWANCE`] (2)
+    /// more, a second one stops growth. Default 4.
     pub fast_iterations: usize,
     /// Increment multiplier after a failed increment (divergence, NaN,
     /// inverted element, too many iterations). Default 0.25.

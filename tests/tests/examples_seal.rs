@@ -11,8 +11,15 @@ use olli_verification::jobs::*;
 /// pressure became a true traction, force per deformed area; the peak at the
 /// end is the one at 10 MPa through `[[fluid]]` since the example is
 /// pressurised that way, 2.725 MPa under the old 1 MPa side pressure).
-const COVER_FORCE_SQUEEZED: f64 = 379.4;
-const PEAK_PRESSURE_PRESSURISED: f64 = 11.780;
+/// Both follow the friction path, so the increment sizes: 379.4 N and
+/// 11.780 MPa while every increment stayed at 0.05 (step growth counted the
+/// contact multiplier update's re-balance); the squeeze run at constant
+/// steps of 0.1, 0.05, 0.025 and 0.0125 gave 381.1, 379.5, 378.6 and
+/// 378.7 N, and 11.764, 11.769, 11.770 and 11.772 MPa. Since one update's
+/// re-balance no longer stops growth, the steps grow from 0.05 to 0.1:
+/// 378.3 N, 11.766 MPa.
+const COVER_FORCE_SQUEEZED: f64 = 378.3;
+const PEAK_PRESSURE_PRESSURISED: f64 = 11.766;
 
 #[test]
 fn seal_example_results_match_its_note() {
@@ -24,9 +31,10 @@ fn seal_example_results_match_its_note() {
     // 407 iterations while a damped retry left damping switched on in later
     // plain increments and the equilibrium was confirmed by one more
     // correction; 313 since; 328–331 with inexact Newton systems on a kept
-    // factor (the count moves with the Krylov solves' stopping points). A
-    // bound, not a timing.
-    assert!(solution.stats.newton_iterations <= 335, "{} Newton iterations", solution.stats.newton_iterations);
+    // factor (the count moves with the Krylov solves' stopping points);
+    // 245 in 25 increments once one contact re-balance no longer stopped
+    // step growth. A bound, not a timing.
+    assert!(solution.stats.newton_iterations <= 260, "{} Newton iterations", solution.stats.newton_iterations);
     let squeezed = solution.increments.iter().rfind(|i| i.stage == 0).unwrap();
     let cover = squeezed.contact.iter().find(|c| c.name == "cover").unwrap();
     // The note gives 4 significant figures: 0.1 % allowed.

@@ -167,7 +167,7 @@ fn attempt(
     u.copy_from_slice(&ctx.last_converged);
     ctx.contacts.restore();
     match ctx.increment(u, 1.0, None, si, increment, observer, stats) {
-        IncrementOutcome::Converged { iterations, residuals, energy } => Ok(ArcStep { t: 1.0, iterations, residuals, energy }),
+        IncrementOutcome::Converged { iterations, residuals, energy, .. } => Ok(ArcStep { t: 1.0, iterations, residuals, energy }),
         IncrementOutcome::Failed(e) => Err(e),
     }
 }

@@ -7,7 +7,9 @@
 //! a failed increment (divergence, NaN, an inverted integration point, too
 //! many iterations) is tried again with damped Newton steps, then retried
 //! with `cutback` times the size; after a fast
-//! convergence the next one grows by `growth`; below `min` the run stops
+//! convergence (within `fast_iterations`, not counting the first
+//! [`REBALANCE_ALLOWANCE`] iterations of one re-balance after a contact
+//! multiplier update or a fluid-front move) the next one grows by `growth`; below `min` the run stops
 //! cleanly, keeping every converged increment.
 
 pub mod arc_length;
@@ -33,7 +35,7 @@ use crate::error::SolveError;
 use crate::insert::Inserts;
 use crate::linear::{self, LinearSolver, LinearStats, SymmetricPattern};
 use crate::load::fluid::Fluids;
-use crate::model::{Control, Model, SettingsError, Stage};
+use crate::model::{Control, IncrementControls, Model, SettingsError, Stage};
 use crate::results::{DynamicResult, HistoryValues, IncrementResult, Solution, SolveStats, Termination};
 use newton::{IncrementOutcome, NewtonContext};
 use stages::{ReportSets, StageProgram};
@@ -208,7 +210,7 @@ fn load_steps(
         ctx.history.time_step = step * recorder.duration;
         let extrapolation = if c.extrapolate { history.as_ref().map(|(prev, h)| (prev.as_slice(), step / h)) } else { None };
         match ctx.increment(u, t + step, extrapolation, si, count + 1, observer, stats) {
-            IncrementOutcome::Converged { iterations, residuals, energy } => {
+            IncrementOutcome::Converged { iterations, rebalances, residuals, energy } => {
                 count += 1;
                 t += step;
                 history = Some((ctx.last_converged.clone(), step));
@@ -217,7 +219,7 @@ fn load_steps(
                 if let Err(e) = recorder.record(ctx, u, done, stats, observer) {
                     return Ok(Err(e));
                 }
-                dt = if iterations <= c.fast_iterations { (step * c.growth).min(c.max) } else { step.min(c.max) };
+                dt = if is_fast(c, iterations, rebalances) { (step * c.growth).min(c.max) } else { step.min(c.max) };
             }
             IncrementOutcome::Failed(err) => {
                 stats.cutbacks += 1;
@@ -237,6 +239,21 @@ fn load_steps(
         }
     }
     Ok(Ok(()))
+}
+
+/// Iterations one re-balance may take without counting against growth: one
+/// correction takes up the contact multipliers' (or the front's) change, one
+/// confirms the equilibrium.
+pub const REBALANCE_ALLOWANCE: usize = 2;
+
+/// Whether an increment that took `iterations` Newton iterations with
+/// `rebalances` re-balances lets the next one grow. One re-balance (the
+/// usual single augmented-Lagrangian multiplier update) starts at an
+/// equilibrium and costs about [`REBALANCE_ALLOWANCE`] iterations at any step
+/// size: counted, it kept every contact increment from growing. More than
+/// one means the step moved the contact or the fluid front too far to grow.
+fn is_fast(c: &IncrementControls, iterations: usize, rebalances: usize) -> bool {
+    rebalances <= 1 && iterations <= c.fast_iterations + REBALANCE_ALLOWANCE * rebalances
 }
 
 /// Runs harmonic stage `si` about the converged state ([`harmonic`]),
@@ -476,4 +493,23 @@ fn add_linear_stats(total: &mut LinearStats, s: &LinearStats) {
     total.krylov_iterations += s.krylov_iterations;
     total.krylov_refactorizations += s.krylov_refactorizations;
     total.krylov_time += s.krylov_time;
+}
+
+#[cfg(test)]
+mod tests {
+    use super::is_fast;
+    use crate::model::IncrementControls;
+
+    // The face seal's increments all converged in 3 iterations, then took
+    // 2 more after the one contact multiplier update: 5 > 4, so no step
+    // ever grew (40 increments of 0.05 where 25 growing ones do).
+    #[test]
+    fn one_contact_rebalance_does_not_stop_step_growth() {
+        let c = IncrementControls::default();
+        assert!(is_fast(&c, 4, 0));
+        assert!(!is_fast(&c, 5, 0));
+        assert!(is_fast(&c, 5, 1) && is_fast(&c, 6, 1));
+        assert!(!is_fast(&c, 7, 1));
+        assert!(!is_fast(&c, 6, 2), "a second re-balance: the step moved the contact too far");
+    }
 }

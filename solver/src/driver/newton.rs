@@ -102,6 +102,9 @@ pub enum IncrementOutcome {
     Converged {
         /// Newton iterations it took.
         iterations: usize,
+        /// Equilibrium solves after the first: contact multiplier updates
+        /// and fluid-front moves.
+        rebalances: usize,
         /// Relative out-of-balance force after each correction.
         residuals: Vec<f64>,
         /// Total strain energy at the converged state.
@@ -163,6 +166,8 @@ struct IterationLog {
     augmentations: usize,
     /// Where the current equilibrium solve's residuals begin in `residuals`.
     solve_start: usize,
+    /// Re-balances so far (equilibrium solves after the first).
+    rebalances: usize,
 }
 
 impl IterationLog {
@@ -176,6 +181,7 @@ impl IterationLog {
             previous_residual: None,
             augmentations: 0,
             solve_start: 0,
+            rebalances: 0,
         }
     }
 
@@ -191,6 +197,7 @@ impl IterationLog {
     /// reference and residual history (the residual jumps because the
     /// problem changed, not because the iteration diverges).
     fn rebalance(&mut self) {
+        self.rebalances += 1;
         self.budget = self.iterations + self.per_solve;
         self.first_energy = None;
         self.previous_residual = None;
@@ -650,7 +657,12 @@ impl<'a> NewtonContext<'a> {
             {
                 self.mixed.commit();
                 self.history.commit();
-                return Ok(IncrementOutcome::Converged { iterations: log.iterations, residuals: log.residuals, energy });
+                return Ok(IncrementOutcome::Converged {
+                    iterations: log.iterations,
+                    rebalances: log.rebalances,
+                    residuals: log.residuals,
+                    energy,
+                });
             }
         }
     }
