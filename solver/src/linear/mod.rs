@@ -219,11 +219,9 @@ pub trait LinearSolver: std::fmt::Debug + Send {
 /// What the caller of [`LinearSolver::solve_system`] allows for one system.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum Reuse {
-    /// Factorize this very matrix and solve to round-off.
-    Never,
     /// Factorize this very matrix; the solve need only reach the relative
     /// residual `tolerance` (an inexact Newton step: a refined solve on a
-    /// single-precision factor stops there).
+    /// single-precision factor stops there; 0: to round-off).
     Fresh {
         /// Relative residual `|b − A x| / |b|` the caller needs.
         tolerance: f64,
@@ -239,10 +237,9 @@ pub enum Reuse {
 }
 
 impl Reuse {
-    /// The relative residual the caller needs (0 for [`Reuse::Never`]: round-off).
+    /// The relative residual the caller needs.
     pub fn tolerance(self) -> f64 {
         match self {
-            Reuse::Never => 0.0,
             Reuse::Fresh { tolerance } | Reuse::Kept { tolerance } => tolerance,
         }
     }

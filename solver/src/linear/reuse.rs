@@ -320,7 +320,7 @@ mod tests {
 
         // Not allowed: factorized.
         let mut x = b.clone();
-        s.solve_system(SystemMatrix { lower: &near, skew: &[] }, &mut x, Reuse::Never).unwrap();
+        s.solve_system(SystemMatrix { lower: &near, skew: &[] }, &mut x, Reuse::Fresh { tolerance: 0.0 }).unwrap();
         assert_eq!(s.stats().numeric_count, 2);
 
         // The factor of `near` against a matrix whose shift is 100× smaller:
@@ -349,10 +349,10 @@ mod tests {
         assert_eq!(s.plan(loose), None);
         let b: Vec<f64> = (0..n).map(|i| ((i * 7 % 5) as f64) - 1.5).collect();
         let mut x = b.clone();
-        s.solve_system(SystemMatrix { lower: &first, skew: &[] }, &mut x, Reuse::Never).unwrap();
+        s.solve_system(SystemMatrix { lower: &first, skew: &[] }, &mut x, Reuse::Fresh { tolerance: 0.0 }).unwrap();
         assert_eq!(s.plan(loose), Some((1e-4, 5)));
         assert_eq!(s.plan(Reuse::Kept { tolerance: 1e-12 }), Some((1e-10, 5)));
-        assert_eq!(s.plan(Reuse::Never), None);
+        assert_eq!(s.plan(Reuse::Fresh { tolerance: 0.0 }), None);
         // A loose tolerance is met in fewer iterations than a tight one.
         let (_, _, near) = laplacian(n, 0.098);
         let m = SystemMatrix { lower: &near, skew: &[] };
