@@ -51,6 +51,8 @@ struct Body {
     pair: ContactPair,
     /// Node states at the last converged increment.
     committed: Vec<NodeState>,
+    /// Node states at the converged increment before it (the multiplier predictor's history).
+    before: Vec<NodeState>,
     /// Penetration allowed, as a fraction of the local side size.
     tolerance: f64,
     /// Motion at the start and at the end of the current stage.
@@ -173,6 +175,7 @@ impl ActiveContacts {
                 tolerance: def.penetration_tolerance,
                 def: def.clone(),
                 pair,
+                before: committed.clone(),
                 committed,
                 last: PairResponse::default(),
                 corners,
@@ -212,6 +215,8 @@ impl ActiveContacts {
     /// (linear when it has none).
     pub fn begin_stage(&mut self, motions: &[RigidMotion], ramps: &BTreeMap<String, Ramp>) {
         for b in &mut self.bodies {
+            // A new stage loads differently: no prediction across its start.
+            b.before.clone_from(&b.committed);
             b.from = b.to.clone();
             if let Some(m) = motions.iter().find(|m| m.body == b.def.name) {
                 b.to = m.clone();
@@ -318,11 +323,20 @@ impl ActiveContacts {
         }
     }
 
+    /// Starts an increment `ratio` times as long as the last one: the
+    /// nodes' multipliers extrapolated from the last two converged
+    /// increments (see [`ContactPair::predict_multipliers`]).
+    pub fn predict_multipliers(&mut self, ratio: f64) {
+        for b in &mut self.bodies {
+            b.pair.predict_multipliers(&b.before, ratio);
+        }
+    }
+
     /// Keeps the converged state (multipliers and stick anchors).
     pub fn commit(&mut self) {
         for b in &mut self.bodies {
             b.pair.commit(&b.surface, &b.last);
-            b.committed = b.pair.states.clone();
+            b.before = std::mem::replace(&mut b.committed, b.pair.states.clone());
             b.corners.commit();
         }
     }

@@ -419,7 +419,41 @@ impl ContactPair {
         self.updates.fill(None);
     }
 
-    /// Stores the converged state: stick anchors in the surface frame (the
+    /// Each node held off the surface (gap > 0) takes its pressure at
+    /// `response` as its multiplier: as a relaxing or unloading seal's
+    /// pressure falls, the multipliers follow it, so the next increment does
+    /// not start held off and the predictor extrapolates the fall.
+    /// Penetrating nodes keep theirs: raised to their pressure as well, they
+    /// held the edge nodes of a growing contact on the surface at small
+    /// positive gaps (the V-groove Hertz bands one node too wide, measured).
+    fn settle_multipliers(&mut self, response: &PairResponse) {
+        for k in 0..self.nodes.len() {
+            let g = response.gaps[k];
+            if g.is_finite() && g > 0.0 && self.areas[k] > 0.0 {
+                let smoothing = self.node_params(k).smoothing;
+                let s = &mut self.states[k];
+                s.multiplier = smoothed_pressure(s.multiplier - self.penalties[k] * g, smoothing).0;
+            }
+        }
+    }
+
+    /// Predicts the multipliers of the next increment from the last two
+    /// converged ones (`before`: the increment before the last): each node
+    /// touching at both moves on by `ratio` times its last change (the step
+    /// ratio, as the displacement predictor), never below zero. The contact
+    /// pressure of a seal under rising load grows steadily, so the
+    /// penetration the prediction leaves is of second order in the step and
+    /// mostly within tolerance without an augmentation.
+    pub fn predict_multipliers(&mut self, before: &[NodeState], ratio: f64) {
+        for (s, b) in self.states.iter_mut().zip(before) {
+            if s.multiplier > 0.0 && b.multiplier > 0.0 {
+                s.multiplier = (s.multiplier + ratio * (s.multiplier - b.multiplier)).max(0.0);
+            }
+        }
+    }
+
+    /// Stores the converged state: the multipliers of held-off nodes
+    /// settled to their pressures (see `settle_multipliers`); stick anchors in the surface frame (the
     /// elastic-slip origin of touching nodes); for open ones, where they are,
     /// their gap and their motion over the increment, from which their
     /// first contact is anchored (see [`ContactPair::anchor_approaches`]).
@@ -433,6 +467,7 @@ impl ContactPair {
     /// sliding node below μ p: with small steps its shear would settle at
     /// (1 − δ_f) μ p, a friction force depending on the step size.)
     pub fn commit(&mut self, surface: &RigidSurface, response: &PairResponse) {
+        self.settle_multipliers(response);
         self.reset_updates();
         for k in 0..self.nodes.len() {
             let r = &response.nodes[k];
@@ -494,14 +529,20 @@ impl ContactPair {
     }
 
     /// Penetration of every touching node relative to its allowed value
-    /// `fraction × size`; the largest ratio (> 1: needs augmentation).
+    /// `fraction × size`; the largest ratio (> 1: needs augmentation). A
+    /// node held off the surface by its multiplier (λ beyond the rounding of
+    /// the law, pressure at a positive gap: a multiplier larger than the
+    /// pressure, as when the pressure falls or was over-predicted) counts
+    /// its gap the same way.
     pub fn worst_penetration_ratio(&self, response: &PairResponse, fraction: f64) -> (f64, f64) {
         let mut worst = (0.0, 0.0, 0.0);
         for (k, r) in response.nodes.iter().enumerate() {
             if r.status == Status::Open || self.areas[k] == 0.0 {
                 continue;
             }
-            let pen = -response.gaps[k];
+            let gap = response.gaps[k];
+            let held_off = gap > 0.0 && self.states[k].multiplier > self.node_params(k).smoothing;
+            let pen = if held_off { gap } else { -gap };
             let tol = fraction * self.sizes[k];
             let ratio = pen / tol;
             if ratio > worst.0 {
@@ -674,6 +715,48 @@ mod tests {
         // Never below zero, and the plain step where the slope is positive.
         assert_eq!(relaxed_multiplier(1.0, 0.0, Some((2.0, 0.5))), 0.0);
         assert_eq!(relaxed_multiplier(1.0, 1.5, Some((0.5, 1.2))), 1.5);
+    }
+
+    /// The top side of a plane-strain rectangle of `columns` elements, frictionless.
+    fn frictionless_top(columns: usize) -> ContactPair {
+        use olli_mesh::generate::{rectangle, RectangleParams};
+        let params =
+            ContactParameters { normal_penalty: 100.0, tangential_penalty: 10.0, friction: 0.0, smoothing: 0.0, slip_rounding: 0.0 };
+        let mesh = rectangle(&RectangleParams { divisions: [columns, 1], ..Default::default() }).unwrap();
+        ContactPair::new(&mesh, &mesh.side_sets["top"], AreaMeasure::PlaneStrain { thickness: 1.0 }, params)
+    }
+
+    // A node held off the surface by its multiplier (pressure at a positive
+    // gap, the multiplier above the pressure) violates the contact as much
+    // as one penetrating by that gap; without a multiplier the same gap is
+    // only the rounding of the law (definition of the check, no published value).
+    #[test]
+    fn a_node_held_off_by_its_multiplier_needs_augmentation() {
+        let mut pair = frictionless_top(4);
+        pair.penalties.fill(100.0);
+        let gap = 0.01 * pair.sizes[0];
+        let touching = NodeResponse { status: Status::Slip, pressure: 1.0, ..NodeResponse::open() };
+        let r = PairResponse { nodes: vec![touching; pair.nodes.len()], gaps: vec![gap; pair.nodes.len()], ..Default::default() };
+        assert_eq!(pair.worst_penetration_ratio(&r, 1e-3).0, 0.0, "no multiplier: no violation");
+        pair.states[1].multiplier = 2.0;
+        let (violation, tolerance) = pair.worst_penetration_ratio(&r, 1e-3);
+        assert!((violation - gap).abs() < 1e-15 && violation > tolerance, "{violation} {tolerance}");
+    }
+
+    // The multipliers of the next increment continue the last change by the
+    // step ratio, never below zero; a node open at either increment keeps its
+    // own (definition of the predictor, no published value).
+    #[test]
+    fn multipliers_are_predicted_from_the_last_two_increments() {
+        let mut pair = frictionless_top(2);
+        let mut before = pair.states.clone();
+        for (k, (now, then)) in [(2.0, 1.0), (1.0, 2.0), (0.0, 1.0)].into_iter().enumerate() {
+            pair.states[k].multiplier = now;
+            before[k].multiplier = then;
+        }
+        pair.predict_multipliers(&before, 1.5);
+        let got: Vec<f64> = pair.states.iter().map(|s| s.multiplier).collect();
+        assert_eq!(got, [3.5, 0.0, 0.0]);
     }
 
     /// A uniformly stretched face carries the same force on a larger area:

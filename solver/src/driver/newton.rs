@@ -27,6 +27,10 @@
 //! meet it instead: with quadratic convergence that saves the correction
 //! that would only confirm the equilibrium.
 //!
+//! With contact, the predictor also extrapolates the contact multipliers
+//! from the last two increments, and near an equilibrium a frictional
+//! increment updates them before it converges (see `augment_early`).
+//!
 //! A plain attempt whose residual stops falling (a cycle between contact
 //! or friction states) hands over to the damped retry after
 //! [`STALL_WINDOW`] corrections; damping acts in that retry alone.
@@ -94,6 +98,12 @@ pub const STALL_WINDOW: usize = 4;
 
 /// Least relative decrease of the residual over [`STALL_WINDOW`] corrections.
 pub const STALL_DECREASE: f64 = 0.1;
+
+/// Largest ratio of the last two residuals of an equilibrium solve at which
+/// the contact multipliers may be updated before it converges (see
+/// `NewtonContext::augment_early`): a tenfold decrease, Newton's quadratic
+/// phase, where the contact states no longer change.
+pub const EARLY_UPDATE_DECREASE: f64 = 0.1;
 
 /// Result of one increment attempt.
 #[derive(Debug)]
@@ -168,6 +178,9 @@ struct IterationLog {
     solve_start: usize,
     /// Re-balances so far (equilibrium solves after the first).
     rebalances: usize,
+    /// The current equilibrium solve began with an early multiplier update
+    /// (see `NewtonContext::augment_early`).
+    early_augmented: bool,
 }
 
 impl IterationLog {
@@ -182,6 +195,7 @@ impl IterationLog {
             augmentations: 0,
             solve_start: 0,
             rebalances: 0,
+            early_augmented: false,
         }
     }
 
@@ -198,6 +212,7 @@ impl IterationLog {
     /// problem changed, not because the iteration diverges).
     fn rebalance(&mut self) {
         self.rebalances += 1;
+        self.early_augmented = false;
         self.budget = self.iterations + self.per_solve;
         self.first_energy = None;
         self.previous_residual = None;
@@ -664,6 +679,15 @@ impl<'a> NewtonContext<'a> {
                     energy,
                 });
             }
+            let fast = matches!(log.residuals[log.solve_start..], [.., previous, last] if last <= EARLY_UPDATE_DECREASE * previous);
+            if self.contacts.has_friction()
+                && !self.retrying
+                && fast
+                && rel > self.controls.force_tolerance
+                && rel <= self.controls.force_tolerance.sqrt()
+            {
+                self.augment_early(u, t, &mut log, stats)?;
+            }
         }
     }
 
@@ -688,6 +712,7 @@ impl<'a> NewtonContext<'a> {
             for (d, ud) in u.iter_mut().enumerate() {
                 *ud += ratio * (self.last_converged[d] - prev[d]);
             }
+            self.contacts.predict_multipliers(ratio);
             extrapolated = true;
         }
         self.contacts.anchor_approaches(extrapolation.map_or(0.0, |(_, ratio)| ratio));
@@ -697,6 +722,7 @@ impl<'a> NewtonContext<'a> {
                 Ok(_) => break,
                 Err(_) if extrapolated => {
                     u.copy_from_slice(&self.last_converged);
+                    self.contacts.restore();
                     self.contacts.anchor_approaches(0.0);
                     extrapolated = false;
                 }
@@ -905,6 +931,31 @@ impl<'a> NewtonContext<'a> {
         self.dup.fill(0.0);
         self.evaluate(u, t, true, false, stats)?;
         Ok(false)
+    }
+
+    /// Near an equilibrium (out-of-balance force below the square root of
+    /// the force tolerance and falling fast: the contact states have settled
+    /// and the pressures are those of the equilibrium to about that
+    /// accuracy), the multiplier update the equilibrium would ask for is
+    /// made at once, so the iterations that converge the equilibrium also
+    /// take up the multipliers' change instead of converging it twice. Once
+    /// per equilibrium solve; the converged increment is checked as before,
+    /// so the answer keeps its tolerances. Called on plain attempts with
+    /// friction only: on the frictionless seal-relaxation example the
+    /// early updates changed the step sequence onto a hard increment of
+    /// its squeeze (149 -> 473 iterations, measured), where with friction
+    /// every seal example gained.
+    fn augment_early(&mut self, u: &[f64], t: f64, log: &mut IterationLog, stats: &mut SolveStats) -> Result<(), SolveError> {
+        if log.early_augmented || log.augmentations >= MAX_AUGMENTATIONS || !self.contacts.needs_augmentation() {
+            return Ok(());
+        }
+        self.contacts.augment();
+        log.augmentations += 1;
+        log.rebalance();
+        log.early_augmented = true;
+        self.dup.fill(0.0);
+        self.evaluate(u, t, true, false, stats)?;
+        Ok(())
     }
 
     /// The failure of an increment that used up its iterations.
