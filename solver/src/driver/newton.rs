@@ -641,7 +641,8 @@ impl<'a> NewtonContext<'a> {
             if log.iterations >= log.budget {
                 return Err(self.not_converged(attempt.increment));
             }
-            let direction = self.solve_direction(u, t, attempt.at(log.iterations), observer, stats)?;
+            let last = likely_last(&log.residuals, self.controls.force_tolerance);
+            let direction = self.solve_direction(u, t, attempt.at(log.iterations), last, observer, stats)?;
             log.iterations += 1;
             let energy_norm = direction.g0.abs();
             // The tangent is assembled only where the next iteration may
@@ -761,6 +762,7 @@ impl<'a> NewtonContext<'a> {
         u: &[f64],
         t: f64,
         at: IterationAt,
+        last: bool,
         observer: &mut dyn Observer,
         stats: &mut SolveStats,
     ) -> Result<Direction, SolveError> {
@@ -770,7 +772,7 @@ impl<'a> NewtonContext<'a> {
         }
         self.add_damping();
         self.du.copy_from_slice(&self.rhs);
-        let reuse = self.reuse_for(at);
+        let reuse = self.reuse_for(at, last);
         let factorization = self.linear.solve_system(SystemMatrix { lower: &self.k, skew: &self.skew }, &mut self.du, reuse)?;
         factorization.check_inertia(self.pattern.negative)?;
         if factorization.fallback {
@@ -818,14 +820,17 @@ impl<'a> NewtonContext<'a> {
     /// most [`MAX_FORCING`], so the error it leaves is of the order of
     /// Newton's own quadratic term and convergence stays quadratic; but no
     /// tighter than the oversolving guard of [`forcing`].
-    fn reuse_for(&self, at: IterationAt) -> Reuse {
+    ///
+    /// `last`: the Newton iterate of this system likely converges (see
+    /// [`likely_last`]), so the factor serves no later system.
+    fn reuse_for(&self, at: IterationAt, last: bool) -> Reuse {
         let rhs: f64 = self.rhs.iter().map(|v| v * v).sum::<f64>().sqrt();
         let relative = rhs / self.force_scale().max(f64::MIN_POSITIVE);
         let tolerance = forcing(relative, self.controls.force_tolerance);
         if at.iteration == 0 || self.pattern.negative > 0 || self.inserts.unknowns() > 0 {
             return Reuse::Fresh { tolerance };
         }
-        Reuse::Kept { tolerance }
+        Reuse::Kept { tolerance, last }
     }
 
     /// Steps from `u` along the direction and evaluates there: a full step,
@@ -1100,6 +1105,23 @@ fn forcing(relative: f64, force_tolerance: f64) -> f64 {
     (FORCING * relative).min(MAX_FORCING).max(guard)
 }
 
+/// Margin of [`likely_last`] over the force tolerance.
+pub const LAST_SYSTEM_MARGIN: f64 = 10.0;
+
+/// Whether the Newton system about to be solved is likely an increment's
+/// last: the cautious quadratic estimate of the next residual (as in
+/// [`predicts_convergence`]) within [`LAST_SYSTEM_MARGIN`] times the
+/// tolerance. On the 156k-equation mount the closing systems of increments
+/// of 0.25 (residuals 1.3, then 2.2e-3: estimate 3.7e-6 against 1e-6)
+/// converged to 8e-7; a wrong guess costs Krylov iterations up to one
+/// factorization's worth, never the answer.
+fn likely_last(residuals: &[f64], tolerance: f64) -> bool {
+    match residuals {
+        [.., previous, last] if last < previous => last * last / previous <= LAST_SYSTEM_MARGIN * tolerance,
+        _ => false,
+    }
+}
+
 /// Whether the next Newton iterate will likely meet the force tolerance,
 /// read from the last two relative residuals: quadratic convergence gives
 /// r_{k+1} ≈ C r_k² with C ≈ r_k / r_{k−1}²; the estimate r_k² / r_{k−1} is
@@ -1114,7 +1136,7 @@ fn predicts_convergence(residuals: &[f64], tolerance: f64) -> bool {
 
 #[cfg(test)]
 mod tests {
-    use super::{forcing, predicts_convergence, IterationLog};
+    use super::{forcing, likely_last, predicts_convergence, IterationLog};
 
     /// Far from the solution the forcing term is a hundredth of the relative
     /// residual (Eisenstat & Walker 1996), at most 1e-3; near it, Kelley's
@@ -1161,5 +1183,17 @@ mod tests {
         assert!(!predicts_convergence(&[1e-3, 5e-4], 1e-6));
         assert!(!predicts_convergence(&[1e-6, 1e-3], 1e-6));
         assert!(!predicts_convergence(&[1e-9], 1e-6));
+    }
+
+    // The mount's closing systems: 1.3 → 2.2e-3 estimates 3.7e-6, within
+    // ten times 1e-6 (Newton then reached 8e-7); one step earlier, or a
+    // slow decrease, is not the last (definition of the rule).
+    #[test]
+    fn the_last_system_is_told_from_a_fast_decrease() {
+        assert!(likely_last(&[1.295, 2.19e-3], 1e-6));
+        assert!(!likely_last(&[1.295], 1e-6));
+        assert!(!likely_last(&[2.78, 2.3e-2], 1e-6));
+        assert!(!likely_last(&[1e-3, 5e-4], 1e-6));
+        assert!(!likely_last(&[1e-6, 1e-3], 1e-6));
     }
 }

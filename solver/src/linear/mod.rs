@@ -233,6 +233,12 @@ pub enum Reuse {
     Kept {
         /// Relative residual `|b − A x| / |b|` the caller needs.
         tolerance: f64,
+        /// The caller expects no later system to use this factor (Newton
+        /// likely converges with this solve, and the next increment
+        /// factorizes anew): a factorization made now would serve this one
+        /// system, so the Krylov solve may spend up to a whole
+        /// factorization's cost before giving up.
+        last: bool,
     },
 }
 
@@ -240,7 +246,7 @@ impl Reuse {
     /// The relative residual the caller needs.
     pub fn tolerance(self) -> f64 {
         match self {
-            Reuse::Fresh { tolerance } | Reuse::Kept { tolerance } => tolerance,
+            Reuse::Fresh { tolerance } | Reuse::Kept { tolerance, .. } => tolerance,
         }
     }
 }
