@@ -930,12 +930,19 @@ impl<'a> NewtonContext<'a> {
             let (penetration, tolerance) = self.contacts.worst_penetration();
             return Err(SolveError::ContactNotResolved { penetration, tolerance, augmentations: log.augmentations });
         }
+        self.update_multipliers(u, t, log, stats)?;
+        Ok(false)
+    }
+
+    /// One augmented-Lagrangian multiplier update, after which the
+    /// equilibrium is solved again from `u`, evaluated anew.
+    fn update_multipliers(&mut self, u: &[f64], t: f64, log: &mut IterationLog, stats: &mut SolveStats) -> Result<(), SolveError> {
         self.contacts.augment();
         log.augmentations += 1;
         log.rebalance();
         self.dup.fill(0.0);
         self.evaluate(u, t, true, false, stats)?;
-        Ok(false)
+        Ok(())
     }
 
     /// Near an equilibrium (out-of-balance force below the square root of
@@ -954,12 +961,8 @@ impl<'a> NewtonContext<'a> {
         if log.early_augmented || log.augmentations >= MAX_AUGMENTATIONS || !self.contacts.needs_augmentation() {
             return Ok(());
         }
-        self.contacts.augment();
-        log.augmentations += 1;
-        log.rebalance();
+        self.update_multipliers(u, t, log, stats)?;
         log.early_augmented = true;
-        self.dup.fill(0.0);
-        self.evaluate(u, t, true, false, stats)?;
         Ok(())
     }
 
