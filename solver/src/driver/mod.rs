@@ -219,7 +219,7 @@ fn load_steps(
                 if let Err(e) = recorder.record(ctx, u, done, stats, observer) {
                     return Ok(Err(e));
                 }
-                dt = if is_fast(c, iterations, rebalances) { (step * c.growth).min(c.max) } else { step.min(c.max) };
+                dt = next_step(c, step, 1.0 - t, is_fast(c, iterations, rebalances));
             }
             IncrementOutcome::Failed(err) => {
                 stats.cutbacks += 1;
@@ -254,6 +254,47 @@ pub const REBALANCE_ALLOWANCE: usize = 2;
 /// one means the step moved the contact or the fluid front too far to grow.
 fn is_fast(c: &IncrementControls, iterations: usize, rebalances: usize) -> bool {
     rebalances <= 1 && iterations <= c.fast_iterations + REBALANCE_ALLOWANCE * rebalances
+}
+
+/// Largest growth of one increment over the last one when that growth ends
+/// the stage in fewer increments (see [`next_step`]).
+pub const PLANNED_GROWTH: f64 = 2.0;
+
+/// Steps are planned only when the stage can end in at most this many
+/// increments (see [`next_step`]).
+pub const PLANNED_SPAN: f64 = 3.0;
+
+/// The increment after a converged `step` of a stage with `remaining` of it
+/// left: `growth` times the step after a fast convergence, the same step
+/// otherwise, never above `max`. After a fast convergence the step is
+/// planned too: where the grown step would leave a remainder that takes
+/// one more increment than the fewest the largest step allows (0.1, 0.15,
+/// 0.225, 0.25, 0.25 and a 0.025 sliver), it takes the smallest step that
+/// ends the stage in that fewest number instead (0.25, so 0.1, 0.15, 0.25,
+/// 0.25, 0.25), if that is at most [`PLANNED_GROWTH`] times the last one.
+/// Only near the end of a stage, when at most [`PLANNED_SPAN`] increments
+/// remain: there a sliver is a quarter of the work left, while early on an
+/// earlier jump in step changes the load path of a whole frictional stage
+/// (the O-ring example took a doubled step at 2 MPa into a different,
+/// harder path) to save one increment of many.
+fn next_step(c: &IncrementControls, step: f64, remaining: f64, fast: bool) -> f64 {
+    if !fast {
+        return step.min(c.max);
+    }
+    let grown = (step * c.growth).min(c.max);
+    // Increments of at most `max` that cover `length` (a hair's overlap is
+    // no increment).
+    let count = |length: f64| (length / c.max - 1e-9).ceil().max(0.0);
+    let fewest = count(remaining);
+    if remaining <= grown || fewest > PLANNED_SPAN || 1.0 + count(remaining - grown) <= fewest {
+        return grown;
+    }
+    let planned = remaining - (fewest - 1.0) * c.max;
+    if planned <= PLANNED_GROWTH * step {
+        planned.min(c.max)
+    } else {
+        grown
+    }
 }
 
 /// Runs harmonic stage `si` about the converged state ([`harmonic`]),
@@ -497,8 +538,47 @@ fn add_linear_stats(total: &mut LinearStats, s: &LinearStats) {
 
 #[cfg(test)]
 mod tests {
-    use super::is_fast;
+    use super::{is_fast, next_step};
     use crate::model::IncrementControls;
+
+    /// Steps of a stage that converges fast everywhere, from `first`.
+    fn steps(c: &IncrementControls, first: f64) -> Vec<f64> {
+        let (mut t, mut dt, mut out) = (0.0f64, first, Vec::new());
+        while t < 1.0 - 1e-12 {
+            let step = dt.min(1.0 - t);
+            out.push(step);
+            t += step;
+            dt = next_step(c, step, 1.0 - t, true);
+        }
+        out
+    }
+
+    // Growth by 1.5 from 0.1 under a largest step of 0.25 leaves a 0.025
+    // sliver: 6 increments where 5 do (0.1 + 0.15 + 3 × 0.25). Planning
+    // grows the third step by 5/3 instead, and never beyond the maximum;
+    // a slow increment keeps its step (definition of the rule, no
+    // published value).
+    #[test]
+    fn fast_steps_end_the_stage_in_the_fewest_increments() {
+        let c = IncrementControls { max: 0.25, ..Default::default() };
+        let close = |a: &[f64], b: &[f64]| a.len() == b.len() && a.iter().zip(b).all(|(x, y)| (x - y).abs() < 1e-12);
+        let planned = steps(&c, 0.1);
+        assert!(close(&planned, &[0.1, 0.15, 0.25, 0.25, 0.25]), "{planned:?}");
+        // Plain growth already ends well: unchanged.
+        let c2 = IncrementControls { max: 0.3, ..Default::default() };
+        let plain = steps(&c2, 0.1);
+        assert!(close(&plain, &[0.1, 0.15, 0.225, 0.3, 0.225]), "{plain:?}");
+        // A step that would have to more than double is not planned.
+        let c3 = IncrementControls { max: 0.5, ..Default::default() };
+        assert!(close(&steps(&c3, 0.05), &[0.05, 0.075, 0.1125, 0.16875, 0.253125, 0.340625]), "{:?}", steps(&c3, 0.05));
+        // Far from the end (9 increments of 0.1 left) a step is not planned:
+        // 0.05 grows by 1.5 to 0.075, not to the 0.1 that saves a sliver.
+        let c4 = IncrementControls { max: 0.1, ..Default::default() };
+        assert!((next_step(&c4, 0.05, 0.9, true) - 0.075).abs() < 1e-15);
+        assert!(close(&steps(&c4, 0.05), &[0.05, 0.075, 0.1, 0.1, 0.1, 0.1, 0.1, 0.1, 0.1, 0.1, 0.075]), "{:?}", steps(&c4, 0.05));
+        assert_eq!(next_step(&c, 0.2, 0.5, false), 0.2);
+        assert!(steps(&c, 0.1).iter().all(|&s| s <= c.max + 1e-15));
+    }
 
     // The face seal's increments all converged in 3 iterations, then took
     // 2 more after the one contact multiplier update: 5 > 4, so no step
