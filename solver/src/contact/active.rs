@@ -257,7 +257,7 @@ impl ActiveContacts {
         let mut block = [0.0; 9];
         for b in &mut self.bodies {
             Self::place(b, t);
-            b.pair.evaluate_into(&b.surface, position, &mut b.last);
+            b.pair.evaluate_into(&b.surface, position, &mut b.last, want_k);
             for (&node, r) in b.pair.nodes.iter().zip(&b.last.nodes) {
                 if r.status == Status::Open {
                     continue;
@@ -346,6 +346,7 @@ impl ActiveContacts {
         for b in &mut self.bodies {
             b.pair.states = b.committed.clone();
             b.pair.reset_updates();
+            b.pair.forget_tangent_points();
             b.corners.restore();
         }
     }

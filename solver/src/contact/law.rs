@@ -178,8 +178,22 @@ impl NodeResponse {
     }
 }
 
+/// Which tangent the law returns for a sliding node.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum FrictionTangent {
+    /// The law's own derivative (default).
+    #[default]
+    Consistent,
+    /// The elastic stick tangent `A ε_t ∂slip/∂x` while the force stays the
+    /// law's (sliding at μ p): for a node whose slip reversed since the last
+    /// Newton step (see `ContactPair::evaluate_into`).
+    Stick,
+}
+
 /// Evaluates the law. `anchor_global` is the stick anchor moved with the
 /// surface into the current frame (None when the node has no stick history).
+/// `tangent` chooses the friction tangent of a sliding node; the force is the
+/// law's either way.
 pub fn evaluate(
     proj: &Projection,
     x: &Vector3<f64>,
@@ -187,6 +201,7 @@ pub fn evaluate(
     params: &ContactParameters,
     state: &NodeState,
     anchor_global: Option<Vector3<f64>>,
+    tangent: FrictionTangent,
 ) -> NodeResponse {
     let n = proj.normal;
     let trial = state.multiplier - params.normal_penalty * proj.gap;
@@ -231,11 +246,15 @@ pub fn evaluate(
             let s = t_trial / t_norm;
             let m = limit * phi;
             shear = s * m;
-            let ss = s * s.transpose();
             let eps_t = params.tangential_penalty;
-            stiffness += (((Matrix3::identity() - ss) * (m * eps_t / t_norm) + ss * (dphi * eps_t)) * dslip
-                + s * n.transpose() * ((phi - x_ratio * dphi) * params.friction * eps))
-                * area;
+            if tangent == FrictionTangent::Stick {
+                stiffness += dslip * (eps_t * area);
+            } else {
+                let ss = s * s.transpose();
+                stiffness += (((Matrix3::identity() - ss) * (m * eps_t / t_norm) + ss * (dphi * eps_t)) * dslip
+                    + s * n.transpose() * ((phi - x_ratio * dphi) * params.friction * eps))
+                    * area;
+            }
         }
     } else {
         status = Status::Slip;
@@ -253,7 +272,7 @@ mod tests {
         let state = NodeState { multiplier: 0.05, anchor, approach: None };
         let eval = |y: Vector3<f64>| {
             let proj = surface.project(&y).unwrap();
-            evaluate(&proj, &y, 1.3, &params, &state, anchor)
+            evaluate(&proj, &y, 1.3, &params, &state, anchor, FrictionTangent::Consistent)
         };
         let r = eval(x);
         let h = 1e-7;
@@ -322,16 +341,35 @@ mod tests {
         }
     }
 
+    /// A node 0.02 into a plane (ε_n 100: p = 2) and 1 from its anchor
+    /// along it (ε_t 80, μ 0.4: sliding), tributary area `area`.
+    fn sliding_on_a_plane(slip_rounding: f64, area: f64, tangent: FrictionTangent) -> NodeResponse {
+        let plane =
+            RigidSurface { shape: Shape::Plane { point: [0.0, 0.0, 0.0], normal: [0.0, 0.0, 1.0] }, placement: Placement::default() };
+        let params = ContactParameters { normal_penalty: 100.0, tangential_penalty: 80.0, friction: 0.4, smoothing: 0.0, slip_rounding };
+        let x = Vector3::new(1.0, 0.0, -0.02);
+        evaluate(&plane.project(&x).unwrap(), &x, area, &params, &NodeState::default(), Some(Vector3::zeros()), tangent)
+    }
+
+    // The stick tangent asked for a sliding node (see
+    // `ContactPair::evaluate_into`) is the elastic one, A ε_t P plus the
+    // normal block, while the force stays the sliding one (definition, no
+    // published value).
+    #[test]
+    fn a_sliding_node_asked_for_the_stick_tangent_keeps_its_force() {
+        let at = |tangent| sliding_on_a_plane(0.05, 1.5, tangent);
+        let (consistent, stick) = (at(FrictionTangent::Consistent), at(FrictionTangent::Stick));
+        assert_eq!((stick.status, stick.force), (consistent.status, consistent.force));
+        let expected = Matrix3::from_diagonal(&Vector3::new(80.0, 80.0, 100.0)) * 1.5;
+        assert!((stick.stiffness - expected).norm() < 1e-9, "{}", stick.stiffness);
+        assert!((consistent.stiffness - expected).norm() > 1.0, "the consistent tangent differs");
+    }
+
     // Coulomb's law (Coulomb 1785, as in any statics text): in slip the
     // shear traction equals μ times the pressure.
     #[test]
     fn slip_traction_is_friction_times_pressure() {
-        let plane =
-            RigidSurface { shape: Shape::Plane { point: [0.0, 0.0, 0.0], normal: [0.0, 0.0, 1.0] }, placement: Placement::default() };
-        let params =
-            ContactParameters { normal_penalty: 100.0, tangential_penalty: 80.0, friction: 0.4, smoothing: 0.0, slip_rounding: 0.0 };
-        let x = Vector3::new(1.0, 0.0, -0.02);
-        let r = evaluate(&plane.project(&x).unwrap(), &x, 1.0, &params, &NodeState::default(), Some(Vector3::zeros()));
+        let r = sliding_on_a_plane(0.0, 1.0, FrictionTangent::Consistent);
         assert_eq!(r.status, Status::Slip);
         assert!((r.pressure - 2.0).abs() < 1e-12);
         assert!((r.shear.norm() - 0.4 * 2.0).abs() < 1e-12);

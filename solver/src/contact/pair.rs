@@ -10,7 +10,7 @@ use crate::element::side::{self, for_each_point, SideRule};
 use crate::element::Analysis;
 use crate::shape::ShapeKind;
 
-use super::law::{evaluate, smoothed_pressure, Approach, ContactParameters, NodeResponse, NodeState, Status};
+use super::law::{evaluate, smoothed_pressure, Approach, ContactParameters, FrictionTangent, NodeResponse, NodeState, Status};
 use super::surface::RigidSurface;
 
 /// Tangential (stick) penalty as a fraction of the normal one. A softer
@@ -86,6 +86,25 @@ pub struct ContactPair {
     /// its nodes' reference shares of its area (for the current tributary
     /// areas, see [`ContactPair::current_areas`]).
     whole_sides: Vec<(Vec<usize>, Vec<f64>)>,
+    /// Per node, where the last tangent was built (see
+    /// [`ContactPair::evaluate_into`]); none before the first, after a
+    /// restore, or while the node is out of the surface's reach.
+    tangent_points: Vec<Option<TangentPoint>>,
+}
+
+/// A node where the last tangent was built: its position and shear there,
+/// and whether it took the stick tangent.
+#[derive(Debug, Clone, Copy, PartialEq)]
+struct TangentPoint {
+    position: Vector3<f64>,
+    shear: Vector3<f64>,
+    held: bool,
+}
+
+/// Whether a sliding node's friction reversed between two Newton iterates:
+/// its shear at the new one points against its shear at the last one.
+pub fn slip_reversed(before: &Vector3<f64>, now: &Vector3<f64>) -> bool {
+    before.dot(now) < 0.0
 }
 
 /// Evaluation of a whole pair at one iterate.
@@ -184,6 +203,7 @@ impl ContactPair {
             neighbours,
             recovered,
             whole_sides,
+            tangent_points: vec![None; n_nodes],
         }
     }
 
@@ -231,8 +251,27 @@ impl ContactPair {
     }
 
     /// Evaluates every node at the current positions (`position(node)` gives
-    /// the current coordinates of a mesh node).
-    pub fn evaluate_into(&self, surface: &RigidSurface, position: impl Fn(usize) -> Vector3<f64>, out: &mut PairResponse) {
+    /// the current coordinates of a mesh node); `want_k`: the evaluation
+    /// builds a tangent.
+    ///
+    /// A sliding node has no friction stiffness along its slip in 2-D (the
+    /// force stays μ p), so Newton moves it to where the rubber alone
+    /// balances μ p; when the stick state lies between the two slip
+    /// directions, that lands on the other side of the anchor, the friction
+    /// reverses, and the next step jumps back: a cycle of period 2 (the face
+    /// seal's first pressurised increment, measured). A node whose shear
+    /// reversed since the last tangent was built ([`slip_reversed`]) is
+    /// therefore given the elastic stick tangent for the next step (an
+    /// active-set rule: hold it where it is and see whether it sticks); its
+    /// force stays the law's, so the equilibrium is unchanged. A node that
+    /// keeps sliding one way takes the consistent tangent again.
+    pub fn evaluate_into(
+        &mut self,
+        surface: &RigidSurface,
+        position: impl Fn(usize) -> Vector3<f64>,
+        out: &mut PairResponse,
+        want_k: bool,
+    ) {
         // The buffers keep their capacity: no allocation per Newton evaluation.
         out.nodes.clear();
         out.gaps.clear();
@@ -247,10 +286,34 @@ impl ContactPair {
                 Some(proj) => {
                     out.gaps.push(proj.gap);
                     let anchor = self.states[k].anchor.or(self.entries[k]).map(|a| surface.placement.apply(&a));
-                    evaluate(&proj, &xi, self.areas[k], &self.node_params(k), &self.states[k], anchor)
+                    let params = self.node_params(k);
+                    let mut r = evaluate(&proj, &xi, self.areas[k], &params, &self.states[k], anchor, FrictionTangent::Consistent);
+                    if want_k {
+                        let before = self.tangent_points[k];
+                        // The same point evaluated again (after a multiplier
+                        // update, or for its tangent after a residual-only
+                        // evaluation) keeps the decision taken there.
+                        let held = match before {
+                            Some(p) if p.position == xi => p.held,
+                            Some(p) => r.status != Status::Open && slip_reversed(&p.shear, &r.shear),
+                            None => false,
+                        };
+                        if held {
+                            r = evaluate(&proj, &xi, self.areas[k], &params, &self.states[k], anchor, FrictionTangent::Stick);
+                        }
+                        let shear = match before {
+                            Some(p) if p.position == xi => p.shear,
+                            _ => r.shear,
+                        };
+                        self.tangent_points[k] = Some(TangentPoint { position: xi, shear, held });
+                    }
+                    r
                 }
                 None => {
                     out.gaps.push(f64::INFINITY);
+                    if want_k {
+                        self.tangent_points[k] = None;
+                    }
                     NodeResponse::open()
                 }
             };
@@ -417,6 +480,12 @@ impl ContactPair {
     /// Forgets the updates of the current increment (a new increment or a retry begins).
     pub fn reset_updates(&mut self) {
         self.updates.fill(None);
+    }
+
+    /// Forgets the points where tangents were built (a failed attempt is
+    /// abandoned: its iterates say nothing about the retry's).
+    pub fn forget_tangent_points(&mut self) {
+        self.tangent_points.fill(None);
     }
 
     /// Each node held off the surface (gap > 0) takes its pressure at
@@ -741,6 +810,52 @@ mod tests {
         pair.states[1].multiplier = 2.0;
         let (violation, tolerance) = pair.worst_penetration_ratio(&r, 1e-3);
         assert!((violation - gap).abs() < 1e-15 && violation > tolerance, "{violation} {tolerance}");
+    }
+
+    // The face seal's first pressurised increment cycled with period 2: a
+    // sliding node (no friction stiffness along its slip in 2-D) was moved
+    // by each Newton step through its stick point to slide the other way,
+    // and back. A node whose shear reversed since the last tangent must get
+    // the stick tangent, keep it when the same point is evaluated again,
+    // and lose it once it slides on the same way; the force is always the
+    // law's (definition of the rule, no published value).
+    #[test]
+    fn a_node_whose_slip_reverses_takes_the_stick_tangent_once() {
+        use crate::contact::surface::{Placement, Shape};
+        use olli_mesh::generate::{rectangle, RectangleParams};
+        let params =
+            ContactParameters { normal_penalty: 100.0, tangential_penalty: 10.0, friction: 0.5, smoothing: 0.0, slip_rounding: 0.0 };
+        let mesh = rectangle(&RectangleParams { divisions: [1, 1], ..Default::default() }).unwrap();
+        let mut pair = ContactPair::new(&mesh, &mesh.side_sets["top"], AreaMeasure::PlaneStrain { thickness: 1.0 }, params);
+        pair.penalties.fill(100.0);
+        // A plane along the rubber's top (y = 1), the rubber below it.
+        let plane =
+            RigidSurface { shape: Shape::Plane { point: [0.0, 1.0, 0.0], normal: [0.0, -1.0, 0.0] }, placement: Placement::default() };
+        for (k, &n) in pair.nodes.iter().enumerate() {
+            pair.states[k].anchor = Some(Vector3::from(mesh.nodes[n]));
+        }
+        // Pressed in by 0.01 (p = 1, μ p = 0.5) and slid by `dx`: with the
+        // tangential penalty 0.1 × 100 = 10, |dx| = 0.2 slides at μ p.
+        let mut out = PairResponse::default();
+        let mut at = |pair: &mut ContactPair, dx: f64, want_k: bool| {
+            pair.evaluate_into(&plane, |n| Vector3::from(mesh.nodes[n]) + Vector3::new(dx, 0.01, 0.0), &mut out, want_k);
+            let r = out.nodes[0];
+            assert_eq!(r.status, Status::Slip);
+            assert!((r.shear.x + 0.5 * dx.signum()).abs() < 1e-12, "the force is the law's: {}", r.shear.x);
+            r.stiffness[(0, 0)] / pair.areas[0]
+        };
+        let stick = 0.1 * 100.0;
+        assert!(at(&mut pair, 0.2, true).abs() < 1e-12, "sliding: no stiffness along the slip");
+        assert!((at(&mut pair, -0.2, true) - stick).abs() < 1e-9, "reversed: the stick tangent");
+        assert!((at(&mut pair, -0.2, true) - stick).abs() < 1e-9, "the same point again: held still");
+        assert!(at(&mut pair, -0.3, true).abs() < 1e-12, "sliding on the same way: consistent again");
+        // A residual-only evaluation is no tangent point: the reversal is
+        // seen against the last point where a tangent was built.
+        at(&mut pair, 0.3, false);
+        assert!((at(&mut pair, 0.3, true) - stick).abs() < 1e-9);
+        // A retry starts without history.
+        pair.forget_tangent_points();
+        assert!(at(&mut pair, -0.3, true).abs() < 1e-12);
     }
 
     // The multipliers of the next increment continue the last change by the
