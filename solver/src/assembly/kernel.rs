@@ -343,8 +343,12 @@ fn spatial(
 ) -> Result<f64, KernelError> {
     let nodes = ctx.shape.nodes();
     let planar = ctx.analysis != Analysis::Solid3d;
-    let gradient = if planar { planar::deformation_gradient } else { solid::deformation_gradient };
-    kin.fill(nodes, geometry.grads, geometry.dv, u, gradient)?;
+    // Each branch its own instance of `fill`, so F is formed inline.
+    if planar {
+        kin.fill(nodes, geometry.grads, geometry.dv, u, planar::deformation_gradient)?;
+    } else {
+        kin.fill(nodes, geometry.grads, geometry.dv, u, solid::deformation_gradient)?;
+    }
     let mixed = ctx.formulation == Formulation::Mixed;
     let volumetric = if mixed { Some(constant_volumetric(ctx.material, kin.volume_ratio(), state.as_deref())?) } else { None };
     let mut history = history.filter(|_| ctx.material.history_len() > 0);

@@ -44,6 +44,7 @@ pub fn supports(shape: Shape, analysis: Analysis, formulation: Formulation) -> b
 /// the point's cached reference gradients `g` (for
 /// [`super::solid::SolidKinematics::fill`]): the in-plane block `I + Σ u_a ⊗ ∇₀N_a` and
 /// `F_θθ = 1 + Σ u_a,r N_a/R` (1 in plane strain).
+#[inline]
 pub fn deformation_gradient(u: &[[f64; 3]], g: &[[f64; 3]]) -> Matrix3<f64> {
     let mut f = [[0.0; 2]; 2];
     let mut hoop = 0.0;
@@ -194,7 +195,8 @@ fn integrate<const N: usize, const HOOP: bool>(input: &Input, out: Output) -> Re
                 h[b] = gb[2] * hoop_inverse;
             }
         }
-        let (tau, c) = spatial_stress::<4>(f, resp, mixed.then_some(point.j * p), want_k);
+        let mut c = [[0.0; 4]; 4];
+        let tau = spatial_stress::<4>(f, resp, mixed.then_some(point.j * p), want_k.then_some(&mut c));
         if mixed {
             let jw = point.j * w;
             axpy(&mut gl[0], jw, &g[0]);

@@ -119,6 +119,7 @@ impl SolidKinematics {
 /// F = I + Σ u_a ⊗ ∂N_a/∂X at one point of a 3-D element from its node
 /// displacements `u` and the point's cached reference gradients `g` (for
 /// [`SolidKinematics::fill`]).
+#[inline]
 pub fn deformation_gradient(u: &[[f64; 3]], g: &[[f64; 3]]) -> Matrix3<f64> {
     let mut f = [[0.0; 3]; 3];
     for (ua, ga) in u.iter().zip(g) {
@@ -278,7 +279,8 @@ fn integrate<const N: usize>(
                 g[i][b] = gb[0] * fi[(0, i)] + gb[1] * fi[(1, i)] + gb[2] * fi[(2, i)];
             }
         }
-        let (tau, c) = spatial_stress::<6>(&point.f, resp, mixed.then_some(point.j * p), want_k);
+        let mut c = [[0.0; 6]; 6];
+        let tau = spatial_stress::<6>(&point.f, resp, mixed.then_some(point.j * p), want_k.then_some(&mut c));
         if mixed {
             for i in 0..3 {
                 axpy(&mut gl[i], point.j * w, &g[i]);

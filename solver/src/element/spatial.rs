@@ -56,9 +56,10 @@ const PAIRS: [(usize, usize); 6] = [(0, 0), (1, 1), (2, 2), (0, 1), (1, 2), (0, 
 #[inline(always)]
 fn voigt_transform<const V: usize>(f: &Matrix3<f64>) -> [[f64; V]; V] {
     let f: [[f64; 3]; 3] = std::array::from_fn(|i| std::array::from_fn(|j| f[(i, j)]));
+    let pairs: [(usize, usize); V] = std::array::from_fn(|n| PAIRS[n]);
     let mut t = [[0.0; V]; V];
-    for (n, &(i, j)) in PAIRS[..V].iter().enumerate() {
-        for (m, &(ii, jj)) in PAIRS[..V].iter().enumerate() {
+    for (n, &(i, j)) in pairs.iter().enumerate() {
+        for (m, &(ii, jj)) in pairs.iter().enumerate() {
             t[n][m] = if ii == jj { f[i][ii] * f[j][ii] } else { f[i][ii] * f[j][jj] + f[i][jj] * f[j][ii] };
         }
     }
@@ -110,8 +111,8 @@ fn push_forward<const V: usize>(t: &[[f64; V]; V], d: &SMatrix<f64, 6, 6>) -> [[
     c
 }
 
-/// The Kirchhoff stress τ and the spatial tangent c (zero without
-/// `tangent`) of one point, in the first `V` Voigt components, from the
+/// The Kirchhoff stress τ and, into `tangent` if given, the spatial
+/// tangent c of one point, in the first `V` Voigt components, from the
 /// material's S and D at deformation gradient `f`; a mixed element's
 /// pressure term with `jp` = J p: `J p` on the normal components of τ and
 /// `J p (I⊗I − 2𝕀)` in c. τ comes out the same with or without the tangent,
@@ -121,16 +122,13 @@ pub(super) fn spatial_stress<const V: usize>(
     f: &Matrix3<f64>,
     response: &PointResponse,
     jp: Option<f64>,
-    tangent: bool,
-) -> ([f64; V], [[f64; V]; V]) {
+    tangent: Option<&mut [[f64; V]; V]>,
+) -> [f64; V] {
     let t = voigt_transform::<V>(f);
     let mut tau = kirchhoff::<V>(&t, &response.stress);
-    let mut c = if tangent { push_forward::<V>(&t, &response.tangent) } else { [[0.0; V]; V] };
-    if let Some(jp) = jp {
-        for n in 0..3 {
-            tau[n] += jp;
-        }
-        if tangent {
+    if let Some(c) = tangent {
+        *c = push_forward::<V>(&t, &response.tangent);
+        if let Some(jp) = jp {
             for n in 0..3 {
                 for m in 0..3 {
                     c[n][m] += if n == m { -jp } else { jp };
@@ -141,7 +139,12 @@ pub(super) fn spatial_stress<const V: usize>(
             }
         }
     }
-    (tau, c)
+    if let Some(jp) = jp {
+        for n in 0..3 {
+            tau[n] += jp;
+        }
+    }
+    tau
 }
 
 /// Where a spatial-form kernel writes: the force (`nodes · D` entries), the
