@@ -151,21 +151,35 @@ pub fn isochoric_response(model: &dyn IsochoricEnergy, kin: &Kinematics) -> Resu
 /// mirrored.
 #[inline(always)]
 fn assemble_tangent<const K: usize>(u: &[[f64; 6]; K], m: &[[f64; K]; K], ci: &[[f64; 3]; 3], alpha: f64, beta: f64) -> Tangent {
-    let mut t = [[0.0; 6]; 6];
-    for p in 0..6 {
-        // Row p of Σ M u⊗u is Σ_w r_w u_w with r_w = Σ_v M_vw u_v[p].
-        let r: [f64; K] = std::array::from_fn(|w| (0..K).map(|v| m[v][w] * u[v][p]).sum());
-        let (i, j) = VOIGT_PAIRS[p];
-        for q in p..6 {
-            let (k, l) = VOIGT_PAIRS[q];
-            let outer: f64 = (0..K).map(|w| r[w] * u[w][q]).sum();
-            let v = outer + alpha * (0.5 * (ci[i][k] * ci[j][l] + ci[i][l] * ci[j][k]));
-            t[p][q] = v;
-            t[q][p] = v;
+    // Row p of Σ M u⊗u is Σ_w r_w u_w with r_w = Σ_v M_vw u_v[p].
+    let mut r = [[0.0; K]; 6];
+    for (p, rp) in r.iter_mut().enumerate() {
+        for (w, rw) in rp.iter_mut().enumerate() {
+            for v in 0..K {
+                *rw += m[v][w] * u[v][p];
+            }
         }
-        t[p][p] -= beta * if p < 3 { 1.0 } else { 0.5 };
     }
-    Tangent::from_fn(|p, q| t[p][q])
+    let mut t = Tangent::zeros();
+    // Both loops over constant ranges, so they unroll and the index pairs
+    // fold; the upper triangle is formed and mirrored.
+    for (p, &(i, j)) in VOIGT_PAIRS.iter().enumerate() {
+        for (q, &(k, l)) in VOIGT_PAIRS.iter().enumerate() {
+            if q < p {
+                continue;
+            }
+            let mut v = alpha * (0.5 * (ci[i][k] * ci[j][l] + ci[i][l] * ci[j][k]));
+            for w in 0..K {
+                v += r[p][w] * u[w][q];
+            }
+            if p == q {
+                v -= beta * if p < 3 { 1.0 } else { 0.5 };
+            }
+            t[(p, q)] = v;
+            t[(q, p)] = v;
+        }
+    }
+    t
 }
 
 #[cfg(test)]
