@@ -6,11 +6,10 @@ use olli_mesh::{ElementKind, Mesh};
 
 use super::dofs::NONE;
 use super::error::AssemblyError;
-use super::kernel::{ElementContext, ReferenceGeometry};
+use super::kernel::{spatial_form, ElementContext, ReferenceGeometry};
 use super::pressure::ContinuousPressures;
-use crate::element::solid;
 use crate::element::taylor_hood::{pressure_nodes, MAX_PRESSURE_NODES};
-use crate::element::{Analysis, Formulation, Shape};
+use crate::element::{reference_geometry_into, Analysis, Formulation, Shape};
 use crate::model::Model;
 use crate::shape::{ShapeKind, MAX_NODES};
 
@@ -62,9 +61,10 @@ pub struct Discretization<'m> {
 }
 
 /// The reference geometry of every spatial-form element
-/// ([`crate::element::solid::supports`]), computed once per mesh: the
-/// reference gradients ∂N_a/∂X and volume weights of all points laid end
-/// to end (hex8: 200 values per element). An element whose reference
+/// ([`super::kernel::spatial_form`]: the 3-D solids and the 2-D elements),
+/// computed once per mesh: the reference gradients ∂N_a/∂X (2-D: with
+/// N_a/R of an axisymmetric element third) and volume weights of all points
+/// laid end to end (hex8: 200 values per element, quad4: 52). An element whose reference
 /// geometry is bad keeps none, so the kernel that computes it on the fly
 /// reports the error with the element's index.
 #[derive(Debug, Default)]
@@ -80,7 +80,7 @@ impl CachedGeometry {
         let mut out = CachedGeometry::default();
         out.start.reserve(shapes.len());
         for (e, (&shape, &form)) in shapes.iter().zip(formulation).enumerate() {
-            if !solid::supports(shape, analysis, form) {
+            if !spatial_form(shape, analysis, form) {
                 out.start.push((NONE, NONE));
                 continue;
             }
@@ -88,7 +88,7 @@ impl CachedGeometry {
             let (g0, d0) = (out.grads.len(), out.dv.len());
             out.grads.resize(g0 + shape.nodes() * shape.points(), [0.0; 3]);
             out.dv.resize(d0 + shape.points(), 0.0);
-            if solid::reference_geometry_into(shape, &x, &mut out.grads[g0..], &mut out.dv[d0..]).is_ok() {
+            if reference_geometry_into(shape, analysis, &x, &mut out.grads[g0..], &mut out.dv[d0..]).is_ok() {
                 out.start.push((g0, d0));
             } else {
                 out.grads.truncate(g0);

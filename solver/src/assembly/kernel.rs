@@ -11,12 +11,14 @@ use nalgebra::Matrix3;
 use thiserror::Error;
 
 use super::history::ElementHistory;
+use crate::element::planar;
 use crate::element::pressure_space::PressureSpace;
 use crate::element::solid::{self, SolidKinematics, TangentLanes, MAX_SOLID_NODES};
+use crate::element::spatial::{Input, Output};
 use crate::element::taylor_hood::{integrate_continuous_into, PressureResponse};
 use crate::element::{
-    integrate_into, kinematics_into, point_states_into, Analysis, ElementError, ElementKinematics, Formulation, MixedState, PointResponse,
-    PointState, Shape, VolumetricResponse, MAX_POINTS,
+    integrate_into, kinematics_into, point_states_into, reference_geometry_into, Analysis, ElementError, ElementKinematics, Formulation,
+    MixedState, PointResponse, PointState, Shape, VolumetricResponse, MAX_POINTS,
 };
 use crate::material::{Material, MaterialError, PointHistory};
 
@@ -278,12 +280,12 @@ pub fn element_with_history_into(
     state: Option<&mut MixedState>,
     history: Option<&mut ElementHistory>,
 ) -> Result<f64, KernelError> {
-    if solid::supports(ctx.shape, ctx.analysis, ctx.formulation) {
+    if spatial_form(ctx.shape, ctx.analysis, ctx.formulation) {
         return with_scratch(|at| {
             let (nodes, points) = (ctx.shape.nodes(), ctx.shape.points());
             let MaterialAt { grads, dv, solid, responses, lanes, .. } = at;
             let (grads, dv) = (&mut grads[..nodes * points], &mut dv[..points]);
-            solid::reference_geometry_into(ctx.shape, x, grads, dv)?;
+            reference_geometry_into(ctx.shape, ctx.analysis, x, grads, dv)?;
             let geometry = ReferenceGeometry { grads, dv };
             spatial(solid, responses, lanes, ctx, geometry, u, force, stiffness, state, history)
         });
@@ -291,10 +293,17 @@ pub fn element_with_history_into(
     element_through(integrate_into, ctx, x, u, force, stiffness, state, history)
 }
 
-/// The reference gradients ∂N_a/∂X (`grads[q · nodes + a]`) and volume
-/// weights (`dv[q]`) of one 3-D element, computed once
-/// ([`crate::element::solid::reference_geometry_into`]) and kept by the
-/// discretization.
+/// Whether an element takes the spatial form from cached reference
+/// geometry: a 3-D solid ([`solid::supports`]) or a 2-D element
+/// ([`planar::supports`]).
+pub fn spatial_form(shape: Shape, analysis: Analysis, formulation: Formulation) -> bool {
+    solid::supports(shape, analysis, formulation) || planar::supports(shape, analysis, formulation)
+}
+
+/// The reference gradients ∂N_a/∂X (`grads[q · nodes + a]`; a 2-D
+/// element's third entry N_a/R, axisymmetric) and volume weights (`dv[q]`)
+/// of one spatial-form element, computed once ([`reference_geometry_into`])
+/// and kept by the discretization.
 #[derive(Debug, Clone, Copy)]
 pub struct ReferenceGeometry<'a> {
     /// ∂N_a/∂X at every point, point after point.
@@ -304,8 +313,8 @@ pub struct ReferenceGeometry<'a> {
 }
 
 /// As [`element_with_history_into`] for an element that takes the spatial
-/// form ([`crate::element::solid::supports`]), from its cached reference
-/// geometry: the assembler's entry point for 3-D solids.
+/// form ([`spatial_form`]), from its cached reference geometry: the
+/// assembler's entry point for the 3-D solids and the 2-D elements.
 pub fn element_cached_into(
     ctx: &ElementContext,
     geometry: ReferenceGeometry,
@@ -333,7 +342,13 @@ fn spatial(
     history: Option<&mut ElementHistory>,
 ) -> Result<f64, KernelError> {
     let nodes = ctx.shape.nodes();
-    solid::solid_kinematics_into(nodes, geometry.grads, geometry.dv, u, kin)?;
+    let planar = ctx.analysis != Analysis::Solid3d;
+    // Each branch its own instance of `fill`, so F is formed inline.
+    if planar {
+        kin.fill(nodes, geometry.grads, geometry.dv, u, planar::deformation_gradient)?;
+    } else {
+        kin.fill(nodes, geometry.grads, geometry.dv, u, solid::deformation_gradient)?;
+    }
     let mixed = ctx.formulation == Formulation::Mixed;
     let volumetric = if mixed { Some(constant_volumetric(ctx.material, kin.volume_ratio(), state.as_deref())?) } else { None };
     let mut history = history.filter(|_| ctx.material.history_len() > 0);
@@ -344,18 +359,13 @@ fn spatial(
     }
     let state = if mixed { state } else { None };
     let responses = &responses[..kin.count];
-    Ok(solid::solid_integrate_into(
-        nodes,
-        geometry.grads,
-        geometry.dv,
-        kin,
-        responses,
-        volumetric.as_ref(),
-        force,
-        stiffness,
-        state,
-        lanes,
-    )?)
+    let input = Input { grads: geometry.grads, dv: geometry.dv, kin, responses, volumetric: volumetric.as_ref() };
+    let out = Output { force, stiffness, state };
+    Ok(if planar {
+        planar::planar_integrate_into(nodes, ctx.analysis == Analysis::Axisymmetric, input, out)?
+    } else {
+        solid::solid_integrate_into(nodes, input, out, lanes)?
+    })
 }
 
 /// The element integration [`element_with_state_into`] hands the material's answers to.

@@ -95,3 +95,29 @@ pub fn point_geometry_into(
     };
     Ok(())
 }
+
+/// Reference gradients of every point of an element with reference node
+/// positions `x` (`grads[q · nodes + a]`) and the points' volume weights
+/// (`dv[q]`), what the spatial forms keep per element: ∂N_a/∂X in 3-D;
+/// `[∂N_a/∂X, ∂N_a/∂Y, N_a/R]` in 2-D, the hoop term of an axisymmetric
+/// element third (zero in plane strain).
+pub fn reference_geometry_into(
+    shape: ShapeKind,
+    analysis: Analysis,
+    x: &[[f64; 3]],
+    grads: &mut [[f64; 3]],
+    dv: &mut [f64],
+) -> Result<(), ElementError> {
+    let nodes = shape.nodes();
+    let hoop = analysis == Analysis::Axisymmetric;
+    let mut geo = PointGeometry::default();
+    for q in 0..shape.points() {
+        point_geometry_into(shape, analysis, x, q, &mut geo)?;
+        for (a, out) in grads[q * nodes..(q + 1) * nodes].iter_mut().enumerate() {
+            let g = geo.g[a];
+            *out = if hoop { [g[0], g[1], geo.n[a] / geo.radius] } else { g };
+        }
+        dv[q] = geo.dv;
+    }
+    Ok(())
+}

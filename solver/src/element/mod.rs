@@ -32,12 +32,14 @@
 
 pub mod geometry;
 pub mod kernel;
+pub mod planar;
 pub mod pressure_space;
 pub mod side;
 pub mod solid;
+pub mod spatial;
 pub mod taylor_hood;
 
-pub use geometry::{PointGeometry, Shape};
+pub use geometry::{reference_geometry_into, PointGeometry, Shape};
 pub use kernel::{
     integrate_into, kinematics, kinematics_into, point_states_into, ElementKinematics, MixedState, PointKinematics, PointResponse,
     PointState, VolumetricResponse, MAX_DOFS, MAX_POINTS,

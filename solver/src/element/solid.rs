@@ -18,7 +18,7 @@
 //! spatial form of `p ∂(J F⁻ᵀ)/∂F`.
 //!
 //! The reference gradients `∂N_a/∂X` and volume weights are computed once
-//! per element ([`reference_geometry_into`]) and handed in. Every per-node
+//! per element ([`super::geometry::reference_geometry_into`]) and handed in. Every per-node
 //! quantity is held in lanes, one array `[f64; N]` over the element's
 //! nodes, so the loops vectorise; the kernel runs under `pulp`'s run-time
 //! dispatch, which compiles it once more for the CPU's widest vector
@@ -27,11 +27,10 @@
 //! vector width: the vector and scalar paths give the same bits (a test
 //! checks it).
 
-use nalgebra::{Matrix3, SMatrix};
+use nalgebra::Matrix3;
 
-use super::geometry::{point_geometry_into, PointGeometry};
-use super::kernel::{MixedState, PointResponse, VolumetricResponse, MAX_DOFS, MAX_POINTS};
-use super::pressure_space::PressureSpace;
+use super::kernel::{MixedState, MAX_POINTS};
+use super::spatial::{axpy, finish, spatial_formulation, spatial_stress, volumetric_terms, Input, Lanes as SpatialLanes, Output};
 use super::{Analysis, ElementError, Formulation, Shape};
 
 /// Largest node count of a spatial-form element (hex27).
@@ -42,26 +41,7 @@ pub const MAX_SOLID_NODES: usize = 27;
 /// displacement element or a mixed one with a constant pressure.
 pub fn supports(shape: Shape, analysis: Analysis, formulation: Formulation) -> bool {
     let nodes_ok = matches!(shape, Shape::Hex8 | Shape::Tet10 | Shape::Hex20 | Shape::Hex27);
-    let form_ok = match formulation {
-        Formulation::Displacement => true,
-        Formulation::Mixed => PressureSpace::of_shape(shape) == PressureSpace::Constant,
-        Formulation::ElementPressure | Formulation::ContinuousPressure => false,
-    };
-    analysis == Analysis::Solid3d && nodes_ok && form_ok
-}
-
-/// Reference gradients `∂N_a/∂X` of every point (`grads[q · nodes + a]`)
-/// and the points' volume weights (`dv[q]`) of a 3-D element with
-/// reference node positions `x`.
-pub fn reference_geometry_into(shape: Shape, x: &[[f64; 3]], grads: &mut [[f64; 3]], dv: &mut [f64]) -> Result<(), ElementError> {
-    let nodes = shape.nodes();
-    let mut geo = PointGeometry::default();
-    for q in 0..shape.points() {
-        point_geometry_into(shape, Analysis::Solid3d, x, q, &mut geo)?;
-        grads[q * nodes..(q + 1) * nodes].copy_from_slice(&geo.g[..nodes]);
-        dv[q] = geo.dv;
-    }
-    Ok(())
+    analysis == Analysis::Solid3d && nodes_ok && spatial_formulation(shape, formulation)
 }
 
 /// F and J of one point.
@@ -105,98 +85,51 @@ impl SolidKinematics {
     }
 }
 
-/// F = I + Σ u_a ⊗ ∂N_a/∂X and J at every point, from the cached reference
-/// geometry. Fails on an inverted point.
-pub fn solid_kinematics_into(
-    nodes: usize,
-    grads: &[[f64; 3]],
-    dv: &[f64],
-    u: &[[f64; 3]],
-    out: &mut SolidKinematics,
-) -> Result<(), ElementError> {
-    out.count = dv.len();
-    out.volume = 0.0;
-    out.deformed_volume = 0.0;
-    for (q, (point, &w)) in out.points.iter_mut().zip(dv).enumerate() {
-        let g = &grads[q * nodes..(q + 1) * nodes];
-        let mut f = [[0.0; 3]; 3];
-        for (ua, ga) in u[..nodes].iter().zip(g) {
-            for i in 0..3 {
-                for jj in 0..3 {
-                    f[i][jj] += ua[i] * ga[jj];
-                }
+impl SolidKinematics {
+    /// F at every point of an element of `nodes` nodes with displacements
+    /// `u`, from its cached reference geometry ([`super::reference_geometry_into`])
+    /// and the element's `gradient` ([`deformation_gradient`] of a 3-D
+    /// element, [`super::planar::deformation_gradient`] of a 2-D one), with J,
+    /// V and v. Fails on an inverted point.
+    pub fn fill(
+        &mut self,
+        nodes: usize,
+        grads: &[[f64; 3]],
+        dv: &[f64],
+        u: &[[f64; 3]],
+        gradient: impl Fn(&[[f64; 3]], &[[f64; 3]]) -> Matrix3<f64>,
+    ) -> Result<(), ElementError> {
+        self.count = dv.len();
+        self.volume = 0.0;
+        self.deformed_volume = 0.0;
+        for (q, (point, &w)) in self.points.iter_mut().zip(dv).enumerate() {
+            let f = gradient(&u[..nodes], &grads[q * nodes..(q + 1) * nodes]);
+            let j = f.determinant();
+            if !(j > 0.0 && j.is_finite()) {
+                return Err(ElementError::Inverted { point: q, j });
             }
+            self.volume += w;
+            self.deformed_volume += j * w;
+            *point = SolidPoint { f, j };
         }
-        let f = Matrix3::new(f[0][0] + 1.0, f[0][1], f[0][2], f[1][0], f[1][1] + 1.0, f[1][2], f[2][0], f[2][1], f[2][2] + 1.0);
-        let j = f.determinant();
-        if !(j > 0.0 && j.is_finite()) {
-            return Err(ElementError::Inverted { point: q, j });
-        }
-        out.volume += w;
-        out.deformed_volume += j * w;
-        *point = SolidPoint { f, j };
+        Ok(())
     }
-    Ok(())
 }
 
-/// The Voigt transformation of F (order xx, yy, zz, xy, yz, xz): `τ = T S`
-/// for symmetric S, and the push-forward of a tangent acting on
-/// engineering strains is `T D Tᵀ`.
-#[inline(always)]
-fn voigt_transform(f: &Matrix3<f64>) -> [[f64; 6]; 6] {
-    const PAIRS: [(usize, usize); 6] = [(0, 0), (1, 1), (2, 2), (0, 1), (1, 2), (0, 2)];
-    let f: [[f64; 3]; 3] = std::array::from_fn(|i| std::array::from_fn(|j| f[(i, j)]));
-    let mut t = [[0.0; 6]; 6];
-    for (n, &(i, j)) in PAIRS.iter().enumerate() {
-        for (m, &(ii, jj)) in PAIRS.iter().enumerate() {
-            t[n][m] = if ii == jj { f[i][ii] * f[j][ii] } else { f[i][ii] * f[j][jj] + f[i][jj] * f[j][ii] };
-        }
-    }
-    t
-}
-
-/// Kirchhoff stress τ = F S Fᵀ (Voigt) from S, with `t` the Voigt
-/// transformation of F.
-#[inline(always)]
-fn kirchhoff(t: &[[f64; 6]; 6], s: &Matrix3<f64>) -> [f64; 6] {
-    let sv = [s[(0, 0)], s[(1, 1)], s[(2, 2)], s[(0, 1)], s[(1, 2)], s[(0, 2)]];
-    let mut tau = [0.0; 6];
-    for n in 0..6 {
-        for m in 0..6 {
-            tau[n] += t[n][m] * sv[m];
-        }
-    }
-    tau
-}
-
-/// Spatial tangent `T D Tᵀ` (symmetric 6×6) pushed forward from D, with
-/// `t` the Voigt transformation of F: rows of `T D` first, then the rows
-/// of `(T D) Tᵀ`, each a sum of rows of `Tᵀ` (whole rows at a time, so the
-/// loops vectorise; the two triangles agree to rounding).
-#[inline(always)]
-fn push_forward(t: &[[f64; 6]; 6], d: &SMatrix<f64, 6, 6>) -> [[f64; 6]; 6] {
-    // D is symmetric: its columns are its rows.
-    let d: [[f64; 6]; 6] = std::array::from_fn(|l| std::array::from_fn(|m| d[(m, l)]));
-    let mut td = [[0.0; 6]; 6];
-    for n in 0..6 {
-        for l in 0..6 {
-            let s = t[n][l];
-            for m in 0..6 {
-                td[n][m] += s * d[l][m];
+/// F = I + Σ u_a ⊗ ∂N_a/∂X at one point of a 3-D element from its node
+/// displacements `u` and the point's cached reference gradients `g` (for
+/// [`SolidKinematics::fill`]).
+#[inline]
+pub fn deformation_gradient(u: &[[f64; 3]], g: &[[f64; 3]]) -> Matrix3<f64> {
+    let mut f = [[0.0; 3]; 3];
+    for (ua, ga) in u.iter().zip(g) {
+        for i in 0..3 {
+            for jj in 0..3 {
+                f[i][jj] += ua[i] * ga[jj];
             }
         }
     }
-    let tt: [[f64; 6]; 6] = std::array::from_fn(|l| std::array::from_fn(|m| t[m][l]));
-    let mut c = [[0.0; 6]; 6];
-    for n in 0..6 {
-        for l in 0..6 {
-            let s = td[n][l];
-            for m in 0..6 {
-                c[n][m] += s * tt[l][m];
-            }
-        }
-    }
-    c
+    Matrix3::new(f[0][0] + 1.0, f[0][1], f[0][2], f[1][0], f[1][1] + 1.0, f[1][2], f[2][0], f[2][1], f[2][2] + 1.0)
 }
 
 /// Rows of the Voigt vector (xx, yy, zz, xy, yz, xz) holding the
@@ -237,14 +170,6 @@ fn add_point_tangent<const N: usize, const FIRST: bool>(kl: &mut Lanes<N>, g: &[
     }
 }
 
-/// The lane arithmetic of the kernel: `out[b] += s · x[b]` over a node lane.
-#[inline(always)]
-fn axpy<const N: usize>(out: &mut [f64; N], s: f64, x: &[f64; N]) {
-    for b in 0..N {
-        out[b] = s.mul_add(x[b], out[b]);
-    }
-}
-
 /// Internal force (and, if asked, the tangent, column-major, `3N × 3N`)
 /// of a spatial-form element with `N` nodes into caller buffers, from its
 /// cached reference gradients, its kinematics and the material's answer at
@@ -253,25 +178,13 @@ fn axpy<const N: usize>(out: &mut [f64; N], s: f64, x: &[f64; N]) {
 /// unknowns (`state`, whose outputs are filled in), as
 /// [`super::integrate_into`]. `lanes` is the caller's scratch for the
 /// tangent (any content). Returns the element's strain energy.
-pub fn solid_integrate_into(
-    nodes: usize,
-    grads: &[[f64; 3]],
-    dv: &[f64],
-    kin: &SolidKinematics,
-    responses: &[PointResponse],
-    volumetric: Option<&VolumetricResponse>,
-    force: &mut [f64],
-    stiffness: Option<&mut [f64]>,
-    state: Option<&mut MixedState>,
-    lanes: &mut TangentLanes,
-) -> Result<f64, ElementError> {
-    let input = Input { grads, dv, kin, responses, volumetric };
+pub fn solid_integrate_into(nodes: usize, input: Input, out: Output, lanes: &mut TangentLanes) -> Result<f64, ElementError> {
     let arch = pulp::Arch::new();
     match nodes {
-        8 => arch.dispatch(Run::<8> { input, force, stiffness, state, lanes }),
-        10 => arch.dispatch(Run::<10> { input, force, stiffness, state, lanes }),
-        20 => arch.dispatch(Run::<20> { input, force, stiffness, state, lanes }),
-        27 => arch.dispatch(Run::<27> { input, force, stiffness, state, lanes }),
+        8 => arch.dispatch(Run::<8> { input, out, lanes }),
+        10 => arch.dispatch(Run::<10> { input, out, lanes }),
+        20 => arch.dispatch(Run::<20> { input, out, lanes }),
+        27 => arch.dispatch(Run::<27> { input, out, lanes }),
         _ => Err(ElementError::NotAnElement { shape: "a solid of this node count" }),
     }
 }
@@ -279,35 +192,13 @@ pub fn solid_integrate_into(
 /// [`solid_integrate_into`] without run-time dispatch: the plain scalar
 /// build, for the test that both paths agree bit for bit.
 #[cfg(test)]
-pub(crate) fn solid_integrate_scalar(
-    grads: &[[f64; 3]],
-    dv: &[f64],
-    kin: &SolidKinematics,
-    responses: &[PointResponse],
-    volumetric: Option<&VolumetricResponse>,
-    force: &mut [f64],
-    stiffness: Option<&mut [f64]>,
-    state: Option<&mut MixedState>,
-    lanes: &mut TangentLanes,
-) -> Result<f64, ElementError> {
-    let input = Input { grads, dv, kin, responses, volumetric };
-    run::<8>(&input, force, stiffness, state, lanes)
-}
-
-#[derive(Clone, Copy)]
-struct Input<'a> {
-    grads: &'a [[f64; 3]],
-    dv: &'a [f64],
-    kin: &'a SolidKinematics,
-    responses: &'a [PointResponse],
-    volumetric: Option<&'a VolumetricResponse>,
+pub(crate) fn solid_integrate_scalar(input: Input, out: Output, lanes: &mut TangentLanes) -> Result<f64, ElementError> {
+    run::<8>(&input, out, lanes)
 }
 
 struct Run<'a, 'o, const N: usize> {
     input: Input<'a>,
-    force: &'o mut [f64],
-    stiffness: Option<&'o mut [f64]>,
-    state: Option<&'o mut MixedState>,
+    out: Output<'o>,
     lanes: &'o mut TangentLanes,
 }
 
@@ -316,12 +207,12 @@ impl<const N: usize> pulp::WithSimd for Run<'_, '_, N> {
 
     #[inline(always)]
     fn with_simd<S: pulp::Simd>(self, _simd: S) -> Self::Output {
-        run::<N>(&self.input, self.force, self.stiffness, self.state, self.lanes)
+        run::<N>(&self.input, self.out, self.lanes)
     }
 }
 
 /// The element tangent in lanes: `k[a][3i + k][b]` is `K[(a, i), (b, k)]`.
-type Lanes<const N: usize> = [[[f64; N]; 9]; N];
+type Lanes<const N: usize> = SpatialLanes<N, 9>;
 
 /// The tangent lanes of a spatial-form element of up to
 /// [`MAX_SOLID_NODES`] nodes, kept by the caller from element to element:
@@ -348,13 +239,8 @@ impl TangentLanes {
 /// [`integrate`] with the tangent's lanes from `lanes` when a tangent is
 /// wanted.
 #[inline(always)]
-fn run<const N: usize>(
-    input: &Input,
-    force: &mut [f64],
-    stiffness: Option<&mut [f64]>,
-    state: Option<&mut MixedState>,
-    lanes: &mut TangentLanes,
-) -> Result<f64, ElementError> {
+fn run<const N: usize>(input: &Input, out: Output, lanes: &mut TangentLanes) -> Result<f64, ElementError> {
+    let Output { force, stiffness, state } = out;
     match stiffness {
         Some(k) => {
             let kl = lanes.of::<N>().ok_or(ElementError::NotAnElement { shape: "a solid of this node count" })?;
@@ -377,15 +263,7 @@ fn integrate<const N: usize>(
 ) -> Result<f64, ElementError> {
     let Input { grads, dv, kin, responses, volumetric } = *input;
     let want_k = stiffness.is_some();
-    let vol = kin.volume;
-    let mut energy = 0.0;
-    let (p, dp) = match volumetric {
-        Some(v) => {
-            energy += vol * v.energy;
-            (v.pressure, v.stiffness)
-        }
-        None => (0.0, 0.0),
-    };
+    let (mut energy, p, _) = volumetric_terms(volumetric, kin.volume);
     let mixed = volumetric.is_some();
     // Force and ∂v/∂u in lanes: f[i][a].
     let mut fl = [[0.0; N]; 3];
@@ -401,24 +279,9 @@ fn integrate<const N: usize>(
                 g[i][b] = gb[0] * fi[(0, i)] + gb[1] * fi[(1, i)] + gb[2] * fi[(2, i)];
             }
         }
-        // τ the same way with or without the tangent, so a residual-only
-        // evaluation gives the same bits.
-        let t = voigt_transform(&point.f);
-        let mut tau = kirchhoff(&t, &resp.stress);
-        let mut c = if want_k { push_forward(&t, &resp.tangent) } else { [[0.0; 6]; 6] };
+        let mut c = [[0.0; 6]; 6];
+        let tau = spatial_stress::<6>(&point.f, resp, mixed.then_some(point.j * p), want_k.then_some(&mut c));
         if mixed {
-            let jp = point.j * p;
-            for n in 0..3 {
-                tau[n] += jp;
-            }
-            if want_k {
-                for n in 0..3 {
-                    for m in 0..3 {
-                        c[n][m] += if n == m { -jp } else { jp };
-                    }
-                    c[n + 3][n + 3] -= jp;
-                }
-            }
             for i in 0..3 {
                 axpy(&mut gl[i], point.j * w, &g[i]);
             }
@@ -463,60 +326,6 @@ fn integrate<const N: usize>(
             add_point_tangent::<N, false>(kl, &g, &cb, &h);
         }
     }
-    let nd = 3 * N;
-    if let (Some(v), Some(st)) = (volumetric, state) {
-        let ratio = kin.volume_ratio();
-        let s = v.three_field_residual_factor(ratio, st.dilatation);
-        for i in 0..3 {
-            axpy(&mut fl[i], s, &gl[i]);
-        }
-        st.volume_ratio = ratio;
-        for a in 0..N {
-            for i in 0..3 {
-                st.dvolume_du[3 * a + i] = gl[i][a] / vol;
-            }
-        }
-    }
-    for a in 0..N {
-        for i in 0..3 {
-            force[3 * a + i] = fl[i][a];
-        }
-    }
-    if let Some((kbuf, kl)) = stiffness {
-        if mixed {
-            // K += U''(θ)/V g gᵀ.
-            let s = dp / vol;
-            for (a, ka) in kl.iter_mut().enumerate() {
-                for i in 0..3 {
-                    let gai = s * gl[i][a];
-                    for k in 0..3 {
-                        axpy(&mut ka[3 * i + k], gai, &gl[k]);
-                    }
-                }
-            }
-        }
-        // Column-major out, the lower triangle mirrored so K is symmetric
-        // to the bit.
-        let kbuf = &mut kbuf[..nd * nd];
-        for (a, ka) in kl.iter().enumerate() {
-            for i in 0..3 {
-                let row = 3 * a + i;
-                // The blocks left of the diagonal block, then its lower part.
-                for b in 0..a {
-                    for k in 0..3 {
-                        let (col, v) = (3 * b + k, ka[3 * i + k][b]);
-                        kbuf[col * nd + row] = v;
-                        kbuf[row * nd + col] = v;
-                    }
-                }
-                for k in 0..=i {
-                    let (col, v) = (3 * a + k, ka[3 * i + k][a]);
-                    kbuf[col * nd + row] = v;
-                    kbuf[row * nd + col] = v;
-                }
-            }
-        }
-    }
-    debug_assert!(nd <= MAX_DOFS);
+    finish::<N, 3, 9>(input, fl, &gl, force, stiffness, state);
     Ok(energy)
 }

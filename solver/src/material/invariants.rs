@@ -18,7 +18,7 @@
 use nalgebra::Matrix3;
 
 use super::error::MaterialError;
-use super::tensor::{odot, outer, outer_sym};
+use super::tensor::{to_voigt, Tangent, VOIGT_PAIRS};
 use super::{IsochoricEnergy, Response, Stress};
 
 /// W_iso and its derivatives with respect to the isochoric invariants.
@@ -100,29 +100,86 @@ pub fn isochoric_stress(model: &dyn IsochoricEnergy, kin: &Kinematics) -> Result
 }
 
 /// Isochoric energy, S_iso and D_iso of a model at the given kinematics.
+///
+/// Every term of D_iso (module docs) is an outer product of the three
+/// symmetric tensors I, C⁻¹ and B = I1 I − C (A1 = J^(-2/3) I − Ī1/3 C⁻¹
+/// and A2 = J^(-4/3) B − 2/3 Ī2 C⁻¹ are combinations of them) or a multiple
+/// of C⁻¹⊙C⁻¹ or I⊙I, so D_iso is formed once, entry by entry, as
+/// `Σ_uv M_uv u⊗v + α C⁻¹⊙C⁻¹ − β I⊙I` with the 3×3 coefficients M
+/// gathered first: no 6×6 temporaries.
 pub fn isochoric_response(model: &dyn IsochoricEnergy, kin: &Kinematics) -> Result<Response, MaterialError> {
     let d = model.derivatives(kin.i1_bar, kin.i2_bar)?;
-    let id = Matrix3::identity();
-    let ci = &kin.c_inv;
-    let j23 = kin.j23;
+    let (_, a2, stress) = stress_directions(&d, kin);
+    let (j23, i1b, i2b) = (kin.j23, kin.i1_bar, kin.i2_bar);
     let j43 = j23 * j23;
-    let (a1, a2, stress) = stress_directions(&d, kin);
-    let mut tangent =
-        (outer_sym(&id, ci) * (-j23 / 3.0) + outer(ci, ci) * (kin.i1_bar / 9.0) + odot(ci) * (kin.i1_bar / 3.0)) * (4.0 * d.w1);
+    let (w1, w2, w11, w12, w22) = (4.0 * d.w1, 4.0 * d.w2, 4.0 * d.w11, 4.0 * d.w12, 4.0 * d.w22);
+    // M over (I, C⁻¹, B): a diagonal entry multiplies u⊗u, an entry above
+    // it u⊗v + v⊗u. A1 = x1 I + y1 C⁻¹, A2 = x2 B + y2 C⁻¹.
+    let (x1, y1) = (j23, -i1b / 3.0);
+    let (mut m00, mut m01, mut m11) = (0.0, -w1 * j23 / 3.0, w1 * i1b / 9.0);
+    let mut alpha = w1 * i1b / 3.0;
     if d.w11 != 0.0 {
         // Zero for the neo-Hookean and Mooney–Rivlin energies, linear in Ī1.
-        tangent += outer(&a1, &a1) * (4.0 * d.w11);
+        m00 += w11 * x1 * x1;
+        m01 += w11 * x1 * y1;
+        m11 += w11 * y1 * y1;
     }
-    if let Some(a2) = a2 {
-        let b = id * kin.i1 - kin.c;
-        tangent += outer(&a2, &a2) * (4.0 * d.w22)
-            + outer_sym(&a1, &a2) * (4.0 * d.w12)
-            + ((outer(&id, &id) - odot(&id)) * j43 - outer_sym(&b, ci) * (2.0 / 3.0 * j43)
-                + outer(ci, ci) * (4.0 / 9.0 * kin.i2_bar)
-                + odot(ci) * (2.0 / 3.0 * kin.i2_bar))
-                * (4.0 * d.w2);
-    }
+    let ci: [[f64; 3]; 3] = std::array::from_fn(|i| std::array::from_fn(|j| kin.c_inv[(i, j)]));
+    let vi = [1.0, 1.0, 1.0, 0.0, 0.0, 0.0];
+    let vc: [f64; 6] = to_voigt(&kin.c_inv).into();
+    let tangent = if a2.is_some() {
+        let (x2, y2) = (j43, -2.0 / 3.0 * i2b);
+        // W22 A2⊗A2, W12 (A1⊗A2 + A2⊗A1) and W2 ∂A2/∂C.
+        let m22 = w22 * x2 * x2;
+        let m12 = w22 * x2 * y2 + w12 * y1 * x2 - w2 * (2.0 / 3.0) * j43;
+        let m02 = w12 * x1 * x2;
+        m11 += w22 * y2 * y2 + 2.0 * w12 * y1 * y2 + w2 * (4.0 / 9.0) * i2b;
+        m01 += w12 * x1 * y2;
+        m00 += w2 * j43;
+        alpha += w2 * (2.0 / 3.0) * i2b;
+        let vb: [f64; 6] = to_voigt(&(Matrix3::identity() * kin.i1 - kin.c)).into();
+        let m = [[m00, m01, m02], [m01, m11, m12], [m02, m12, m22]];
+        assemble_tangent(&[vi, vc, vb], &m, &ci, alpha, w2 * j43)
+    } else {
+        assemble_tangent(&[vi, vc], &[[m00, m01], [m01, m11]], &ci, alpha, 0.0)
+    };
     Ok(Response { energy: d.w, stress, tangent })
+}
+
+/// `Σ_vw M_vw u_v⊗u_w + α C⁻¹⊙C⁻¹ − β I⊙I` (Voigt) from `K` Voigt vectors
+/// `u`, their symmetric coefficients `m` and C⁻¹ `ci`: the upper triangle,
+/// mirrored.
+#[inline(always)]
+fn assemble_tangent<const K: usize>(u: &[[f64; 6]; K], m: &[[f64; K]; K], ci: &[[f64; 3]; 3], alpha: f64, beta: f64) -> Tangent {
+    // Row p of Σ M u⊗u is Σ_w r_w u_w with r_w = Σ_v M_vw u_v[p].
+    let mut r = [[0.0; K]; 6];
+    for (p, rp) in r.iter_mut().enumerate() {
+        for (w, rw) in rp.iter_mut().enumerate() {
+            for v in 0..K {
+                *rw += m[v][w] * u[v][p];
+            }
+        }
+    }
+    let mut t = Tangent::zeros();
+    // Both loops over constant ranges, so they unroll and the index pairs
+    // fold; the upper triangle is formed and mirrored.
+    for (p, &(i, j)) in VOIGT_PAIRS.iter().enumerate() {
+        for (q, &(k, l)) in VOIGT_PAIRS.iter().enumerate() {
+            if q < p {
+                continue;
+            }
+            let mut v = alpha * (0.5 * (ci[i][k] * ci[j][l] + ci[i][l] * ci[j][k]));
+            for w in 0..K {
+                v += r[p][w] * u[w][q];
+            }
+            if p == q {
+                v -= beta * if p < 3 { 1.0 } else { 0.5 };
+            }
+            t[(p, q)] = v;
+            t[(q, p)] = v;
+        }
+    }
+    t
 }
 
 #[cfg(test)]
