@@ -89,26 +89,24 @@ fn kirchhoff<const V: usize>(t: &[[f64; V]; V], s: &Matrix3<f64>) -> [f64; V] {
 fn push_forward<const V: usize>(t: &[[f64; V]; V], d: &SMatrix<f64, 6, 6>) -> [[f64; V]; V] {
     // D is symmetric: its columns are its rows.
     let d: [[f64; V]; V] = std::array::from_fn(|l| std::array::from_fn(|m| d[(m, l)]));
-    let mut td = [[0.0; V]; V];
-    for n in 0..V {
-        for l in 0..V {
-            let s = t[n][l];
-            for m in 0..V {
-                td[n][m] += s * d[l][m];
-            }
-        }
-    }
     let tt: [[f64; V]; V] = std::array::from_fn(|l| std::array::from_fn(|m| t[m][l]));
-    let mut c = [[0.0; V]; V];
+    product(&product(t, &d), &tt)
+}
+
+/// `a b` for square V×V arrays, each row of the product a sum of whole rows
+/// of `b` (so the inner loop vectorises).
+#[inline(always)]
+fn product<const V: usize>(a: &[[f64; V]; V], b: &[[f64; V]; V]) -> [[f64; V]; V] {
+    let mut out = [[0.0; V]; V];
     for n in 0..V {
         for l in 0..V {
-            let s = td[n][l];
+            let s = a[n][l];
             for m in 0..V {
-                c[n][m] += s * tt[l][m];
+                out[n][m] += s * b[l][m];
             }
         }
     }
-    c
+    out
 }
 
 /// The Kirchhoff stress τ and, into `tangent` if given, the spatial
