@@ -2,7 +2,8 @@
 //! it translates as a rigid body: a uniform displacement has a zero
 //! deformation gradient change, so zero strain and zero stress satisfy every
 //! equation of equilibrium (any continuum mechanics text, e.g. Holzapfel
-//! 2000, "Nonlinear Solid Mechanics", §2.2, rigid-body motions). The
+//! 2000, "Nonlinear Solid Mechanics", §2.2, rigid-body motions; section
+//! number from memory). The
 //! residual of such a state is pure round-off, and round-off of a rubber
 //! with κ/μ = 5000 is that of its pressure, κ times the volume ratio's: the
 //! convergence test must read it as converged, in the first corrections,
