@@ -4,13 +4,15 @@
 //!
 //! Every file is written atomically ([`atomic::write_atomic`]): to a temporary
 //! file in the same folder, then renamed into place, so an interrupted run
-//! never leaves a half-written result. [`writer::ResultWriter`] is the
+//! never leaves a half-written result. Frames are written on a thread of
+//! their own while the solver goes on ([`frame_queue`]). [`writer::ResultWriter`] is the
 //! solver observer that writes them as increments converge.
 
 pub mod atomic;
 pub mod dynamic;
 pub mod event_text;
 pub mod fields;
+pub mod frame_queue;
 pub mod history;
 pub mod performance;
 pub mod pvd;

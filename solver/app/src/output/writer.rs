@@ -2,8 +2,12 @@
 //! saved increment with the `.pvd` collection over the load, `history.csv`
 //! after every increment, the run log, and at the end `summary.json`.
 //! Every result file is replaced atomically, so a run stopped at any moment
-//! leaves complete files holding every converged increment so far. The log
-//! is appended to, a whole line at a time, and flushed at every increment.
+//! leaves complete files holding every converged increment so far. Frames
+//! are written in the background ([`super::frame_queue`]): a run ended by
+//! SIGINT, SIGTERM or a failure waits for them; one killed outright may lack
+//! the last few frames, never half of one, and its `.pvd` lists only frames
+//! on disk. The log is appended to, a whole line at a time, and flushed at
+//! every increment.
 
 use std::collections::BTreeMap;
 use std::fs::File;
@@ -14,13 +18,14 @@ use super::atomic::{write_atomic, write_durable};
 use super::dynamic::{dynamic_csv, DYNAMIC_FILE};
 use super::event_text::EventText;
 use super::fields::{frame, Peaks};
+use super::frame_queue::{FrameJob, FrameQueue};
 use super::history::History;
 use super::performance::{peak_memory_mib, Performance};
 use super::pvd::{pvd_text, PvdEntry};
 use super::seal_values::{band_entries, band_values, extrusion_entries, gland_entries, seal_values};
 use super::stage_peaks::{self, StagePeaks};
 use super::summary::{units, Files, IncrementRef, RunSummary};
-use super::vtu::{write_vtu, Field};
+use super::vtu::Field;
 use crate::job::applied::AppliedSource;
 use crate::job::Job;
 use olli_solver::assembly::Discretization;
@@ -43,6 +48,8 @@ pub struct ResultWriter<'m> {
     disc: Discretization<'m>,
     history: History,
     frames: Vec<PvdEntry>,
+    /// Writes the frames in the background, in order.
+    frame_queue: FrameQueue,
     log: BufWriter<File>,
     text: EventText,
     /// (stage, increment) of the last frame written.
@@ -78,6 +85,7 @@ impl<'m> ResultWriter<'m> {
             disc,
             history: History::new(job.history_columns()),
             frames: Vec::new(),
+            frame_queue: FrameQueue::new(job.model.mesh.clone()),
             log,
             text: EventText::new(job.model.stages.len()),
             last_frame: None,
@@ -122,6 +130,7 @@ impl<'m> ResultWriter<'m> {
             None => format!("interrupted by {signal} before the first converged increment"),
         };
         self.log_line(&line);
+        self.flush(|w| w.frame_queue.drain().map_err(io::Error::other));
         self.flush(|w| {
             w.write_partial_summary("interrupted")?;
             w.log.flush()
@@ -242,10 +251,14 @@ impl<'m> ResultWriter<'m> {
         }
         let name = format!("{}_{:04}.vtu", self.stem, self.frames.len() + 1);
         let title = format!("{}: stage {} increment {increment} load factor {load_factor}", self.job.title, stage + 1);
+        let collection = format!("{}.pvd", self.stem);
         record(&self.folder, &name)?;
-        write_vtu(&self.folder.join(&name), &title, &self.job.model.mesh, f.point, f.cell)?;
+        record(&self.folder, &collection)?;
+        let vtu = self.folder.join(&name);
         self.frames.push(PvdEntry { time: stage as f64 + load_factor, file: name });
-        self.write(&format!("{}.pvd", self.stem), pvd_text(&self.frames).as_bytes())?;
+        let job =
+            FrameJob { vtu, title, point: f.point, cell: f.cell, pvd: self.folder.join(collection), pvd_text: pvd_text(&self.frames) };
+        self.frame_queue.push(job).map_err(io::Error::other)?;
         self.last_frame = Some((stage, increment));
         self.last_peaks = Some(f.peaks);
         Ok(())
@@ -274,6 +287,7 @@ impl<'m> ResultWriter<'m> {
                 self.flush(|w| w.write_frame(r));
             }
         }
+        self.flush(|w| w.frame_queue.drain().map_err(io::Error::other));
         let stages = &self.job.model.stages;
         let (status, reason, stopped_in) = match &solution.termination {
             Termination::Completed => ("converged", None, None),
