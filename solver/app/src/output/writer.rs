@@ -130,12 +130,20 @@ impl<'m> ResultWriter<'m> {
             None => format!("interrupted by {signal} before the first converged increment"),
         };
         self.log_line(&line);
-        self.flush(|w| w.frame_queue.drain().map_err(io::Error::other));
+        self.drain_frames();
         self.flush(|w| {
             w.write_partial_summary("interrupted")?;
             w.log.flush()
         });
         self.error.clone().map_or(Ok(()), Err)
+    }
+
+    /// Waits for the frames still being written, even after an earlier
+    /// failure (the process may end right after); keeps the first failure.
+    fn drain_frames(&mut self) {
+        if let Err(e) = self.frame_queue.drain() {
+            self.error.get_or_insert(e);
+        }
     }
 
     fn log_line(&mut self, line: &str) {
@@ -287,7 +295,7 @@ impl<'m> ResultWriter<'m> {
                 self.flush(|w| w.write_frame(r));
             }
         }
-        self.flush(|w| w.frame_queue.drain().map_err(io::Error::other));
+        self.drain_frames();
         let stages = &self.job.model.stages;
         let (status, reason, stopped_in) = match &solution.termination {
             Termination::Completed => ("converged", None, None),
