@@ -36,9 +36,10 @@ fn seal_example_results_match_its_note() {
     // step growth; 207 once the contact multipliers were predicted from the
     // last two increments and updated early near each frictional
     // equilibrium; 164 once a node whose slip reverses takes the stick
-    // tangent for its next step (the first pressurised increment: 51 -> 20).
+    // tangent for its next step (the first pressurised increment: 51 -> 20);
+    // 159 once the predictor extrapolates the carried element pressures too.
     // A bound, not a timing.
-    assert!(solution.stats.newton_iterations <= 175, "{} Newton iterations", solution.stats.newton_iterations);
+    assert!(solution.stats.newton_iterations <= 170, "{} Newton iterations", solution.stats.newton_iterations);
     let squeezed = solution.increments.iter().rfind(|i| i.stage == 0).unwrap();
     let cover = squeezed.contact.iter().find(|c| c.name == "cover").unwrap();
     // The note gives 4 significant figures: 0.1 % allowed.

@@ -23,13 +23,17 @@ pub struct MixedUnknowns {
     /// Per element: dilatation change per unit step of the correction, and
     /// the part applied in full (prescribed motion and consistency residual).
     dtheta: Vec<(f64, f64)>,
+    /// Pressure and dilatation at the converged increment before the last
+    /// (the predictor's history, see [`MixedUnknowns::extrapolate`]).
+    previous: Vec<(f64, f64)>,
 }
 
 impl MixedUnknowns {
     /// Carries `states` (one per element) from here on.
     pub fn new(states: Vec<MixedState>) -> Self {
         let n = states.len();
-        MixedUnknowns { current: states.clone(), base: states.clone(), converged: states, dtheta: vec![(0.0, 0.0); n] }
+        let previous = states.iter().map(|s| (s.pressure, s.dilatation)).collect();
+        MixedUnknowns { current: states.clone(), base: states.clone(), converged: states, dtheta: vec![(0.0, 0.0); n], previous }
     }
 
     /// Whether no unknowns are carried (condensed elements).
@@ -44,7 +48,25 @@ impl MixedUnknowns {
 
     /// Keeps the current unknowns as converged.
     pub fn commit(&mut self) {
+        for (p, c) in self.previous.iter_mut().zip(&self.converged) {
+            *p = (c.pressure, c.dilatation);
+        }
         self.converged.copy_from_slice(&self.current);
+    }
+
+    /// Starts an increment `ratio` times as long as the last one from the
+    /// last converged unknowns moved on by `ratio` times their change over
+    /// the last increment, as the displacement predictor moves u (an
+    /// element whose dilatation would not stay positive keeps its converged
+    /// unknowns).
+    pub fn extrapolate(&mut self, ratio: f64) {
+        for ((cur, conv), &(p0, t0)) in self.current.iter_mut().zip(&self.converged).zip(&self.previous) {
+            let theta = conv.dilatation + ratio * (conv.dilatation - t0);
+            if theta > 0.0 && theta.is_finite() {
+                cur.dilatation = theta;
+                cur.pressure = conv.pressure + ratio * (conv.pressure - p0);
+            }
+        }
     }
 
     /// Starts a correction: the linearised dilatation change of every mixed
@@ -108,5 +130,31 @@ impl MixedUnknowns {
             }
         }
         Ok(())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn state(pressure: f64, dilatation: f64) -> MixedState {
+        MixedState { pressure, dilatation, ..MixedState::default() }
+    }
+
+    // Linear extrapolation of the carried unknowns from the last two
+    // converged increments (the displacement predictor's rule, applied to
+    // p and θ), and an element whose θ would not stay positive keeps its
+    // converged unknowns (definition, no published value).
+    #[test]
+    fn carried_unknowns_are_extrapolated_like_the_displacements() {
+        let mut m = MixedUnknowns::new(vec![state(1.0, 0.99), state(0.0, 0.5)]);
+        m.current = vec![state(1.5, 0.985), state(0.0, 0.2)];
+        m.commit();
+        m.extrapolate(2.0);
+        assert!((m.current[0].pressure - 2.5).abs() < 1e-12 && (m.current[0].dilatation - 0.975).abs() < 1e-12, "{:?}", m.current[0]);
+        // 0.2 + 2 (0.2 − 0.5) < 0: kept.
+        assert_eq!((m.current[1].pressure, m.current[1].dilatation), (0.0, 0.2));
+        m.restart();
+        assert_eq!((m.current[0].pressure, m.current[0].dilatation), (1.5, 0.985));
     }
 }

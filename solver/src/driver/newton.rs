@@ -1,7 +1,9 @@
 //! Newton–Raphson for one load increment, on the free dofs.
 //!
 //! The first iteration starts from the last converged state (optionally
-//! extrapolated from the previous increment) and carries the change of the
+//! extrapolated from the previous increment: the displacements and the
+//! mixed elements' carried pressure and dilatation alike, so the start is
+//! consistent to second order in the step) and carries the change of the
 //! prescribed displacements through the tangent (`K_ff du = −r − K_fp Δu_p`),
 //! so a large prescribed step does not invert the elements next to a moving
 //! face. Every correction is followed by a backtracking line search on
@@ -714,6 +716,7 @@ impl<'a> NewtonContext<'a> {
                 *ud += ratio * (self.last_converged[d] - prev[d]);
             }
             self.contacts.predict_multipliers(ratio);
+            self.mixed.extrapolate(ratio);
             extrapolated = true;
         }
         self.contacts.anchor_approaches(extrapolation.map_or(0.0, |(_, ratio)| ratio));
@@ -723,6 +726,7 @@ impl<'a> NewtonContext<'a> {
                 Ok(_) => break,
                 Err(_) if extrapolated => {
                     u.copy_from_slice(&self.last_converged);
+                    self.mixed.restart();
                     self.contacts.restore();
                     self.contacts.anchor_approaches(0.0);
                     extrapolated = false;
