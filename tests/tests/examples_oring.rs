@@ -58,11 +58,13 @@ fn oring_example_reaches_10_mpa_and_its_recorded_figures() {
     let (solution, summary) = run_job(&job, &scratch.0);
     // The pressurising stage completes; the extrusion stage beyond it stops
     // where the cord flows into the gap, and says so: as increments too
-    // small to go on, or as the limit load they amount to.
+    // small to go on, as the limit load they amount to, or as the cord
+    // passing the gap's `max_depth`.
     let (stage, context) = match &solution.termination {
         Termination::Stopped(SolveError::IncrementTooSmall { stage, context, .. } | SolveError::LimitPoint { stage, context, .. }) => {
-            (stage, context)
+            (stage.clone(), context.clone())
         }
+        Termination::Stopped(e @ SolveError::Extruded(stop)) => (stop.stage.clone(), e.to_string()),
         other => panic!("{other:?}"),
     };
     assert_eq!(stage, "extrude");

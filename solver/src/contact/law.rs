@@ -162,6 +162,10 @@ pub struct NodeResponse {
     pub stiffness: Matrix3<f64>,
     /// Elastic slip vector (tangential distance from the anchor), for output and the anchor update.
     pub slip: Vector3<f64>,
+    /// ∂force/∂λ: how the force follows the multiplier through the
+    /// pressure (normal and, sliding, friction part), for the multiplier's
+    /// Newton update (see `ContactPair::evaluate_into`).
+    pub rate: Vector3<f64>,
 }
 
 impl NodeResponse {
@@ -174,6 +178,7 @@ impl NodeResponse {
             force: Vector3::zeros(),
             stiffness: Matrix3::zeros(),
             slip: Vector3::zeros(),
+            rate: Vector3::zeros(),
         }
     }
 }
@@ -216,6 +221,7 @@ pub fn evaluate(
     let mut shear = Vector3::zeros();
     let mut slip = Vector3::zeros();
     let mut status = Status::Stick;
+    let mut rate = n * (dp * area);
     // A node that was not touching at the last converged state sticks where
     // it is expected to reach the surface (`Approach::entry`); one out of
     // the surface's reach then has no stick point and slides freely for the
@@ -250,6 +256,7 @@ pub fn evaluate(
             if tangent == FrictionTangent::Stick {
                 stiffness += dslip * (eps_t * area);
             } else {
+                rate += s * ((phi - x_ratio * dphi) * params.friction * dp * area);
                 let ss = s * s.transpose();
                 stiffness += (((Matrix3::identity() - ss) * (m * eps_t / t_norm) + ss * (dphi * eps_t)) * dslip
                     + s * n.transpose() * ((phi - x_ratio * dphi) * params.friction * eps))
@@ -259,7 +266,7 @@ pub fn evaluate(
     } else {
         status = Status::Slip;
     }
-    NodeResponse { status, pressure: p, shear, force: (n * p + shear) * area, stiffness, slip }
+    NodeResponse { status, pressure: p, shear, force: (n * p + shear) * area, stiffness, slip, rate }
 }
 
 #[cfg(test)]
@@ -285,6 +292,15 @@ mod tests {
         let err = (fd - r.stiffness).norm() / r.stiffness.norm().max(1e-12);
         // Central differences with h = 1e-7 on smooth branches: O(h²) + O(ε/h) ≈ 1e-8.
         assert!(err < 1e-6, "{:?} err {err:e}\nfd {fd}\nan {}", r.status, r.stiffness);
+        // ∂force/∂λ, the same way.
+        let proj = surface.project(&x).unwrap();
+        let at = |l: f64| {
+            let shifted = NodeState { multiplier: l, ..state };
+            evaluate(&proj, &x, 1.3, &params, &shifted, anchor, FrictionTangent::Consistent).force
+        };
+        let fd_rate = (at(state.multiplier + h) - at(state.multiplier - h)) / (2.0 * h);
+        let err = (fd_rate - r.rate).norm() / r.rate.norm().max(1e-12);
+        assert!(err < 1e-6, "{:?} rate err {err:e}: fd {fd_rate} an {}", r.status, r.rate);
     }
 
     // Consistency of the analytical tangent with the force law (mathematics,

@@ -90,6 +90,30 @@ pub struct ContactPair {
     /// [`ContactPair::evaluate_into`]); none before the first, after a
     /// restore, or while the node is out of the surface's reach.
     tangent_points: Vec<Option<TangentPoint>>,
+    /// Stiffness β of the multipliers' Newton update as a multiple of each
+    /// node's penalty (0: the multipliers change only by augmentation; see
+    /// [`ContactPair::evaluate_into`]).
+    pub constraint_factor: f64,
+    /// Per node touching where the last tangent was built: the point the
+    /// multiplier's Newton update starts from (none: open there, or no
+    /// tangent built since the last restore).
+    linearized: Vec<Option<Linearization>>,
+}
+
+/// A touching node where the last tangent was built: its normal, gap and
+/// multiplier there, its β, and ∂force/∂λ.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Linearization {
+    /// Outward surface normal.
+    pub normal: Vector3<f64>,
+    /// Signed gap.
+    pub gap: f64,
+    /// Multiplier.
+    pub multiplier: f64,
+    /// Stiffness β of the constraint.
+    pub beta: f64,
+    /// ∂force/∂λ.
+    pub rate: Vector3<f64>,
 }
 
 /// A node where the last tangent was built: its position and shear there,
@@ -204,6 +228,26 @@ impl ContactPair {
             recovered,
             whole_sides,
             tangent_points: vec![None; n_nodes],
+            constraint_factor: 0.0,
+            linearized: vec![None; n_nodes],
+        }
+    }
+
+    /// Where the last tangent of each node was built (see [`Linearization`]).
+    pub fn linearizations(&self) -> &[Option<Linearization>] {
+        &self.linearized
+    }
+
+    /// The multiplier of each node touching where the last tangent was
+    /// built, moved by its Newton update for the step `change` (per mesh
+    /// node, the displacement change from that point): λ = λ₀ − β (g₀ +
+    /// n·Δx), never below zero; the gap it closes to first order.
+    pub fn step_multipliers(&mut self, change: impl Fn(usize) -> Vector3<f64>) {
+        for k in 0..self.nodes.len() {
+            if let Some(l) = self.linearized[k] {
+                let dx = change(self.nodes[k]);
+                self.states[k].multiplier = (l.multiplier - l.beta * (l.gap + l.normal.dot(&dx))).max(0.0);
+            }
         }
     }
 
@@ -306,6 +350,21 @@ impl ContactPair {
                             _ => r.shear,
                         };
                         self.tangent_points[k] = Some(TangentPoint { position: xi, shear, held });
+                        self.linearized[k] = None;
+                        if self.constraint_factor > 0.0 && r.status != Status::Open && self.areas[k] > 0.0 {
+                            // The multiplier as a Newton unknown with the
+                            // constraint g + n·Δx = −Δλ/β: the step sees the
+                            // stiffness ε + β along the normal and the force
+                            // −β g ∂f/∂λ that closes the gap (added by the
+                            // caller to the right-hand side only).
+                            let beta = self.constraint_factor * self.penalties[k];
+                            let multiplier = self.states[k].multiplier;
+                            if multiplier - beta * proj.gap > 0.0 {
+                                r.stiffness += r.rate * proj.normal.transpose() * beta;
+                                self.linearized[k] =
+                                    Some(Linearization { normal: proj.normal, gap: proj.gap, multiplier, beta, rate: r.rate });
+                            }
+                        }
                     }
                     r
                 }
@@ -313,6 +372,7 @@ impl ContactPair {
                     out.gaps.push(f64::INFINITY);
                     if want_k {
                         self.tangent_points[k] = None;
+                        self.linearized[k] = None;
                     }
                     NodeResponse::open()
                 }
@@ -486,6 +546,7 @@ impl ContactPair {
     /// abandoned: its iterates say nothing about the retry's).
     pub fn forget_tangent_points(&mut self) {
         self.tangent_points.fill(None);
+        self.linearized.fill(None);
     }
 
     /// Each node held off the surface (gap > 0) takes its pressure at
@@ -819,6 +880,47 @@ mod tests {
     // the stick tangent, keep it when the same point is evaluated again,
     // and lose it once it slides on the same way; the force is always the
     // law's (definition of the rule, no published value).
+    // The multipliers' Newton update (definition of the step, no published
+    // value): a node pressed 0.01 into a plane takes the stiffness (ε + β) A
+    // along the normal and the closing force −β g ∂f/∂λ for the right-hand
+    // side; stepping it by Δx sets λ = λ₀ − β (g + n·Δx): the step that
+    // closes the gap keeps λ₀, no step takes up the whole penetration, and a
+    // node pulled far off keeps λ ≥ 0.
+    #[test]
+    fn a_touching_node_steps_its_multiplier_with_the_newton_step() {
+        use crate::contact::surface::{Placement, Shape};
+        let mut pair = frictionless_top(1);
+        pair.penalties.fill(100.0);
+        pair.constraint_factor = 100.0;
+        let beta = 1e4;
+        for s in &mut pair.states {
+            s.multiplier = 0.5;
+        }
+        let plane =
+            RigidSurface { shape: Shape::Plane { point: [0.0, 1.0, 0.0], normal: [0.0, -1.0, 0.0] }, placement: Placement::default() };
+        let nodes: Vec<Vector3<f64>> = {
+            use olli_mesh::generate::{rectangle, RectangleParams};
+            let mesh = rectangle(&RectangleParams { divisions: [1, 1], ..Default::default() }).unwrap();
+            mesh.nodes.iter().map(|&x| Vector3::from(x)).collect()
+        };
+        let mut out = PairResponse::default();
+        pair.evaluate_into(&plane, |n| nodes[n] + Vector3::new(0.0, 0.01, 0.0), &mut out, true);
+        let (r, area) = (out.nodes[0], pair.areas[0]);
+        assert!((r.pressure - 1.5).abs() < 1e-12, "p = λ − ε g: {}", r.pressure);
+        assert!((r.stiffness[(1, 1)] - (100.0 + beta) * area).abs() < 1e-9 * beta, "{}", r.stiffness);
+        let l = pair.linearizations()[0].expect("touching");
+        assert!((l.gap + 0.01).abs() < 1e-12 && (l.rate - Vector3::new(0.0, -area, 0.0)).norm() < 1e-12);
+        let closing = -l.beta * l.gap * l.rate;
+        assert!((closing.y + 100.0 * area).abs() < 1e-9, "pushes the node out of the plane: {closing}");
+        let multiplier_after = |pair: &mut ContactPair, dy: f64| {
+            pair.step_multipliers(|_| Vector3::new(0.0, dy, 0.0));
+            pair.states[0].multiplier
+        };
+        assert!((multiplier_after(&mut pair, -0.01) - 0.5).abs() < 1e-9);
+        assert!((multiplier_after(&mut pair, 0.0) - (0.5 + beta * 0.01)).abs() < 1e-9);
+        assert_eq!(multiplier_after(&mut pair, -1.0), 0.0);
+    }
+
     #[test]
     fn a_node_whose_slip_reverses_takes_the_stick_tangent_once() {
         use crate::contact::surface::{Placement, Shape};

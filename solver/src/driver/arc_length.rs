@@ -160,7 +160,12 @@ fn attempt(
     observer: &mut dyn Observer,
     stats: &mut SolveStats,
 ) -> Result<ArcStep, SolveError> {
-    let step = arc_increment(ctx, u, t, arc, (si, increment), observer, stats)?;
+    // The arc's own corrections step the displacements, not the contact
+    // multipliers: their Newton update is off for them.
+    ctx.contacts.set_newton_multipliers(false);
+    let step = arc_increment(ctx, u, t, arc, (si, increment), observer, stats);
+    ctx.contacts.set_newton_multipliers(true);
+    let step = step?;
     if step.t <= 1.0 {
         return Ok(step);
     }

@@ -245,6 +245,9 @@ pub struct NewtonContext<'a> {
     du: Vec<f64>,
     dup: Vec<f64>,
     base: Vec<f64>,
+    /// u where the last tangent was built (the contact multipliers' Newton
+    /// update is measured from there).
+    linearized_at: Vec<f64>,
     /// Displacement of the last converged increment (all dofs).
     pub last_converged: Vec<f64>,
     /// Rigid-surface contact (may hold no bodies).
@@ -346,6 +349,7 @@ impl<'a> NewtonContext<'a> {
             du: vec![0.0; dofs.n_free],
             dup: vec![0.0; ndof],
             base: vec![0.0; ndof],
+            linearized_at: vec![0.0; ndof],
             last_converged: start.to_vec(),
             force_floor: 1e-10 * force_unit(disc),
             roundoff_floor: 0.0,
@@ -493,6 +497,15 @@ impl<'a> NewtonContext<'a> {
             let q = self.dofs.eq[d];
             if q != NONE {
                 self.rhs[q] -= r;
+            }
+        }
+        if want_k {
+            self.linearized_at.copy_from_slice(u);
+            for &(d, f) in self.contacts.closing_forces() {
+                let q = self.dofs.eq[d];
+                if q != NONE {
+                    self.rhs[q] += f;
+                }
             }
         }
         if !self.inserts.is_empty() {
@@ -860,6 +873,8 @@ impl<'a> NewtonContext<'a> {
             if !self.inserts.is_empty() {
                 self.inserts.step(&self.dq, s, u);
             }
+            let from = &self.linearized_at;
+            self.contacts.step_multipliers(|d| u[d] - from[d]);
             let evaluated =
                 self.mixed.apply(self.disc, s).map_err(SolveError::from).and_then(|_| self.evaluate(u, t, want_k, false, stats));
             match evaluated {

@@ -215,7 +215,11 @@ impl Tangents<'_, '_> {
             add_pressure(mesh, self.disc.model.analysis, &p.sides, p.end, self.preload.u, &mut system);
         }
         if !self.preload.contacts.is_empty() {
+            // About the converged preload the contact's own tangent: no
+            // multiplier is a Newton unknown here.
+            self.preload.contacts.set_newton_multipliers(false);
             self.preload.contacts.evaluate(&mesh.nodes, self.preload.u, 1.0, &mut system);
+            self.preload.contacts.set_newton_multipliers(true);
         }
         if !self.preload.fluids.is_empty() {
             self.preload.fluids.add_loads(&mesh.nodes, self.preload.u, 1.0, &mut system);
