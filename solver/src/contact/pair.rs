@@ -101,7 +101,15 @@ pub struct ContactPair {
 }
 
 /// A touching node where the last tangent was built: its normal, gap and
-/// multiplier there, its β, and ∂force/∂λ.
+/// multiplier there, its β, and ∂force/∂λ. With β > 0 its constraint is
+/// active (trial pressure λ − ε g > 0) and the step closes its gap; with
+/// β = 0 it touches only within the law's rounding near p = 0 and the step
+/// releases it (λ → 0), the semi-smooth Newton rule for an inactive
+/// constraint. (The activity test takes the law's penalty ε, not β: with β
+/// a node whose multiplier was predicted from the last increments and
+/// whose gap is still open by more than λ/β at the predictor was released
+/// and caught again, and a pressed roller's Newton steps lost their
+/// quadratic rate.)
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Linearization {
     /// Outward surface normal.
@@ -110,10 +118,32 @@ pub struct Linearization {
     pub gap: f64,
     /// Multiplier.
     pub multiplier: f64,
-    /// Stiffness β of the constraint.
+    /// Stiffness β of the constraint (0: released).
     pub beta: f64,
     /// ∂force/∂λ.
     pub rate: Vector3<f64>,
+}
+
+impl Linearization {
+    /// The multiplier change the step makes before the node moves (−β g;
+    /// released: −λ); its force, change × ∂f/∂λ, goes to the right-hand side.
+    pub fn change_at_rest(&self) -> f64 {
+        if self.beta > 0.0 {
+            -self.beta * self.gap
+        } else {
+            -self.multiplier
+        }
+    }
+
+    /// The multiplier after the node moved by `dx` from here:
+    /// λ − β (g + n·dx), never below zero (released: 0).
+    pub fn stepped(&self, dx: &Vector3<f64>) -> f64 {
+        if self.beta > 0.0 {
+            (self.multiplier - self.beta * (self.gap + self.normal.dot(dx))).max(0.0)
+        } else {
+            0.0
+        }
+    }
 }
 
 /// A node where the last tangent was built: its position and shear there,
@@ -240,13 +270,13 @@ impl ContactPair {
 
     /// The multiplier of each node touching where the last tangent was
     /// built, moved by its Newton update for the step `change` (per mesh
-    /// node, the displacement change from that point): λ = λ₀ − β (g₀ +
-    /// n·Δx), never below zero; the gap it closes to first order.
+    /// node, the displacement change from that point; see
+    /// [`Linearization::stepped`]).
     pub fn step_multipliers(&mut self, change: impl Fn(usize) -> Vector3<f64>) {
         for k in 0..self.nodes.len() {
             if let Some(l) = self.linearized[k] {
                 let dx = change(self.nodes[k]);
-                self.states[k].multiplier = (l.multiplier - l.beta * (l.gap + l.normal.dot(&dx))).max(0.0);
+                self.states[k].multiplier = l.stepped(&dx);
             }
         }
     }
@@ -359,10 +389,17 @@ impl ContactPair {
                             // caller to the right-hand side only).
                             let beta = self.constraint_factor * self.penalties[k];
                             let multiplier = self.states[k].multiplier;
-                            if multiplier - beta * proj.gap > 0.0 {
+                            if multiplier - self.penalties[k] * proj.gap > 0.0 {
                                 r.stiffness += r.rate * proj.normal.transpose() * beta;
                                 self.linearized[k] =
                                     Some(Linearization { normal: proj.normal, gap: proj.gap, multiplier, beta, rate: r.rate });
+                            } else {
+                                // Touching only within the law's rounding
+                                // (λ − ε g ≤ 0: the constraint is not
+                                // active): the step releases it, λ → 0, and
+                                // takes up the force it loses (−λ ∂f/∂λ).
+                                self.linearized[k] =
+                                    Some(Linearization { normal: proj.normal, gap: proj.gap, multiplier, beta: 0.0, rate: r.rate });
                             }
                         }
                     }
@@ -885,7 +922,8 @@ mod tests {
     // along the normal and the closing force −β g ∂f/∂λ for the right-hand
     // side; stepping it by Δx sets λ = λ₀ − β (g + n·Δx): the step that
     // closes the gap keeps λ₀, no step takes up the whole penetration, and a
-    // node pulled far off keeps λ ≥ 0.
+    // node pulled far off keeps λ ≥ 0; a node touching only within the
+    // law's rounding is released (the semi-smooth rule, λ − ε g ≤ 0).
     #[test]
     fn a_touching_node_steps_its_multiplier_with_the_newton_step() {
         use crate::contact::surface::{Placement, Shape};
@@ -919,6 +957,19 @@ mod tests {
         assert!((multiplier_after(&mut pair, -0.01) - 0.5).abs() < 1e-9);
         assert!((multiplier_after(&mut pair, 0.0) - (0.5 + beta * 0.01)).abs() < 1e-9);
         assert_eq!(multiplier_after(&mut pair, -1.0), 0.0);
+        // 0.0055 off the plane with λ = 0.5: trial pressure λ − ε g = −0.05,
+        // inside the law's rounding (δ = 1e-3 ε h = 0.1), p = 0.05²/(4δ) > 0:
+        // released, the step asks for λ → 0 and the force it loses, and the
+        // tangent is the law's own, ε dp A with dp = 0.25.
+        for s in &mut pair.states {
+            s.multiplier = 0.5;
+        }
+        pair.evaluate_into(&plane, |n| nodes[n] - Vector3::new(0.0, 0.0055, 0.0), &mut out, true);
+        assert!((out.nodes[0].pressure - 0.00625).abs() < 1e-12, "{}", out.nodes[0].pressure);
+        assert!((out.nodes[0].stiffness[(1, 1)] - 25.0 * area).abs() < 1e-9, "no constraint stiffness: {}", out.nodes[0].stiffness);
+        let l = pair.linearizations()[0].expect("touching");
+        assert_eq!((l.beta, l.change_at_rest()), (0.0, -0.5));
+        assert_eq!(multiplier_after(&mut pair, 0.0), 0.0);
     }
 
     #[test]
