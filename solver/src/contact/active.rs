@@ -34,8 +34,9 @@ pub const PENALTY_FACTOR: f64 = 50.0;
 /// each node's normal penalty (see `ContactPair::evaluate_into`): the
 /// multiplier of a node touching at a Newton iterate is an unknown of the
 /// step, with the constraint g + n·Δx = −Δλ/β, so each step closes the gap
-/// to within 1/β of the penalty's share and the penetration falls with the
-/// residual instead of by augmentation between solves. A node touching
+/// to first order (the constraint's error falls as 1/β) and the
+/// penetration falls with the residual instead of by augmentation between
+/// solves. A node touching
 /// only within the law's rounding (λ − ε g ≤ 0) is released by the step
 /// instead (λ → 0). Measured on the seal examples (Newton iterations, face
 /// seal / seal relaxation / radial seal / tri6 seal / O-ring up to its
@@ -328,7 +329,7 @@ impl ActiveContacts {
     pub fn set_newton_multipliers(&mut self, on: bool) {
         for b in &mut self.bodies {
             b.pair.constraint_factor = if on { CONSTRAINT_STIFFNESS } else { 0.0 };
-            b.pair.forget_tangent_points();
+            b.pair.forget_linearizations();
         }
         self.closing.clear();
     }

@@ -583,6 +583,12 @@ impl ContactPair {
     /// abandoned: its iterates say nothing about the retry's).
     pub fn forget_tangent_points(&mut self) {
         self.tangent_points.fill(None);
+        self.forget_linearizations();
+    }
+
+    /// Forgets where the multipliers' Newton update starts from (no step
+    /// moves them until the next tangent is built).
+    pub fn forget_linearizations(&mut self) {
         self.linearized.fill(None);
     }
 
