@@ -122,10 +122,6 @@ pub struct ContactFields {
 pub struct ActiveContacts {
     bodies: Vec<Body>,
     dim: usize,
-    /// Forces of the multipliers' Newton update at the last tangent, per
-    /// global dof, for the right-hand side only (see
-    /// [`ContactPair::evaluate_into`]).
-    closing: Vec<(usize, f64)>,
 }
 
 fn rest(name: &str) -> RigidMotion {
@@ -216,7 +212,7 @@ impl ActiveContacts {
         for b in &mut bodies {
             b.pair.constraint_factor = CONSTRAINT_STIFFNESS;
         }
-        Ok(ActiveContacts { bodies, dim: disc.dim, closing: Vec::new() })
+        Ok(ActiveContacts { bodies, dim: disc.dim })
     }
 
     /// The surface of rigid body `name` where the last evaluation placed it.
@@ -278,9 +274,6 @@ impl ActiveContacts {
             x
         };
         let want_k = system.wants_stiffness();
-        if want_k {
-            self.closing.clear();
-        }
         let mut block = [0.0; 9];
         for b in &mut self.bodies {
             Self::place(b, t);
@@ -299,15 +292,6 @@ impl ActiveContacts {
                         }
                     }
                     system.add_stiffness(&gdofs[..dim], &block[..dim * dim], true);
-                }
-            }
-            if want_k {
-                for (&node, l) in b.pair.nodes.iter().zip(b.pair.linearizations()) {
-                    if let Some(l) = l {
-                        for i in 0..dim {
-                            self.closing.push((node * dim + i, l.change_at_rest() * l.rate[i]));
-                        }
-                    }
                 }
             }
             b.corners.evaluate(&b.surface, position);
@@ -331,14 +315,22 @@ impl ActiveContacts {
             b.pair.constraint_factor = if on { CONSTRAINT_STIFFNESS } else { 0.0 };
             b.pair.forget_linearizations();
         }
-        self.closing.clear();
     }
 
     /// The forces that close the gaps of touching nodes in the next Newton
-    /// step (per global dof; right-hand side only, see
-    /// [`ContactPair::evaluate_into`]).
-    pub fn closing_forces(&self) -> &[(usize, f64)] {
-        &self.closing
+    /// step, from where the last tangent was built: `add(global dof, force)`
+    /// for the right-hand side only (see [`ContactPair::evaluate_into`]).
+    pub fn closing_forces(&self, mut add: impl FnMut(usize, f64)) {
+        let dim = self.dim;
+        for b in &self.bodies {
+            for (&node, l) in b.pair.nodes.iter().zip(b.pair.linearizations()) {
+                if let Some(l) = l {
+                    for i in 0..dim {
+                        add(node * dim + i, l.change_at_rest() * l.rate[i]);
+                    }
+                }
+            }
+        }
     }
 
     /// Moves the multipliers by their Newton update for a step that changes

@@ -386,21 +386,16 @@ impl ContactPair {
                             // constraint g + n·Δx = −Δλ/β: the step sees the
                             // stiffness ε + β along the normal and the force
                             // −β g ∂f/∂λ that closes the gap (added by the
-                            // caller to the right-hand side only).
-                            let beta = self.constraint_factor * self.penalties[k];
+                            // caller to the right-hand side only). A node
+                            // touching only within the law's rounding
+                            // (λ − ε g ≤ 0: the constraint is not active)
+                            // takes β = 0: the step releases it, λ → 0, and
+                            // takes up the force it loses (−λ ∂f/∂λ).
                             let multiplier = self.states[k].multiplier;
-                            if multiplier - self.penalties[k] * proj.gap > 0.0 {
-                                r.stiffness += r.rate * proj.normal.transpose() * beta;
-                                self.linearized[k] =
-                                    Some(Linearization { normal: proj.normal, gap: proj.gap, multiplier, beta, rate: r.rate });
-                            } else {
-                                // Touching only within the law's rounding
-                                // (λ − ε g ≤ 0: the constraint is not
-                                // active): the step releases it, λ → 0, and
-                                // takes up the force it loses (−λ ∂f/∂λ).
-                                self.linearized[k] =
-                                    Some(Linearization { normal: proj.normal, gap: proj.gap, multiplier, beta: 0.0, rate: r.rate });
-                            }
+                            let active = multiplier - self.penalties[k] * proj.gap > 0.0;
+                            let beta = if active { self.constraint_factor * self.penalties[k] } else { 0.0 };
+                            r.stiffness += r.rate * proj.normal.transpose() * beta;
+                            self.linearized[k] = Some(Linearization { normal: proj.normal, gap: proj.gap, multiplier, beta, rate: r.rate });
                         }
                     }
                     r

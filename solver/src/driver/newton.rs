@@ -501,12 +501,12 @@ impl<'a> NewtonContext<'a> {
         }
         if want_k {
             self.linearized_at.copy_from_slice(u);
-            for &(d, f) in self.contacts.closing_forces() {
-                let q = self.dofs.eq[d];
-                if q != NONE {
-                    self.rhs[q] += f;
+            let (eq, rhs) = (&self.dofs.eq, &mut self.rhs);
+            self.contacts.closing_forces(|d, f| {
+                if eq[d] != NONE {
+                    rhs[eq[d]] += f;
                 }
-            }
+            });
         }
         if !self.inserts.is_empty() {
             self.inserts.residual(&self.residual, t, &mut self.insert_residual);
