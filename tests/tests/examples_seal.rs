@@ -38,9 +38,13 @@ fn seal_example_results_match_its_note() {
     // equilibrium; 164 once a node whose slip reverses takes the stick
     // tangent for its next step (the first pressurised increment: 51 -> 20);
     // 159 once the predictor extrapolates the carried element pressures too;
-    // 113 once the contact multipliers are unknowns of each Newton step.
+    // 113 once the contact multipliers are unknowns of each Newton step;
+    // 96 in 24 increments once the fluid's front is found again at any
+    // iterate within a relative residual of 0.1 and, with contact, the
+    // systems solved on a kept factor are solved ten times tighter far
+    // from equilibrium.
     // A bound, not a timing.
-    assert!(solution.stats.newton_iterations <= 170, "{} Newton iterations", solution.stats.newton_iterations);
+    assert!(solution.stats.newton_iterations <= 110, "{} Newton iterations", solution.stats.newton_iterations);
     let squeezed = solution.increments.iter().rfind(|i| i.stage == 0).unwrap();
     let cover = squeezed.contact.iter().find(|c| c.name == "cover").unwrap();
     // The note gives 4 significant figures: 0.1 % allowed.
