@@ -868,9 +868,10 @@ impl<'a> NewtonContext<'a> {
     /// (Eisenstat & Walker 1996, "Choosing the forcing terms in an inexact
     /// Newton method", SIAM J. Sci. Comput. 17(1)): the linear residual
     /// falls by [`FORCING`] times the relative out-of-balance force, at
-    /// most [`MAX_FORCING`] ([`MAX_FORCING_CONTACT`] with contact), so the error it leaves is of the order of
-    /// Newton's own quadratic term and convergence stays quadratic; but no
-    /// tighter than the oversolving guard of [`forcing`].
+    /// most [`MAX_FORCING`] ([`MAX_FORCING_CONTACT`] with contact), so the
+    /// error it leaves is of the order of Newton's own quadratic term and
+    /// convergence stays quadratic; but no tighter than the oversolving
+    /// guard of [`forcing`].
     ///
     /// `last`: the Newton iterate of this system likely converges (see
     /// [`likely_last`]), so the factor serves no later system.
@@ -1153,10 +1154,11 @@ impl<'a> NewtonContext<'a> {
 
 /// The relative residual a Newton system solved on a kept factor must reach
 /// at the relative out-of-balance force `relative`: [`FORCING`] times it, at
-/// most `cap` ([`MAX_FORCING`], or [`MAX_FORCING_CONTACT`]), but never tighter than the oversolving guard, which
-/// leaves a linear error of [`OVERSOLVE_GUARD`] times the force tolerance
-/// (at most [`MAX_GUARDED_FORCING`]): near convergence the last system need
-/// not be solved to many more digits than the answer keeps.
+/// most `cap` ([`MAX_FORCING`], or [`MAX_FORCING_CONTACT`]), but never
+/// tighter than the oversolving guard, which leaves a linear error of
+/// [`OVERSOLVE_GUARD`] times the force tolerance (at most
+/// [`MAX_GUARDED_FORCING`]): near convergence the last system need not be
+/// solved to many more digits than the answer keeps.
 fn forcing(relative: f64, force_tolerance: f64, cap: f64) -> f64 {
     let guard = (OVERSOLVE_GUARD * force_tolerance / relative.max(f64::MIN_POSITIVE)).min(MAX_GUARDED_FORCING);
     (FORCING * relative).min(cap).max(guard)
